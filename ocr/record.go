@@ -1,0 +1,93 @@
+package ocr
+
+import (
+	"encoding/json"
+	"fmt"
+	"os"
+)
+
+// RecordVersion is the version of the Record format written by this build.
+const RecordVersion = 1
+
+// Record is what recognition of one page produced: the sidecar that
+// `recto ocr` writes as <name>.json and that triage, correction and the
+// batch run read back.
+type Record struct {
+	Version int    `json:"version"` // RecordVersion
+	Source  string `json:"source"`  // page image path as given by the user
+	SHA256  string `json:"sha256"`  // hex SHA-256 of the source file's bytes
+
+	Width  int     `json:"width"`  // original image width, pixels
+	Height int     `json:"height"` // original image height, pixels
+	DPI    float64 `json:"dpi"`    // resolution used: from the file, --dpi, or assumed
+
+	Skew         float64 `json:"skew_degrees"`        // skew found, degrees, counter-clockwise positive
+	Binarization string  `json:"binarization"`        // "otsu", "sauvola", or "none"
+	Threshold    int     `json:"threshold,omitempty"` // global threshold 0-255 when Binarization is "otsu"
+	Noise        float64 `json:"noise"`               // estimated noise, standard deviation in grey levels
+	Blank        bool    `json:"blank"`               // no ink worth recognising was found
+
+	MeanConfidence float64 `json:"mean_confidence"` // mean word confidence in [0, 1]; 0 with no words
+	Words          []Word  `json:"words"`           // in reading order
+
+	TimingsMS map[string]float64 `json:"timings_ms"` // milliseconds per step, e.g. "deskew", "engine"
+}
+
+// Word is one recognised word.
+type Word struct {
+	Text  string  `json:"text"`
+	Conf  float64 `json:"conf"`  // engine confidence in [0, 1], not percent
+	Box   Box     `json:"box"`   // original image pixels
+	Block int     `json:"block"` // block index on the page, reading order, from 0
+	Line  int     `json:"line"`  // line index on the page (not within the block), from 0
+}
+
+// Box is an axis-aligned rectangle in pixels.
+type Box struct {
+	X int `json:"x"` // left edge
+	Y int `json:"y"` // top edge
+	W int `json:"w"` // width
+	H int `json:"h"` // height
+}
+
+// Text returns the page text rebuilt from the words: words of a line joined
+// by single spaces, lines by "\n", blocks separated by a blank line.
+func (r *Record) Text() string {
+	var b []byte
+	for i, w := range r.Words {
+		if i > 0 {
+			prev := r.Words[i-1]
+			switch {
+			case w.Block != prev.Block:
+				b = append(b, '\n', '\n')
+			case w.Line != prev.Line:
+				b = append(b, '\n')
+			default:
+				b = append(b, ' ')
+			}
+		}
+		b = append(b, w.Text...)
+	}
+	if len(b) > 0 {
+		b = append(b, '\n')
+	}
+	return string(b)
+}
+
+// ReadRecord reads a Record written by WriteRecord. It returns an error that
+// names the file when it cannot be read, is not JSON of the expected shape,
+// or has a version this build does not know.
+func ReadRecord(path string) (*Record, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("ocr: %w", err)
+	}
+	var r Record
+	if err := json.Unmarshal(data, &r); err != nil {
+		return nil, fmt.Errorf("ocr: %q: not a page record: %w", path, err)
+	}
+	if r.Version != RecordVersion {
+		return nil, fmt.Errorf("ocr: %q: page record version %d, this build reads version %d", path, r.Version, RecordVersion)
+	}
+	return &r, nil
+}

@@ -40,6 +40,11 @@ type Word struct {
 	Box   Box     `json:"box"`   // original image pixels
 	Block int     `json:"block"` // block index on the page, reading order, from 0
 	Line  int     `json:"line"`  // line index on the page (not within the block), from 0
+
+	// Alt holds other readings of the word, most likely first; correction
+	// puts the engine's original reading here when it changes Text. ALTO
+	// output writes them as ALTERNATIVE elements.
+	Alt []string `json:"alt,omitempty"`
 }
 
 // Box is an axis-aligned rectangle in pixels.

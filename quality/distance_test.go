@@ -208,3 +208,46 @@ func TestDistanceAllocs(t *testing.T) {
 		t.Errorf("Scratch.Align allocates %v times per run on warmed scratch, want 0", n)
 	}
 }
+
+// FuzzAlign checks the metric properties of the distance (Levenshtein
+// 1966; Wagner and Fischer 1974) and the alignment against each other and
+// against the table: no panic; symmetric; 0 only for equal strings; at
+// least the length difference and at most the longer length; Align's ops
+// rebuild both strings and cost exactly Distance.
+func FuzzAlign(f *testing.F) {
+	f.Add("kitten", "sitting")
+	f.Add("intention", "execution")
+	f.Add("modern", "rnodern")
+	f.Add("cafe\u0301", "café")
+	f.Add("", "𝔄b")
+	f.Add("aaaa", "")
+	f.Fuzz(func(t *testing.T, x, y string) {
+		a, b := []rune(x), []rune(y)
+		if len(a) > 2000 || len(b) > 2000 {
+			return
+		}
+		var s Scratch
+		d := s.Distance(a, b)
+		if d2 := s.Distance(b, a); d2 != d {
+			t.Fatalf("Distance not symmetric: %d vs %d for %q, %q", d, d2, x, y)
+		}
+		if (d == 0) != (string(a) == string(b)) {
+			t.Fatalf("Distance(%q, %q) = %d", x, y, d)
+		}
+		lo, hi := len(a)-len(b), max(len(a), len(b))
+		if lo < 0 {
+			lo = -lo
+		}
+		if d < lo || d > hi {
+			t.Fatalf("Distance(%q, %q) = %d, outside [%d, %d]", x, y, d, lo, hi)
+		}
+		if len(a)*len(b) <= 250000 {
+			if want := tableDistance(a, b); d != want {
+				t.Fatalf("Distance(%q, %q) = %d, table says %d", x, y, d, want)
+			}
+		}
+		checkOps(t, a, b, s.Align(a, b, nil), d)
+		al := aligner{limit: 1}
+		checkOps(t, a, b, al.align(a, b, nil), d)
+	})
+}

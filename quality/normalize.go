@@ -99,8 +99,14 @@ func Normalize(s string, o NormOptions) string {
 		s = b.String()
 	}
 	if o.FoldCase {
-		// Folding may decompose (U+0130 folds to "i" + U+0307); recompose.
-		s = norm.NFC.String(cases.Fold().String(s))
+		s = foldCase(s)
+	}
+	if o.FoldCase || o.IgnorePunct || o.PlainTypography {
+		// The options may leave text out of NFC: folding decomposes U+0130
+		// into "i" + U+0307, and deleting "." from "e.\u0301" joins a mark
+		// to a letter. The first NFC made canonically equivalent inputs
+		// equal, so this second pass keeps them equal.
+		s = norm.NFC.String(s)
 	}
 	return collapseSpace(s)
 }
@@ -127,4 +133,18 @@ func collapseSpace(s string) string {
 		b.WriteRune(r)
 	}
 	return b.String()
+}
+
+// foldCase applies Unicode full case folding. golang.org/x/text/cases
+// (v0.44) folds Cherokee letters in a cycle (U+13EB to U+ABBB and back),
+// so they are then mapped to the capitals that CaseFolding.txt (Unicode
+// 15) gives as their folded form, which keeps folding idempotent.
+func foldCase(s string) string {
+	s = cases.Fold().String(s)
+	return strings.Map(func(r rune) rune {
+		if (r >= 0x13A0 && r <= 0x13FD) || (r >= 0xAB70 && r <= 0xABBF) {
+			return unicode.ToUpper(r)
+		}
+		return r
+	}, s)
 }

@@ -159,13 +159,28 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 		p.Blank = true
 	}
 
+	switch method {
+	case "", "auto":
+		if bg.variation > unevenFraction*float64(bg.paper-bg.otsu) {
+			method = "sauvola"
+		} else {
+			method = "otsu"
+		}
+	}
+
 	rot := rotation{}
 	rotated := false
 	if o.Deskew != Off && !blank {
 		var it integral
 		b2 := image.NewGray(g2.Rect)
 		sauvola(b2, g2, sauvolaWindow(g2.Rect.Dx(), g2.Rect.Dy()), &it)
-		deg, ok := findSkew(b2, maxSkew)
+		// The final stage of the search uses the full-size ink when one
+		// level separates it from the paper (the page is evenly lit).
+		t := -1
+		if method != "sauvola" {
+			t = bg.otsu
+		}
+		deg, ok := findSkew(b2, g, t, maxSkew)
 		switch {
 		case !ok:
 			step("deskew", false, "no clear skew found")
@@ -184,14 +199,6 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 		step("deskew", false, "off")
 	}
 
-	switch method {
-	case "", "auto":
-		if bg.variation > unevenFraction*float64(bg.paper-bg.otsu) {
-			method = "sauvola"
-		} else {
-			method = "otsu"
-		}
-	}
 	switch method {
 	case "otsu":
 		p.Threshold = otsu(histogram(g))

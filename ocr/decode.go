@@ -10,6 +10,7 @@ import (
 	"image/png"
 	"io"
 	"os"
+	"strings"
 
 	"golang.org/x/image/bmp"
 	"golang.org/x/image/tiff"
@@ -186,12 +187,21 @@ func decodeBytes(data []byte, maxPixels int) (*Decoded, error) {
 		img, err = bmp.Decode(bytes.NewReader(data))
 	}
 	if err != nil {
+		if format == "tiff" && strings.HasPrefix(err.Error(), "ccitt:") && tiffInfo(data).compression == 3 {
+			// golang.org/x/image/ccitt (v0.48) reads Group 3 data
+			// without End-of-Line codes only; libtiff and fax
+			// software write EOLs, often byte-aligned (T4Options
+			// bit 2), which it rejects as "missing End-of-Line".
+			return nil, &DecodeError{Kind: ErrUnsupported,
+				Err: fmt.Errorf("tiff: CCITT Group 3 with End-of-Line codes (%v)", err)}
+		}
 		return nil, classify(format, err)
 	}
 	d := &Decoded{Image: img, Format: format, Pages: 1}
 	switch format {
 	case "tiff":
-		d.DPI, d.Pages = tiffInfo(data)
+		info := tiffInfo(data)
+		d.DPI, d.Pages = info.dpi, info.pages
 		if d.Pages > 1 {
 			d.Warnings = append(d.Warnings, fmt.Sprintf("multi-page TIFF with %d pages: only the first page is used", d.Pages))
 		}
@@ -299,33 +309,56 @@ func jfifDPI(data []byte) float64 {
 	return 0
 }
 
-// tiffInfo reads XResolution and ResolutionUnit from the first IFD and
-// counts the IFDs (pages), following TIFF 6.0 (Adobe 1992), sections 2 and 8.
-// Damaged or looping IFD chains stop the count; the decoder has already
-// accepted the first page.
-func tiffInfo(data []byte) (dpi float64, pages int) {
+// tiffIFD is what tiffInfo reads from a TIFF file.
+type tiffIFD struct {
+	dpi         float64 // from XResolution and ResolutionUnit; 0 if absent or unit-less
+	pages       int     // IFDs in the chain, at least 1
+	compression int     // Compression tag of the first IFD (1 if absent)
+	t4Options   int     // T4Options tag of the first IFD
+}
+
+// tiffInfo reads XResolution, ResolutionUnit, Compression and T4Options
+// from the first IFD and counts the IFDs (pages), following TIFF 6.0 (Adobe
+// 1992), sections 2, 8 and 11. Damaged or looping IFD chains stop the
+// count; the decoder has already accepted (or judged) the first page.
+func tiffInfo(data []byte) tiffIFD {
+	info := tiffIFD{compression: 1}
+	if len(data) < 8 {
+		return tiffIFD{pages: 1}
+	}
 	var bo binary.ByteOrder = binary.LittleEndian
 	if data[0] == 'M' {
 		bo = binary.BigEndian
 	}
 	off := uint64(bo.Uint32(data[4:8]))
 	seen := map[uint64]bool{}
-	for off != 0 && off+2 <= uint64(len(data)) && !seen[off] && pages < 100000 {
+	for off != 0 && off+2 <= uint64(len(data)) && !seen[off] && info.pages < 100000 {
 		seen[off] = true
 		n := uint64(bo.Uint16(data[off : off+2]))
 		end := off + 2 + 12*n
 		if end+4 > uint64(len(data)) {
-			pages++
+			info.pages++
 			break
 		}
-		if pages == 0 {
+		if info.pages == 0 {
 			var xres float64
 			unit := uint16(2) // inch is the default
 			for i := uint64(0); i < n; i++ {
 				e := data[off+2+12*i : off+2+12*i+12]
 				tag, typ := bo.Uint16(e[0:2]), bo.Uint16(e[2:4])
-				switch {
-				case tag == 282 && typ == 5: // XResolution, RATIONAL
+				short := func() int {
+					if typ == 3 {
+						return int(bo.Uint16(e[8:10]))
+					}
+					return int(bo.Uint32(e[8:12]))
+				}
+				switch tag {
+				case 259: // Compression
+					info.compression = short()
+				case 282: // XResolution, RATIONAL
+					if typ != 5 {
+						continue
+					}
 					vo := uint64(bo.Uint32(e[8:12]))
 					if vo+8 <= uint64(len(data)) {
 						num, den := bo.Uint32(data[vo:vo+4]), bo.Uint32(data[vo+4:vo+8])
@@ -333,22 +366,24 @@ func tiffInfo(data []byte) (dpi float64, pages int) {
 							xres = float64(num) / float64(den)
 						}
 					}
-				case tag == 296 && typ == 3: // ResolutionUnit, SHORT
-					unit = bo.Uint16(e[8:10])
+				case 292: // T4Options
+					info.t4Options = short()
+				case 296: // ResolutionUnit
+					unit = uint16(short())
 				}
 			}
 			switch unit {
 			case 2:
-				dpi = xres
+				info.dpi = xres
 			case 3:
-				dpi = xres * 2.54
+				info.dpi = xres * 2.54
 			}
 		}
-		pages++
+		info.pages++
 		off = uint64(bo.Uint32(data[end : end+4]))
 	}
-	if pages == 0 {
-		pages = 1
+	if info.pages == 0 {
+		info.pages = 1
 	}
-	return dpi, pages
+	return info
 }

@@ -75,4 +75,3 @@ func checkLangs(want, have []string) error {
 	}
 	return nil
 }
-

@@ -69,7 +69,7 @@ func parse(r io.Reader) (*node, error) {
 		case xml.StartElement:
 			n := &node{name: t.Name, attr: map[string]string{}}
 			for _, a := range t.Attr {
-				if a.Name.Space == "" {
+				if a.Name.Space == "" && a.Name.Local != "xmlns" {
 					n.attr[a.Name.Local] = a.Value
 				}
 			}

@@ -176,15 +176,6 @@ func runOCR(ctx context.Context, o OCROptions, g GlobalOptions, args []string) e
 	if err != nil {
 		return err
 	}
-	in := args[0]
-	pages, err := findPages(in, o.Out)
-	if err != nil {
-		return err
-	}
-	if len(pages) == 0 {
-		return fmt.Errorf("ocr: no page images (.tif, .tiff, .png, .jpg, .jpeg) under %q", in)
-	}
-
 	// A missing language is the user's to fix: fail before any work.
 	have, err := tessLanguages()
 	if err != nil {
@@ -195,6 +186,15 @@ func runOCR(ctx context.Context, o OCROptions, g GlobalOptions, args []string) e
 			return usagef("ocr: --lang %q: language %q is not installed (installed: %s); on Debian install the package %s",
 				cfg.Lang, l, strings.Join(have, ", "), tesseract.DebianPackage(l))
 		}
+	}
+
+	in := args[0]
+	pages, err := findPages(in, o.Out)
+	if err != nil {
+		return err
+	}
+	if len(pages) == 0 {
+		return fmt.Errorf("ocr: no page images (.tif, .tiff, .png, .jpg, .jpeg) under %q", in)
 	}
 
 	// One level of parallelism: pages run in parallel. imaging v1.6.2, the

@@ -72,12 +72,14 @@ var termFuncs = map[string]func(f *Features) float64{
 	"upper":         func(f *Features) float64 { return f.Upper },
 	"log_tokens":    func(f *Features) float64 { return math.Log1p(float64(f.Tokens)) },
 	"conf_x_miss":   func(f *Features) float64 { return (1 - f.MeanConf) * lexMiss(f) },
+	"coverage":      func(f *Features) float64 { return f.Coverage },
+	"log_density":   func(f *Features) float64 { return math.Log1p(f.Density) },
 }
 
 // recordTerms and textTerms are the terms Fit uses.
 var (
 	textTerms   = []string{"lex_miss", "sqrt_lex_miss", "garbage", "sqrt_garbage", "short", "non_letter", "punct", "symbols", "digits", "upper", "log_tokens"}
-	recordTerms = append([]string{"mean_conf", "low_conf", "sqrt_low_conf", "conf_x_miss"}, textTerms...)
+	recordTerms = append([]string{"mean_conf", "low_conf", "sqrt_low_conf", "conf_x_miss", "coverage", "log_density"}, textTerms...)
 )
 
 func lexMiss(f *Features) float64 {

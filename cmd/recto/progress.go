@@ -12,10 +12,10 @@ import (
 	"github.com/mattn/go-isatty"
 )
 
-// progress reports a run on stderr: a redrawn bar when stderr is a
-// terminal, a plain line every plainEvery otherwise, nothing under --quiet.
+// runProgress reports a run on stderr: a redrawn bar when stderr is a
+// terminal, a plain line every runPlainEvery otherwise, nothing under --quiet.
 // Counters are atomics; one goroutine draws.
-type progress struct {
+type runProgress struct {
 	w     io.Writer
 	tty   bool
 	quiet bool
@@ -32,21 +32,21 @@ type progress struct {
 }
 
 const (
-	ttyEvery   = 250 * time.Millisecond
-	plainEvery = 10 * time.Second
+	runTTYEvery   = 250 * time.Millisecond
+	runPlainEvery = 10 * time.Second
 )
 
-func newProgress(w io.Writer, quiet bool, total int) *progress {
-	p := &progress{w: w, quiet: quiet, total: total, start: time.Now(), stop: make(chan struct{})}
+func newRunProgress(w io.Writer, quiet bool, total int) *runProgress {
+	p := &runProgress{w: w, quiet: quiet, total: total, start: time.Now(), stop: make(chan struct{})}
 	if f, ok := w.(*os.File); ok && os.Getenv("TERM") != "dumb" {
 		p.tty = isatty.IsTerminal(f.Fd())
 	}
 	if quiet {
 		return p
 	}
-	every := plainEvery
+	every := runPlainEvery
 	if p.tty {
-		every = ttyEvery
+		every = runTTYEvery
 	}
 	p.wg.Add(1)
 	go func() {
@@ -65,18 +65,18 @@ func newProgress(w io.Writer, quiet bool, total int) *progress {
 	return p
 }
 
-func (p *progress) add(failed bool) {
+func (p *runProgress) add(failed bool) {
 	p.done.Add(1)
 	if failed {
 		p.failed.Add(1)
 	}
 }
 
-func (p *progress) skip() { p.skipped.Add(1) }
+func (p *runProgress) skip() { p.skipped.Add(1) }
 
 // clearLine erases the bar so that a message can be printed; the caller
 // then writes its line and the next tick redraws the bar.
-func (p *progress) clearLine() {
+func (p *runProgress) clearLine() {
 	if p.tty && !p.quiet {
 		p.mu.Lock()
 		fmt.Fprint(p.w, "\r\033[K")
@@ -85,7 +85,7 @@ func (p *progress) clearLine() {
 }
 
 // finish stops drawing and prints the last state on its own line.
-func (p *progress) finish() {
+func (p *runProgress) finish() {
 	if p.quiet {
 		return
 	}
@@ -95,7 +95,7 @@ func (p *progress) finish() {
 }
 
 // line formats the state: counts, rate and time left.
-func (p *progress) line(now time.Time) string {
+func (p *runProgress) line(now time.Time) string {
 	done, failed, skipped := p.done.Load(), p.failed.Load(), p.skipped.Load()
 	finished := done + skipped
 	var b strings.Builder
@@ -118,7 +118,7 @@ func (p *progress) line(now time.Time) string {
 	return b.String()
 }
 
-func (p *progress) draw(last bool) {
+func (p *runProgress) draw(last bool) {
 	p.mu.Lock()
 	defer p.mu.Unlock()
 	text := p.line(time.Now())

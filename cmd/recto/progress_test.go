@@ -9,7 +9,7 @@ import (
 
 func TestProgressLine(t *testing.T) {
 	var buf bytes.Buffer
-	p := newProgress(&buf, true, 100) // quiet: no drawing goroutine
+	p := newRunProgress(&buf, true, 100) // quiet: no drawing goroutine
 	p.start = time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)
 	for range 10 {
 		p.skip()
@@ -31,7 +31,7 @@ func TestProgressLine(t *testing.T) {
 
 func TestProgressPlainWhenNotTerminal(t *testing.T) {
 	var buf bytes.Buffer
-	p := newProgress(&buf, false, 2) // a buffer is not a terminal
+	p := newRunProgress(&buf, false, 2) // a buffer is not a terminal
 	p.add(false)
 	p.add(false)
 	p.finish()

@@ -24,6 +24,7 @@ import (
 	"recto/ocr"
 	"recto/ocr/ledger"
 	"recto/ocr/shard"
+	"recto/quality"
 )
 
 // RunOptions are the settings of `recto run` (and of the run inside `recto demo`).
@@ -34,8 +35,8 @@ type RunOptions struct {
 	Lang       string  // Tesseract language(s), e.g. "eng" or "eng+fra"
 	PSM        int     // Tesseract page segmentation mode; 0 means the engine default
 	DPI        float64 // resolution to assume when a file records none; 0 means 300
-	Rescan     float64 // predicted CER at or above which a page is marked rescan; 0 means the triage default
-	Correct    float64 // predicted CER at or above which a page is corrected; 0 means the triage default
+	Rescan     float64 // predicted CER above which a page is marked rescan; 0 means quality.DefaultRescan
+	Correct    float64 // predicted CER above which a page is corrected; 0 means quality.DefaultCorrect
 	Model      string  // triage model file; "" means the built-in model
 	Lexicon    string  // lexicon file; "" means the built-in lexicon
 	Shard      string  // "i/n"; "" means from the environment, else every page
@@ -51,8 +52,8 @@ func (o *RunOptions) AddFlags(cmd *cobra.Command) {
 	f.StringVarP(&o.Lang, "lang", "l", "eng", "Tesseract `languages`, e.g. eng or eng+fra")
 	f.IntVar(&o.PSM, "psm", 0, "Tesseract page segmentation `mode` (default: the engine's)")
 	f.Float64Var(&o.DPI, "dpi", 0, "resolution to assume when a file records none (default 300)")
-	f.Float64Var(&o.Rescan, "rescan", 0, "mark a page rescan at this predicted `CER` or above (default: the triage default)")
-	f.Float64Var(&o.Correct, "correct", 0, "correct a page at this predicted `CER` or above (default: the triage default)")
+	f.Float64Var(&o.Rescan, "rescan", 0, "mark a page rescan when its predicted `CER` is above this (default 0.10)")
+	f.Float64Var(&o.Correct, "correct", 0, "correct a page when its predicted `CER` is above this (default 0.02)")
 	f.StringVar(&o.Model, "model", "", "triage model `file` (default: built in)")
 	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` for triage and correction (default: built in)")
 	f.StringVar(&o.Shard, "shard", "", "process only share `i/n` of the pages (default: from JOB_COMPLETION_INDEX or SLURM_ARRAY_TASK_ID, else all)")
@@ -130,15 +131,25 @@ const (
 	shardsDir    = "shards"
 )
 
-// imageExts are the file extensions taken as page images (lower case).
-var imageExts = map[string]bool{
-	".png": true, ".jpg": true, ".jpeg": true, ".tif": true, ".tiff": true,
-	".gif": true, ".bmp": true, ".pbm": true, ".pgm": true, ".ppm": true, ".pnm": true, ".webp": true,
+// imageExts are the file extensions taken as page images (lower case):
+// the formats ocr.DecodeFile reads.
+var imageExts = map[string]bool{".tif": true, ".tiff": true, ".png": true, ".jpg": true, ".jpeg": true, ".bmp": true}
+
+// titlePage names a page: the title is the first folder of rel (as in
+// `recto score`), or rootName for an image directly in the root; the page
+// is the rest of rel.
+func titlePage(rel, rootName string) (title, page string) {
+	title, _ = quality.TitlePage(rel, rootName)
+	if _, rest, ok := strings.Cut(rel, "/"); ok {
+		return title, rest
+	}
+	return title, rel
 }
 
 // pageJob is one page image found under the collection.
 type pageJob struct {
 	Rel   string // slash-separated, relative to the collection root
+	Stem  string // output name: Rel without its extension, or with it when two images share the stem
 	Path  string // absolute path
 	Title string
 	Page  string
@@ -192,6 +203,16 @@ func listPages(root, skip string) ([]pageJob, int, error) {
 		return nil, 0, fmt.Errorf("run: collection %q: %w", root, err)
 	}
 	sort.Slice(pages, func(i, j int) bool { return pages[i].Rel < pages[j].Rel })
+	stems := map[string]int{}
+	for _, p := range pages {
+		stems[strings.TrimSuffix(p.Rel, path.Ext(p.Rel))]++
+	}
+	for i, p := range pages {
+		pages[i].Stem = strings.TrimSuffix(p.Rel, path.Ext(p.Rel))
+		if stems[pages[i].Stem] > 1 {
+			pages[i].Stem = p.Rel // p1.png and p1.tif side by side keep apart
+		}
+	}
 	return pages, ignored, nil
 }
 
@@ -293,7 +314,7 @@ func runRun(ctx context.Context, o RunOptions, g GlobalOptions, args []string) e
 		return fmt.Errorf("run: no page images (%s) under %q", extList(), args[0])
 	}
 
-	prog := newProgress(g.stderr, g.Quiet, len(pages))
+	prog := newRunProgress(g.stderr, g.Quiet, len(pages))
 	w := l.NewWriter(func(p ledger.Page) { prog.add(p.State == ledger.StateFailed) })
 	runErr := st.process(ctx, pages, w, prog, g)
 	werr := w.Close()
@@ -362,7 +383,7 @@ func checkWritable(dir string) error {
 
 // process runs the pages through a pool of workers, each with its own
 // engine, and hands every finished page to the ledger writer.
-func (st *runState) process(ctx context.Context, pages []pageJob, w *ledger.Writer, prog *progress, g GlobalOptions) error {
+func (st *runState) process(ctx context.Context, pages []pageJob, w *ledger.Writer, prog *runProgress, g GlobalOptions) error {
 	jobs := st.o.Jobs
 	if jobs == 0 {
 		jobs = runtime.GOMAXPROCS(0)
@@ -468,10 +489,10 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 	}
 	row.Timings["recognise"] = ms(time.Since(t0))
 	t1 := time.Now()
-	if err := st.tk.write(filepath.Join(st.outDir, ocrDir), p.Rel, r, prepared); err != nil {
+	if err := st.tk.write(filepath.Join(st.outDir, ocrDir), p.Stem, r, prepared); err != nil {
 		return fail("%q: writing outputs: %v", p.Path, err)
 	}
-	row.Outputs = outputNames(ocrDir, p.Rel)
+	row.Outputs = outputNames(ocrDir, p.Stem)
 	row.Timings["write"] = ms(time.Since(t1))
 
 	t2 := time.Now()
@@ -486,10 +507,10 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 		c, n := st.tk.correct(r)
 		row.Corrections = n
 		row.Timings["correct"] = ms(time.Since(t3))
-		if err := st.tk.write(filepath.Join(st.outDir, correctedDir), p.Rel, c, nil); err != nil {
+		if err := st.tk.write(filepath.Join(st.outDir, correctedDir), p.Stem, c, nil); err != nil {
 			return fail("%q: writing corrected outputs: %v", p.Path, err)
 		}
-		row.Outputs = append(row.Outputs, outputNames(correctedDir, p.Rel)...)
+		row.Outputs = append(row.Outputs, outputNames(correctedDir, p.Stem)...)
 		final = c
 	}
 	if hasTruth {
@@ -511,11 +532,11 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 
 func ms(d time.Duration) float64 { return float64(d.Microseconds()) / 1000 }
 
-// outputNames lists the files ocr.WriteOutputs writes for rel under sub,
+// outputNames lists the files ocr.WriteOutputs writes for stem under sub,
 // relative to the run folder.
-func outputNames(sub, rel string) []string {
-	base := path.Join(sub, strings.TrimSuffix(rel, path.Ext(rel)))
-	return []string{base + ".txt", base + ".alto.xml", base + ".json"}
+func outputNames(sub, stem string) []string {
+	base := path.Join(sub, stem)
+	return []string{base + ocr.SuffixText, base + ocr.SuffixALTO, base + ocr.SuffixRecord}
 }
 
 // finalText returns the run-folder-relative path of a page's final text.

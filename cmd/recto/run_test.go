@@ -303,9 +303,10 @@ func TestHostileTextStaysValid(t *testing.T) {
 	t.Setenv("RECTO_FAKE_ENGINE", "1")
 	coll, _ := testCollection(t, 1, 1, false)
 	hostile := "<script>alert(1)</script> ]]> &amp; \x01\x08\x1b \uFFFE\uFFFF \xff <!-- x --> \"quoted\"\n"
-	mustWrite(t, filepath.Join(coll, "Title A", "p000.png.fake.txt"), []byte(hostile))
+	plain := strings.Repeat("the harbour and the ferry were open to every ship in the bay\n", 4)
+	mustWrite(t, filepath.Join(coll, "Title A", "p000.png.fake.txt"), []byte(hostile+plain+hostile))
 	out := filepath.Join(t.TempDir(), "out")
-	if _, se, err := runIn(t, "run", coll, "--out", out, "--correct", "0.01", "--rescan", "0.9"); err != nil {
+	if _, se, err := runIn(t, "run", coll, "--out", out, "--correct", "0.001", "--rescan", "1"); err != nil {
 		t.Fatal(err, se)
 	}
 	for _, sub := range []string{ocrDir, correctedDir} {

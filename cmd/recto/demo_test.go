@@ -45,7 +45,7 @@ func TestDemoPagesDeterministic(t *testing.T) {
 func TestDemoRefusesForeignFolder(t *testing.T) {
 	dir := t.TempDir()
 	mustWrite(t, filepath.Join(dir, "thesis.txt"), []byte("precious"))
-	_, _, err := runIn(t, "demo", "--out", dir)
+	_, _, err := runRecto(t, "demo", "--out", dir)
 	if err == nil || !strings.Contains(err.Error(), "not made by 'recto demo'") {
 		t.Fatalf("err = %v, want a refusal", err)
 	}
@@ -70,7 +70,7 @@ func TestDemoEndToEndFakeEngine(t *testing.T) {
 	}
 	t.Cleanup(func() { renderDemoPage = render })
 	dir := filepath.Join(t.TempDir(), "demo")
-	stdout, stderr, err := runIn(t, "demo", "--out", dir)
+	stdout, stderr, err := runRecto(t, "demo", "--out", dir)
 	if err != nil {
 		t.Fatal(err, stderr)
 	}
@@ -89,7 +89,7 @@ func TestDemoEndToEndFakeEngine(t *testing.T) {
 		t.Errorf("%d rows, %d with truth; want 24 and 12", len(rows), truth)
 	}
 	// A second demo reuses the folder and finds every page done.
-	_, stderr, err = runIn(t, "demo", "--out", dir)
+	_, stderr, err = runRecto(t, "demo", "--out", dir)
 	if err != nil || !strings.Contains(stderr, "(24 already done)") {
 		t.Errorf("second demo: %v\n%s", err, stderr)
 	}

@@ -69,18 +69,6 @@ func mustWrite(t testing.TB, name string, data []byte) {
 	}
 }
 
-// runIn runs `recto args...` in process and returns stdout, stderr and the error.
-func runIn(t testing.TB, args ...string) (string, string, error) {
-	t.Helper()
-	root := newRootCommand()
-	var out, errb bytes.Buffer
-	root.SetOut(&out)
-	root.SetErr(&errb)
-	root.SetArgs(args)
-	err := root.ExecuteContext(context.Background())
-	return out.String(), errb.String(), err
-}
-
 func ledgerRows(t testing.TB, dir string) []ledger.Page {
 	t.Helper()
 	l, err := ledger.OpenReadOnly(filepath.Join(dir, ledger.FileName))
@@ -127,7 +115,7 @@ func TestRunBadFilesCompleteWithPartial(t *testing.T) {
 	t.Setenv("RECTO_FAKE_ENGINE", "1")
 	coll, truth := testCollection(t, 2, 4, true)
 	out := filepath.Join(t.TempDir(), "out")
-	_, stderr, err := runIn(t, "run", coll, "--out", out, "--truth", truth)
+	_, stderr, err := runRecto(t, "run", coll, "--out", out, "--truth", truth)
 	var pe *partialError
 	if !errors.As(err, &pe) || pe.Failed != 3 || pe.Total != 11 {
 		t.Fatalf("err = %v, want partial: 3 of 11 pages failed\n%s", err, stderr)
@@ -170,11 +158,11 @@ func TestRunResumeSkipsAndRedoesChanged(t *testing.T) {
 	t.Setenv("RECTO_FAKE_ENGINE", "1")
 	coll, truth := testCollection(t, 1, 4, false)
 	out := filepath.Join(t.TempDir(), "out")
-	if _, se, err := runIn(t, "run", coll, "--out", out, "--truth", truth); err != nil {
+	if _, se, err := runRecto(t, "run", coll, "--out", out, "--truth", truth); err != nil {
 		t.Fatal(err, se)
 	}
 	first := ledgerRows(t, out)
-	_, stderr, err := runIn(t, "run", coll, "--out", out, "--truth", truth)
+	_, stderr, err := runRecto(t, "run", coll, "--out", out, "--truth", truth)
 	if err != nil || !strings.Contains(stderr, "(4 already done)") {
 		t.Fatalf("rerun: %v\n%s", err, stderr)
 	}
@@ -184,7 +172,7 @@ func TestRunResumeSkipsAndRedoesChanged(t *testing.T) {
 	var buf bytes.Buffer
 	png.Encode(&buf, img)
 	mustWrite(t, filepath.Join(coll, "Title A", "p001.png"), buf.Bytes())
-	_, stderr, err = runIn(t, "run", coll, "--out", out, "--truth", truth)
+	_, stderr, err = runRecto(t, "run", coll, "--out", out, "--truth", truth)
 	if err != nil || !strings.Contains(stderr, "(3 already done)") {
 		t.Fatalf("rerun after change: %v\n%s", err, stderr)
 	}
@@ -199,7 +187,7 @@ func TestRunResumeSkipsAndRedoesChanged(t *testing.T) {
 		}
 	}
 	// Changed settings redo every page.
-	_, stderr, err = runIn(t, "run", coll, "--out", out, "--truth", truth, "--correct", "0.01")
+	_, stderr, err = runRecto(t, "run", coll, "--out", out, "--truth", truth, "--correct", "0.01")
 	if err != nil || strings.Contains(stderr, "already done") {
 		t.Errorf("rerun with new settings: %v\n%s", err, stderr)
 	}
@@ -214,7 +202,7 @@ func TestRunSecondRunRefused(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer l.Close()
-	_, _, err = runIn(t, "run", coll, "--out", out)
+	_, _, err = runRecto(t, "run", coll, "--out", out)
 	if !errors.Is(err, ledger.ErrLocked) || !strings.Contains(err.Error(), "another run") {
 		t.Errorf("err = %v, want a clear ErrLocked", err)
 	}
@@ -226,7 +214,7 @@ func TestRunUnwritableOutFailsBeforeWork(t *testing.T) {
 	file := filepath.Join(t.TempDir(), "plain-file")
 	mustWrite(t, file, []byte("x"))
 	out := filepath.Join(file, "out") // a folder inside a file cannot exist
-	_, stderr, err := runIn(t, "run", coll, "--out", out)
+	_, stderr, err := runRecto(t, "run", coll, "--out", out)
 	if err == nil || !strings.Contains(err.Error(), "output folder") || !strings.Contains(err.Error(), out) {
 		t.Fatalf("err = %v, want a clear output-folder error naming %q", err, out)
 	}
@@ -236,7 +224,7 @@ func TestRunUnwritableOutFailsBeforeWork(t *testing.T) {
 	if os.Geteuid() != 0 { // root ignores permission bits
 		ro := filepath.Join(t.TempDir(), "ro")
 		os.Mkdir(ro, 0o555)
-		if _, _, err := runIn(t, "run", coll, "--out", ro); err == nil || !strings.Contains(err.Error(), "not writable") {
+		if _, _, err := runRecto(t, "run", coll, "--out", ro); err == nil || !strings.Contains(err.Error(), "not writable") {
 			t.Errorf("read-only folder: err = %v", err)
 		}
 	}
@@ -251,7 +239,7 @@ func TestRunUsageErrors(t *testing.T) {
 		{"run", coll, "--out", "x", "--correct", "0.5", "--rescan", "0.2"},
 		{"run", coll, "--out", "x", "--jobs", "-1"},
 	} {
-		_, _, err := runIn(t, args...)
+		_, _, err := runRecto(t, args...)
 		var ue *usageError
 		if !errors.As(err, &ue) {
 			t.Errorf("%q: err = %v, want a usage error", args, err)
@@ -267,14 +255,14 @@ func TestShardsMergeEqualsSingleRun(t *testing.T) {
 	coll, truth := testCollection(t, 3, 7, true)
 	base := t.TempDir()
 	single := filepath.Join(base, "single")
-	if _, _, err := runIn(t, "run", coll, "--out", single, "--truth", truth); err == nil {
+	if _, _, err := runRecto(t, "run", coll, "--out", single, "--truth", truth); err == nil {
 		t.Fatal("want partial failure from the broken files")
 	}
 	shared := filepath.Join(base, "shared")
 	for i := range 3 {
-		runIn(t, "run", coll, "--out", shared, "--truth", truth, "--shard", fmt.Sprintf("%d/3", i))
+		runRecto(t, "run", coll, "--out", shared, "--truth", truth, "--shard", fmt.Sprintf("%d/3", i))
 	}
-	if _, se, err := runIn(t, "merge", shared); err != nil {
+	if _, se, err := runRecto(t, "merge", shared); err != nil {
 		t.Fatal(err, se)
 	}
 	sameRun(t, single, shared)
@@ -286,11 +274,11 @@ func TestShardsMergeEqualsSingleRun(t *testing.T) {
 		t.Setenv("SLURM_ARRAY_TASK_MIN", "1")
 		t.Setenv("SLURM_ARRAY_TASK_COUNT", "3")
 		d := filepath.Join(base, fmt.Sprintf("node%d", i))
-		runIn(t, "run", coll, "--out", d, "--truth", truth)
+		runRecto(t, "run", coll, "--out", d, "--truth", truth)
 		dirs = append(dirs, d)
 	}
 	merged := filepath.Join(base, "merged")
-	if _, se, err := runIn(t, append([]string{"merge", "--out", merged}, dirs...)...); err != nil {
+	if _, se, err := runRecto(t, append([]string{"merge", "--out", merged}, dirs...)...); err != nil {
 		t.Fatal(err, se)
 	}
 	sameRun(t, single, merged)
@@ -306,7 +294,7 @@ func TestHostileTextStaysValid(t *testing.T) {
 	plain := strings.Repeat("the harbour and the ferry were open to every ship in the bay\n", 4)
 	mustWrite(t, filepath.Join(coll, "Title A", "p000.png.fake.txt"), []byte(hostile+plain+hostile))
 	out := filepath.Join(t.TempDir(), "out")
-	if _, se, err := runIn(t, "run", coll, "--out", out, "--correct", "0.001", "--rescan", "1"); err != nil {
+	if _, se, err := runRecto(t, "run", coll, "--out", out, "--correct", "0.001", "--rescan", "1"); err != nil {
 		t.Fatal(err, se)
 	}
 	for _, sub := range []string{ocrDir, correctedDir} {
@@ -338,13 +326,13 @@ func TestReportRebuildsIdentically(t *testing.T) {
 	t.Setenv("RECTO_FAKE_ENGINE", "1")
 	coll, truth := testCollection(t, 2, 3, true)
 	out := filepath.Join(t.TempDir(), "out")
-	runIn(t, "run", coll, "--out", out, "--truth", truth)
+	runRecto(t, "run", coll, "--out", out, "--truth", truth)
 	before := map[string][]byte{}
 	for _, f := range reportFiles {
 		before[f], _ = os.ReadFile(filepath.Join(out, reportDir, f))
 		os.Remove(filepath.Join(out, reportDir, f))
 	}
-	stdout, _, err := runIn(t, "report", out)
+	stdout, _, err := runRecto(t, "report", out)
 	if err != nil || !strings.HasSuffix(strings.TrimSpace(stdout), "report.html") {
 		t.Fatalf("report: %v, stdout %q", err, stdout)
 	}
@@ -354,7 +342,7 @@ func TestReportRebuildsIdentically(t *testing.T) {
 			t.Errorf("%s differs after 'recto report'", f)
 		}
 	}
-	if _, _, err := runIn(t, "report", t.TempDir()); err == nil || !strings.Contains(err.Error(), "not a run folder") {
+	if _, _, err := runRecto(t, "report", t.TempDir()); err == nil || !strings.Contains(err.Error(), "not a run folder") {
 		t.Errorf("report on an empty folder: %v", err)
 	}
 }

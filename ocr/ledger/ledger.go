@@ -244,17 +244,23 @@ func (l *Ledger) Meta(ctx context.Context, key string) (string, error) {
 }
 
 // Put inserts or replaces the row of p.Rel in one committed transaction.
-func (l *Ledger) Put(ctx context.Context, p Page) error {
+func (l *Ledger) Put(ctx context.Context, p Page) error { return l.PutAll(ctx, []Page{p}) }
+
+// PutAll inserts or replaces the rows of ps in one committed transaction:
+// all or none of them are in the ledger afterwards.
+func (l *Ledger) PutAll(ctx context.Context, ps []Page) error {
 	tx, err := l.db.BeginTx(ctx, nil)
 	if err != nil {
 		return fmt.Errorf("ledger: %w", err)
 	}
-	if err := putTx(ctx, tx, p); err != nil {
-		tx.Rollback()
-		return err
+	for _, p := range ps {
+		if err := putTx(ctx, tx, p); err != nil {
+			tx.Rollback()
+			return err
+		}
 	}
 	if err := tx.Commit(); err != nil {
-		return fmt.Errorf("ledger: commit %q: %w", p.Rel, err)
+		return fmt.Errorf("ledger: commit of %d pages: %w", len(ps), err)
 	}
 	return nil
 }

@@ -5,9 +5,12 @@ import (
 	"sync"
 )
 
-// Writer commits pages to a ledger from one goroutine, one transaction per
-// page, in the order they are handed over. Callers must call Close, which
-// waits until every page handed to Put is committed.
+// Writer commits pages to a ledger from one goroutine, in the order they
+// are handed over. A page is committed as soon as the goroutine takes it;
+// pages that queued up meanwhile (up to maxGroup) share its transaction, so
+// one disk sync serves several pages when pages finish faster than the disk
+// syncs. Callers must call Close, which waits until every page handed to
+// Put is committed.
 type Writer struct {
 	l        *Ledger
 	ch       chan Page
@@ -28,20 +31,39 @@ func (l *Ledger) NewWriter(onCommit func(Page)) *Writer {
 	return w
 }
 
+// maxGroup bounds the pages committed in one transaction.
+const maxGroup = 64
+
 func (w *Writer) loop() {
 	defer close(w.done)
+	group := make([]Page, 0, maxGroup)
 	for p := range w.ch {
+		group = append(group[:0], p)
+	more:
+		for len(group) < maxGroup {
+			select {
+			case q, ok := <-w.ch:
+				if !ok {
+					break more
+				}
+				group = append(group, q)
+			default:
+				break more
+			}
+		}
 		if w.Err() != nil {
 			continue // drain so that producers never block
 		}
-		if err := w.l.Put(context.Background(), p); err != nil {
+		if err := w.l.PutAll(context.Background(), group); err != nil {
 			w.mu.Lock()
 			w.err = err
 			w.mu.Unlock()
 			continue
 		}
 		if w.onCommit != nil {
-			w.onCommit(p)
+			for _, q := range group {
+				w.onCommit(q)
+			}
 		}
 	}
 }

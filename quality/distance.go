@@ -16,6 +16,11 @@ package quality
 // or insertion, then slides along runs of equal symbols. The distance is the
 // first s at which diagonal len(b)-len(a) reaches the last row.
 
+// bitSwitch weighs a wavefront step against a bit-vector block step when
+// Distance decides to change method (see Scratch.Distance); measured with
+// BenchmarkDistance.
+var bitSwitch = 1
+
 // unreached marks a diagonal no round has reached yet; adding a few edits
 // to it stays far below every real row.
 const unreached = -1 << 30
@@ -27,16 +32,28 @@ const unreached = -1 << 30
 type Scratch struct {
 	w0, w1 []int32 // two wavefronts, indexed by diagonal + len(a) + 1
 	al     aligner // Align's buffers
+
+	// bit-vector distance (bitparallel.go)
+	pv, mv []uint64       // vertical deltas +1 / -1 of the current column
+	zero   []uint64       // the match vector of a symbol a lacks
+	peq    []uint64       // match vectors, ⌈n/64⌉ words per distinct symbol
+	sym    map[rune]int32 // symbol -> index into peq, beyond ASCII
+	ascii  [128]int32     // ASCII symbol -> index into peq, or -1
 }
 
 // Distance returns the Levenshtein distance between a and b, counted in
 // symbols (code points for text). It allocates nothing once s has grown to
 // the sizes it needs.
 //
-// Complexity: O((n+m) + D²) time in the usual case and O((n+m)·D) at worst,
-// where n = len(a), m = len(b) and D is the distance; O(n+m) memory. For OCR
-// text D is a small fraction of n, so this beats the O(n·m) table by a wide
-// margin; for unrelated strings it is no better than the table.
+// It runs the diagonal-transition rounds and, should they cost more than
+// the bit-vector method would (D² > ⌈min(n,m)/64⌉·max(n,m)), finishes with
+// the bit-vector method instead (bitDistance).
+//
+// Complexity: O(n + m + min(D², ⌈min(n,m)/64⌉·max(n,m))) time in the usual
+// case, where n = len(a), m = len(b) and D is the distance; O(n+m) memory.
+// For OCR text D is a small fraction of n, so this beats the O(n·m) table by
+// a wide margin; for unrelated strings it is about 64/2 times faster than
+// the table.
 func (s *Scratch) Distance(a, b []rune) int {
 	a, b = trimCommon(a, b)
 	n, m := len(a), len(b)
@@ -53,7 +70,19 @@ func (s *Scratch) Distance(a, b []rune) int {
 	if target == 0 && int(prev[off]) >= n {
 		return 0
 	}
+	// The wavefronts cost about d² steps by round d, the bit vectors
+	// ⌈short/64⌉·long word steps whatever the distance: once the rounds
+	// have spent that much the distance is large, and the bit vectors
+	// finish the job in at most the same time again.
+	short, long := a, b
+	if n > m {
+		short, long = b, a
+	}
+	budget := bitSwitch * ((len(short) + 63) / 64) * len(long)
 	for d := 1; ; d++ {
+		if d*d > budget {
+			return s.bitDistance(short, long)
+		}
 		lo, hi := max(-d, -n), min(d, m)
 		nextRound(a, b, prev, cur, off, lo, hi)
 		if target >= lo && target <= hi && int(cur[target+off]) >= n {

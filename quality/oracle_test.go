@@ -91,3 +91,21 @@ func checkOps(t testing.TB, a, b []rune, ops []Op, want int) {
 		t.Fatalf("alignment of %q/%q costs %d, want %d", string(a), string(b), c, want)
 	}
 }
+
+// TestBitDistanceAgainstTable checks the bit-vector method on its own,
+// across block boundaries (64 rows) and with non-ASCII symbols.
+func TestBitDistanceAgainstTable(t *testing.T) {
+	rng := rand.New(rand.NewPCG(8, 9))
+	alphabets := [][]rune{[]rune("ab"), []rune("abcde é𝔄"), []rune("etaoinshrdlu ,.")}
+	var s Scratch
+	for it := range 2000 {
+		n := rng.IntN(200)
+		a, b := randomPair(rng, alphabets[it%3], n, []float64{0, 0.1, 0.5, 1}[it%4])
+		if it%5 == 0 {
+			a, b = b, a
+		}
+		if want, got := tableDistance(a, b), s.bitDistance(a, b); got != want {
+			t.Fatalf("bitDistance(%q, %q) = %d, want %d", string(a), string(b), got, want)
+		}
+	}
+}

@@ -1,5 +1,10 @@
 package quality
 
+import (
+	"math"
+	"slices"
+)
+
 // OpKind is the kind of one alignment step.
 type OpKind uint8
 
@@ -75,12 +80,16 @@ func (s *Scratch) Align(ref, hyp []rune, dst []Op) []Op {
 const storedMax = 512
 
 type aligner struct {
-	limit  int     // largest distance traced back with stored wavefronts; 0 means storedMax
-	waves  []int32 // stored wavefronts, round after round
-	start  []int   // start[s] = index in waves of round s's diagonal lo(s)
-	f0, f1 []int32
-	b0, b1 []int32
-	ra, rb []rune // reversed inputs for the backward search
+	bv   bitState
+	colF []int32 // forward column of bitSplit
+	// noWaveSplit skips the bidirectional wavefront split (for tests)
+	noWaveSplit bool
+	limit       int     // largest distance traced back with stored wavefronts; 0 means storedMax
+	waves       []int32 // stored wavefronts, round after round
+	start       []int   // start[s] = index in waves of round s's diagonal lo(s)
+	f0, f1      []int32
+	b0, b1      []int32
+	ra, rb      []rune // reversed inputs for the backward search
 }
 
 func (al *aligner) align(a, b []rune, dst []Op) []Op {
@@ -104,7 +113,10 @@ func (al *aligner) align(a, b []rune, dst []Op) []Op {
 }
 
 // alignCore appends an optimal alignment of a and b; d is their distance
-// when known, or -1.
+// when known, or -1. It picks, by estimated cost, between the wavefront
+// traceback with stored rounds (about d² steps), the bidirectional
+// wavefront split (about d² steps, linear memory) and the bit-vector
+// split (about 2·⌈n/64⌉·m word steps, linear memory).
 func (al *aligner) alignCore(a, b []rune, d int, dst []Op) []Op {
 	n, m := len(a), len(b)
 	switch {
@@ -123,19 +135,115 @@ func (al *aligner) alignCore(a, b []rune, d int, dst []Op) []Op {
 			dst = append(dst, Op{OpMatch, a[i], b[i]})
 		}
 		return dst
+	case n == 1 || m == 1:
+		return alignOne(a, b, dst)
 	}
 	limit := al.limit
 	if limit == 0 {
 		limit = storedMax
+		if (n+1)*(m+1) <= smallCells {
+			limit = n + m // a small table: the stored rounds always fit
+		}
 	}
-	if d <= limit { // also when d is unknown (-1)
-		if ops, ok := al.stored(a, b, limit, dst); ok {
+	bitCost := ((n + 63) / 64) * m
+	wavefronts := true // whether d² is thought to be within bitCost
+	switch {
+	case d < 0:
+		// Try the stored rounds for a while: half the bit-vector cost,
+		// so that a large distance wastes little before the columns.
+		l := limit
+		if l*l > bitCost/2 {
+			l = isqrt(bitCost / 2)
+		}
+		if ops, ok := al.stored(a, b, l, dst); ok {
+			return ops
+		}
+		wavefronts = l == limit // l rounds were not enough: d > l
+	case d*d > bitCost:
+		wavefronts = false
+	case d <= limit:
+		if ops, ok := al.stored(a, b, d, dst); ok {
 			return ops
 		}
 	}
-	i, j, df, db := al.split(a, b)
+	if wavefronts && !al.noWaveSplit {
+		if i, j, df, db, ok := al.split(a, b, bitCost); ok {
+			dst = al.alignCore(a[:i], b[:j], df, dst)
+			return al.alignCore(a[i:], b[j:], db, dst)
+		}
+	}
+	i, j, df, db := al.bitSplit(a, b)
 	dst = al.alignCore(a[:i], b[:j], df, dst)
 	return al.alignCore(a[i:], b[j:], db, dst)
+}
+
+// smallCells is the table size (cells) below which the stored rounds are
+// used whatever the distance.
+const smallCells = 1 << 12
+
+func isqrt(x int) int {
+	r := int(math.Sqrt(float64(x)))
+	for r*r > x {
+		r--
+	}
+	for (r+1)*(r+1) <= x {
+		r++
+	}
+	return r
+}
+
+// alignOne aligns when a or b has one symbol: match it with the first
+// equal symbol of the other string if there is one, else substitute it
+// for the first symbol; every other symbol is deleted or inserted.
+func alignOne(a, b []rune, dst []Op) []Op {
+	if len(b) == 1 {
+		p := max(slices.Index(a, b[0]), 0)
+		for i, r := range a {
+			switch {
+			case i != p:
+				dst = append(dst, Op{OpDel, r, 0})
+			case r == b[0]:
+				dst = append(dst, Op{OpMatch, r, r})
+			default:
+				dst = append(dst, Op{OpSub, r, b[0]})
+			}
+		}
+		return dst
+	}
+	p := max(slices.Index(b, a[0]), 0)
+	for j, r := range b {
+		switch {
+		case j != p:
+			dst = append(dst, Op{OpIns, 0, r})
+		case r == a[0]:
+			dst = append(dst, Op{OpMatch, r, r})
+		default:
+			dst = append(dst, Op{OpSub, a[0], r})
+		}
+	}
+	return dst
+}
+
+// bitSplit is Hirschberg's split (Hirschberg 1975) with the columns
+// computed by the bit-vector method: D(i, mid) from the start for every i,
+// the cost from (i, mid) to the end from the reversed strings, and the i
+// with the least sum is on an optimal path. It needs len(b) >= 2.
+//
+// Complexity: O(⌈n/64⌉·m) time, O(n) memory.
+func (al *aligner) bitSplit(a, b []rune) (i, j, df, db int) {
+	n, m := len(a), len(b)
+	mid := m / 2
+	al.colF = append(al.colF[:0], al.bv.column(a, b[:mid])...)
+	al.ra = reversed(al.ra, a)
+	al.rb = reversed(al.rb, b[mid:])
+	colB := al.bv.column(al.ra, al.rb)
+	best := -1
+	for k := 0; k <= n; k++ {
+		if c := int(al.colF[k] + colB[n-k]); best < 0 || c < best {
+			best, i = c, k
+		}
+	}
+	return i, mid, int(al.colF[i]), int(colB[n-i])
 }
 
 // stored runs the wavefronts keeping each round, up to limit rounds, and
@@ -239,8 +347,9 @@ func reverseOps(ops []Op) {
 // the forward furthest row passes the backward one: the cell at the
 // backward row then costs at most sf from the start and at most sb to the
 // end, and sf+sb cannot undercut the distance. With rounds taken in turn
-// that first meeting happens when sf+sb equals the distance.
-func (al *aligner) split(a, b []rune) (i, j, df, db int) {
+// that first meeting happens when sf+sb equals the distance. It gives up
+// (ok false) once the rounds have cost about budget steps (sf²+sb²).
+func (al *aligner) split(a, b []rune, budget int) (i, j, df, db int, ok bool) {
 	n, m := len(a), len(b)
 	al.ra = reversed(al.ra, a)
 	al.rb = reversed(al.rb, b)
@@ -271,6 +380,9 @@ func (al *aligner) split(a, b []rune) (i, j, df, db int) {
 		return 0, false
 	}
 	for t := 1; ; t++ {
+		if sf*sf+sb*sb > budget {
+			return 0, 0, 0, 0, false
+		}
 		if t%2 == 1 {
 			sf++
 			nextRound(a, b, fprev, fcur, off, max(-sf, -n), min(sf, m))
@@ -282,7 +394,7 @@ func (al *aligner) split(a, b []rune) (i, j, df, db int) {
 		}
 		if k, ok := meet(); ok {
 			i = n - int(bprev[m-n-k+off])
-			return i, i + k, sf, sb
+			return i, i + k, sf, sb, true
 		}
 	}
 }

@@ -1,6 +1,33 @@
 package quality
 
-// bitDistance computes the Levenshtein distance with the bit-vector
+// bitState is the working memory of the bit-vector method.
+type bitState struct {
+	pv, mv []uint64       // vertical deltas +1 / -1 of the current column
+	zero   []uint64       // the match vector of a symbol a lacks
+	peq    []uint64       // match vectors, ⌈n/64⌉ words per distinct symbol
+	sym    map[rune]int32 // symbol -> index into peq, beyond ASCII
+	ascii  [128]int32     // ASCII symbol -> index into peq, or -1
+	col    []int32        // column scores (column)
+}
+
+// column computes D(i, len(b)) for i = 0..len(a) into s.col and returns
+// it (valid until the next call).
+func (s *bitState) column(a, b []rune) []int32 {
+	s.distance(a, b)
+	n := len(a)
+	if cap(s.col) < n+1 {
+		s.col = make([]int32, n+1)
+	}
+	col := s.col[:n+1]
+	col[0] = int32(len(b))
+	for i := 1; i <= n; i++ {
+		w, bit := (i-1)/64, uint((i-1)%64)
+		col[i] = col[i-1] + int32(s.pv[w]>>bit&1) - int32(s.mv[w]>>bit&1)
+	}
+	return col
+}
+
+// distance computes the Levenshtein distance with the bit-vector
 // algorithm of Myers (1999, "A fast bit-vector algorithm for approximate
 // string matching based on dynamic programming", J. ACM 46(3)) in the form
 // for global distance given by Hyyrö (2003, "A bit-vector algorithm for
@@ -10,10 +37,13 @@ package quality
 // of b advances every block by a few word operations; the score at the
 // last row is carried along.
 //
+// On return s.pv and s.mv hold the last column, D(·, m): bit i%64 of word
+// i/64 of pv (mv) is set when D(i+1, m) - D(i, m) is +1 (-1); see column.
+//
 // Complexity: O(⌈n/64⌉·m) time and O(σ·⌈n/64⌉) memory, where n = len(a),
-// m = len(b) and σ is the number of distinct symbols of a. Callers pass
-// the shorter string as a.
-func (s *Scratch) bitDistance(a, b []rune) int {
+// m = len(b) and σ is the number of distinct symbols of a. For a distance
+// alone callers pass the shorter string as a.
+func (s *bitState) distance(a, b []rune) int {
 	n := len(a)
 	if n == 0 {
 		return len(b)
@@ -65,7 +95,7 @@ func (s *Scratch) bitDistance(a, b []rune) int {
 
 // buildPeq fills the match vectors of a: for each distinct symbol, nb
 // words with bit i%64 of word i/64 set where a[i] is that symbol.
-func (s *Scratch) buildPeq(a []rune, nb int) {
+func (s *bitState) buildPeq(a []rune, nb int) {
 	if s.sym == nil {
 		s.sym = make(map[rune]int32)
 	}
@@ -91,7 +121,7 @@ func (s *Scratch) buildPeq(a []rune, nb int) {
 	}
 }
 
-func (s *Scratch) symIndex(r rune) int32 {
+func (s *bitState) symIndex(r rune) int32 {
 	if r >= 0 && r < int32(len(s.ascii)) {
 		return s.ascii[r]
 	}
@@ -102,7 +132,7 @@ func (s *Scratch) symIndex(r rune) int32 {
 }
 
 // peqOf returns the match vector of symbol c, or nil when a lacks it.
-func (s *Scratch) peqOf(c rune, nb int) []uint64 {
+func (s *bitState) peqOf(c rune, nb int) []uint64 {
 	idx := s.symIndex(c)
 	if idx < 0 {
 		return nil

@@ -32,13 +32,7 @@ const unreached = -1 << 30
 type Scratch struct {
 	w0, w1 []int32 // two wavefronts, indexed by diagonal + len(a) + 1
 	al     aligner // Align's buffers
-
-	// bit-vector distance (bitparallel.go)
-	pv, mv []uint64       // vertical deltas +1 / -1 of the current column
-	zero   []uint64       // the match vector of a symbol a lacks
-	peq    []uint64       // match vectors, ⌈n/64⌉ words per distinct symbol
-	sym    map[rune]int32 // symbol -> index into peq, beyond ASCII
-	ascii  [128]int32     // ASCII symbol -> index into peq, or -1
+	bv     bitState
 }
 
 // Distance returns the Levenshtein distance between a and b, counted in
@@ -47,7 +41,7 @@ type Scratch struct {
 //
 // It runs the diagonal-transition rounds and, should they cost more than
 // the bit-vector method would (D² > ⌈min(n,m)/64⌉·max(n,m)), finishes with
-// the bit-vector method instead (bitDistance).
+// the bit-vector method instead (bitState.distance).
 //
 // Complexity: O(n + m + min(D², ⌈min(n,m)/64⌉·max(n,m))) time in the usual
 // case, where n = len(a), m = len(b) and D is the distance; O(n+m) memory.
@@ -81,7 +75,7 @@ func (s *Scratch) Distance(a, b []rune) int {
 	budget := bitSwitch * ((len(short) + 63) / 64) * len(long)
 	for d := 1; ; d++ {
 		if d*d > budget {
-			return s.bitDistance(short, long)
+			return s.bv.distance(short, long)
 		}
 		lo, hi := max(-d, -n), min(d, m)
 		nextRound(a, b, prev, cur, off, lo, hi)

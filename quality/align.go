@@ -51,22 +51,28 @@ func Cost(ops []Op) int {
 // Align returns an optimal alignment of ref and hyp, in order: the
 // reference is the R of every op but OpIns, the hypothesis the H of every
 // op but OpDel, and the number of non-match ops equals Distance(ref, hyp).
-// Among optimal alignments it prefers, reading from the end, a match, then
-// a substitution, a deletion, an insertion.
+// Every symbol of a common prefix or suffix is matched.
 //
-// Complexity: O((n+m) + D²) time in the usual case, O((n+m)·D) at worst;
-// O(n+m) memory. Small problems (D ≤ storedMax) keep every wavefront
-// (O(D²) memory) and trace back through them. Larger ones are split at a
-// cell of an optimal path found by running the wavefronts forward from the
-// start and backward from the end until they meet, as in Hirschberg's
-// divide and conquer (Hirschberg 1975, "A linear space algorithm for
-// computing maximal common subsequences") and the bidirectional wavefront
-// aligner (Marco-Sola et al. 2023, "Optimal gap-affine alignment in O(s)
-// space"); each half has about half the distance, so the total time is
-// about twice that of Distance and the memory stays linear.
+// Method: when the distance D is small (D ≤ 512 and D² below the bit-vector
+// cost) every diagonal-transition round is kept and traced back (O(D²)
+// memory, at most about 2 MB). Otherwise the problem is split at a cell of
+// an optimal path and each half is aligned in turn (Hirschberg 1975, "A
+// linear space algorithm for computing maximal common subsequences"): the
+// cell is found either by running the rounds forward from the start and
+// backward from the end until they meet (as in the bidirectional wavefront
+// aligner, Marco-Sola et al. 2023, "Optimal gap-affine alignment in O(s)
+// space") or, when D is large, from two bit-vector columns at the middle of
+// hyp (bitSplit).
+//
+// Complexity, with n = len(ref), m = len(hyp): about twice Distance's time,
+// O(n + m + min(D², ⌈n/64⌉·m)) in the usual case; O(n + m) memory besides
+// the at most 2 MB of stored rounds and the result.
 func Align(ref, hyp []rune) []Op {
 	var s Scratch
-	return s.Align(ref, hyp, nil)
+	// An alignment has between max(n, m) and n+m ops; this covers a few
+	// per cent of edits without growing.
+	l := max(len(ref), len(hyp))
+	return s.Align(ref, hyp, make([]Op, 0, l+l/32+16))
 }
 
 // Align is Align with reusable scratch; it appends the ops to dst and
@@ -353,12 +359,16 @@ func (al *aligner) split(a, b []rune, budget int) (i, j, df, db int, ok bool) {
 	n, m := len(a), len(b)
 	al.ra = reversed(al.ra, a)
 	al.rb = reversed(al.rb, b)
-	size := n + m + 3
+	// Rounds stop once sf²+sb² > budget, so sf, sb <= smax and the
+	// wavefronts need only the diagonals -min(n, smax)-1 .. min(m, smax)+1
+	// (the same for the backward ones, whose strings have the same lengths).
+	smax := isqrt(budget) + 1
+	off := min(n, smax) + 1
+	size := off + min(m, smax) + 2
 	al.f0 = fillUnreached(al.f0, size)
 	al.f1 = fillUnreached(al.f1, size)
 	al.b0 = fillUnreached(al.b0, size)
 	al.b1 = fillUnreached(al.b1, size)
-	off := n + 1
 	fprev, fcur := al.f0, al.f1
 	bprev, bcur := al.b0, al.b1
 	fprev[off] = int32(slide(a, b, 0, 0))

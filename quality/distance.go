@@ -54,16 +54,6 @@ func (s *Scratch) Distance(a, b []rune) int {
 	if n == 0 || m == 0 {
 		return n + m
 	}
-	size := n + m + 3
-	s.w0 = fillUnreached(s.w0, size)
-	s.w1 = fillUnreached(s.w1, size)
-	prev, cur := s.w0, s.w1
-	off := n + 1 // index of diagonal 0
-	prev[off] = int32(slide(a, b, 0, 0))
-	target := m - n
-	if target == 0 && int(prev[off]) >= n {
-		return 0
-	}
 	// The wavefronts cost about d² steps by round d, the bit vectors
 	// ⌈short/64⌉·long word steps whatever the distance: once the rounds
 	// have spent that much the distance is large, and the bit vectors
@@ -73,6 +63,19 @@ func (s *Scratch) Distance(a, b []rune) int {
 		short, long = b, a
 	}
 	budget := bitSwitch * ((len(short) + 63) / 64) * len(long)
+	// Rounds stop by d = isqrt(budget), so the wavefronts need only the
+	// diagonals -min(n, dmax)-1 .. min(m, dmax)+1.
+	dmax := isqrt(budget)
+	off := min(n, dmax) + 1 // index of diagonal 0
+	size := off + min(m, dmax) + 2
+	s.w0 = fillUnreached(s.w0, size)
+	s.w1 = fillUnreached(s.w1, size)
+	prev, cur := s.w0, s.w1
+	prev[off] = int32(slide(a, b, 0, 0))
+	target := m - n
+	if target == 0 && int(prev[off]) >= n {
+		return 0
+	}
 	for d := 1; ; d++ {
 		if d*d > budget {
 			return s.bv.distance(short, long)

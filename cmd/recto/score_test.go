@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bytes"
 	"context"
 	"encoding/json"
 	"flag"
@@ -13,21 +12,16 @@ import (
 
 var update = flag.Bool("update", false, "rewrite the golden files in testdata/score")
 
-// runRecto runs the command tree with args and returns its stdout, stderr
-// and exit status (through exitCode, the one place that maps errors).
-func runRecto(t testing.TB, args ...string) (stdout, stderr string, code int) {
+// runScoreCmd runs the command tree with args (through the shared
+// runRecto) and returns its stdout, stderr with the final error appended as
+// main would print it, and the exit status exitCode maps the error to.
+func runScoreCmd(t *testing.T, args ...string) (stdout, stderr string, code int) {
 	t.Helper()
-	root := newRootCommand()
-	var out, errb bytes.Buffer
-	root.SetOut(&out)
-	root.SetErr(&errb)
-	root.SetArgs(args)
-	err := root.ExecuteContext(context.Background())
-	// exitCode prints to os.Stderr; keep the message in errb too.
+	stdout, stderr, err := runRecto(t, args...)
 	if err != nil {
-		errb.WriteString("recto: " + err.Error() + "\n")
+		stderr += "recto: " + err.Error() + "\n"
 	}
-	return out.String(), errb.String(), exitCodeQuiet(err)
+	return stdout, stderr, exitCodeQuiet(err)
 }
 
 // exitCodeQuiet maps err like exitCode without printing.
@@ -86,7 +80,7 @@ func TestScoreCollection(t *testing.T) {
 		{"table", "collection.txt", []string{"--confusions", "5"}},
 	} {
 		t.Run(tt.name, func(t *testing.T) {
-			stdout, stderr, code := runRecto(t, append(args, tt.extra...)...)
+			stdout, stderr, code := runScoreCmd(t, append(args, tt.extra...)...)
 			if code != exitPartial {
 				t.Errorf("exit status %d, want %d (partial); stderr:\n%s", code, exitPartial, stderr)
 			}
@@ -114,7 +108,7 @@ func TestScoreCollection(t *testing.T) {
 // file: keys, null CER for an empty reference, the hand-counted errors of
 // the vendored page, NFC/NFD equality and the missing/unmatched lists.
 func TestScoreJSONShape(t *testing.T) {
-	stdout, _, _ := runRecto(t, "score", "--truth", collection+"/truth", "--ocr", collection+"/ocr", "--format", "json")
+	stdout, _, _ := runScoreCmd(t, "score", "--truth", collection+"/truth", "--ocr", collection+"/ocr", "--format", "json")
 	var doc map[string]json.RawMessage
 	if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
 		t.Fatalf("output is not one JSON document: %v", err)
@@ -169,7 +163,7 @@ func TestScoreClean(t *testing.T) {
 	dir := t.TempDir()
 	write(t, filepath.Join(dir, "gt", "vol1", "p1.txt"), "The Vellmouth tide tables.")
 	write(t, filepath.Join(dir, "ocr", "vol1", "p1.txt"), "The Vellrnouth tide tables.")
-	stdout, stderr, code := runRecto(t, "score", "--truth", filepath.Join(dir, "gt"), "--ocr", filepath.Join(dir, "ocr"), "--confusions", "3")
+	stdout, stderr, code := runScoreCmd(t, "score", "--truth", filepath.Join(dir, "gt"), "--ocr", filepath.Join(dir, "ocr"), "--confusions", "3")
 	if code != exitOK || stderr != "" {
 		t.Fatalf("exit %d, stderr %q", code, stderr)
 	}
@@ -198,7 +192,7 @@ func TestScoreUnreadable(t *testing.T) {
 	} else {
 		t.Log("running as root: permission bits do not stop reads, so only the dangling link is checked")
 	}
-	stdout, stderr, code := runRecto(t, "score", "--truth", filepath.Join(dir, "gt"), "--ocr", filepath.Join(dir, "ocr"), "--format", "csv")
+	stdout, stderr, code := runScoreCmd(t, "score", "--truth", filepath.Join(dir, "gt"), "--ocr", filepath.Join(dir, "ocr"), "--format", "csv")
 	if code != exitPartial {
 		t.Errorf("exit %d, want %d", code, exitPartial)
 	}
@@ -234,7 +228,7 @@ func TestScoreUsageAndFailure(t *testing.T) {
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
-			stdout, stderr, code := runRecto(t, tt.args...)
+			stdout, stderr, code := runScoreCmd(t, tt.args...)
 			if code != tt.code || !strings.Contains(stderr, tt.msg) {
 				t.Errorf("exit %d, stderr %q; want exit %d and %q", code, stderr, tt.code, tt.msg)
 			}
@@ -246,7 +240,7 @@ func TestScoreUsageAndFailure(t *testing.T) {
 }
 
 func TestScoreHelp(t *testing.T) {
-	stdout, _, code := runRecto(t, "score", "--help")
+	stdout, _, code := runScoreCmd(t, "score", "--help")
 	if code != exitOK {
 		t.Fatalf("exit %d", code)
 	}

@@ -30,10 +30,6 @@ type Engine interface {
 // tag when Options.DPI is zero.
 const DefaultDPI = 300
 
-// DefaultMaxPixels is the largest image, in pixels, that is decoded when
-// Options.MaxPixels is zero: 40 megapixels, an A3 page at 400 dpi.
-const DefaultMaxPixels = 40_000_000
-
 // Options configure Process and ProcessFile. The zero value prepares every
 // page with the automatic choices and assumes 300 dpi for untagged images.
 type Options struct {

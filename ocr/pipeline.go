@@ -7,7 +7,6 @@ import (
 	"errors"
 	"fmt"
 	"image"
-	"image/draw"
 	"io"
 	"math"
 	"os"
@@ -110,17 +109,6 @@ func clip(b Box, w, h int) Box {
 }
 
 func ms(d time.Duration) float64 { return float64(d.Microseconds()) / 1000 }
-
-// toGray converts img to *image.Gray with its origin at (0, 0).
-func toGray(img image.Image) *image.Gray {
-	r := img.Bounds()
-	if g, ok := img.(*image.Gray); ok && r.Min == (image.Point{}) {
-		return g
-	}
-	g := image.NewGray(image.Rect(0, 0, r.Dx(), r.Dy()))
-	draw.Draw(g, g.Bounds(), img, r.Min, draw.Src)
-	return g
-}
 
 // ProcessFile decodes the page image at path, processes it and fills the
 // record's Source (path as given), SHA256 (of the file's bytes) and the

@@ -57,7 +57,7 @@ func WriteALTO(w io.Writer, rec *Record) error {
 	words := rec.Words
 	ps := Box{W: rec.Width, H: rec.Height}
 	if len(words) > 0 {
-		ps = union(words)
+		ps = wordsBox(words)
 	}
 	a.s("      <PrintSpace")
 	a.box(ps)
@@ -69,7 +69,7 @@ func WriteALTO(w io.Writer, rec *Record) error {
 			e++
 		}
 		a.s(`        <TextBlock ID="block` + strconv.Itoa(words[b].Block) + `_` + strconv.Itoa(b) + `"`)
-		a.box(union(words[b:e]))
+		a.box(wordsBox(words[b:e]))
 		a.s(">\n")
 		for l := b; l < e; {
 			m := l
@@ -78,7 +78,7 @@ func WriteALTO(w io.Writer, rec *Record) error {
 			}
 			a.s(`          <TextLine ID="line` + strconv.Itoa(line) + `"`)
 			line++
-			a.box(union(words[l:m]))
+			a.box(wordsBox(words[l:m]))
 			a.s(">\n")
 			for i := l; i < m; i++ {
 				wd := words[i]
@@ -130,8 +130,8 @@ func orNone(s string) string {
 	return s
 }
 
-// union is the smallest box holding every word's box.
-func union(ws []Word) Box {
+// wordsBox is the smallest box holding every word's box.
+func wordsBox(ws []Word) Box {
 	x0, y0 := ws[0].Box.X, ws[0].Box.Y
 	x1, y1 := x0+ws[0].Box.W, y0+ws[0].Box.H
 	for _, w := range ws[1:] {

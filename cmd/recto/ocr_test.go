@@ -1,8 +1,6 @@
 package main
 
 import (
-	"bytes"
-	"context"
 	"crypto/sha256"
 	"errors"
 	"image"
@@ -47,18 +45,6 @@ func testPage() *image.Gray {
 		g.SetGray(x, 20, color.Gray{Y: 10})
 	}
 	return g
-}
-
-// runRecto runs the command line and returns stdout, stderr and the error.
-func runRecto(t *testing.T, args ...string) (string, string, error) {
-	t.Helper()
-	root := newRootCommand()
-	var out, errb bytes.Buffer
-	root.SetOut(&out)
-	root.SetErr(&errb)
-	root.SetArgs(args)
-	err := root.ExecuteContext(context.Background())
-	return out.String(), errb.String(), err
 }
 
 // snapshot hashes every file under dir, to prove the input is untouched.

@@ -28,12 +28,12 @@ type sideBySide struct {
 	rectoChars, plainChars int
 }
 
-// compareKinds renders the paragraph on a page of the given layout,
+// compareKinds renders text on a page of the given layout,
 // degrades it with each synth preset, and recognises it with and without
 // preparation.
-func compareKinds(tb testing.TB, e ocr.Engine, layout synth.Layout, kinds []string) []sideBySide {
+func compareKinds(tb testing.TB, e ocr.Engine, layout synth.Layout, kinds []string, text string) []sideBySide {
 	tb.Helper()
-	clean, rest, err := synth.Render(comparePara, layout)
+	clean, rest, err := synth.Render(text, layout)
 	if err != nil {
 		tb.Fatal(err)
 	}
@@ -100,7 +100,7 @@ func TestPreparationEarnsItsPlace(t *testing.T) {
 		kinds = []string{"clean", "skewed", "noisy"}
 	}
 	layout := synth.Layout{WidthMM: 150, HeightMM: 62, MarginMM: 8}
-	rows := compareKinds(t, e, layout, kinds)
+	rows := compareKinds(t, e, layout, kinds, comparePara)
 	t.Logf("side by side, %gx%g mm page at 300 dpi:\n%s", layout.WidthMM, layout.HeightMM, table(rows))
 	for _, r := range rows {
 		switch r.kind {
@@ -125,5 +125,29 @@ func TestPreparationEarnsItsPlace(t *testing.T) {
 				t.Errorf("blank: recto produced %d characters, the plain engine %d", r.rectoChars, r.plainChars)
 			}
 		}
+	}
+}
+
+// BenchmarkCompareA4 is the full-size side-by-side comparison: A4 pages at
+// 300 dpi holding the paragraph three times, every synth preset the test
+// uses, recto against the plain engine. It logs the table and reports each
+// CER as a metric; run it with -benchtime 1x.
+func BenchmarkCompareA4(b *testing.B) {
+	e := engineOrSkip(b, Config{})
+	text := strings.Repeat(comparePara+"\n\n", 3)
+	kinds := []string{"clean", "skewed", "noisy", "uneven", "lowres", "blank"}
+	var rows []sideBySide
+	for b.Loop() {
+		rows = compareKinds(b, e, synth.Layout{}, kinds, text)
+	}
+	b.Logf("side by side, A4 at 300 dpi:\n%s", table(rows))
+	for _, r := range rows {
+		if r.kind == "blank" {
+			b.ReportMetric(float64(r.rectoChars), "blank-chars-recto")
+			b.ReportMetric(float64(r.plainChars), "blank-chars-plain")
+			continue
+		}
+		b.ReportMetric(r.recto*100, r.kind+"-CER%-recto")
+		b.ReportMetric(r.plain*100, r.kind+"-CER%-plain")
 	}
 }

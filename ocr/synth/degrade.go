@@ -76,7 +76,7 @@ func Degrade(p *Page, d Degradation) *Page {
 	if d.Blur > 0 {
 		gaussBlur(buf, w, h, d.Blur)
 	}
-	if s := d.Scale; s > 0 && s < 1 {
+	if s := d.Scale; s > 0 && s < 1 && w > 0 && h > 0 {
 		nw, nh := max(1, int(math.Round(float64(w)*s))), max(1, int(math.Round(float64(h)*s)))
 		buf = resample(buf, w, h, nw, nh)
 		sx, sy := float64(nw)/float64(w), float64(nh)/float64(h)

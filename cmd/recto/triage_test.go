@@ -1,7 +1,6 @@
 package main
 
 import (
-	"bytes"
 	"encoding/csv"
 	"encoding/json"
 	"errors"
@@ -12,19 +11,6 @@ import (
 
 	"recto/ocr"
 )
-
-// runRecto runs the root command with args and returns stdout, stderr and
-// the error Execute returned.
-func runRecto(t *testing.T, args ...string) (string, string, error) {
-	t.Helper()
-	root := newRootCommand()
-	var out, errb bytes.Buffer
-	root.SetOut(&out)
-	root.SetErr(&errb)
-	root.SetArgs(args)
-	err := root.Execute()
-	return out.String(), errb.String(), err
-}
 
 // writeRecord writes a page record whose words are the words of text, all
 // with confidence conf.

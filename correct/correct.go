@@ -117,6 +117,8 @@ type scratch struct {
 	ids  []uint32
 	seen map[uint32]struct{}
 	vars map[string]float64
+
+	found, frontier []string
 }
 
 // edit replaces tokens [i, i+n) by words.
@@ -416,8 +418,14 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 			margin += nameMargin
 		}
 	}
+	keep := c.m.logIdentity(q) + c.logContext(prev, q, next)
+	// Every candidate scores at most its channel probability (the context
+	// probability is at most 1), and no channel probability exceeds the
+	// likeliest confusion's: frequent words stop here.
+	if keep+margin >= c.m.maxLogp {
+		return edit{}, false
+	}
 	c.m.prepare(&s.obs, q)
-	keep := s.obs.identity(c.m) + c.logContext(prev, q, next)
 	best, bestScore := "", math.Inf(-1)
 	consider := func(w string) {
 		if w == q {
@@ -425,12 +433,15 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		}
 		var ch float64
 		ch, s.buf = c.m.logChannel(&s.obs, w, s.crs, s.buf)
+		if ch <= keep+margin {
+			return
+		}
 		v := ch + c.logContext(prev, w, next)
 		if v > bestScore || (v == bestScore && w < best) {
 			best, bestScore = w, v
 		}
 	}
-	for _, w := range c.expansions(s, q, known) {
+	for _, w := range c.expansions(s, q, known, keep+margin) {
 		consider(w)
 	}
 	if !known {
@@ -479,55 +490,55 @@ func (c *Corrector) search(s *scratch, q string) []uint32 {
 }
 
 // expansions returns the lexicon words reached from q by undoing one or two
-// learned confusions (To→From), sorted. For a known q only single, likely
-// confusions are tried.
-func (c *Corrector) expansions(s *scratch, q string, known bool) []string {
+// learned confusions (To→From) whose probabilities together exceed floor,
+// sorted. For a known q only single confusions are tried.
+func (c *Corrector) expansions(s *scratch, q string, known bool, floor float64) []string {
 	if s.vars == nil {
 		s.vars = make(map[string]float64)
 	}
 	clear(s.vars)
-	minLog := minExpandLogP
-	if known {
-		minLog = -6
+	found := s.found[:0]
+	frontier := s.frontier[:0]
+	type variant struct {
+		w    string
+		logp float64
 	}
-	var found []string
-	var frontier []string
-	var level func(w string, depth int)
-	level = func(w string, depth int) {
-		for _, x := range c.m.expand {
-			if x.logp < minLog {
-				break
+	level := func(w string, acc float64, first bool) {
+		for k := 0; k < len(w); k++ {
+			if w[k]&0xc0 == 0x80 {
+				continue // inside a multi-byte rune
 			}
-			for off := 0; off < len(w); {
-				k := strings.Index(w[off:], x.to)
-				if k < 0 {
-					break
+			for _, x := range c.m.expFirst[w[k]] {
+				if acc+x.logp <= floor {
+					break // sorted, most likely first
 				}
-				k += off
-				v := w[:k] + x.from + w[k+len(x.to):]
-				off = k + 1
-				if _, ok := s.vars[v]; ok || len(s.vars) >= 4*maxExpansions {
+				if !strings.HasPrefix(w[k:], x.to) {
 					continue
 				}
-				s.vars[v] = x.logp
+				v := w[:k] + x.from + w[k+len(x.to):]
+				if _, ok := s.vars[v]; ok || len(s.vars) >= 8*maxExpansions {
+					continue
+				}
+				s.vars[v] = acc + x.logp
 				if c.lex.Has(v) && indexable(v) {
 					found = append(found, v)
-				} else if depth == 1 {
+				} else if first {
 					frontier = append(frontier, v)
 				}
 			}
 		}
 	}
-	level(q, 1)
+	level(q, 0, true)
 	if !known {
 		for _, v := range frontier {
 			if len(found) >= maxExpansions {
 				break
 			}
-			level(v, 2)
+			level(v, s.vars[v], false)
 		}
 	}
 	sort.Strings(found)
+	s.found, s.frontier = found, frontier
 	return found
 }
 
@@ -637,5 +648,3 @@ func isHyphen(trail string) bool {
 	}
 	return false
 }
-
-

@@ -62,6 +62,8 @@ type Model struct {
 	spaceDel float64            // log P(a space between words is lost)
 	spaceIns float64            // log P(a space is added inside a word), per character
 	expand   []expansion        // rewrites To→From for candidate expansion, most likely first
+	expFirst [256][]expansion   // expand by first byte of To
+	maxLogp  float64            // the likeliest confusion or unseen edit, log probability
 }
 
 // crule is a compiled rule: From as runes and its log probability.
@@ -306,7 +308,40 @@ func (m *Model) compile() {
 	}
 	m.spaceDel = math.Log((float64(spaceDel) + 0.5) / (float64(spaceN) + 1))
 	m.spaceIns = math.Log((float64(spaceIns) + 0.5) / (chars + 1))
+	m.maxLogp = max(m.subFloor, m.insFloor, m.delFloor, m.spaceDel, m.spaceIns)
+	for _, x := range m.byTo {
+		for _, r := range x {
+			m.maxLogp = max(m.maxLogp, r.logp)
+		}
+	}
+	for _, v := range m.del {
+		m.maxLogp = max(m.maxLogp, v)
+	}
 	sort.SliceStable(m.expand, func(i, j int) bool { return m.expand[i].logp > m.expand[j].logp })
+	// A confusion widened by a matching neighbour ("th"→"tli") rewrites
+	// nothing its narrow form ("h"→"li") does not: expand by the narrow one.
+	have := make(map[[2]string]bool, len(m.expand))
+	for _, x := range m.expand {
+		have[[2]string{x.to, x.from}] = true
+	}
+	kept := m.expand[:0]
+	for _, x := range m.expand {
+		to, from := x.to, x.from
+		for len(to) > 0 && len(from) > 0 && to[0] == from[0] {
+			to, from = to[1:], from[1:]
+		}
+		for len(to) > 0 && len(from) > 0 && to[len(to)-1] == from[len(from)-1] {
+			to, from = to[:len(to)-1], from[:len(from)-1]
+		}
+		if (to != x.to || from != x.from) && to != "" && have[[2]string{to, from}] {
+			continue
+		}
+		kept = append(kept, x)
+	}
+	m.expand = kept
+	for _, x := range m.expand {
+		m.expFirst[x.to[0]] = append(m.expFirst[x.to[0]], x)
+	}
 }
 
 func containsSpace(s string) bool {

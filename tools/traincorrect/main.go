@@ -18,6 +18,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"runtime/pprof"
 	"sort"
 	"strings"
 	"unicode"
@@ -38,7 +39,14 @@ func main() {
 	margin := flag.Float64("margin", 0, "correction margin (0 = default)")
 	rate := flag.Float64("rate", 0.08, "-plant: share of words given a confusion")
 	verbose := flag.Bool("v", false, "list every change on clean pages")
+	cpuprofile := flag.String("cpuprofile", "", "write a CPU profile of the evaluation here")
 	flag.Parse()
+	if *cpuprofile != "" {
+		f, err := os.Create(*cpuprofile)
+		check(err)
+		check(pprof.StartCPUProfile(f))
+		defer pprof.StopCPUProfile()
+	}
 
 	switch {
 	case *corpus != "" && !*eval:
@@ -83,6 +91,7 @@ func main() {
 func check(err error) {
 	if err != nil {
 		fmt.Fprintln(os.Stderr, "traincorrect:", err)
+		pprof.StopCPUProfile()
 		os.Exit(1)
 	}
 }

@@ -1,0 +1,181 @@
+package ocr
+
+import (
+	"image"
+	"math"
+)
+
+// histogram counts the grey levels of g.
+func histogram(g *image.Gray) *[256]int {
+	var h [256]int
+	w := g.Rect.Dx()
+	for y := 0; y < g.Rect.Dy(); y++ {
+		for _, v := range g.Pix[y*g.Stride : y*g.Stride+w] {
+			h[v]++
+		}
+	}
+	return &h
+}
+
+// otsu returns Otsu's threshold for a grey-level histogram (N. Otsu, "A
+// threshold selection method from gray-level histograms", IEEE Trans.
+// Systems, Man and Cybernetics 9(1), 1979): the level k that maximises the
+// between-class variance σ_B²(k) = [μ_T ω(k) − μ(k)]² / (ω(k)[1 − ω(k)]),
+// where class C0 holds levels 0..k and C1 levels k+1..255. Pixels at or
+// below k are dark (ink). When several levels tie, the middle of the first
+// run of tied levels is returned. A histogram with a single occupied level
+// returns that level.
+func otsu(h *[256]int) int {
+	var total, sum float64
+	for i, c := range h {
+		total += float64(c)
+		sum += float64(i) * float64(c)
+	}
+	if total == 0 {
+		return 0
+	}
+	var w0, s0, best float64
+	bestK, bestEnd := -1, -1
+	for k := 0; k < 255; k++ {
+		w0 += float64(h[k])
+		s0 += float64(k) * float64(h[k])
+		if w0 == 0 {
+			continue
+		}
+		w1 := total - w0
+		if w1 == 0 {
+			break
+		}
+		d := sum*w0/total - s0 // = total·(μ_T ω − μ)
+		v := d * d / (w0 * w1)
+		switch {
+		case v > best*(1+1e-12):
+			best, bestK, bestEnd = v, k, k
+		case bestK >= 0 && bestEnd == k-1 && v >= best*(1-1e-12):
+			bestEnd = k // empty bins extend a tie
+		}
+	}
+	if bestK < 0 {
+		// One occupied level.
+		for i, c := range h {
+			if c > 0 {
+				return i
+			}
+		}
+	}
+	return (bestK + bestEnd) / 2
+}
+
+// threshold writes 0 to dst where src ≤ t and 255 elsewhere. dst and src
+// have the same size and may be the same image.
+func threshold(dst, src *image.Gray, t int) {
+	var lut [256]uint8
+	for i := t + 1; i < 256; i++ {
+		lut[i] = 255
+	}
+	w := src.Rect.Dx()
+	for y := 0; y < src.Rect.Dy(); y++ {
+		s := src.Pix[y*src.Stride : y*src.Stride+w]
+		d := dst.Pix[y*dst.Stride : y*dst.Stride+w]
+		for x, v := range s {
+			d[x] = lut[v]
+		}
+	}
+}
+
+// Sauvola parameters: J. Sauvola and M. Pietikäinen, "Adaptive document
+// image binarization", Pattern Recognition 33(2), 2000, threshold
+// T = m·(1 + k·(s/R − 1)) with m and s the mean and standard deviation of a
+// window around the pixel. The paper uses k = 0.5 and R = 128; k = 0.34 is
+// a common, less aggressive choice for faint print (common practice).
+const (
+	sauvolaK = 0.34
+	sauvolaR = 128.0
+)
+
+// sauvolaWindow is the window side for an image: about 1/50 of the shorter
+// side (49 pixels at A4 300 dpi, one to two text lines), odd, at least 15.
+func sauvolaWindow(w, h int) int {
+	n := min(w, h) / 50
+	if n < 15 {
+		n = 15
+	}
+	return n | 1
+}
+
+// integral holds summed-area tables of an image and of its squares
+// (F. Crow, "Summed-area tables for texture mapping", SIGGRAPH 1984;
+// applied to local thresholding by F. Shafait, D. Keysers and T. Breuel,
+// "Efficient implementation of local adaptive thresholding techniques using
+// integral images", SPIE Document Recognition and Retrieval XV, 2008).
+//
+// The tables are uint32 and may wrap around on large images; window sums
+// are differences modulo 2³², exact as long as a window's true sum is below
+// 2³² (a 255-level window of up to 66,000 pixels for squares).
+type integral struct {
+	w, h  int      // image size; tables are (w+1)×(h+1)
+	sum   []uint32 // sum[(y)*(w+1)+x] = Σ of pixels above and left of (x, y)
+	sumSq []uint32
+}
+
+func (it *integral) build(g *image.Gray) {
+	w, h := g.Rect.Dx(), g.Rect.Dy()
+	it.w, it.h = w, h
+	n := (w + 1) * (h + 1)
+	if cap(it.sum) < n {
+		it.sum = make([]uint32, n)
+		it.sumSq = make([]uint32, n)
+	}
+	it.sum, it.sumSq = it.sum[:n], it.sumSq[:n]
+	clear(it.sum[:w+1])
+	clear(it.sumSq[:w+1])
+	for y := 0; y < h; y++ {
+		row := g.Pix[y*g.Stride : y*g.Stride+w]
+		prev := it.sum[y*(w+1) : y*(w+1)+w+1]
+		prevSq := it.sumSq[y*(w+1) : y*(w+1)+w+1]
+		cur := it.sum[(y+1)*(w+1) : (y+1)*(w+1)+w+1]
+		curSq := it.sumSq[(y+1)*(w+1) : (y+1)*(w+1)+w+1]
+		cur[0], curSq[0] = 0, 0
+		var rs, rq uint32
+		for x, v := range row {
+			rs += uint32(v)
+			rq += uint32(v) * uint32(v)
+			cur[x+1] = prev[x+1] + rs
+			curSq[x+1] = prevSq[x+1] + rq
+		}
+	}
+}
+
+// sauvola binarises src into dst (same size; may be the same image) with a
+// win×win window clipped at the image edges, in O(pixels) through integral
+// images. it is scratch space, reused across calls.
+func sauvola(dst, src *image.Gray, win int, it *integral) {
+	it.build(src)
+	w, h := it.w, it.h
+	r := win / 2
+	W := w + 1
+	for y := 0; y < h; y++ {
+		y0, y1 := max(0, y-r), min(h, y+r+1)
+		top, bot := it.sum[y0*W:y0*W+W], it.sum[y1*W:y1*W+W]
+		topQ, botQ := it.sumSq[y0*W:y0*W+W], it.sumSq[y1*W:y1*W+W]
+		s := src.Pix[y*src.Stride : y*src.Stride+w]
+		d := dst.Pix[y*dst.Stride : y*dst.Stride+w]
+		for x, v := range s {
+			x0, x1 := max(0, x-r), min(w, x+r+1)
+			n := float64((x1 - x0) * (y1 - y0))
+			sum := float64(bot[x1] - bot[x0] - top[x1] + top[x0])
+			sq := float64(botQ[x1] - botQ[x0] - topQ[x1] + topQ[x0])
+			m := sum / n
+			variance := sq/n - m*m
+			if variance < 0 {
+				variance = 0
+			}
+			t := m * (1 + sauvolaK*(math.Sqrt(variance)/sauvolaR-1))
+			if float64(v) <= t {
+				d[x] = 0
+			} else {
+				d[x] = 255
+			}
+		}
+	}
+}

@@ -1,0 +1,358 @@
+package ocr
+
+import (
+	"errors"
+	"fmt"
+	"image"
+	"math"
+	"time"
+)
+
+// Mode switches a preparation step: Auto lets a measurement decide, On
+// forces the step, Off skips it.
+type Mode int
+
+const (
+	Auto Mode = iota // decide from measurements (the zero value)
+	On               // always run the step
+	Off              // never run the step
+)
+
+func (m Mode) String() string {
+	switch m {
+	case Auto:
+		return "auto"
+	case On:
+		return "on"
+	case Off:
+		return "off"
+	}
+	return fmt.Sprintf("Mode(%d)", int(m))
+}
+
+// PrepOptions configures Prepare. The zero value prepares with every
+// decision left to measurements.
+type PrepOptions struct {
+	Denoise Mode // Auto: blur only when the estimated noise is at least DenoiseThreshold
+	Deskew  Mode // Auto: rotate when a clear skew of at least MinSkew degrees is found
+	Cleanup Mode // Auto and On: remove speckle and border ink after binarisation
+
+	// Binarize is "" or "auto" (Otsu unless the measured background
+	// variation calls for Sauvola's local method), "otsu", "sauvola" or
+	// "none" (the deskewed greyscale page is handed over as is).
+	Binarize string
+
+	MaxSkew float64 // largest skew searched either way, degrees; 0 means 15
+}
+
+// Step records one preparation step.
+type Step struct {
+	Name     string        // "gray", "noise", "denoise", "deskew", "binarize", "cleanup", "blank"
+	Applied  bool          // false when the step measured and decided not to act, or was off
+	Duration time.Duration // wall time of the step, measurement included
+	Detail   string        // what was measured and decided, for people
+}
+
+// Prepared is a page made ready for the engine.
+type Prepared struct {
+	Image        *image.Gray // what the engine sees: 0/255 unless Binarization is "none"
+	Skew         float64     // skew found and removed, degrees, counter-clockwise positive; 0 if not deskewed
+	Binarization string      // "otsu", "sauvola" or "none"
+	Threshold    int         // Otsu's threshold 0-255 (pixels at or below are ink) when Binarization is "otsu"
+	Noise        float64     // estimated noise before denoising, standard deviation in grey levels
+	Background   float64     // background variation: spread of the local paper level across the page, grey levels (0-255)
+	Blank        bool        // no ink worth recognising was found; Image is then all white
+	Steps        []Step      // what ran, in order
+
+	// ToOriginal maps a box in Image's pixels back to the original image's
+	// pixels (undoing the rotation), clipped to the original image. A
+	// rotated box maps to the smallest upright box holding it.
+	ToOriginal func(b Box) Box
+}
+
+// Decision thresholds; each is checked by tests on synthetic pages.
+const (
+	// DenoiseThreshold is the estimated noise, in grey levels, from which
+	// Auto denoising blurs the page. Clean 8-bit scans measure 0-3.
+	DenoiseThreshold = 6.0
+
+	// MinSkew is the smallest skew, in degrees, that Auto deskewing
+	// corrects: below it rotation's resampling costs more than it gains
+	// (a 0.05° skew moves the end of a 2,480-pixel line by 2 pixels).
+	MinSkew = 0.05
+
+	// unevenFraction: Auto binarisation uses Sauvola when the background
+	// variation exceeds this fraction of the contrast between the paper
+	// and Otsu's threshold, i.e. when Otsu's single threshold would come
+	// close to the paper in the darkest parts of the page.
+	unevenFraction = 0.5
+)
+
+// ErrNoPixels is returned by Prepare for an image with no pixels.
+var ErrNoPixels = errors.New("ocr: image has no pixels")
+
+// Prepare turns a decoded page into the image the engine reads:
+// greyscale; noise estimate, and a blur when the noise is high; skew
+// estimate and rotation with white corners; binarisation by Otsu's method or
+// Sauvola's local method; removal of speckle and border ink; and blank-page
+// detection. src is not modified. Every step is timed and recorded in
+// Prepared.Steps.
+func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
+	if src == nil || src.Bounds().Empty() {
+		return nil, ErrNoPixels
+	}
+	method := o.Binarize
+	switch method {
+	case "", "auto", "otsu", "sauvola", "none":
+	default:
+		return nil, fmt.Errorf("ocr: unknown binarisation %q (want auto, otsu, sauvola or none)", o.Binarize)
+	}
+	for _, m := range []Mode{o.Denoise, o.Deskew, o.Cleanup} {
+		if m < Auto || m > Off {
+			return nil, fmt.Errorf("ocr: invalid mode %d", int(m))
+		}
+	}
+	maxSkew := o.MaxSkew
+	if maxSkew <= 0 {
+		maxSkew = 15
+	}
+	maxSkew = min(maxSkew, 45)
+
+	p := &Prepared{}
+	W, H := src.Bounds().Dx(), src.Bounds().Dy()
+	t := time.Now()
+	step := func(name string, applied bool, detail string, args ...any) {
+		now := time.Now()
+		p.Steps = append(p.Steps, Step{Name: name, Applied: applied, Duration: now.Sub(t), Detail: fmt.Sprintf(detail, args...)})
+		t = now
+	}
+
+	g := toGray(src)
+	step("gray", true, "%d×%d greyscale", W, H)
+
+	p.Noise = estimateNoise(g)
+	step("noise", true, "estimated noise σ = %.1f grey levels", p.Noise)
+
+	denoise := o.Denoise == On || (o.Denoise == Auto && p.Noise >= DenoiseThreshold)
+	if denoise {
+		r := 1
+		if p.Noise >= 20 {
+			r = 2
+		}
+		boxBlur(g, r)
+		boxBlur(g, r)
+		step("denoise", true, "two %d×%d box blurs (noise %.1f)", 2*r+1, 2*r+1, p.Noise)
+	} else {
+		step("denoise", false, "noise %.1f below %.0f", p.Noise, DenoiseThreshold)
+	}
+
+	// Analysis at reduced resolution: half size for skew and ink, and the
+	// local paper level on tiles of a quarter-size page.
+	g2 := half(g)
+	if g2.Rect.Empty() {
+		g2 = g
+	}
+	bg := measureBackground(g2)
+	p.Background = bg.variation
+	blank := bg.ink < minInk
+	if blank {
+		p.Blank = true
+	}
+
+	switch method {
+	case "", "auto":
+		if bg.variation > unevenFraction*float64(bg.paper-bg.otsu) {
+			method = "sauvola"
+		} else {
+			method = "otsu"
+		}
+	}
+
+	rot := rotation{}
+	rotated := false
+	if o.Deskew != Off && !blank {
+		var it integral
+		b2 := image.NewGray(g2.Rect)
+		sauvola(b2, g2, sauvolaWindow(g2.Rect.Dx(), g2.Rect.Dy()), &it)
+		// The final stage of the search uses the full-size ink when one
+		// level separates it from the paper (the page is evenly lit).
+		t := -1
+		if method != "sauvola" {
+			t = bg.otsu
+		}
+		deg, ok := findSkew(b2, g, t, maxSkew)
+		switch {
+		case !ok:
+			step("deskew", false, "no clear skew found")
+		case math.Abs(deg) < MinSkew && o.Deskew == Auto:
+			step("deskew", false, "skew %.2f° below %.2f°", deg, MinSkew)
+		default:
+			g = rotate(g, -deg)
+			rot = newRotation(-deg, W, H)
+			rotated = true
+			p.Skew = deg
+			step("deskew", true, "rotated by %.2f°", -deg)
+		}
+	} else if blank {
+		step("deskew", false, "blank page")
+	} else {
+		step("deskew", false, "off")
+	}
+
+	switch method {
+	case "otsu":
+		p.Threshold = otsu(histogram(g))
+		threshold(g, g, p.Threshold)
+		p.Binarization = "otsu"
+		step("binarize", true, "Otsu threshold %d (background variation %.0f, paper %d)", p.Threshold, bg.variation, bg.paper)
+	case "sauvola":
+		var it integral
+		win := sauvolaWindow(g.Rect.Dx(), g.Rect.Dy())
+		sauvola(g, g, win, &it)
+		p.Binarization = "sauvola"
+		step("binarize", true, "Sauvola, %d-pixel window, k=%.2f (background variation %.0f, paper %d)", win, sauvolaK, bg.variation, bg.paper)
+	case "none":
+		p.Binarization = "none"
+		step("binarize", false, "none requested")
+	}
+
+	if p.Binarization != "none" && o.Cleanup != Off && !blank {
+		maxSpeck := max(2, g.Rect.Dx()*g.Rect.Dx()/720000)
+		res, _ := cleanup(g, maxSpeck, nil)
+		step("cleanup", res.specks+res.borders > 0, "removed %d specks (%d px, ≤ %d px each) and %d border regions (%d px)",
+			res.specks, res.speckPixels, maxSpeck, res.borders, res.borderPixels)
+	} else {
+		step("cleanup", false, "skipped")
+	}
+
+	if blank {
+		for i := range g.Pix {
+			g.Pix[i] = 255
+		}
+		step("blank", true, "blank page: %d ink pixels at half size, fewer than %d", bg.ink, minInk)
+	} else {
+		step("blank", false, "%d ink pixels at half size", bg.ink)
+	}
+
+	p.Image = g
+	if rotated {
+		p.ToOriginal = func(b Box) Box { return rot.boxToSrc(b) }
+	} else {
+		p.ToOriginal = func(b Box) Box { return clipBox(b, W, H) }
+	}
+	return p, nil
+}
+
+// boxToSrc maps a box of the rotated image to the smallest upright box of
+// the source holding it, clipped to the source.
+func (r rotation) boxToSrc(b Box) Box {
+	x0, y0 := math.Inf(1), math.Inf(1)
+	x1, y1 := math.Inf(-1), math.Inf(-1)
+	for _, c := range [4][2]float64{
+		{float64(b.X), float64(b.Y)}, {float64(b.X + b.W), float64(b.Y)},
+		{float64(b.X), float64(b.Y + b.H)}, {float64(b.X + b.W), float64(b.Y + b.H)},
+	} {
+		x, y := r.toSrc(c[0], c[1])
+		x0, y0 = math.Min(x0, x), math.Min(y0, y)
+		x1, y1 = math.Max(x1, x), math.Max(y1, y)
+	}
+	ix0, iy0 := int(math.Floor(x0+1e-6)), int(math.Floor(y0+1e-6))
+	ix1, iy1 := int(math.Ceil(x1-1e-6)), int(math.Ceil(y1-1e-6))
+	return clipBox(Box{X: ix0, Y: iy0, W: ix1 - ix0, H: iy1 - iy0}, r.srcW, r.srcH)
+}
+
+// clipBox clips b to a w×h image; a box wholly outside becomes empty at the
+// nearest edge.
+func clipBox(b Box, w, h int) Box {
+	x0, y0 := min(max(b.X, 0), w), min(max(b.Y, 0), h)
+	x1, y1 := min(max(b.X+b.W, 0), w), min(max(b.Y+b.H, 0), h)
+	return Box{X: x0, Y: y0, W: max(0, x1-x0), H: max(0, y1-y0)}
+}
+
+// minInk is the number of ink pixels at half size (about 4 times as many at
+// full size: a quarter of a 12-point letter at 300 dpi) below which a page
+// is blank.
+const minInk = 60
+
+// background is what measureBackground found.
+type background struct {
+	paper     int     // median paper level over the tiles, grey level
+	variation float64 // spread (95th − 5th percentile) of the tiles' paper levels, grey levels
+	otsu      int     // Otsu's threshold of the reduced page
+	ink       int     // pixels clearly darker than their surroundings (see measureBackground)
+}
+
+// measureBackground measures the paper level across the page: the page is
+// cut into tiles about 1/12 of its shorter side, the paper level of a tile
+// is its 80th-percentile grey level (text covers well under 20% of a
+// tile), and the variation is the spread between the 5th and 95th
+// percentiles of the tiles' paper levels. It also counts ink: pixels at
+// least max(40, 6σ) grey levels below their tile's paper level, σ being the
+// noise of the reduced image, outside a margin of 2% of each side.
+func measureBackground(g *image.Gray) background {
+	w, h := g.Rect.Dx(), g.Rect.Dy()
+	ts := max(8, min(w, h)/12)
+	var levels []int
+	hist := histogram(g)
+	res := background{otsu: otsu(hist)}
+	noise := estimateNoise(g)
+	contrast := int(math.Max(40, 6*noise))
+	mx, my := w/50, h/50
+	for ty := 0; ty < h; ty += ts {
+		for tx := 0; tx < w; tx += ts {
+			var th [256]int
+			x1, y1 := min(w, tx+ts), min(h, ty+ts)
+			n := 0
+			for y := ty; y < y1; y++ {
+				for _, v := range g.Pix[y*g.Stride+tx : y*g.Stride+x1] {
+					th[v]++
+				}
+				n += x1 - tx
+			}
+			if n < ts*ts/4 {
+				continue // a sliver at the edge
+			}
+			level := percentile(&th, n, 0.8)
+			levels = append(levels, level)
+			lim := level - contrast
+			if lim <= 0 {
+				continue
+			}
+			for y := max(ty, my); y < min(y1, h-my); y++ {
+				for _, v := range g.Pix[y*g.Stride+max(tx, mx) : y*g.Stride+min(x1, w-mx)] {
+					if int(v) < lim {
+						res.ink++
+					}
+				}
+			}
+		}
+	}
+	if len(levels) == 0 {
+		res.paper = percentile(hist, w*h, 0.8)
+		return res
+	}
+	var lh [256]int
+	for _, l := range levels {
+		lh[l]++
+	}
+	res.paper = percentile(&lh, len(levels), 0.5)
+	res.variation = float64(percentile(&lh, len(levels), 0.95) - percentile(&lh, len(levels), 0.05))
+	return res
+}
+
+// percentile returns the smallest level at or below which a fraction q of
+// the n counted pixels lie.
+func percentile(h *[256]int, n int, q float64) int {
+	target := int(math.Ceil(q * float64(n)))
+	if target < 1 {
+		target = 1
+	}
+	cum := 0
+	for v, c := range h {
+		cum += c
+		if cum >= target {
+			return v
+		}
+	}
+	return 255
+}

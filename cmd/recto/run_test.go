@@ -255,17 +255,26 @@ func TestShardsMergeEqualsSingleRun(t *testing.T) {
 	coll, truth := testCollection(t, 3, 7, true)
 	base := t.TempDir()
 	single := filepath.Join(base, "single")
-	if _, _, err := runRecto(t, "run", coll, "--out", single, "--truth", truth); err == nil {
+	if _, _, err := runRecto(t, "run", coll, "--out", single, "--truth", truth, "--correct", "0.001", "--rescan", "1"); err == nil {
 		t.Fatal("want partial failure from the broken files")
 	}
 	shared := filepath.Join(base, "shared")
 	for i := range 3 {
-		runRecto(t, "run", coll, "--out", shared, "--truth", truth, "--shard", fmt.Sprintf("%d/3", i))
+		runRecto(t, "run", coll, "--out", shared, "--truth", truth, "--correct", "0.001", "--rescan", "1", "--shard", fmt.Sprintf("%d/3", i))
 	}
 	if _, se, err := runRecto(t, "merge", shared); err != nil {
 		t.Fatal(err, se)
 	}
 	sameRun(t, single, shared)
+	corrected := 0
+	for _, r := range ledgerRows(t, single) {
+		if r.Decision == "correct" {
+			corrected++
+		}
+	}
+	if corrected == 0 {
+		t.Error("no page went through correction: the comparison does not cover it")
+	}
 
 	// Shard index from a Slurm array environment, separate folders.
 	var dirs []string
@@ -274,7 +283,7 @@ func TestShardsMergeEqualsSingleRun(t *testing.T) {
 		t.Setenv("SLURM_ARRAY_TASK_MIN", "1")
 		t.Setenv("SLURM_ARRAY_TASK_COUNT", "3")
 		d := filepath.Join(base, fmt.Sprintf("node%d", i))
-		runRecto(t, "run", coll, "--out", d, "--truth", truth)
+		runRecto(t, "run", coll, "--out", d, "--truth", truth, "--correct", "0.001", "--rescan", "1")
 		dirs = append(dirs, d)
 	}
 	merged := filepath.Join(base, "merged")

@@ -9,6 +9,7 @@ import (
 	"os"
 	"strconv"
 	"strings"
+	"sync"
 	"time"
 
 	"recto/correct"
@@ -93,9 +94,8 @@ func newToolkit(o RunOptions) (*toolkit, error) {
 			return verdict{PredictedCER: v.PredictedCER, Decision: v.Decision, Reasons: v.Reasons}
 		},
 	}
-	corrector := correct.New(lex, nil, correct.Config{Margin: o.Margin})
 	tk.correct = func(r *ocr.Record) (*ocr.Record, int) {
-		c, changes := corrector.CorrectRecord(r)
+		c, changes := correctorFor(lex, o.Margin).CorrectRecord(r)
 		return c, len(changes)
 	}
 	tk.fingerprint, tk.settingsJSON = fingerprint(settings)
@@ -125,6 +125,28 @@ func newToolkit(o RunOptions) (*toolkit, error) {
 		}
 	}
 	return tk, nil
+}
+
+// correctors caches correctors by lexicon and margin: building one indexes
+// the lexicon, which takes seconds, so it is done when the first page needs
+// correction and once per process (tests run many jobs in one process).
+var correctors sync.Map // correctorKey -> *correctorEntry
+
+type correctorKey struct {
+	lex    *lexicon.Lexicon
+	margin float64
+}
+
+type correctorEntry struct {
+	once sync.Once
+	c    *correct.Corrector
+}
+
+func correctorFor(lex *lexicon.Lexicon, margin float64) *correct.Corrector {
+	v, _ := correctors.LoadOrStore(correctorKey{lex, margin}, &correctorEntry{})
+	e := v.(*correctorEntry)
+	e.once.Do(func() { e.c = correct.New(lex, nil, correct.Config{Margin: margin}) })
+	return e.c
 }
 
 // engineRecogniser is one worker's engine and options.

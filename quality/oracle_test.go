@@ -98,7 +98,7 @@ func TestBitDistanceAgainstTable(t *testing.T) {
 	rng := rand.New(rand.NewPCG(8, 9))
 	alphabets := [][]rune{[]rune("ab"), []rune("abcde é𝔄"), []rune("etaoinshrdlu ,.")}
 	var s Scratch
-	for it := range 2000 {
+	for it := range 800 {
 		n := rng.IntN(200)
 		a, b := randomPair(rng, alphabets[it%3], n, []float64{0, 0.1, 0.5, 1}[it%4])
 		if it%5 == 0 {
@@ -149,7 +149,7 @@ func tableColumn(a, b []rune) []int {
 func TestBitSplit(t *testing.T) {
 	rng := rand.New(rand.NewPCG(10, 11))
 	alphabets := [][]rune{[]rune("ab"), []rune("abcde é𝔄"), []rune("etaoinshrdlu ,.")}
-	for it := range 1500 {
+	for it := range 600 {
 		a, b := randomPair(rng, alphabets[it%3], 2+rng.IntN(150), []float64{0.05, 0.3, 1}[it%3])
 		if len(b) < 2 {
 			continue

@@ -165,3 +165,19 @@ func TestBitSplit(t *testing.T) {
 		checkOps(t, a, b, al.align(a, b, nil), want)
 	}
 }
+
+// TestBagBound: the bag distance never exceeds the edit distance
+// (Bartolini, Ciaccia and Patella 2002).
+func TestBagBound(t *testing.T) {
+	rng := rand.New(rand.NewPCG(12, 13))
+	var c bagCounter
+	for it := range 2000 {
+		a, b := randomPair(rng, []rune("abcé𝔄 "), rng.IntN(60), []float64{0.1, 0.5, 1}[it%3])
+		if lb, d := c.bound(a, b), tableDistance(a, b); lb > d {
+			t.Fatalf("bag bound %d > distance %d for %q, %q", lb, d, string(a), string(b))
+		}
+	}
+	if got := c.bound([]rune("abc"), []rune("xbcd")); got != 2 {
+		t.Errorf("bound(abc, xbcd) = %d, want 2", got)
+	}
+}

@@ -85,7 +85,8 @@ EXIT STATUS
   1    failure: unreadable --truth/--ocr, no reference page, nothing scored
   2    usage error: bad flag or option value
   3    partial: some hypotheses missing or unreadable, or some references
-       unreadable (the rest were scored and reported)`
+       unreadable (the rest were scored and reported)
+  130  interrupted (SIGINT or SIGTERM)`
 
 func newScoreCommand(g *GlobalOptions) *cobra.Command {
 	var o ScoreOptions

@@ -3,6 +3,8 @@ package quality
 import (
 	"context"
 	"errors"
+	"os"
+	"path/filepath"
 	"reflect"
 	"testing"
 )
@@ -61,5 +63,30 @@ func TestInvalidUTF8Offset(t *testing.T) {
 		if got := invalidUTF8([]byte(tt.in)); got != tt.want {
 			t.Errorf("invalidUTF8(%q) = %d, want %d", tt.in, got, tt.want)
 		}
+	}
+}
+
+// TestScoreDirsNestedRoots: OCR output kept inside the ground-truth folder
+// is not taken for ground truth.
+func TestScoreDirsNestedRoots(t *testing.T) {
+	dir := t.TempDir()
+	mustWrite(t, filepath.Join(dir, "gt", "vol1", "p1.txt"), "Corvane Mill")
+	mustWrite(t, filepath.Join(dir, "gt", "ocr", "vol1", "p1.txt"), "Corvane MiII")
+	rep, err := ScoreDirs(context.Background(), filepath.Join(dir, "gt"), filepath.Join(dir, "gt", "ocr"), DirConfig{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rep.Pages) != 1 || rep.Pages[0].Page != "vol1/p1" || rep.Pages[0].CharErrors != 2 || rep.Partial() {
+		t.Errorf("pages %+v, partial %v; want only vol1/p1 with 2 errors", rep.Pages, rep.Partial())
+	}
+}
+
+func mustWrite(t *testing.T, path, text string) {
+	t.Helper()
+	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
 	}
 }

@@ -39,7 +39,8 @@ PAIRS
   title named after that folder. A missing hypothesis is scored as empty text
   and listed as missing; a hypothesis that cannot be read is scored as empty
   text and reported; a *.txt under --ocr with no reference is listed as
-  unmatched and not scored.
+  unmatched and not scored. If one folder lies inside the other, it is left
+  out of the other's search.
 
 NORMALISATION
   Before scoring, both texts are normalised. Always: a leading UTF-8 byte

@@ -128,30 +128,42 @@ func BenchmarkVersusCLI(b *testing.B) {
 }
 
 // BenchmarkBatchMemory runs a batch of A4-sized pages with two workers and
-// reports the peak resident set of the process (VmHWM) per worker, and how
-// much the resident set grew between the end of the first and the end of
-// the second half of the batch (flat means about 0).
+// reports the peak resident set of the process (VmHWM) per worker, and the
+// trend of the resident set over the second half of the batch, by least
+// squares over one sample per finished page (flat means about 0 MB/page).
 func BenchmarkBatchMemory(b *testing.B) {
 	skipWithoutEngine(b)
-	const jobs, pages = 2, 8
+	const jobs, pages = 2, 12
 	paths := batchPaths(pages)
-	var half, end, peak float64
+	var rss []float64
+	var peak float64
 	for b.Loop() {
-		done := 0
-		runBatch(b, paths, jobs, func(ocr.Result) {
-			done++
-			if done == pages/2 {
-				half = procStatusMB("VmRSS")
-			}
-		})
-		end = procStatusMB("VmRSS")
+		rss = rss[:0]
+		runBatch(b, paths, jobs, func(ocr.Result) { rss = append(rss, procStatusMB("VmRSS")) })
 		peak = procStatusMB("VmHWM")
 	}
 	var ms runtime.MemStats
 	runtime.ReadMemStats(&ms)
+	b.Logf("RSS after each page, MB: %.0f", rss)
 	b.ReportMetric(peak/jobs, "peakRSS-MB/worker")
-	b.ReportMetric(end-half, "RSS-growth-MB")
+	b.ReportMetric(slope(rss[len(rss)/2:]), "RSS-MB/page")
+	b.ReportMetric(rss[len(rss)/2], "RSS-MB-mid")
+	b.ReportMetric(rss[len(rss)-1], "RSS-MB-end")
 	b.ReportMetric(float64(ms.HeapSys)/(1<<20), "GoHeapSys-MB")
+}
+
+// slope is the least-squares slope of ys against 0, 1, 2, ...
+func slope(ys []float64) float64 {
+	n := float64(len(ys))
+	if n < 2 {
+		return 0
+	}
+	var sx, sy, sxx, sxy float64
+	for i, y := range ys {
+		x := float64(i)
+		sx, sy, sxx, sxy = sx+x, sy+y, sxx+x*x, sxy+x*y
+	}
+	return (n*sxy - sx*sy) / (n*sxx - sx*sx)
 }
 
 // cpuTime is the user plus system CPU time of this process so far.

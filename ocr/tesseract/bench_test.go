@@ -5,6 +5,8 @@ package tesseract
 import (
 	"bufio"
 	"context"
+	"image"
+	"image/draw"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -189,4 +191,48 @@ func procStatusMB(field string) float64 {
 		}
 	}
 	return 0
+}
+
+// BenchmarkOnePass checks two properties of Recognize on a real scan:
+// it recognises the page once (its time matches one gosseract Text call,
+// not the sum of Text and the box listing), and Tesseract runs on one
+// thread (CPU time over wall time at most about 1 on an idle machine;
+// run with OMP_THREAD_LIMIT=2, which the adapter respects, to see the cost
+// of Tesseract's own threads).
+func BenchmarkOnePass(b *testing.B) {
+	e := engineOrSkip(b, Config{}).(*engine)
+	g := mustDecode(b, "../../testdata/engine/phototest.tif")
+	var tRec, tText, tBoth, cpu time.Duration
+	for b.Loop() {
+		c0, t0 := cpuTime(), time.Now()
+		if _, err := e.Recognize(context.Background(), g, 300); err != nil {
+			b.Fatal(err)
+		}
+		t1 := time.Now()
+		cpu += cpuTime() - c0
+		tRec += t1.Sub(t0)
+		e.client.Text()
+		t2 := time.Now()
+		tText += t2.Sub(t1)
+		e.client.Text()
+		e.client.GetBoundingBoxesVerbose()
+		tBoth += time.Since(t2)
+	}
+	n := float64(b.N)
+	b.ReportMetric(tRec.Seconds()*1000/n, "recognize-ms")
+	b.ReportMetric(tText.Seconds()*1000/n, "text-only-ms")
+	b.ReportMetric(tBoth.Seconds()*1000/n, "text+boxes-ms")
+	b.ReportMetric(cpu.Seconds()*1000/n, "recognize-cpu-ms")
+	b.ReportMetric(cpu.Seconds()/tRec.Seconds(), "cpu/wall")
+}
+
+func mustDecode(b *testing.B, path string) *image.Gray {
+	d, err := ocr.DecodeFile(path, ocr.DecodeOptions{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	r := d.Image.Bounds()
+	g := image.NewGray(image.Rect(0, 0, r.Dx(), r.Dy()))
+	draw.Draw(g, g.Bounds(), d.Image, r.Min, draw.Src)
+	return g
 }

@@ -162,6 +162,9 @@ func writeCalibrateText(w io.Writer, r calibrateReport) {
 	fmt.Fprintf(w, "  mean absolute error of predicted CER  %s\n", fmtFig(e.MAE, true))
 	fmt.Fprintf(w, "  rescan at predicted CER > %.0f%%: %d true, %d false alarms, %d missed\n", 100*e.RescanAbove, e.TruePos, e.FalsePos, e.FalseNeg)
 	fmt.Fprintf(w, "  clean pages (CER < 1%%): %d\n", e.Clean)
+	if e.EmptyTruth > 0 {
+		fmt.Fprintf(w, "  pages with empty ground truth: %d, of which decided blank or picture: %d\n", e.EmptyTruth, e.EmptyAsBlank)
+	}
 	keys := make([]string, 0, len(e.Decisions))
 	for k := range e.Decisions {
 		keys = append(keys, k)

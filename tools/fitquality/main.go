@@ -103,6 +103,9 @@ func report(w io.Writer, name string, m *quality.Model, held []quality.Sample, t
 	fmt.Fprintf(w, "%s (%d held-out pages):\n", name, e.Pages)
 	fmt.Fprintf(w, "  MAE %.4f; rescan: %d true, %d false alarms, %d missed; %d clean pages; decisions %v\n",
 		e.MAE, e.TruePos, e.FalsePos, e.FalseNeg, e.Clean, e.Decisions)
+	if e.EmptyTruth > 0 {
+		fmt.Fprintf(w, "  pages with empty ground truth: %d, decided blank or picture: %d\n", e.EmptyTruth, e.EmptyAsBlank)
+	}
 	for _, l := range lines {
 		fmt.Fprintf(w, "  %s\n", l)
 	}
@@ -113,7 +116,7 @@ func report(w io.Writer, name string, m *quality.Model, held []quality.Sample, t
 func baselines(w io.Writer, held []quality.Sample) {
 	var cer, conf, lex, garb []float64
 	for _, s := range held {
-		if s.Record.Blank || !s.Record.FromRecord {
+		if s.Record.Blank || !s.Record.FromRecord || s.EmptyTruth {
 			continue
 		}
 		cer = append(cer, s.CER)

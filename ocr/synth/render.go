@@ -255,9 +255,7 @@ func Render(text string, l Layout) (*Page, string, error) {
 	}
 
 	img := image.NewGray(image.Rect(0, 0, w, h))
-	for i := range img.Pix {
-		img.Pix[i] = 255
-	}
+	fillWhite(img.Pix)
 	page := &Page{Image: img, DPI: float64(l.DPI)}
 
 	paras := splitParagraphs(text)
@@ -403,4 +401,16 @@ func Missing(text, fontName string) ([]rune, error) {
 		}
 	}
 	return out, nil
+}
+
+// fillWhite sets every byte of b to 255 by doubling copies, which is much
+// faster than a byte loop (and than one under the race detector).
+func fillWhite(b []byte) {
+	if len(b) == 0 {
+		return
+	}
+	b[0] = 255
+	for n := 1; n < len(b); n *= 2 {
+		copy(b[n:], b[:n])
+	}
 }

@@ -29,7 +29,7 @@ import (
 // 300 dpi with 20 mm margins set in 11 pt Go Regular.
 type Layout struct {
 	DPI         int     // resolution, dots per inch; 0 means 300
-	WidthMM     float64 // page width, millimetres; 0 means 210 (A4) unless HeightMM is set
+	WidthMM     float64 // page width, millimetres; 0 means 210 (A4)
 	HeightMM    float64 // page height, millimetres; 0 means 297 (A4)
 	MarginMM    float64 // margin on all four sides, millimetres; 0 means 20
 	FontSizePt  float64 // type size, points (1/72 inch); 0 means 11
@@ -90,9 +90,6 @@ func parsedFont(name string) (*opentype.Font, error) {
 func (l Layout) withDefaults() Layout {
 	if l.DPI == 0 {
 		l.DPI = 300
-	}
-	if l.WidthMM == 0 && l.HeightMM == 0 {
-		l.WidthMM, l.HeightMM = 210, 297
 	}
 	if l.WidthMM == 0 {
 		l.WidthMM = 210

@@ -538,3 +538,21 @@ func TestDegradeTinyPages(t *testing.T) {
 		}
 	}
 }
+
+func TestDefaultLayoutIsA4(t *testing.T) {
+	// ISO 216: A4 is 210 mm × 297 mm; at 300 dpi that is 2480 × 3508
+	// pixels (210/25.4·300 = 2480.3, 297/25.4·300 = 3507.9).
+	p, _, err := Render("x", Layout{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if b := p.Image.Bounds(); b.Dx() != 2480 || b.Dy() != 3508 || p.DPI != 300 {
+		t.Errorf("zero Layout gives %v at %.0f dpi, want 2480x3508 at 300", b, p.DPI)
+	}
+	// 11 pt type at 300 dpi: an em of 11/72 inch = 45.8 px; the box spans
+	// the font's ascent plus descent, a little over one em for Go Regular
+	// (from memory), so about 45-60 px.
+	if h := p.Lines[0].Words[0].Box.Dy(); h < 30 || h > 70 {
+		t.Errorf("line box %d px high for 11 pt at 300 dpi", h)
+	}
+}

@@ -74,12 +74,13 @@ var termFuncs = map[string]func(f *Features) float64{
 	"conf_x_miss":   func(f *Features) float64 { return (1 - f.MeanConf) * lexMiss(f) },
 	"coverage":      func(f *Features) float64 { return f.Coverage },
 	"log_density":   func(f *Features) float64 { return math.Log1p(f.Density) },
+	"noise":         func(f *Features) float64 { return f.Noise },
 }
 
 // recordTerms and textTerms are the terms Fit uses.
 var (
 	textTerms   = []string{"lex_miss", "sqrt_lex_miss", "garbage", "sqrt_garbage", "short", "non_letter", "punct", "symbols", "digits", "upper", "log_tokens"}
-	recordTerms = append([]string{"mean_conf", "low_conf", "sqrt_low_conf", "conf_x_miss", "coverage", "log_density"}, textTerms...)
+	recordTerms = append([]string{"mean_conf", "low_conf", "sqrt_low_conf", "conf_x_miss", "coverage", "log_density", "noise"}, textTerms...)
 )
 
 func lexMiss(f *Features) float64 {

@@ -111,13 +111,15 @@ func Triage(f Features, m *Model, t Thresholds) Verdict {
 	default:
 		v.Decision = DecisionAccept
 	}
-	v.Reasons = reasons(f, m)
+	v.Reasons = reasons(f, m, v.Decision != DecisionAccept)
 	return v
 }
 
 // reasons turns the features into plain sentences, ordered by how much the
-// feature's term moved the prediction (largest first).
-func reasons(f Features, m *Model) []string {
+// feature's term moved the prediction (largest first). When worse is true
+// (the page was not accepted) the extra sentence after the confidence and
+// lexicon ones must be evidence that raised the estimate.
+func reasons(f Features, m *Model, worse bool) []string {
 	type reason struct {
 		text   string
 		weight float64
@@ -169,8 +171,11 @@ func reasons(f Features, m *Model) []string {
 	for _, r := range head {
 		out = append(out, r.text)
 	}
-	if len(rest) > 0 {
-		out = append(out, rest[0].text)
+	for _, r := range rest {
+		if !worse || r.weight > 0 {
+			out = append(out, r.text)
+			break
+		}
 	}
 	if !f.FromRecord {
 		out = append(out, "plain text only: no word confidences")

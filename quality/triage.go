@@ -35,6 +35,11 @@ const (
 	PictureMaxNoise  = 15.0
 )
 
+// NearBlankMaxChars: a clean scan (noise under PictureMaxNoise) on which
+// fewer characters than this were recognised (a page number, a stray
+// mark) is decided blank rather than picture (our own rule of thumb).
+const NearBlankMaxChars = 6
+
 // Thresholds are the predicted-CER limits of the decisions, as fractions
 // (0.10 = 10 %). The zero value means the defaults; a zero field means its
 // default.
@@ -86,6 +91,9 @@ func Triage(f Features, m *Model, t Thresholds) Verdict {
 			r = []string{"page is blank: its text is empty (plain text only: a page whose text was lost looks the same)"}
 		}
 		return Verdict{Decision: DecisionBlank, Reasons: r}
+	}
+	if f.FromRecord && f.Chars > 0 && f.Chars < NearBlankMaxChars && f.Noise < PictureMaxNoise {
+		return Verdict{Decision: DecisionBlank, Reasons: []string{fmt.Sprintf("page is nearly blank: %s recognised on a clean scan", plural(f.Chars, "character"))}}
 	}
 	words := int(math.Round(f.LexHit * float64(f.LexWords)))
 	if f.FromRecord && f.Tokens < PictureMaxTokens && words < PictureMaxWords && f.Noise < PictureMaxNoise {

@@ -33,6 +33,7 @@ func TestTriageDecisions(t *testing.T) {
 		{"noisy scan, almost no text", Features{FromRecord: true, Tokens: 6, LexWords: 2, LexHit: 0.5, Noise: 30}, 0.9, Thresholds{}, DecisionRescan},
 		{"ink, nothing recognised", Features{FromRecord: true, Noise: 30}, 0.001, Thresholds{}, DecisionRescan},
 		{"text only, empty", Features{Blank: true}, 0.9, Thresholds{}, DecisionBlank},
+		{"nearly blank: a page number", Features{FromRecord: true, Tokens: 1, Chars: 2, Noise: 6}, 0.9, Thresholds{}, DecisionBlank},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {

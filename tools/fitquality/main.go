@@ -44,14 +44,10 @@ func run(args []string, stdout, stderr io.Writer) error {
 	sample := fs.String("sample", "", "vendor a held-out sample (page .json + truth .txt) into this `folder`")
 	sampleN := fs.Int("sample-n", 40, "pages in the vendored sample")
 	correct := fs.Float64("correct", 0, "correct threshold for the report (0: the default)")
-	sim := fs.String("simulate", "", "fallback without a corpus: fit on character noise put into the .txt files of this `folder`")
 	if err := fs.Parse(args); err != nil {
 		return err
 	}
 	lex := lexicon.Default()
-	if *sim != "" {
-		return runSimulated(*sim, *out, *seed, lex, stdout)
-	}
 	load := func(split string) ([]quality.Sample, error) {
 		s, problems, err := quality.LoadSamples(filepath.Join(*corpus, "ocr", split), filepath.Join(*corpus, "truth", split), lex)
 		for _, p := range problems {
@@ -219,31 +215,6 @@ func vendor(corpus, dir string, held []quality.Sample, n int, w io.Writer) error
 		return err
 	}
 	fmt.Fprintf(w, "vendored %d held-out pages into %s (CER %s)\n", count, dir, strings.TrimSpace(fmt.Sprintf("%.3f..%.3f", s[0].CER, s[len(s)-1].CER)))
-	return nil
-}
-
-func runSimulated(dir, out string, seed int64, lex *lexicon.Lexicon, w io.Writer) error {
-	all, err := simulate(dir, 600, seed, lex)
-	if err != nil {
-		return err
-	}
-	// Page records are not simulated: the record regression is the text one.
-	for i := range all {
-		all[i].Record = all[i].Text
-		all[i].Record.FromRecord = true
-	}
-	fit, held := quality.Split(all, 0.3, seed)
-	m, err := quality.Fit(fit, quality.FitOptions{Seed: seed, Source: "INTERIM: simulated character noise in " + dir + " (no rendered pages, no confidences)"})
-	if err != nil {
-		return err
-	}
-	m.Record = m.Text
-	m.Fit.Holdout, m.Fit.HeldOut = 0.3, len(held)
-	m.Fit.Command = fmt.Sprintf("go run ./tools/fitquality -simulate %s -out quality/model/default.json -seed %d", dir, seed)
-	report(w, "simulated noise, plain text", m, held, true, quality.Thresholds{})
-	if out != "" {
-		return m.Save(out)
-	}
 	return nil
 }
 

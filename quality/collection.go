@@ -85,7 +85,7 @@ type Report struct {
 	Missing    []string         // pages scored as empty because their hypothesis is missing
 	Unmatched  []string         // hypothesis files (paths under the OCR root) with no reference
 	Failed     []*FileError     // references not scored and hypotheses not read, sorted by file
-	Confusions []ConfusionCount // most frequent first; only with DirConfig.Confusions > 0
+	Confusions []ConfusionCount // most frequent first, over pages with status ok; only with DirConfig.Confusions > 0
 }
 
 // Partial reports whether some page was missing or unreadable.
@@ -96,7 +96,7 @@ func (r *Report) Partial() bool { return len(r.Missing) > 0 || len(r.Failed) > 0
 // bootstrap.
 type DirConfig struct {
 	Norm       NormOptions
-	Confusions int    // keep this many of the most frequent confusions; 0 means none
+	Confusions int    // keep this many of the most frequent confusions (pages whose hypothesis was read); 0 means none
 	Workers    int    // pages scored at once; 0 means GOMAXPROCS
 	Resamples  int    // bootstrap resamples per title; 0 means DefaultResamples
 	Seed       uint64 // bootstrap seed; 0 means DefaultSeed
@@ -198,7 +198,7 @@ func ScoreDirs(ctx context.Context, truth, ocr string, cfg DirConfig) (*Report, 
 				}
 				res.page.Counts = s.Compare(ref, hyp, cfg.Norm)
 				res.scored = true
-				if cfg.Confusions > 0 {
+				if cfg.Confusions > 0 && res.page.Status == StatusOK {
 					ops = s.Align([]rune(Normalize(ref, cfg.Norm)), []rune(Normalize(hyp, cfg.Norm)), ops[:0])
 					res.conf = make(map[Confusion]int)
 					for _, c := range Group(ops) {

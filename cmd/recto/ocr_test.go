@@ -36,13 +36,21 @@ func fakeEngine(t *testing.T, langs ...string) *[]*ocrtest.Engine {
 	return &made
 }
 
+// testPage is a small page with four lines of word-sized bars: enough ink
+// for the preparation to send it to the engine.
 func testPage() *image.Gray {
-	g := image.NewGray(image.Rect(0, 0, 80, 50))
+	g := image.NewGray(image.Rect(0, 0, 120, 80))
 	for i := range g.Pix {
 		g.Pix[i] = 250
 	}
-	for x := 10; x < 70; x++ {
-		g.SetGray(x, 20, color.Gray{Y: 10})
+	for line := range 4 {
+		for y := 12 + line*14; y < 19+line*14; y++ {
+			for x := 15; x < 105; x++ {
+				if (x/6)%4 != 3 {
+					g.SetGray(x, y, color.Gray{Y: 10})
+				}
+			}
+		}
 	}
 	return g
 }
@@ -121,7 +129,7 @@ func TestOCRTree(t *testing.T) {
 		t.Errorf("text %q", txt)
 	}
 	rec, err := ocr.ReadRecord(filepath.Join(out, "box1", "p0001.json"))
-	if err != nil || rec.Source != filepath.Join(in, "box1", "p0001.png") || rec.Width != 80 {
+	if err != nil || rec.Source != filepath.Join(in, "box1", "p0001.png") || rec.Width != 120 {
 		t.Errorf("record %+v, %v", rec, err)
 	}
 	if len(*made) != 2 {

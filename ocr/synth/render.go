@@ -21,6 +21,7 @@ import (
 	"golang.org/x/image/font/gofont/goregular"
 	"golang.org/x/image/font/gofont/gosmallcaps"
 	"golang.org/x/image/font/opentype"
+	"golang.org/x/image/font/sfnt"
 	"golang.org/x/image/math/fixed"
 )
 
@@ -378,4 +379,28 @@ func joinRest(first []string, rest [][]string) string {
 		parts = append(parts, strings.Join(p, " "))
 	}
 	return strings.Join(parts, "\n\n")
+}
+
+// Missing returns the distinct runes of text, in order of first
+// appearance, that the font named fontName ("" for "regular") has no glyph
+// for; Render draws those as the font's missing-glyph box, so a page's
+// truth would not match its image. White space is never reported.
+func Missing(text, fontName string) ([]rune, error) {
+	f, err := parsedFont(fontName)
+	if err != nil {
+		return nil, err
+	}
+	var buf sfnt.Buffer
+	var out []rune
+	seen := map[rune]bool{}
+	for _, c := range text {
+		if seen[c] || unicode.IsSpace(c) {
+			continue
+		}
+		seen[c] = true
+		if i, err := f.GlyphIndex(&buf, c); err != nil || i == 0 {
+			out = append(out, c)
+		}
+	}
+	return out, nil
 }

@@ -522,3 +522,13 @@ func BenchmarkDegradeA4(b *testing.B) {
 	}
 	b.ReportMetric(float64(b.N)/b.Elapsed().Seconds(), "pages/s")
 }
+
+func TestDegradeTinyPages(t *testing.T) {
+	all := Degradation{Skew: 10, Blur: 2, Noise: 10, SaltPepper: 0.5, Light: 1, Contrast: 0.5, Scale: 0.3, Wear: 0.5, Bleed: 1, Seed: 1}
+	for _, size := range [][2]int{{0, 0}, {1, 1}, {3, 1}, {1, 7}} {
+		q := Degrade(grey(size[0], size[1], 200), all)
+		if q == nil || q.Image == nil {
+			t.Fatalf("%v: nil page", size)
+		}
+	}
+}

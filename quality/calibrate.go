@@ -132,7 +132,17 @@ func fitLinear(fs []Features, y []float64, names []string, o FitOptions) Linear 
 			best, bestErr = lam, sse
 		}
 	}
-	return ridge(X, y, names, best)
+	l := ridge(X, y, names, best)
+	// Duan's smearing factor: the mean of exp(residual) over the fitting
+	// pages turns a prediction of log(CER + Offset) into an estimate of the
+	// mean CER instead of its median (Duan, "Smearing estimate: a
+	// nonparametric retransformation method", JASA 78, 1983).
+	var smear float64
+	for i := range X {
+		smear += math.Exp(y[i] - l.predictRow(X[i]))
+	}
+	l.Smear = smear / float64(n)
+	return l
 }
 
 // ridge fits y ≈ a + Σ b_j·(x_j − mean_j)/sd_j minimising squared error plus

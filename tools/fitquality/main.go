@@ -43,6 +43,7 @@ func run(args []string, stdout, stderr io.Writer) error {
 	seed := fs.Int64("seed", 1, "`seed` of the cross-validation folds")
 	sample := fs.String("sample", "", "vendor a held-out sample (page .json + truth .txt) into this `folder`")
 	sampleN := fs.Int("sample-n", 40, "pages in the vendored sample")
+	offset := fs.Float64("offset", 0, "regression target is log(CER + `offset`) (0: the quality.Fit default)")
 	correct := fs.Float64("correct", 0, "correct threshold for the report (0: the default)")
 	if err := fs.Parse(args); err != nil {
 		return err
@@ -63,7 +64,7 @@ func run(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	m, err := quality.Fit(fit, quality.FitOptions{Seed: *seed, Source: "recto synthetic corpus (tools/corpus), split \"fit\""})
+	m, err := quality.Fit(fit, quality.FitOptions{Seed: *seed, Offset: *offset, Source: "recto synthetic corpus (tools/corpus), split \"fit\""})
 	if err != nil {
 		return err
 	}

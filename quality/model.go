@@ -32,7 +32,7 @@ type Model struct {
 // predicts log(CER + Offset); the CER estimate is Smear·exp(y) − Offset.
 type Linear struct {
 	Intercept float64 `json:"intercept"`
-	Smear     float64 `json:"smear"` // retransformation factor (Duan's smearing estimate); 0 is read as 1
+	Smear     float64 `json:"smear"`  // retransformation factor (Duan's smearing estimate); 0 is read as 1
 	Lambda    float64 `json:"lambda"` // ridge penalty used, on standardised terms
 	Terms     []Term  `json:"terms"`
 }

@@ -33,6 +33,7 @@ type toolkit struct {
 	correct       func(*ocr.Record) (*ocr.Record, int)
 	compare       func(ref, hyp string) counts
 	interval      report.IntervalFunc
+	close         func() // releases an engine no worker took; may be nil
 }
 
 // cerInterval is the reports' interval for a title's pooled CER: the
@@ -110,11 +111,14 @@ func newToolkit(o RunOptions) (*toolkit, error) {
 		if err != nil {
 			return nil, fmt.Errorf("run: %w", err)
 		}
-		first := &eng
+		var mu sync.Mutex // workers start concurrently
+		first := eng
 		tk.newRecogniser = func() (recogniser, error) {
-			if *first != nil { // the engine made for the check serves the first worker
-				e := *first
-				*first = nil
+			mu.Lock()
+			e := first
+			first = nil
+			mu.Unlock()
+			if e != nil { // the engine made for the check serves the first worker
 				return &engineRecogniser{eng: e, opts: opts}, nil
 			}
 			e, err := newEngine(cfg)
@@ -122,6 +126,14 @@ func newToolkit(o RunOptions) (*toolkit, error) {
 				return nil, err
 			}
 			return &engineRecogniser{eng: e, opts: opts}, nil
+		}
+		tk.close = func() {
+			mu.Lock()
+			defer mu.Unlock()
+			if first != nil {
+				first.Close()
+				first = nil
+			}
 		}
 	}
 	return tk, nil

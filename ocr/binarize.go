@@ -2,7 +2,6 @@ package ocr
 
 import (
 	"image"
-	"math"
 )
 
 // histogram counts the grey levels of g.
@@ -149,29 +148,37 @@ func (it *integral) build(g *image.Gray) {
 // sauvola binarises src into dst (same size; may be the same image) with a
 // win×win window clipped at the image edges, in O(pixels) through integral
 // images. it is scratch space, reused across calls.
+//
+// The test v ≤ m·(1 + k·(s/R − 1)) is evaluated without a square root:
+// with a = v − m·(1 − k) it holds when a ≤ 0, or else when
+// a² ≤ (m·k/R)²·s².
 func sauvola(dst, src *image.Gray, win int, it *integral) {
 	it.build(src)
 	w, h := it.w, it.h
 	r := win / 2
 	W := w + 1
+	const k, kr = sauvolaK, sauvolaK / sauvolaR
 	for y := 0; y < h; y++ {
 		y0, y1 := max(0, y-r), min(h, y+r+1)
 		top, bot := it.sum[y0*W:y0*W+W], it.sum[y1*W:y1*W+W]
 		topQ, botQ := it.sumSq[y0*W:y0*W+W], it.sumSq[y1*W:y1*W+W]
 		s := src.Pix[y*src.Stride : y*src.Stride+w]
 		d := dst.Pix[y*dst.Stride : y*dst.Stride+w]
+		rows := y1 - y0
+		lastN, inv := -1, 0.0
 		for x, v := range s {
 			x0, x1 := max(0, x-r), min(w, x+r+1)
-			n := float64((x1 - x0) * (y1 - y0))
-			sum := float64(bot[x1] - bot[x0] - top[x1] + top[x0])
-			sq := float64(botQ[x1] - botQ[x0] - topQ[x1] + topQ[x0])
-			m := sum / n
-			variance := sq/n - m*m
-			if variance < 0 {
-				variance = 0
+			if n := (x1 - x0) * rows; n != lastN {
+				lastN, inv = n, 1/float64(n)
 			}
-			t := m * (1 + sauvolaK*(math.Sqrt(variance)/sauvolaR-1))
-			if float64(v) <= t {
+			m := float64(bot[x1]-bot[x0]-top[x1]+top[x0]) * inv
+			variance := float64(botQ[x1]-botQ[x0]-topQ[x1]+topQ[x0])*inv - m*m
+			a := float64(v) - m*(1-k)
+			if a <= 0 {
+				d[x] = 0
+				continue
+			}
+			if b := m * kr; a*a <= b*b*variance {
 				d[x] = 0
 			} else {
 				d[x] = 255

@@ -47,7 +47,7 @@ type PrepOptions struct {
 
 // Step records one preparation step.
 type Step struct {
-	Name     string        // "gray", "noise", "denoise", "deskew", "binarize", "cleanup", "blank"
+	Name     string        // "gray", "noise", "denoise", "measure", "deskew", "binarize", "cleanup", "blank"
 	Applied  bool          // false when the step measured and decided not to act, or was off
 	Duration time.Duration // wall time of the step, measurement included
 	Detail   string        // what was measured and decided, for people
@@ -159,6 +159,7 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 	if blank {
 		p.Blank = true
 	}
+	step("measure", true, "paper level %d, background variation %.0f, %d ink pixels at half size", bg.paper, bg.variation, bg.ink)
 
 	switch method {
 	case "", "auto":

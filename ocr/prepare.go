@@ -322,10 +322,10 @@ func measureBackground(g *image.Gray) background {
 			}
 			// A pixel counts when the pixel right of it or below it is
 			// dark too: noise rarely darkens two neighbours together.
-			for y := max(ty, my); y < min(y1, h-my); y++ {
+			for y := max(ty, my); y < min(y1, h-my, h-1); y++ {
 				row := g.Pix[y*g.Stride : y*g.Stride+w]
 				next := g.Pix[(y+1)*g.Stride : (y+1)*g.Stride+w]
-				for x := max(tx, mx); x < min(x1, w-mx); x++ {
+				for x := max(tx, mx); x < min(x1, w-mx, w-1); x++ {
 					if row[x] < lim && (row[x+1] < lim || next[x] < lim) {
 						res.ink++
 					}

@@ -30,6 +30,28 @@ func TestSkewRecovered(t *testing.T) {
 	}
 }
 
+// TestSkewDegradedPages: the skew is found within 0.1° on noisy and
+// unevenly lit pages too (the latter takes the half-size Sauvola path).
+func TestSkewDegradedPages(t *testing.T) {
+	page := drawPage(t, 1654, 2339, 200, pageText, 235, 30)
+	for _, tc := range []struct {
+		name  string
+		angle float64
+		spoil func(*image.Gray)
+	}{
+		{"noisy", 4.3, func(g *image.Gray) { addNoise(g, 35, 8) }},
+		{"uneven light", -6.7, func(g *image.Gray) { unevenLight(g, 0.35) }},
+		{"dust", 9.2, func(g *image.Gray) { addSpeckle(g, 0.02, 9) }},
+	} {
+		g := skewed(page, tc.angle)
+		tc.spoil(g)
+		p := mustPrepare(t, g, PrepOptions{})
+		if d := math.Abs(p.Skew - tc.angle); d > 0.1 {
+			t.Errorf("%s: skew %.3f°, want %.2f° ± 0.1° (%s, %s)", tc.name, p.Skew, tc.angle, step(p, "deskew").Detail, p.Binarization)
+		}
+	}
+}
+
 // TestSkewAuto checks the Auto decisions: no rotation for an upright page
 // or one below MinSkew, rotation for a clear skew, and the search range.
 func TestSkewAuto(t *testing.T) {

@@ -173,14 +173,19 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 	rot := rotation{}
 	rotated := false
 	if o.Deskew != Off && !blank {
-		var it integral
+		// On an evenly lit page one level (Otsu's, of the half-size
+		// page) separates ink from paper, at both sizes, and the final
+		// stage of the search uses the full-size ink. Otherwise the
+		// half-size page is binarised by Sauvola's method and the
+		// search stays at half size.
 		b2 := image.NewGray(g2.Rect)
-		sauvola(b2, g2, sauvolaWindow(g2.Rect.Dx(), g2.Rect.Dy()), &it)
-		// The final stage of the search uses the full-size ink when one
-		// level separates it from the paper (the page is evenly lit).
 		t := -1
-		if method != "sauvola" {
+		if method == "sauvola" {
+			var it integral
+			sauvola(b2, g2, sauvolaWindow(g2.Rect.Dx(), g2.Rect.Dy()), &it)
+		} else {
 			t = bg.otsu
+			threshold(b2, g2, t)
 		}
 		deg, ok := findSkew(b2, g, t, maxSkew)
 		switch {

@@ -129,4 +129,3 @@ func cer(tb testing.TB, hyp, ref string) float64 {
 	}
 	return float64(prev[len(b)]) / float64(max(1, len(b)))
 }
-

@@ -1,14 +1,312 @@
 package main
 
-import "github.com/spf13/cobra"
+import (
+	"context"
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"runtime"
+	"sort"
+	"strconv"
+	"strings"
+	"sync"
+	"text/tabwriter"
 
-// newTriageCommand is a placeholder until the capability lands.
+	"github.com/spf13/cobra"
+
+	"recto/lexicon"
+	"recto/quality"
+)
+
+// TriageOptions are the options of `recto triage`.
+type TriageOptions struct {
+	Format     string  // "text" or "json"
+	RescanList string  // CSV file to write the pages to rescan to; "" for none
+	Model      string  // model file from `recto calibrate`; "" for the embedded one
+	Lexicon    string  // lexicon file; "" for the embedded English one
+	Rescan     float64 // rescan above this predicted CER (fraction)
+	Correct    float64 // correct above this predicted CER (fraction)
+	Jobs       int     // pages read in parallel; 0 means GOMAXPROCS
+}
+
 func newTriageCommand(g *GlobalOptions) *cobra.Command {
-	return &cobra.Command{
-		Use:   "triage",
-		Short: "Estimate page quality without ground truth and decide accept, correct or rescan (not implemented yet)",
+	var o TriageOptions
+	cmd := &cobra.Command{
+		Use:   "triage OCRDIR",
+		Short: "Estimate page quality without ground truth and decide accept, correct or rescan",
+		Long: `Estimate each page's character error rate (CER) from the OCR output alone
+and decide what to do with it:
+
+  accept    predicted CER at or below --correct (default 2%)
+  correct   above --correct, at or below --rescan (default 10%)
+  rescan    above --rescan: scan the page again
+  blank     no text and no ink
+  picture   ink but almost no text (an illustration): not sent for rescanning
+
+OCRDIR is a folder written by 'recto ocr': every <name>.json page record is
+read (word confidences, boxes); a page with only <name>.txt is judged from
+its text, with less evidence. Pages are named as in 'recto score': the
+title is the first folder under OCRDIR, the page its path without extension.
+
+Each page gets plain-language reasons (share of words under confidence 60,
+share of words in the lexicon, share of garbage-looking words...). A
+summary per title follows. --rescan-list writes the pages to rescan as CSV
+(title, page, image, predicted_cer, reasons) for the scanning station.
+
+The estimate comes from a model fitted on recto's synthetic corpus; fit one
+on your own ground-truthed pages with 'recto calibrate' and pass it with
+--model.` + exitStatusHelp,
+		Args: cobra.ExactArgs(1),
+		PreRunE: func(cmd *cobra.Command, args []string) error {
+			if o.Format != "text" && o.Format != "json" {
+				return usagef("triage: --format must be text or json, not %q", o.Format)
+			}
+			if err := (quality.Thresholds{Rescan: o.Rescan, Correct: o.Correct}).Validate(); err != nil {
+				return usagef("triage: %v", err)
+			}
+			if o.Jobs < 0 {
+				return usagef("triage: --jobs must be positive")
+			}
+			return nil
+		},
 		RunE: func(cmd *cobra.Command, args []string) error {
-			return errNotImplemented
+			return runTriage(cmd.Context(), o, *g, args[0])
 		},
 	}
+	f := cmd.Flags()
+	f.StringVar(&o.Format, "format", "text", "output `format`: text or json")
+	f.StringVar(&o.RescanList, "rescan-list", "", "write the pages to rescan to this CSV `file`")
+	f.StringVar(&o.Model, "model", "", "quality model `file` from 'recto calibrate' (default: embedded)")
+	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` (default: embedded English)")
+	f.Float64Var(&o.Rescan, "rescan", quality.DefaultRescan, "rescan above this predicted CER, a `fraction` (0.10 = 10%)")
+	f.Float64Var(&o.Correct, "correct", quality.DefaultCorrect, "correct above this predicted CER, a `fraction` (0.02 = 2%)")
+	f.IntVarP(&o.Jobs, "jobs", "j", 0, "read `n` pages in parallel (0: number of CPUs)")
+	return cmd
+}
+
+// triagePage is one page of the report.
+type triagePage struct {
+	Title        string   `json:"title"`
+	Page         string   `json:"page"`
+	PredictedCER float64  `json:"predicted_cer"`
+	Decision     string   `json:"decision"`
+	Reasons      []string `json:"reasons"`
+	Image        string   `json:"image,omitempty"` // page image recorded by recto ocr
+	Error        string   `json:"-"`
+}
+
+// triageTitle is the summary of one title.
+type triageTitle struct {
+	Title     string  `json:"title"`
+	Pages     int     `json:"pages"`
+	Accept    int     `json:"accept"`
+	Correct   int     `json:"correct"`
+	Rescan    int     `json:"rescan"`
+	Blank     int     `json:"blank"`
+	Picture   int     `json:"picture"`
+	Failed    int     `json:"failed"`
+	MeanPred  float64 `json:"mean_predicted_cer"` // over pages with text (not blank, picture or failed)
+	textPages int
+}
+
+type triageFailure struct {
+	Title string `json:"title"`
+	Page  string `json:"page"`
+	Error string `json:"error"`
+}
+
+type triageReport struct {
+	Pages  []triagePage    `json:"pages"`
+	Titles []triageTitle   `json:"titles"`
+	Failed []triageFailure `json:"failed,omitempty"`
+}
+
+func runTriage(ctx context.Context, o TriageOptions, g GlobalOptions, dir string) error {
+	pages, err := quality.FindOCRPages(dir)
+	if err != nil {
+		return err
+	}
+	m := quality.DefaultModel()
+	if o.Model != "" {
+		if m, err = quality.LoadModel(o.Model); err != nil {
+			return err
+		}
+	}
+	lex := lexicon.Default()
+	if o.Lexicon != "" {
+		if lex, err = lexicon.Load(o.Lexicon); err != nil {
+			return err
+		}
+	}
+	th := quality.Thresholds{Rescan: o.Rescan, Correct: o.Correct}
+	root := filepath.Base(filepath.Clean(dir))
+	if abs, err := filepath.Abs(dir); err == nil {
+		root = filepath.Base(abs)
+	}
+
+	results := make([]triagePage, len(pages))
+	jobs := o.Jobs
+	if jobs == 0 {
+		jobs = runtime.GOMAXPROCS(0)
+	}
+	idx := make(chan int)
+	var wg sync.WaitGroup
+	for w := 0; w < min(jobs, len(pages)); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range idx {
+				results[i] = triageOne(pages[i], root, lex, m, th)
+			}
+		}()
+	}
+	func() {
+		defer close(idx)
+		for i := range pages {
+			select {
+			case idx <- i:
+			case <-ctx.Done():
+				return
+			}
+		}
+	}()
+	wg.Wait()
+	if err := ctx.Err(); err != nil {
+		return err
+	}
+
+	rep := triageReport{Pages: []triagePage{}}
+	titles := map[string]*triageTitle{}
+	textOnly := 0
+	for i, r := range results {
+		t := titles[r.Title]
+		if t == nil {
+			t = &triageTitle{Title: r.Title}
+			titles[r.Title] = t
+		}
+		t.Pages++
+		if r.Error != "" {
+			t.Failed++
+			rep.Failed = append(rep.Failed, triageFailure{r.Title, r.Page, r.Error})
+			fmt.Fprintf(g.stderr, "recto: triage: %s\n", r.Error)
+			continue
+		}
+		if pages[i].JSON == "" {
+			textOnly++
+		}
+		switch r.Decision {
+		case quality.DecisionAccept:
+			t.Accept++
+		case quality.DecisionCorrect:
+			t.Correct++
+		case quality.DecisionRescan:
+			t.Rescan++
+		case quality.DecisionBlank:
+			t.Blank++
+		case quality.DecisionPicture:
+			t.Picture++
+		}
+		if r.Decision != quality.DecisionBlank && r.Decision != quality.DecisionPicture {
+			t.MeanPred += r.PredictedCER
+			t.textPages++
+		}
+		rep.Pages = append(rep.Pages, r)
+	}
+	for _, t := range titles {
+		if t.textPages > 0 {
+			t.MeanPred /= float64(t.textPages)
+		}
+		rep.Titles = append(rep.Titles, *t)
+	}
+	sort.Slice(rep.Titles, func(i, j int) bool { return rep.Titles[i].Title < rep.Titles[j].Title })
+	if textOnly > 0 && !g.Quiet {
+		fmt.Fprintf(g.stderr, "recto: triage: %d of %d pages have no .json page record; judged from their .txt alone (no confidences)\n", textOnly, len(pages))
+	}
+
+	if o.RescanList != "" {
+		if err := writeRescanList(o.RescanList, rep.Pages); err != nil {
+			return err
+		}
+	}
+	if o.Format == "json" {
+		enc := json.NewEncoder(g.stdout)
+		enc.SetIndent("", "  ")
+		if err := enc.Encode(rep); err != nil {
+			return err
+		}
+	} else {
+		writeTriageText(g.stdout, rep, th)
+	}
+	switch n := len(rep.Failed); {
+	case n == len(pages):
+		return fmt.Errorf("triage: none of the %d pages in %q could be read", n, dir)
+	case n > 0:
+		return &partialError{Failed: n, Total: len(pages), What: "pages"}
+	}
+	return nil
+}
+
+// triageOne reads and judges one page; a failure is recorded in the result.
+func triageOne(p quality.OCRPage, root string, lex *lexicon.Lexicon, m *quality.Model, th quality.Thresholds) triagePage {
+	title, page := p.TitlePage(root)
+	r := triagePage{Title: title, Page: page, Reasons: []string{}}
+	rec, text, err := p.Read()
+	if err != nil {
+		r.Error = err.Error()
+		return r
+	}
+	var f quality.Features
+	if rec != nil {
+		f = quality.PageFeatures(rec, lex)
+		r.Image = rec.Source
+	} else {
+		f = quality.TextFeatures(text, lex)
+	}
+	v := quality.Triage(f, m, th)
+	r.PredictedCER, r.Decision, r.Reasons = v.PredictedCER, v.Decision, v.Reasons
+	return r
+}
+
+func writeTriageText(w io.Writer, rep triageReport, th quality.Thresholds) {
+	tw := tabwriter.NewWriter(w, 0, 8, 2, ' ', 0)
+	fmt.Fprintln(tw, "TITLE\tPAGE\tPREDICTED CER\tDECISION\tREASONS")
+	for _, p := range rep.Pages {
+		fmt.Fprintf(tw, "%s\t%s\t%.1f%%\t%s\t%s\n", p.Title, p.Page, 100*p.PredictedCER, p.Decision, strings.Join(p.Reasons, "; "))
+	}
+	tw.Flush()
+	fmt.Fprintln(w)
+	tw = tabwriter.NewWriter(w, 0, 8, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "TITLE\tPAGES\tACCEPT\tCORRECT\tRESCAN\tBLANK\tPICTURE\tFAILED\tMEAN PREDICTED CER\t")
+	for _, t := range rep.Titles {
+		fmt.Fprintf(tw, "%s\t%d\t%d\t%d\t%d\t%d\t%d\t%d\t%.1f%%\t\n", t.Title, t.Pages, t.Accept, t.Correct, t.Rescan, t.Blank, t.Picture, t.Failed, 100*t.MeanPred)
+	}
+	tw.Flush()
+}
+
+// writeRescanList writes the pages decided rescan as CSV.
+func writeRescanList(path string, pages []triagePage) error {
+	f, err := os.Create(path)
+	if err != nil {
+		return fmt.Errorf("triage: rescan list: %w", err)
+	}
+	cw := csv.NewWriter(f)
+	cw.Write([]string{"title", "page", "image", "predicted_cer", "reasons"})
+	for _, p := range pages {
+		if p.Decision != quality.DecisionRescan {
+			continue
+		}
+		cw.Write([]string{p.Title, p.Page, p.Image, strconv.FormatFloat(p.PredictedCER, 'f', 4, 64), strings.Join(p.Reasons, "; ")})
+	}
+	cw.Flush()
+	err = cw.Error()
+	if cerr := f.Close(); err == nil {
+		err = cerr
+	}
+	if err != nil {
+		return fmt.Errorf("triage: writing rescan list %q: %w", path, err)
+	}
+	return nil
 }

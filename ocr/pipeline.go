@@ -1,0 +1,162 @@
+package ocr
+
+import (
+	"context"
+	"crypto/sha256"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"image"
+	"io"
+	"math"
+	"os"
+	"strings"
+	"time"
+)
+
+// Process prepares src (unless o.NoPrepare), recognises it with eng and
+// returns the page record with word boxes mapped back to src's pixels
+// (origin at src's top left). dpi is src's resolution from its file; 0 or
+// less means unknown, and o.DPI is used. The prepared image is returned
+// only when o.KeepImage is set. A page that preparation finds blank is not
+// handed to the engine and gets a record without words.
+//
+// The record's Source and SHA256 are left empty; ProcessFile fills them.
+func Process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Options) (*Record, *image.Gray, error) {
+	if err := ctx.Err(); err != nil {
+		return nil, nil, err
+	}
+	sb := src.Bounds()
+	if sb.Empty() {
+		return nil, nil, errors.New("ocr: empty image")
+	}
+	if dpi <= 0 {
+		dpi = o.dpi()
+	}
+	rec := &Record{
+		Version:   RecordVersion,
+		Width:     sb.Dx(),
+		Height:    sb.Dy(),
+		DPI:       dpi,
+		TimingsMS: map[string]float64{},
+		Words:     []Word{},
+	}
+
+	var p *Prepared
+	if o.NoPrepare {
+		t := time.Now()
+		p = &Prepared{Image: toGray(src), Binarization: "none", ToOriginal: func(b Box) Box { return b }}
+		rec.TimingsMS["gray"] = ms(time.Since(t))
+	} else {
+		var err error
+		p, err = Prepare(src, o.Prep)
+		if err != nil {
+			return nil, nil, err
+		}
+		for _, s := range p.Steps {
+			rec.TimingsMS[s.Name] += ms(s.Duration)
+		}
+	}
+	rec.Skew = p.Skew
+	rec.Binarization = p.Binarization
+	rec.Threshold = p.Threshold
+	rec.Noise = p.Noise
+	rec.Blank = p.Blank
+
+	if !p.Blank {
+		t := time.Now()
+		words, err := eng.Recognize(ctx, p.Image, int(math.Round(dpi*scale(sb, p.Image.Bounds()))))
+		rec.TimingsMS["engine"] = ms(time.Since(t))
+		if err != nil {
+			return nil, nil, err
+		}
+		toOrig := p.ToOriginal
+		if toOrig == nil {
+			toOrig = func(b Box) Box { return b }
+		}
+		sum := 0.0
+		for _, w := range words {
+			w.Box = clip(toOrig(w.Box), rec.Width, rec.Height)
+			sum += w.Conf
+			rec.Words = append(rec.Words, w)
+		}
+		if len(words) > 0 {
+			rec.MeanConfidence = sum / float64(len(words))
+		}
+	}
+	if !o.KeepImage {
+		return rec, nil, nil
+	}
+	return rec, p.Image, nil
+}
+
+// scale estimates how much preparation enlarged the page (1 when it kept
+// the size). Deskewing grows the canvas by a few percent, which is not
+// counted as scaling.
+func scale(src, prepared image.Rectangle) float64 {
+	s := math.Sqrt(float64(prepared.Dx()*prepared.Dy()) / float64(src.Dx()*src.Dy()))
+	if math.Abs(s-1) < 0.15 {
+		return 1
+	}
+	return s
+}
+
+// clip keeps b inside a w×h page.
+func clip(b Box, w, h int) Box {
+	x0, y0 := max(0, b.X), max(0, b.Y)
+	x1, y1 := min(w, b.X+b.W), min(h, b.Y+b.H)
+	return Box{X: x0, Y: y0, W: max(0, x1-x0), H: max(0, y1-y0)}
+}
+
+func ms(d time.Duration) float64 { return float64(d.Microseconds()) / 1000 }
+
+// ProcessFile decodes the page image at path, processes it and fills the
+// record's Source (path as given), SHA256 (of the file's bytes) and the
+// "decode" timing. Errors name the file. The file is only read.
+func ProcessFile(ctx context.Context, eng Engine, path string, o Options) (*Record, *image.Gray, error) {
+	if err := ctx.Err(); err != nil {
+		return nil, nil, err
+	}
+	sum, err := hashFile(path)
+	if err != nil {
+		return nil, nil, err
+	}
+	t := time.Now()
+	d, err := DecodeFile(path, DecodeOptions{MaxPixels: o.maxPixels()})
+	decode := time.Since(t)
+	if err != nil {
+		return nil, nil, nameFile(path, err)
+	}
+	rec, prepared, err := Process(ctx, eng, d.Image, d.DPI, o)
+	if err != nil {
+		if ctx.Err() != nil {
+			return nil, nil, err
+		}
+		return nil, nil, nameFile(path, err)
+	}
+	rec.Source = path
+	rec.SHA256 = sum
+	rec.TimingsMS["decode"] = ms(decode)
+	return rec, prepared, nil
+}
+
+func hashFile(path string) (string, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return "", fmt.Errorf("ocr: %w", err) // *PathError names the file
+	}
+	defer f.Close()
+	h := sha256.New()
+	if _, err := io.Copy(h, f); err != nil {
+		return "", fmt.Errorf("ocr: %w", err)
+	}
+	return hex.EncodeToString(h.Sum(nil)), nil
+}
+
+// nameFile makes sure err names path, without naming it twice.
+func nameFile(path string, err error) error {
+	if strings.Contains(err.Error(), path) {
+		return err
+	}
+	return fmt.Errorf("ocr: %q: %w", path, err)
+}

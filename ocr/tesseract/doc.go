@@ -1,0 +1,77 @@
+// Package tesseract adapts Tesseract 5, through gosseract, to ocr.Engine.
+//
+// It is the only package of recto that needs cgo. Built without cgo, or
+// with the notesseract build tag, New returns ocr.ErrEngineUnavailable and
+// Languages returns an empty list with the same error.
+//
+// Each Engine owns one Tesseract client; never share an Engine between
+// goroutines. Pages reach the engine in memory, as a binary PGM (header
+// plus raw bytes), and one recognition pass yields text, boxes and
+// confidences together.
+//
+// Tesseract's OpenMP threads oversubscribe the cores when pages run in
+// parallel. libgomp reads OMP_THREAD_LIMIT when it is loaded, before any Go
+// code runs, so setting it from Go is too late; instead the adapter turns
+// off OpenMP parallel regions in the running process (see limitThreads).
+// Setting OMP_THREAD_LIMIT=1 in the environment has the same effect.
+package tesseract
+
+import (
+	"fmt"
+	"strings"
+)
+
+// Config configures an Engine. The zero value recognises English with
+// Tesseract's default page segmentation and data directory.
+type Config struct {
+	Lang    string // language(s), "+"-separated, e.g. "eng+deu"; "" means "eng"
+	PSM     int    // page segmentation mode 1-13; 0 means Tesseract's default (3, fully automatic)
+	DataDir string // tessdata directory; "" means TESSDATA_PREFIX or the installed default
+}
+
+func (c Config) langs() []string {
+	if c.Lang == "" {
+		return []string{"eng"}
+	}
+	return strings.Split(c.Lang, "+")
+}
+
+// MissingLanguageError is returned by New when a requested language has no
+// trained data installed.
+type MissingLanguageError struct {
+	Lang      string   // the missing language code, e.g. "deu"
+	Installed []string // languages that are installed
+}
+
+func (e *MissingLanguageError) Error() string {
+	return fmt.Sprintf("tesseract: language %q is not installed (installed: %s); on Debian install the package %s",
+		e.Lang, strings.Join(e.Installed, ", "), DebianPackage(e.Lang))
+}
+
+// DebianPackage returns the name of the Debian package that holds the
+// trained data for a Tesseract language code, e.g. "tesseract-ocr-deu"
+// for "deu" and "tesseract-ocr-chi-sim" for "chi_sim" (Debian's naming,
+// common practice).
+func DebianPackage(lang string) string {
+	return "tesseract-ocr-" + strings.ReplaceAll(strings.ToLower(lang), "_", "-")
+}
+
+// checkLangs reports the first of want that is not in have.
+func checkLangs(want, have []string) error {
+	for _, l := range want {
+		if l == "" {
+			return fmt.Errorf("tesseract: empty language in %q", strings.Join(want, "+"))
+		}
+		found := false
+		for _, h := range have {
+			if h == l {
+				found = true
+				break
+			}
+		}
+		if !found {
+			return &MissingLanguageError{Lang: l, Installed: have}
+		}
+	}
+	return nil
+}

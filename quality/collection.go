@@ -1,0 +1,384 @@
+package quality
+
+import (
+	"cmp"
+	"context"
+	"errors"
+	"fmt"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"runtime"
+	"slices"
+	"strings"
+	"sync"
+	"unicode/utf8"
+)
+
+// MaxFileSize is the largest text file ScoreDirs reads (256 MiB); larger
+// files are reported with ErrTooLarge.
+const MaxFileSize = 256 << 20
+
+// Errors carried by a FileError.
+var (
+	// ErrInvalidUTF8 is returned for a file that is not valid UTF-8;
+	// FileError.Offset holds the byte offset of the first bad byte.
+	ErrInvalidUTF8 = errors.New("invalid UTF-8")
+	// ErrIsDirectory is returned for a page path that names a directory.
+	ErrIsDirectory = errors.New("is a directory, not a text file")
+	// ErrNotRegular is returned for a page path that names a device, pipe
+	// or socket.
+	ErrNotRegular = errors.New("is not a regular file")
+	// ErrTooLarge is returned for a file larger than MaxFileSize.
+	ErrTooLarge = errors.New("is larger than 256 MiB")
+)
+
+// FileError reports a reference or hypothesis file that could not be used.
+type FileError struct {
+	Role   string // "reference" or "hypothesis"
+	File   string // path as found under the root given by the caller
+	Offset int    // byte offset of the problem, or -1
+	Err    error
+}
+
+func (e *FileError) Error() string {
+	if e.Offset >= 0 {
+		return fmt.Sprintf("%s %q: %v at byte offset %d", e.Role, e.File, e.Err, e.Offset)
+	}
+	return fmt.Sprintf("%s %q: %v", e.Role, e.File, e.Err)
+}
+
+func (e *FileError) Unwrap() error { return e.Err }
+
+// Page status values.
+const (
+	StatusOK         = "ok"         // both files read
+	StatusMissing    = "missing"    // no hypothesis file: scored as empty text
+	StatusUnreadable = "unreadable" // hypothesis could not be read: scored as empty text
+)
+
+// PageScore is the score of one reference page.
+type PageScore struct {
+	Title  string // first folder under the truth root, or the root's name
+	Page   string // path under the truth root, '/'-separated, without ".txt"
+	Status string // StatusOK, StatusMissing or StatusUnreadable
+	Counts
+}
+
+// TitleScore summarises the pages of one title.
+type TitleScore struct {
+	Title string
+	Pages int
+	Counts
+	MeanCER    float64 // mean page CER over pages with a non-empty reference
+	MeanOK     bool    // false when no page has a non-empty reference
+	Low, High  float64 // 95% bootstrap interval of the title's CER (BootstrapCER)
+	IntervalOK bool    // false when the interval is undefined
+}
+
+// Report is the result of scoring a collection.
+type Report struct {
+	Norm       NormOptions
+	Pages      []PageScore      // sorted by Page
+	Titles     []TitleScore     // sorted by Title
+	Total      Counts           // sums over every page
+	Missing    []string         // pages scored as empty because their hypothesis is missing
+	Unmatched  []string         // hypothesis files (paths under the OCR root) with no reference
+	Failed     []*FileError     // references not scored and hypotheses not read, sorted by file
+	Confusions []ConfusionCount // most frequent first, over pages with status ok; only with DirConfig.Confusions > 0
+}
+
+// Partial reports whether some page was missing or unreadable.
+func (r *Report) Partial() bool { return len(r.Missing) > 0 || len(r.Failed) > 0 }
+
+// DirConfig configures ScoreDirs; the zero value scores with the default
+// normalisation, no confusion table, GOMAXPROCS workers and the default
+// bootstrap.
+type DirConfig struct {
+	Norm       NormOptions
+	Confusions int    // keep this many of the most frequent confusions (pages whose hypothesis was read); 0 means none
+	Workers    int    // pages scored at once; 0 means GOMAXPROCS
+	Resamples  int    // bootstrap resamples per title; 0 means DefaultResamples
+	Seed       uint64 // bootstrap seed; 0 means DefaultSeed
+}
+
+// ScoreDirs scores every "*.txt" file under truth (recursively) against the
+// file at the same relative path under ocr. A missing hypothesis is scored
+// as empty text and listed in Missing; a hypothesis that cannot be read is
+// scored as empty text and listed in Failed; a reference that cannot be
+// read, is a directory or is not valid UTF-8 is listed in Failed and not
+// scored. "*.txt" files under ocr without a reference are listed in
+// Unmatched. One bad file never stops the others.
+//
+// ScoreDirs returns an error, and no report, when truth or ocr is not a
+// readable directory, when truth holds no "*.txt" file, when no page could
+// be scored, or when ctx is cancelled.
+func ScoreDirs(ctx context.Context, truth, ocr string, cfg DirConfig) (*Report, error) {
+	for _, d := range []string{truth, ocr} {
+		fi, err := os.Stat(d)
+		if err != nil {
+			return nil, fmt.Errorf("quality: %w", err)
+		}
+		if !fi.IsDir() {
+			return nil, fmt.Errorf("quality: %q is not a directory", d)
+		}
+	}
+	rep := &Report{Norm: cfg.Norm}
+	// When one root lies inside the other (--ocr gt/ocr), each walk skips
+	// the other root, so OCR output is never taken for ground truth.
+	refs, err := listText(truth, ocr, func(fe *FileError) {
+		fe.Role = "reference"
+		rep.Failed = append(rep.Failed, fe)
+	})
+	if err != nil {
+		return nil, err
+	}
+	if len(refs) == 0 {
+		return nil, fmt.Errorf("quality: no reference pages (*.txt) under %q", truth)
+	}
+	hyps, err := listText(ocr, truth, func(*FileError) {}) // unreadable hypotheses show up when read
+	if err != nil {
+		return nil, err
+	}
+	isRef := make(map[string]bool, len(refs))
+	for _, r := range refs {
+		isRef[r] = true
+	}
+	for _, h := range hyps {
+		if !isRef[h] {
+			rep.Unmatched = append(rep.Unmatched, h)
+		}
+	}
+
+	rootName := filepath.Base(filepath.Clean(truth))
+	if abs, err := filepath.Abs(truth); err == nil {
+		rootName = filepath.Base(abs)
+	}
+	type result struct {
+		page   PageScore
+		scored bool
+		errs   []*FileError
+		conf   map[Confusion]int
+	}
+	results := make([]result, len(refs))
+	workers := cfg.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	workers = min(workers, len(refs))
+	next := make(chan int)
+	var wg sync.WaitGroup
+	for range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			var s Scratch
+			var ops []Op
+			for i := range next {
+				rel := refs[i]
+				res := &results[i]
+				title, page := TitlePage(rel, rootName)
+				res.page = PageScore{Title: title, Page: page, Status: StatusOK}
+				refPath := filepath.Join(truth, filepath.FromSlash(rel))
+				ref, fe := readText(refPath)
+				if fe != nil {
+					fe.Role = "reference"
+					res.errs = append(res.errs, fe)
+					continue
+				}
+				hypPath := filepath.Join(ocr, filepath.FromSlash(rel))
+				hyp, fe := readText(hypPath)
+				switch {
+				case fe != nil && errors.Is(fe.Err, fs.ErrNotExist):
+					res.page.Status = StatusMissing
+					hyp = ""
+				case fe != nil:
+					fe.Role = "hypothesis"
+					res.errs = append(res.errs, fe)
+					res.page.Status = StatusUnreadable
+					hyp = ""
+				}
+				res.page.Counts = s.Compare(ref, hyp, cfg.Norm)
+				res.scored = true
+				if cfg.Confusions > 0 && res.page.Status == StatusOK {
+					ops = s.Align([]rune(Normalize(ref, cfg.Norm)), []rune(Normalize(hyp, cfg.Norm)), ops[:0])
+					res.conf = make(map[Confusion]int)
+					for _, c := range Group(ops) {
+						res.conf[c]++
+					}
+				}
+			}
+		}()
+	}
+feed:
+	for i := range refs {
+		select {
+		case next <- i:
+		case <-ctx.Done():
+			break feed
+		}
+	}
+	close(next)
+	wg.Wait()
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+
+	conf := make(map[Confusion]int)
+	for _, res := range results {
+		rep.Failed = append(rep.Failed, res.errs...)
+		for c, k := range res.conf {
+			conf[c] += k
+		}
+		if !res.scored {
+			continue
+		}
+		rep.Pages = append(rep.Pages, res.page)
+		if res.page.Status == StatusMissing {
+			rep.Missing = append(rep.Missing, res.page.Page)
+		}
+	}
+	if len(rep.Pages) == 0 {
+		return nil, fmt.Errorf("quality: none of the %d reference pages under %q could be scored: %w", len(refs), truth, errors.Join(fileErrs(rep.Failed)...))
+	}
+	slices.SortFunc(rep.Failed, func(x, y *FileError) int { return cmp.Compare(x.File, y.File) })
+	rep.Titles, rep.Total = Summarize(rep.Pages, cfg.Resamples, cfg.Seed)
+	if cfg.Confusions > 0 {
+		rep.Confusions = TopConfusions(conf, cfg.Confusions)
+	}
+	return rep, nil
+}
+
+func fileErrs(fes []*FileError) []error {
+	out := make([]error, len(fes))
+	for i, fe := range fes {
+		out[i] = fe
+	}
+	return out
+}
+
+// Summarize groups pages by title, in any order, and returns the titles
+// sorted by name, each with its micro-averaged counts, mean page CER and
+// bootstrap interval (BootstrapCER with resamples and seed, over the
+// title's pages in the order given), and the total over all pages.
+func Summarize(pages []PageScore, resamples int, seed uint64) ([]TitleScore, Counts) {
+	byTitle := make(map[string][]Counts)
+	var names []string
+	var total Counts
+	for _, p := range pages {
+		if _, ok := byTitle[p.Title]; !ok {
+			names = append(names, p.Title)
+		}
+		byTitle[p.Title] = append(byTitle[p.Title], p.Counts)
+		total = total.Add(p.Counts)
+	}
+	slices.Sort(names)
+	titles := make([]TitleScore, 0, len(names))
+	for _, name := range names {
+		pc := byTitle[name]
+		ts := TitleScore{Title: name, Pages: len(pc)}
+		for _, c := range pc {
+			ts.Counts = ts.Counts.Add(c)
+		}
+		ts.MeanCER, ts.MeanOK = MeanCER(pc)
+		ts.Low, ts.High, ts.IntervalOK = BootstrapCER(pc, resamples, seed)
+		titles = append(titles, ts)
+	}
+	return titles, total
+}
+
+// listText returns the '/'-separated paths of the "*.txt" files under
+// root, sorted, leaving out the directory skip (the other root) if it lies
+// inside. A directory whose name ends in ".txt" and a directory that cannot
+// be listed are passed to bad (and the walk goes on).
+func listText(root, skip string, bad func(*FileError)) ([]string, error) {
+	var out []string
+	skipInfo, skipErr := os.Stat(skip)
+	err := filepath.WalkDir(root, func(p string, d fs.DirEntry, err error) error {
+		if err == nil && d.IsDir() && p != root && skipErr == nil {
+			if fi, err := os.Stat(p); err == nil && os.SameFile(fi, skipInfo) {
+				return fs.SkipDir
+			}
+		}
+		if err != nil {
+			if p == root {
+				return fmt.Errorf("quality: %w", err)
+			}
+			bad(&FileError{File: p, Offset: -1, Err: unwrapPath(err)})
+			if d != nil && d.IsDir() {
+				return fs.SkipDir
+			}
+			return nil
+		}
+		if !strings.HasSuffix(d.Name(), ".txt") || p == root {
+			return nil
+		}
+		if d.IsDir() {
+			bad(&FileError{File: p, Offset: -1, Err: ErrIsDirectory})
+			return nil // its contents may still hold pages
+		}
+		rel, err := filepath.Rel(root, p)
+		if err != nil {
+			return err
+		}
+		out = append(out, filepath.ToSlash(rel))
+		return nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	slices.Sort(out)
+	return out, nil
+}
+
+// readText reads a UTF-8 text file, checking its kind and size first.
+func readText(p string) (string, *FileError) {
+	fail := func(off int, err error) (string, *FileError) {
+		return "", &FileError{File: p, Offset: off, Err: err}
+	}
+	fi, err := os.Stat(p)
+	switch {
+	case err != nil:
+		return fail(-1, unwrapPath(err))
+	case fi.IsDir():
+		return fail(-1, ErrIsDirectory)
+	case !fi.Mode().IsRegular():
+		return fail(-1, ErrNotRegular)
+	case fi.Size() > MaxFileSize:
+		return fail(-1, ErrTooLarge)
+	}
+	b, err := os.ReadFile(p)
+	if err != nil {
+		return fail(-1, unwrapPath(err))
+	}
+	if off := invalidUTF8(b); off >= 0 {
+		return fail(off, ErrInvalidUTF8)
+	}
+	return string(b), nil
+}
+
+// invalidUTF8 returns the offset of the first byte of b that is not part of
+// a valid UTF-8 sequence, or -1.
+func invalidUTF8(b []byte) int {
+	if utf8.Valid(b) {
+		return -1
+	}
+	for i := 0; i < len(b); {
+		r, size := utf8.DecodeRune(b[i:])
+		if r == utf8.RuneError && size <= 1 {
+			return i
+		}
+		i += size
+	}
+	return -1
+}
+
+// unwrapPath drops the *fs.PathError wrapper, whose path FileError already
+// names, keeping the cause (fs.ErrNotExist and the like still match).
+func unwrapPath(err error) error {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		return pe.Err
+	}
+	return err
+}

@@ -1,0 +1,86 @@
+package quality
+
+import (
+	"strings"
+)
+
+// Counts are the edit counts of one page, a title or a whole collection.
+// Rates are micro-averages: sums of edits over sums of reference lengths.
+type Counts struct {
+	Chars      int // reference code points, after normalisation
+	CharErrors int // character edits (Levenshtein distance over code points)
+	Words      int // reference words (runs between spaces), after normalisation
+	WordErrors int // word edits (Levenshtein distance over words)
+}
+
+// Add returns the sum of c and d.
+func (c Counts) Add(d Counts) Counts {
+	return Counts{c.Chars + d.Chars, c.CharErrors + d.CharErrors, c.Words + d.Words, c.WordErrors + d.WordErrors}
+}
+
+// CER returns the character error rate CharErrors/Chars, and false when
+// there is no reference text (Chars == 0). It may exceed 1.
+func (c Counts) CER() (float64, bool) {
+	if c.Chars == 0 {
+		return 0, false
+	}
+	return float64(c.CharErrors) / float64(c.Chars), true
+}
+
+// WER returns the word error rate WordErrors/Words, and false when the
+// reference has no words. It may exceed 1.
+func (c Counts) WER() (float64, bool) {
+	if c.Words == 0 {
+		return 0, false
+	}
+	return float64(c.WordErrors) / float64(c.Words), true
+}
+
+// Compare normalises ref and hyp with o and counts the character and word
+// edits that turn ref into hyp.
+func Compare(ref, hyp string, o NormOptions) Counts {
+	var s Scratch
+	return s.Compare(ref, hyp, o)
+}
+
+// Compare is Compare with reusable scratch.
+func (s *Scratch) Compare(ref, hyp string, o NormOptions) Counts {
+	ref, hyp = Normalize(ref, o), Normalize(hyp, o)
+	r, h := []rune(ref), []rune(hyp)
+	c := Counts{Chars: len(r), CharErrors: s.Distance(r, h)}
+	rw, hw := WordIDs(ref, hyp)
+	c.Words, c.WordErrors = len(rw), s.Distance(rw, hw)
+	return c
+}
+
+// WordIDs splits normalised ref and hyp at spaces and gives each distinct
+// word a number (from 1, in order of first appearance), so that the edit
+// distance over the numbers is the distance over words.
+func WordIDs(ref, hyp string) (r, h []rune) {
+	ids := make(map[string]rune)
+	conv := func(s string) []rune {
+		var out []rune
+		for _, w := range strings.Fields(s) {
+			id, ok := ids[w]
+			if !ok {
+				id = rune(len(ids) + 1)
+				ids[w] = id
+			}
+			out = append(out, id)
+		}
+		return out
+	}
+	return conv(ref), conv(hyp)
+}
+
+// TitlePage names a page found at rel, its path under the ground-truth root
+// with '/' separators (such as "ledger-1841/p0007.txt"). The title is the
+// first folder of rel, or rootName, the root folder's own name, for a file
+// lying directly in the root; page is rel without a final ".txt".
+func TitlePage(rel string, rootName string) (title, page string) {
+	page = strings.TrimSuffix(rel, ".txt")
+	if first, _, ok := strings.Cut(rel, "/"); ok {
+		return first, page
+	}
+	return rootName, page
+}

@@ -1,0 +1,201 @@
+package quality
+
+import (
+	"fmt"
+	"math"
+	"sort"
+)
+
+// Decisions made by Triage.
+const (
+	DecisionAccept  = "accept"  // predicted CER at or below Thresholds.Correct: use as it is
+	DecisionCorrect = "correct" // predicted CER above Correct, at or below Rescan: worth correcting
+	DecisionRescan  = "rescan"  // predicted CER above Rescan: scan the page again
+	DecisionBlank   = "blank"   // no text and no ink: nothing to do
+	DecisionPicture = "picture" // ink but (almost) no text: an illustration, not an OCR failure
+)
+
+// Default thresholds on predicted CER.
+const (
+	DefaultRescan  = 0.10 // rescan above 10 % CER (common practice: text beyond this is costly to correct by hand)
+	DefaultCorrect = 0.02 // correct above 2 % CER (common practice: 98 % character accuracy counts as good OCR)
+)
+
+// Picture-page limits (our own rule of thumb, not fitted: the synthetic
+// corpus has no picture pages). A page record that is not blank, has fewer
+// than PictureMaxTokens tokens of which fewer than PictureMaxWords are
+// lexicon words, and a clean scan (noise under PictureMaxNoise grey levels,
+// so that text on it would have been read) is taken for an illustration.
+// The same page on a noisy scan is taken for unreadable text and sent for
+// rescanning: on the synthetic corpus, text pages the engine could not
+// read had noise of 18 grey levels and more, clean pages about 6 to 10.
+const (
+	PictureMaxTokens = 20
+	PictureMaxWords  = 3
+	PictureMaxNoise  = 15.0
+)
+
+// NearBlankMaxChars: a clean scan (noise under PictureMaxNoise) on which
+// fewer characters than this were recognised (a page number, a stray
+// mark) is decided blank rather than picture (our own rule of thumb).
+const NearBlankMaxChars = 6
+
+// Thresholds are the predicted-CER limits of the decisions, as fractions
+// (0.10 = 10 %). The zero value means the defaults; a zero field means its
+// default.
+type Thresholds struct {
+	Rescan  float64 // rescan when predicted CER > Rescan; 0 means DefaultRescan
+	Correct float64 // correct when predicted CER > Correct; 0 means DefaultCorrect
+}
+
+func (t Thresholds) withDefaults() Thresholds {
+	if t.Rescan == 0 {
+		t.Rescan = DefaultRescan
+	}
+	if t.Correct == 0 {
+		t.Correct = DefaultCorrect
+	}
+	return t
+}
+
+// Validate reports a threshold outside (0, 1] or Correct above Rescan.
+func (t Thresholds) Validate() error {
+	t = t.withDefaults()
+	if !(t.Rescan > 0 && t.Rescan <= 1) || !(t.Correct > 0 && t.Correct <= 1) {
+		return fmt.Errorf("quality: thresholds must lie in (0, 1], got rescan %v, correct %v", t.Rescan, t.Correct)
+	}
+	if t.Correct > t.Rescan {
+		return fmt.Errorf("quality: correct threshold %v is above rescan threshold %v", t.Correct, t.Rescan)
+	}
+	return nil
+}
+
+// Verdict is Triage's judgement of one page.
+type Verdict struct {
+	PredictedCER float64  `json:"predicted_cer"` // in [0, 1]; 0 for blank pages
+	Decision     string   `json:"decision"`      // accept, correct, rescan, blank or picture
+	Reasons      []string `json:"reasons"`       // plain-language evidence, most telling first
+}
+
+// Triage predicts a page's CER with m (nil means DefaultModel) and decides
+// what to do with the page. Blank pages and pictures get their own
+// decisions and are never sent for rescanning.
+func Triage(f Features, m *Model, t Thresholds) Verdict {
+	if m == nil {
+		m = DefaultModel()
+	}
+	t = t.withDefaults()
+	if f.Blank {
+		r := []string{"page is blank"}
+		if !f.FromRecord {
+			r = []string{"page is blank: its text is empty (plain text only: a page whose text was lost looks the same)"}
+		}
+		return Verdict{Decision: DecisionBlank, Reasons: r}
+	}
+	if f.FromRecord && f.Chars > 0 && f.Chars < NearBlankMaxChars && f.Noise < PictureMaxNoise {
+		return Verdict{Decision: DecisionBlank, Reasons: []string{fmt.Sprintf("page is nearly blank: %s recognised on a clean scan", plural(f.Chars, "character"))}}
+	}
+	words := int(math.Round(f.LexHit * float64(f.LexWords)))
+	if f.FromRecord && f.Tokens < PictureMaxTokens && words < PictureMaxWords && f.Noise < PictureMaxNoise {
+		return Verdict{
+			PredictedCER: m.PredictCER(f),
+			Decision:     DecisionPicture,
+			Reasons: []string{fmt.Sprintf("clean scan with ink but almost no text (%s, %s in the lexicon): a picture or ornament",
+				plural(f.Tokens, "word"), plural(words, "word"))},
+		}
+	}
+	if f.Tokens == 0 {
+		// Ink but nothing recognised, on a noisy scan: the model has no
+		// evidence to weigh, and the page's text is lost.
+		return Verdict{PredictedCER: 1, Decision: DecisionRescan,
+			Reasons: []string{fmt.Sprintf("ink found but no text recognised (scan noise %.0f grey levels)", f.Noise)}}
+	}
+	v := Verdict{PredictedCER: m.PredictCER(f)}
+	switch {
+	case v.PredictedCER > t.Rescan:
+		v.Decision = DecisionRescan
+	case v.PredictedCER > t.Correct:
+		v.Decision = DecisionCorrect
+	default:
+		v.Decision = DecisionAccept
+	}
+	v.Reasons = reasons(f, m, v.Decision != DecisionAccept)
+	return v
+}
+
+// reasons turns the features into plain sentences, ordered by how much the
+// feature's term moved the prediction (largest first). When worse is true
+// (the page was not accepted) the extra sentence after the confidence and
+// lexicon ones must be evidence that raised the estimate.
+func reasons(f Features, m *Model, worse bool) []string {
+	type reason struct {
+		text   string
+		weight float64
+	}
+	delta := map[string]float64{}
+	for _, c := range m.Contributions(f) {
+		delta[c.Term] += c.Delta
+	}
+	group := func(names ...string) float64 {
+		s := 0.0
+		for _, n := range names {
+			s += delta[n]
+		}
+		return s
+	}
+	var rs []reason
+	if f.FromRecord {
+		rs = append(rs, reason{fmt.Sprintf("%s of words under confidence %d", pct(f.LowConf), int(LowConfidence*100)),
+			group("low_conf", "sqrt_low_conf", "mean_conf", "conf_x_miss")})
+	}
+	if f.LexWords > 0 {
+		rs = append(rs, reason{fmt.Sprintf("%s of words in the lexicon", pct(f.LexHit)), group("lex_miss", "sqrt_lex_miss")})
+	} else {
+		rs = append(rs, reason{"no words of letters to check against the lexicon", group("lex_miss", "sqrt_lex_miss")})
+	}
+	rs = append(rs, reason{fmt.Sprintf("%s of words look like OCR garbage", pct(f.Garbage)), group("garbage", "sqrt_garbage")})
+	rs = append(rs, reason{fmt.Sprintf("%s of characters are not letters", pct(1-f.Letters)),
+		group("non_letter", "punct", "symbols", "digits")})
+	if f.Short > 0.15 {
+		rs = append(rs, reason{fmt.Sprintf("%s of words are single characters", pct(f.Short)), group("short")})
+	}
+	// The confidence and lexicon sentences always come first (they are the
+	// evidence staff can check by eye), most telling first; then the
+	// strongest of the others.
+	head, rest := rs[:0:0], rs[:0:0]
+	for i, r := range rs {
+		if i < 2 && (f.FromRecord || i < 1) {
+			head = append(head, r)
+		} else {
+			rest = append(rest, r)
+		}
+	}
+	byWeight := func(s []reason) {
+		sort.SliceStable(s, func(i, j int) bool { return math.Abs(s[i].weight) > math.Abs(s[j].weight) })
+	}
+	byWeight(head)
+	byWeight(rest)
+	out := make([]string, 0, 4)
+	for _, r := range head {
+		out = append(out, r.text)
+	}
+	for _, r := range rest {
+		if !worse || r.weight > 0 {
+			out = append(out, r.text)
+			break
+		}
+	}
+	if !f.FromRecord {
+		out = append(out, "plain text only: no word confidences")
+	}
+	return out
+}
+
+func pct(x float64) string { return fmt.Sprintf("%.0f%%", 100*x) }
+
+func plural(n int, noun string) string {
+	if n == 1 {
+		return "1 " + noun
+	}
+	return fmt.Sprintf("%d %ss", n, noun)
+}

@@ -1,0 +1,80 @@
+package quality
+
+import (
+	"math"
+	"strings"
+	"testing"
+)
+
+// constModel predicts exp(intercept) − offset whatever the features.
+func constModel(cer float64) *Model {
+	l := Linear{Intercept: logOf(cer + 0.01), Terms: []Term{{Name: "garbage", Scale: 1}}}
+	return &Model{Version: ModelVersion, Offset: 0.01, Record: l, Text: l}
+}
+
+func logOf(x float64) float64 { return math.Log(x) }
+
+func TestTriageDecisions(t *testing.T) {
+	page := Features{FromRecord: true, Tokens: 300, LexWords: 250, LexHit: 0.9, Letters: 0.9, MeanConf: 0.9, LowConf: 0.05}
+	tests := []struct {
+		name string
+		f    Features
+		cer  float64
+		th   Thresholds
+		want string
+	}{
+		{"clean", page, 0.005, Thresholds{}, DecisionAccept},
+		{"at the correct threshold", page, DefaultCorrect - 1e-9, Thresholds{}, DecisionAccept},
+		{"needs correction", page, 0.05, Thresholds{}, DecisionCorrect},
+		{"needs rescan", page, 0.30, Thresholds{}, DecisionRescan},
+		{"stricter rescan threshold", page, 0.05, Thresholds{Rescan: 0.04}, DecisionRescan},
+		{"blank", Features{FromRecord: true, Blank: true}, 0.9, Thresholds{}, DecisionBlank},
+		{"picture: clean scan, almost no text", Features{FromRecord: true, Tokens: 6, LexWords: 2, LexHit: 0.5, Noise: 6}, 0.9, Thresholds{}, DecisionPicture},
+		{"noisy scan, almost no text", Features{FromRecord: true, Tokens: 6, LexWords: 2, LexHit: 0.5, Noise: 30}, 0.9, Thresholds{}, DecisionRescan},
+		{"ink, nothing recognised", Features{FromRecord: true, Noise: 30}, 0.001, Thresholds{}, DecisionRescan},
+		{"text only, empty", Features{Blank: true}, 0.9, Thresholds{}, DecisionBlank},
+		{"nearly blank: a page number", Features{FromRecord: true, Tokens: 1, Chars: 2, Noise: 6}, 0.9, Thresholds{}, DecisionBlank},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			v := Triage(tt.f, constModel(tt.cer), tt.th)
+			if v.Decision != tt.want {
+				t.Errorf("decision %s, want %s (predicted %.4f)", v.Decision, tt.want, v.PredictedCER)
+			}
+			if len(v.Reasons) == 0 {
+				t.Error("no reasons given")
+			}
+		})
+	}
+}
+
+func TestTriageReasons(t *testing.T) {
+	f := Features{FromRecord: true, Tokens: 200, LexWords: 150, LexHit: 0.12, LowConf: 0.58, Garbage: 0.3, Letters: 0.7}
+	v := Triage(f, DefaultModel(), Thresholds{})
+	all := strings.Join(v.Reasons, "; ")
+	for _, want := range []string{"58% of words under confidence 60", "12% of words in the lexicon"} {
+		if !strings.Contains(all, want) {
+			t.Errorf("reasons %q lack %q", all, want)
+		}
+	}
+	v = Triage(Features{FromRecord: true, Blank: true}, nil, Thresholds{})
+	if v.Decision != DecisionBlank || v.Reasons[0] != "page is blank" {
+		t.Errorf("blank page: %+v", v)
+	}
+	f.FromRecord = false
+	v = Triage(f, nil, Thresholds{})
+	if !strings.Contains(strings.Join(v.Reasons, "; "), "plain text only") {
+		t.Errorf("text-only page should say so: %q", v.Reasons)
+	}
+}
+
+func TestThresholdsValidate(t *testing.T) {
+	for _, th := range []Thresholds{{Rescan: 1.5}, {Rescan: -0.1}, {Rescan: 0.05, Correct: 0.08}} {
+		if th.Validate() == nil {
+			t.Errorf("%+v should be invalid", th)
+		}
+	}
+	if (Thresholds{}).Validate() != nil {
+		t.Error("zero thresholds should be valid (defaults)")
+	}
+}

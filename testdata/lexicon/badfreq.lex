@@ -1,0 +1,3 @@
+recto-lexicon	1
+whale	12
+sea	1,2

@@ -23,9 +23,9 @@ of the cost of raising the mole and agreed to buy two spare lamps.`
 	layout := synth.Layout{WidthMM: 120, HeightMM: 100, MarginMM: 12}
 	type want struct {
 		denoise, deskew bool
-		method         string
-		blank          bool
-		skew           float64
+		method          string
+		blank           bool
+		skew            float64
 	}
 	wants := map[string]want{
 		"clean":    {method: "otsu"},

@@ -1,0 +1,140 @@
+package correct
+
+import (
+	"math"
+	"unicode/utf8"
+)
+
+// observed is a token prepared for channel scoring: its runes and, for each
+// end position j, the learned confusions whose To ends there.
+type observed struct {
+	s     string   // lower-case core
+	runes []rune   // s as runes
+	off   []int    // byte offset of each rune in s, plus len(s)
+	rules [][]crul // rules[j]: confusions whose To is s[off[j-b]:off[j]]
+}
+
+type crul struct {
+	r *crule
+}
+
+// prepare fills o for the lower-case token s.
+func (m *Model) prepare(o *observed, s string) {
+	o.s = s
+	o.runes = o.runes[:0]
+	o.off = o.off[:0]
+	for i, r := range s {
+		o.runes = append(o.runes, r)
+		o.off = append(o.off, i)
+	}
+	o.off = append(o.off, len(s))
+	n := len(o.runes)
+	if cap(o.rules) < n+1 {
+		o.rules = make([][]crul, n+1)
+	}
+	o.rules = o.rules[:n+1]
+	for j := range o.rules {
+		o.rules[j] = o.rules[j][:0]
+	}
+	for j := 1; j <= n; j++ {
+		for b := 1; b <= maxRule && b <= j; b++ {
+			rs := m.byTo[s[o.off[j-b]:o.off[j]]]
+			for k := range rs {
+				o.rules[j] = append(o.rules[j], crul{&rs[k]})
+			}
+		}
+	}
+}
+
+// logChannel returns log P(o | cand): the most likely way (Viterbi
+// approximation, as in Brill and Moore 2000) for the engine to turn the
+// lower-case candidate into the observed token, as a product over a
+// partition into confusions of up to three characters, kept characters,
+// and unseen one-character edits at smoothed rates. buf is scratch space.
+func (m *Model) logChannel(o *observed, cand string, crs []rune, buf []float64) (float64, []float64) {
+	crs = crs[:0]
+	for _, r := range cand {
+		crs = append(crs, r)
+	}
+	n, mm := len(crs), len(o.runes)
+	w := mm + 1
+	size := (n + 1) * w
+	if cap(buf) < size {
+		buf = make([]float64, size)
+	}
+	d := buf[:size]
+	inf := math.Inf(-1)
+	for i := 0; i <= n; i++ {
+		for j := 0; j <= mm; j++ {
+			if i == 0 && j == 0 {
+				d[0] = 0
+				continue
+			}
+			best := inf
+			if i > 0 && j > 0 {
+				v := d[(i-1)*w+j-1]
+				if crs[i-1] == o.runes[j-1] {
+					v += m.keepLog(crs[i-1])
+				} else {
+					v += m.subFloor
+				}
+				best = v
+			}
+			if i > 0 {
+				dl, ok := m.del[crs[i-1]]
+				if !ok {
+					dl = m.delFloor
+				}
+				if v := d[(i-1)*w+j] + dl; v > best {
+					best = v
+				}
+			}
+			if j > 0 {
+				if v := d[i*w+j-1] + m.insFloor; v > best {
+					best = v
+				}
+				for _, cr := range o.rules[j] {
+					r := cr.r
+					a := len(r.from)
+					if a > i {
+						continue
+					}
+					match := true
+					for k := 0; k < a; k++ {
+						if crs[i-a+k] != r.from[k] {
+							match = false
+							break
+						}
+					}
+					if !match {
+						continue
+					}
+					if v := d[(i-a)*w+j-r.to] + r.logp; v > best {
+						best = v
+					}
+				}
+			}
+			d[i*w+j] = best
+		}
+	}
+	return d[n*w+mm], buf
+}
+
+func (m *Model) keepLog(r rune) float64 {
+	if v, ok := m.keep[r]; ok {
+		return v
+	}
+	return m.keepDef
+}
+
+// logIdentity returns log P(s | s) along the all-kept path, which is what
+// logChannel gives for cand == s unless a confusion path is likelier.
+func (m *Model) logIdentity(s string) float64 {
+	var v float64
+	for _, r := range s {
+		v += m.keepLog(r)
+	}
+	return v
+}
+
+func runeLen(s string) int { return utf8.RuneCountInString(s) }

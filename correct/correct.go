@@ -1,0 +1,703 @@
+package correct
+
+import (
+	"math"
+	"os"
+	"strconv"
+	"sort"
+	"strings"
+	"sync"
+
+	"recto/lexicon"
+	"recto/ocr"
+)
+
+// DefaultMargin is the margin used when Config.Margin is 0: the best
+// candidate must be e^DefaultMargin times likelier than the token as read.
+const DefaultMargin = 5.0
+
+// Config tunes a Corrector. The zero value is valid and conservative.
+type Config struct {
+	// Margin is how much likelier, in natural-log units, the best
+	// candidate must be than the token as read before the token is
+	// changed; 0 means DefaultMargin. Higher is more cautious.
+	Margin float64
+	// MaxEdits bounds the edit distance of candidates found by search of
+	// the lexicon (1 or 2); 0 means 2. Expansions through learned
+	// confusions may go further.
+	MaxEdits int
+	// KeepHyphens leaves words hyphenated across line ends as they are;
+	// by default they are joined when the joined word is in the lexicon.
+	KeepHyphens bool
+	// KeepSpacing turns off splitting run-together words and joining
+	// split ones.
+	KeepSpacing bool
+	// Collection optionally adds unigram and bigram counts from the
+	// collection's own text to the lexicon's for the context model.
+	Collection *lexicon.Lexicon
+}
+
+// Change is one correction.
+type Change struct {
+	Line   int     `json:"line"`   // 1-based line in the page text
+	Column int     `json:"column"` // 1-based column, in runes
+	Before string  `json:"before"`
+	After  string  `json:"after"`
+	Score  float64 `json:"score"` // natural-log odds of After over Before; above the margin
+}
+
+// Corrector corrects OCR text with a lexicon and an error model. It is safe
+// for concurrent use once New returns.
+type Corrector struct {
+	lex    *lexicon.Lexicon
+	coll   *lexicon.Lexicon
+	m      *Model
+	cfg    Config
+	margin float64
+	edits  int
+	ix     *deleteIndex
+	total  float64 // unigram total, lexicon and collection
+	pool   sync.Pool
+}
+
+// Tuning constants; the figures behind them are in docs/dev-correct.md.
+const (
+	// confWeight scales the engine's confidence, as log odds, into the
+	// margin: a word read at 0.9 needs e^(2.2·confWeight) more evidence.
+	confWeightDefault = 1.0
+	// XXX tuning
+	// sureConf is the confidence at or above which a lexicon word is not
+	// questioned at all.
+	sureConfDefault = 0.9
+	// nameConf is the confidence at or above which a capitalised word the
+	// lexicon lacks is taken for a name and left alone.
+	nameConfDefault = 0.8
+	// nameMargin is added to the margin for capitalised unknown words when
+	// the confidence is unknown (plain text).
+	nameMargin = 3.0
+	// realWordMargin is added to the margin to replace a lexicon word by
+	// another through a learned confusion ("modem" for "modern").
+	realWordMarginDefault = 3.0
+	// confCentre is the confidence that leaves the margin as it is; engine
+	// confidences above it raise the margin, below it lower it.
+	confCentre = 0.9
+	// minExpandLogP is the least likely confusion used to expand a token
+	// into candidates.
+	minExpandLogP = -9.0
+	// maxExpansions bounds candidates made through confusions per token.
+	maxExpansions = 64
+	// backoff is the stupid-backoff factor (Brants et al. 2007).
+	backoff = 0.4
+)
+
+// New returns a Corrector. lex must not be modified afterwards; m nil
+// means DefaultModel.
+var confWeight, sureConf, nameConf = confWeightDefault, sureConfDefault, nameConfDefault
+
+var realWordMargin = realWordMarginDefault
+var confCentreLogit = math.Log(confCentre / (1 - confCentre))
+
+func init() {
+	if v := os.Getenv("XR"); v != "" {
+		realWordMargin, _ = strconv.ParseFloat(v, 64)
+	}
+	if v := os.Getenv("XC"); v != "" {
+		f, _ := strconv.ParseFloat(v, 64)
+		confCentreLogit = math.Log(f / (1 - f))
+	}
+	if v := os.Getenv("XW"); v != "" {
+		confWeight, _ = strconv.ParseFloat(v, 64)
+	}
+	if v := os.Getenv("XS"); v != "" {
+		sureConf, _ = strconv.ParseFloat(v, 64)
+	}
+	if v := os.Getenv("XN"); v != "" {
+		nameConf, _ = strconv.ParseFloat(v, 64)
+	}
+}
+
+func New(lex *lexicon.Lexicon, m *Model, cfg Config) *Corrector {
+	if m == nil {
+		m = DefaultModel()
+	}
+	c := &Corrector{lex: lex, coll: cfg.Collection, m: m, cfg: cfg}
+	c.margin = cfg.Margin
+	if c.margin == 0 {
+		c.margin = DefaultMargin
+	}
+	c.edits = cfg.MaxEdits
+	if c.edits <= 0 || c.edits > 2 {
+		c.edits = 2
+	}
+	c.ix = indexFor(lex)
+	c.total = float64(lex.Total()) + 1
+	if c.coll != nil {
+		c.total += float64(c.coll.Total())
+	}
+	c.pool.New = func() any { return &scratch{seen: make(map[uint32]struct{})} }
+	return c
+}
+
+type scratch struct {
+	obs  observed
+	crs  []rune
+	rs   []rune
+	buf  []float64
+	hs   []uint64
+	ids  []uint32
+	seen map[uint32]struct{}
+	vars map[string]float64
+
+	found, frontier []string
+}
+
+// edit replaces tokens [i, i+n) by words.
+type edit struct {
+	i, n  int
+	words []string // replacement tokens, punctuation included
+	score float64
+}
+
+// CorrectText corrects a page of plain text and returns the corrected text
+// and the changes made, in page order. White space is kept except where a
+// hyphenated or split word is joined.
+func (c *Corrector) CorrectText(text string) (string, []Change) {
+	toks := tokenize(text)
+	eds := c.run(toks)
+	if len(eds) == 0 {
+		return text, nil
+	}
+	var b strings.Builder
+	b.Grow(len(text) + 16)
+	changes := make([]Change, 0, len(eds))
+	pos := 0
+	for _, e := range eds {
+		first, last := toks[e.i], toks[e.i+e.n-1]
+		end := last.end
+		repl := strings.Join(e.words, " ")
+		if e.n == 2 && first.lineEnd {
+			// A hyphenated word joined across a line end: the line break
+			// moves after the joined word.
+			if !last.lineEnd && e.i+e.n < len(toks) {
+				end = toks[e.i+e.n].start
+				repl += "\n"
+			}
+		}
+		b.WriteString(text[pos:first.start])
+		b.WriteString(repl)
+		pos = end
+		changes = append(changes, Change{Line: first.line, Column: first.col,
+			Before: text[first.start:last.end], After: strings.Join(e.words, " "), Score: round3(e.score)})
+	}
+	b.WriteString(text[pos:])
+	return b.String(), changes
+}
+
+func round3(v float64) float64 { return math.Round(v*1000) / 1000 }
+
+// CorrectRecord corrects a page record, using the engine's word
+// confidences, and returns a new Record (rec is not modified) with the
+// changes in page order. A changed word keeps its box and gets the engine's
+// reading appended to Alt; a joined word takes over its partner's box
+// (united on one line, its own across a line end) and a split word's box
+// is divided in proportion to the characters. Lines and columns refer to
+// rec.Text().
+func (c *Corrector) CorrectRecord(rec *ocr.Record) (*ocr.Record, []Change) {
+	out := *rec
+	out.Words = append([]ocr.Word(nil), rec.Words...)
+	for i := range out.Words {
+		out.Words[i].Alt = append([]string(nil), rec.Words[i].Alt...)
+	}
+	if rec.TimingsMS != nil {
+		out.TimingsMS = make(map[string]float64, len(rec.TimingsMS))
+		for k, v := range rec.TimingsMS {
+			out.TimingsMS[k] = v
+		}
+	}
+	toks := recordTokens(rec)
+	eds := c.run(toks)
+	if len(eds) == 0 {
+		return &out, nil
+	}
+	changes := make([]Change, 0, len(eds))
+	words := make([]ocr.Word, 0, len(out.Words)+4)
+	next := 0
+	for _, e := range eds {
+		first, last := toks[e.i], toks[e.i+e.n-1]
+		words = append(words, out.Words[next:first.word]...)
+		before := rec.Words[first.word].Text
+		if e.n == 2 {
+			before += " " + rec.Words[last.word].Text
+		}
+		w := out.Words[first.word]
+		switch {
+		case e.n == 1 && len(e.words) == 1:
+			w.Alt = append(w.Alt, w.Text)
+			w.Text = e.words[0]
+			words = append(words, w)
+		case e.n == 1 && len(e.words) == 2:
+			w1, w2 := w, w
+			total := float64(runeLen(e.words[0]) + runeLen(e.words[1]) + 1)
+			w1.Box.W = int(math.Round(float64(w.Box.W) * float64(runeLen(e.words[0])) / total))
+			w2.Box.X = w.Box.X + int(math.Round(float64(w.Box.W)*float64(runeLen(e.words[0])+1)/total))
+			w2.Box.W = w.Box.X + w.Box.W - w2.Box.X
+			w1.Alt = append(w1.Alt, w.Text)
+			w2.Alt = nil
+			w1.Text, w2.Text = e.words[0], e.words[1]
+			words = append(words, w1, w2)
+		default: // two words joined into one
+			w2 := out.Words[last.word]
+			if w2.Line == w.Line && w2.Block == w.Block {
+				x0, y0 := min(w.Box.X, w2.Box.X), min(w.Box.Y, w2.Box.Y)
+				x1, y1 := max(w.Box.X+w.Box.W, w2.Box.X+w2.Box.W), max(w.Box.Y+w.Box.H, w2.Box.Y+w2.Box.H)
+				w.Box = ocr.Box{X: x0, Y: y0, W: x1 - x0, H: y1 - y0}
+			}
+			w.Conf = min(w.Conf, w2.Conf)
+			w.Alt = append(w.Alt, w.Text+" "+w2.Text)
+			w.Text = e.words[0]
+			words = append(words, w)
+		}
+		next = last.word + 1
+		changes = append(changes, Change{Line: first.line, Column: first.col, Before: before,
+			After: strings.Join(e.words, " "), Score: round3(e.score)})
+	}
+	words = append(words, out.Words[next:]...)
+	out.Words = words
+	return &out, changes
+}
+
+// recordTokens makes one token per word, placed as in rec.Text().
+func recordTokens(rec *ocr.Record) []token {
+	toks := make([]token, 0, len(rec.Words))
+	line, col := 1, 1
+	for i, w := range rec.Words {
+		if i > 0 {
+			prev := rec.Words[i-1]
+			switch {
+			case w.Block != prev.Block:
+				line += 2
+				col = 1
+				toks[len(toks)-1].lineEnd = true
+			case w.Line != prev.Line:
+				line++
+				col = 1
+				toks[len(toks)-1].lineEnd = true
+			default:
+				col++
+			}
+		}
+		t := token{line: line, col: col, conf: w.Conf, word: i}
+		t.lead, t.core, t.trail = splitToken(w.Text)
+		toks = append(toks, t)
+		col += runeLen(w.Text)
+	}
+	if len(toks) > 0 {
+		toks[len(toks)-1].lineEnd = true
+	}
+	return toks
+}
+
+// run decides the edits for a page, left to right; a corrected word is the
+// left context of the next.
+func (c *Corrector) run(toks []token) []edit {
+	s := c.pool.Get().(*scratch)
+	defer c.pool.Put(s)
+	var eds []edit
+	prev := "" // lower-case left context; "" at a sentence or clause break
+	for i := 0; i < len(toks); i++ {
+		t := &toks[i]
+		var nt *token
+		if i+1 < len(toks) {
+			nt = &toks[i+1]
+		}
+		if e, ok := c.tryJoin(s, toks, i, prev); ok {
+			eds = append(eds, e)
+			prev = c.contextAfter(lookupForm(e.words[0]), toks[i+1].trail)
+			i++
+			continue
+		}
+		next := ""
+		if nt != nil && breaksContext(t.trail, nt.lead) == false {
+			next = lookupForm(nt.core)
+		}
+		e, ok := c.word(s, t, prev, next)
+		if ok {
+			e.i = i
+			eds = append(eds, e)
+			_, core, _ := splitToken(e.words[len(e.words)-1])
+			prev = c.contextAfter(lookupForm(core), t.trail)
+			continue
+		}
+		prev = c.contextAfter(lookupForm(t.core), t.trail)
+	}
+	return eds
+}
+
+// contextAfter returns the left context a word leaves for the next one.
+func (c *Corrector) contextAfter(w, trail string) string {
+	if w == "" || breaksContext(trail, "") {
+		return ""
+	}
+	return w
+}
+
+// breaksContext reports whether punctuation between two words cuts the
+// bigram context (anything but an apostrophe or a closing quote).
+func breaksContext(trail, lead string) bool {
+	return strings.TrimRight(trail, "'’\"”") != "" || strings.TrimLeft(lead, "'‘\"“") != ""
+}
+
+// logUni returns log P(w) with add-one-half smoothing over lexicon and
+// collection counts.
+func (c *Corrector) count(w string) float64 {
+	n := float64(c.lex.Count(w))
+	if c.coll != nil {
+		n += float64(c.coll.Count(w))
+	}
+	return n
+}
+
+func (c *Corrector) bigram(a, b string) float64 {
+	n := float64(c.lex.Bigram(a, b))
+	if c.coll != nil {
+		n += float64(c.coll.Bigram(a, b))
+	}
+	return n
+}
+
+func (c *Corrector) logUni(w string) float64 {
+	return math.Log((c.count(w) + 0.5) / c.total)
+}
+
+// logCond is the stupid-backoff score of w after p (Brants, Popat, Xu,
+// Och and Dean 2007, "Large language models in machine translation"):
+// the bigram relative frequency when the pair was seen, else 0.4 times the
+// unigram probability. p == "" means no left context.
+func (c *Corrector) logCond(p, w string) float64 {
+	if p != "" {
+		if nb := c.bigram(p, w); nb > 0 {
+			if np := c.count(p); np >= nb {
+				return math.Log(nb / np)
+			}
+		}
+		return math.Log(backoff) + c.logUni(w)
+	}
+	return c.logUni(w)
+}
+
+// logContext scores w between prev and next.
+func (c *Corrector) logContext(prev, w, next string) float64 {
+	v := c.logCond(prev, w)
+	if next != "" {
+		v += c.logCond(w, next)
+	}
+	return v
+}
+
+func (c *Corrector) known(w string) bool {
+	if c.lex.Has(w) {
+		return true
+	}
+	if strings.HasSuffix(w, "'s") && c.lex.Has(w[:len(w)-2]) {
+		return true
+	}
+	if strings.Contains(w, "-") {
+		for _, p := range strings.Split(w, "-") {
+			if p != "" && !c.lex.Has(p) {
+				return false
+			}
+		}
+		return true
+	}
+	return false
+}
+
+// marginFor returns the margin a token must clear, from its confidence.
+func (c *Corrector) marginFor(conf float64) float64 {
+	if conf < 0 {
+		return c.margin
+	}
+	p := math.Min(math.Max(conf, 0.02), 0.99)
+	return math.Max(c.margin+confWeight*(math.Log(p/(1-p))-confCentreLogit), c.margin/2)
+}
+
+// word decides whether to change one token.
+func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
+	if runeLen(t.core) < 2 {
+		return edit{}, false
+	}
+	q := lookupForm(t.core)
+	known := c.known(q)
+	raw := t.lead + t.core + t.trail
+	if protected(raw, t.core, known) {
+		return edit{}, false
+	}
+	margin := c.marginFor(t.conf)
+	pattern := casePattern(t.core)
+	upper := startsUpper(t.core)
+	if known {
+		if t.conf >= sureConf {
+			return edit{}, false
+		}
+		margin += realWordMargin
+	} else if upper {
+		if t.conf >= nameConf {
+			return edit{}, false
+		}
+		if t.conf < 0 {
+			margin += nameMargin
+		}
+	}
+	keep := c.m.logIdentity(q) + c.logContext(prev, q, next)
+	// Every candidate scores at most its channel probability (the context
+	// probability is at most 1), and no channel probability exceeds the
+	// likeliest confusion's: frequent words stop here.
+	if keep+margin >= c.m.maxLogp {
+		return edit{}, false
+	}
+	c.m.prepare(&s.obs, q)
+	best, bestScore := "", math.Inf(-1)
+	consider := func(w string) {
+		if w == q {
+			return
+		}
+		var ch float64
+		ch, s.buf = c.m.logChannel(&s.obs, w, s.crs, s.buf)
+		if ch <= keep+margin {
+			return
+		}
+		v := ch + c.logContext(prev, w, next)
+		if v > bestScore || (v == bestScore && w < best) {
+			best, bestScore = w, v
+		}
+	}
+	for _, w := range c.expansions(s, q, known, keep+margin) {
+		consider(w)
+	}
+	if !known {
+		for _, id := range c.search(s, q) {
+			consider(c.ix.words[id])
+		}
+	}
+	var split []string
+	if !known && !c.cfg.KeepSpacing && plainWord(q) {
+		if w1, w2, v, ok := c.bestSplit(s, q, prev, next); ok && v > bestScore {
+			best, bestScore, split = "", v, []string{w1, w2}
+		}
+	}
+	delta := bestScore - keep
+	if delta <= margin {
+		return edit{}, false
+	}
+	if split != nil {
+		return edit{n: 1, words: []string{t.lead + applyCase(split[0], pattern, upper), applyCase(split[1], caseLower, false) + t.trail}, score: delta}, true
+	}
+	return edit{n: 1, words: []string{t.lead + applyCase(best, pattern, upper) + t.trail}, score: delta}, true
+}
+
+// identity is log P(s | s) with s kept as read.
+func (o *observed) identity(m *Model) float64 {
+	var v float64
+	for _, r := range o.runes {
+		v += m.keepLog(r)
+	}
+	return v
+}
+
+// search returns lexicon words within the edit distance allowed for q.
+func (c *Corrector) search(s *scratch, q string) []uint32 {
+	s.rs = s.rs[:0]
+	for _, r := range q {
+		s.rs = append(s.rs, r)
+	}
+	depth := 1
+	if len(s.rs) >= longWord {
+		depth = c.edits
+	}
+	s.ids = s.ids[:0]
+	s.hs, s.ids = c.ix.lookup(s.rs, depth, s.hs, s.ids, s.seen)
+	return s.ids
+}
+
+// expansions returns the lexicon words reached from q by undoing one or two
+// learned confusions (To→From) whose probabilities together exceed floor,
+// sorted. For a known q only single confusions are tried.
+func (c *Corrector) expansions(s *scratch, q string, known bool, floor float64) []string {
+	if s.vars == nil {
+		s.vars = make(map[string]float64)
+	}
+	clear(s.vars)
+	found := s.found[:0]
+	frontier := s.frontier[:0]
+	type variant struct {
+		w    string
+		logp float64
+	}
+	level := func(w string, acc float64, first bool) {
+		for k := 0; k < len(w); k++ {
+			if w[k]&0xc0 == 0x80 {
+				continue // inside a multi-byte rune
+			}
+			for _, x := range c.m.expFirst[w[k]] {
+				if acc+x.logp <= floor {
+					break // sorted, most likely first
+				}
+				if !strings.HasPrefix(w[k:], x.to) {
+					continue
+				}
+				v := w[:k] + x.from + w[k+len(x.to):]
+				if _, ok := s.vars[v]; ok || len(s.vars) >= 8*maxExpansions {
+					continue
+				}
+				s.vars[v] = acc + x.logp
+				if c.lex.Has(v) && indexable(v) {
+					found = append(found, v)
+				} else if first {
+					frontier = append(frontier, v)
+				}
+			}
+		}
+	}
+	level(q, 0, true)
+	if !known {
+		for _, v := range frontier {
+			if len(found) >= maxExpansions {
+				break
+			}
+			level(v, s.vars[v], false)
+		}
+	}
+	sort.Strings(found)
+	s.found, s.frontier = found, frontier
+	return found
+}
+
+// bestSplit finds the likeliest split of q into two lexicon words.
+func (c *Corrector) bestSplit(s *scratch, q, prev, next string) (string, string, float64, bool) {
+	rs := []rune(q)
+	if len(rs) < 4 {
+		return "", "", 0, false
+	}
+	best := math.Inf(-1)
+	var b1, b2 string
+	base := s.obs.identity(c.m) + c.m.spaceDel
+	for k := 1; k < len(rs); k++ {
+		w1, w2 := string(rs[:k]), string(rs[k:])
+		if !splitPart(w1) || !splitPart(w2) || !c.lex.Has(w1) || !c.lex.Has(w2) || c.lex.Count(w1) == 0 || c.lex.Count(w2) == 0 {
+			continue
+		}
+		v := base + c.logCond(prev, w1) + c.logCond(w1, w2)
+		if next != "" {
+			v += c.logCond(w2, next)
+		}
+		if v > best {
+			best, b1, b2 = v, w1, w2
+		}
+	}
+	return b1, b2, best, b1 != ""
+}
+
+// splitPart reports whether w may be one half of a split word: two letters
+// or more, or "a" or "i".
+func splitPart(w string) bool {
+	if w == "a" || w == "i" {
+		return true
+	}
+	return runeLen(w) >= 2
+}
+
+// tryJoin considers joining toks[i] with toks[i+1]: a word hyphenated
+// across a line end, or a word split by a stray space.
+func (c *Corrector) tryJoin(s *scratch, toks []token, i int, prev string) (edit, bool) {
+	if i+1 >= len(toks) {
+		return edit{}, false
+	}
+	t, u := &toks[i], &toks[i+1]
+	if t.core == "" || u.core == "" || u.lead != "" {
+		return edit{}, false
+	}
+	a, b := lookupForm(t.core), lookupForm(u.core)
+	joined := a + b
+	if !plainWord(joined) {
+		return edit{}, false
+	}
+	next := ""
+	if i+2 < len(toks) && !breaksContext(u.trail, toks[i+2].lead) {
+		next = lookupForm(toks[i+2].core)
+	}
+	pattern, upper := casePattern(t.core), startsUpper(t.core)
+	if t.lineEnd {
+		// Hyphenated across a line end.
+		if c.cfg.KeepHyphens || !isHyphen(t.trail) || !c.lex.Has(joined) || c.lex.Count(joined) == 0 {
+			return edit{}, false
+		}
+		if hy := a + "-" + b; c.lex.Has(hy) && c.lex.Count(hy) >= c.lex.Count(joined) {
+			return edit{}, false
+		}
+		keep := c.logContext(prev, a, "") + c.logContext("", b, next)
+		return edit{i: i, n: 2, words: []string{t.lead + applyCase(joined, pattern, upper) + u.trail},
+			score: c.logContext(prev, joined, next) - keep}, true
+	}
+	if c.cfg.KeepSpacing || t.trail != "" {
+		return edit{}, false
+	}
+	ka, kb := c.known(a), c.known(b)
+	if (ka && kb) || !c.lex.Has(joined) || c.lex.Count(joined) == 0 {
+		return edit{}, false
+	}
+	if protected(t.core, t.core, ka) || protected(u.core, u.core, kb) {
+		return edit{}, false
+	}
+	if !ka && startsUpper(t.core) && t.conf >= nameConf || !kb && startsUpper(u.core) && u.conf >= nameConf {
+		return edit{}, false
+	}
+	c.m.prepare(&s.obs, a)
+	keep := s.obs.identity(c.m)
+	c.m.prepare(&s.obs, b)
+	keep += s.obs.identity(c.m)
+	keep += c.logCond(prev, a) + c.logCond(a, b)
+	if next != "" {
+		keep += c.logCond(b, next)
+	}
+	c.m.prepare(&s.obs, joined)
+	v := s.obs.identity(c.m) + c.m.spaceIns + c.logContext(prev, joined, next)
+	conf := t.conf
+	if u.conf >= 0 && (conf < 0 || u.conf < conf) {
+		conf = u.conf
+	}
+	if v-keep <= c.marginFor(conf) {
+		return edit{}, false
+	}
+	return edit{i: i, n: 2, words: []string{t.lead + applyCase(joined, pattern, upper) + u.trail}, score: v - keep}, true
+}
+
+func isHyphen(trail string) bool {
+	switch trail {
+	case "-", "¬", "\u00ad", "‐":
+		return true
+	}
+	return false
+}
+
+// CountText adds to coll the words of text that lex knows, and pairs of
+// such words not parted by punctuation, for Config.Collection. Words lex
+// does not know are not counted, so that an OCR error repeated across a
+// collection gains no weight from its repeats.
+func CountText(coll, lex *lexicon.Lexicon, text string) {
+	prev := ""
+	for _, t := range tokenize(text) {
+		w := lookupForm(t.core)
+		if w == "" || !lex.Has(w) {
+			prev = ""
+			continue
+		}
+		coll.Add(w, 1)
+		if prev != "" && t.lead == "" {
+			coll.AddBigram(prev, w, 1)
+		}
+		prev = w
+		if breaksContext(t.trail, "") {
+			prev = ""
+		}
+	}
+}

@@ -1,0 +1,201 @@
+package correct
+
+import (
+	"regexp"
+	"strings"
+	"unicode"
+	"unicode/utf8"
+)
+
+// token is one whitespace-separated piece of a page.
+type token struct {
+	start, end int     // byte offsets in the page text
+	line, col  int     // 1-based line and rune column of start
+	lead       string  // punctuation before the core
+	core       string  // from the first to the last letter or digit
+	trail      string  // punctuation after the core
+	conf       float64 // engine confidence in [0, 1]; -1 when unknown
+	word       int     // index in Record.Words; -1 for plain text
+	lineEnd    bool    // the next token is on another line (or there is none)
+}
+
+// tokenize splits text at white space, recording where each token is.
+func tokenize(text string) []token {
+	var toks []token
+	line, col := 1, 1
+	start, startCol := -1, 0
+	flush := func(end int) {
+		if start < 0 {
+			return
+		}
+		t := token{start: start, end: end, line: line, col: startCol, conf: -1, word: -1}
+		t.lead, t.core, t.trail = splitToken(text[start:end])
+		toks = append(toks, t)
+		start = -1
+	}
+	for i, r := range text {
+		if unicode.IsSpace(r) {
+			flush(i)
+			if r == '\n' {
+				if len(toks) > 0 {
+					toks[len(toks)-1].lineEnd = true
+				}
+				line++
+				col = 1
+				continue
+			}
+		} else if start < 0 {
+			start, startCol = i, col
+		}
+		col++
+	}
+	flush(len(text))
+	if len(toks) > 0 {
+		toks[len(toks)-1].lineEnd = true
+	}
+	return toks
+}
+
+// splitToken separates leading and trailing punctuation from the core,
+// which runs from the first to the last letter or digit.
+func splitToken(s string) (lead, core, trail string) {
+	first, last := -1, -1
+	for i, r := range s {
+		if unicode.IsLetter(r) || unicode.IsDigit(r) {
+			if first < 0 {
+				first = i
+			}
+			last = i + utf8.RuneLen(r)
+		}
+	}
+	if first < 0 {
+		return s, "", ""
+	}
+	return s[:first], s[first:last], s[last:]
+}
+
+// Case patterns of a core's letters.
+const (
+	caseLower = iota
+	caseTitle
+	caseUpper
+	caseMixed
+)
+
+func casePattern(s string) int {
+	upper, lower, n := 0, 0, 0
+	firstUpper := false
+	for _, r := range s {
+		if !unicode.IsLetter(r) {
+			continue
+		}
+		if unicode.IsUpper(r) {
+			upper++
+			if n == 0 {
+				firstUpper = true
+			}
+		} else if unicode.IsLower(r) {
+			lower++
+		}
+		n++
+	}
+	switch {
+	case upper == 0:
+		return caseLower
+	case lower == 0 && n > 1:
+		return caseUpper
+	case firstUpper && upper == 1:
+		return caseTitle
+	case lower == 0: // one upper-case letter
+		return caseTitle
+	}
+	return caseMixed
+}
+
+// applyCase gives the lower-case word w the case pattern p of the token it
+// replaces. Mixed case becomes lower case, or title case when the token
+// began with a capital.
+func applyCase(w string, p int, firstUpper bool) string {
+	switch p {
+	case caseUpper:
+		return strings.ToUpper(w)
+	case caseTitle:
+		return title(w)
+	case caseMixed:
+		if firstUpper {
+			return title(w)
+		}
+	}
+	return w
+}
+
+func title(w string) string {
+	r, n := utf8.DecodeRuneInString(w)
+	if r == utf8.RuneError {
+		return w
+	}
+	return string(unicode.ToTitle(r)) + w[n:]
+}
+
+func startsUpper(s string) bool {
+	for _, r := range s {
+		if unicode.IsLetter(r) {
+			return unicode.IsUpper(r)
+		}
+	}
+	return false
+}
+
+var (
+	romanRe   = regexp.MustCompile(`^(?i)m{0,4}(cm|cd|d?c{0,3})(xc|xl|l?x{0,3})(ix|iv|v?i{0,3})$`)
+	ordinalRe = regexp.MustCompile(`^(?i)[0-9]+(st|nd|rd|th|d|s)$`)
+)
+
+// confusableDigits are digits commonly read for letters (0/o, 1/l/I, 5/s,
+// 8/B); a core with other digits is left alone as a number or code.
+const confusableDigits = "0158"
+
+// protected reports whether a core must be left as it is whatever the
+// model says: numbers and dates, codes, URLs and e-mail addresses, roman
+// numerals. known tells whether the lexicon has the word.
+func protected(raw, core string, known bool) bool {
+	if strings.Contains(raw, "://") || strings.HasPrefix(strings.ToLower(raw), "www.") || strings.Contains(core, "@") {
+		return true
+	}
+	letters, digits := 0, 0
+	for _, r := range core {
+		switch {
+		case unicode.IsLetter(r):
+			letters++
+		case unicode.IsDigit(r):
+			digits++
+			if r > unicode.MaxASCII || !strings.ContainsRune(confusableDigits, r) {
+				return true
+			}
+		}
+	}
+	if letters == 0 || digits > letters || (digits > 0 && letters < 2 && utf8.RuneCountInString(core) > 2) {
+		return true // numbers, dates, times, codes like A4
+	}
+	if digits > 0 && ordinalRe.MatchString(core) {
+		return true
+	}
+	if !known && romanRe.MatchString(core) && (casePattern(core) == caseUpper || len(core) <= 4) {
+		return true
+	}
+	return false
+}
+
+// lookupForm is the lower-case form a core is looked up and scored in:
+// typographic apostrophes become ASCII ones.
+func lookupForm(core string) string {
+	s := strings.ToLower(core)
+	if strings.ContainsAny(s, "’‘") {
+		s = strings.NewReplacer("’", "'", "‘", "'").Replace(s)
+	}
+	return s
+}
+
+// plainWord reports whether s is letters with inner apostrophes or hyphens
+// (the shape of words the corrector proposes or splits).
+func plainWord(s string) bool { return indexable(s) }

@@ -1,0 +1,189 @@
+package correct
+
+import (
+	"strings"
+	"unicode"
+	"unicode/utf8"
+
+	"golang.org/x/text/unicode/norm"
+
+	"recto/quality"
+)
+
+// Pair is one training example: the ground truth of a page (or line) and
+// what the engine read there.
+type Pair struct {
+	Ref string // ground truth
+	Hyp string // OCR output
+}
+
+// TrainOptions tunes Train. The zero value is valid.
+type TrainOptions struct {
+	// MinCount drops confusions of more than two characters in all seen
+	// fewer times than this; 0 means 2. One-character confusions are kept
+	// at any count.
+	MinCount int
+}
+
+// maxRule is the longest From or To learned, in characters.
+const maxRule = 3
+
+// Train learns an error model from aligned pairs. Both sides are put in
+// NFC, lower-cased and have runs of white space collapsed to one space;
+// each pair is aligned with a Levenshtein alignment (quality.Align), and every maximal run
+// of differences of at most three characters a side becomes a confusion,
+// counted alone and widened by one matching neighbour on either side
+// (longer runs are skipped as garbage)
+// (Brill and Moore 2000, "An improved error model for noisy channel
+// spelling correction"). P(To | From) is then N(From→To) / N(From), with
+// N(From) counted over the reference text.
+func Train(pairs []Pair, o TrainOptions) *Model {
+	minCount := int64(o.MinCount)
+	if minCount <= 0 {
+		minCount = 2
+	}
+	counts := make(map[[2]string]int64)
+	var refs [][]rune
+	var words int64
+	var sc quality.Scratch
+	var ops []quality.Op
+	add := func(from, to string) {
+		if from == to || utf8.RuneCountInString(from) > maxRule || utf8.RuneCountInString(to) > maxRule {
+			return
+		}
+		counts[[2]string{from, to}]++
+	}
+	for _, p := range pairs {
+		ref, hyp := []rune(trainForm(p.Ref)), []rune(trainForm(p.Hyp))
+		words += int64(len(strings.Fields(string(ref))))
+		refs = append(refs, ref)
+		ops = sc.Align(ref, hyp, ops[:0])
+		learnOps(ops, add)
+	}
+	// Count every From in the reference text.
+	need := make(map[string]int64)
+	for k := range counts {
+		if k[0] != "" {
+			need[k[0]] = 0
+		}
+	}
+	var chars int64
+	for _, ref := range refs {
+		chars += int64(len(ref))
+		for i := range ref {
+			for l := 1; l <= maxRule && i+l <= len(ref); l++ {
+				s := string(ref[i : i+l])
+				if l == 1 {
+					need[s]++
+					continue
+				}
+				if _, ok := need[s]; ok {
+					need[s]++
+				}
+			}
+		}
+	}
+	var rules []Rule
+	for k, n := range counts {
+		from, to := k[0], k[1]
+		if utf8.RuneCountInString(from)+utf8.RuneCountInString(to) > 2 && n < minCount {
+			continue
+		}
+		if from != "" && need[from] < n {
+			continue // cannot happen with consistent input; keeps the model loadable
+		}
+		rules = append(rules, Rule{From: from, To: to, N: n})
+	}
+	ctx := make(map[string]int64)
+	for _, r := range rules {
+		if r.From != "" {
+			ctx[r.From] = need[r.From]
+		}
+	}
+	for s, n := range need {
+		if utf8.RuneCountInString(s) == 1 && n > 0 {
+			ctx[s] = n
+		}
+	}
+	return newModel(rules, ctx, max(chars, 1), words, len(pairs))
+}
+
+// trainForm is the form texts are compared in: NFC, lower case, white space
+// runs collapsed to one space, except that line breaks are kept (as "\n",
+// read as spaces by learnOps).
+func trainForm(s string) string {
+	s = strings.ToLower(norm.NFC.String(s))
+	var b strings.Builder
+	b.Grow(len(s))
+	space, nl := false, false
+	for _, r := range s {
+		if unicode.IsSpace(r) {
+			space = true
+			if r == '\n' {
+				nl = true
+			}
+			continue
+		}
+		if space && b.Len() > 0 {
+			if nl {
+				b.WriteByte('\n')
+			} else {
+				b.WriteByte(' ')
+			}
+		}
+		space, nl = false, false
+		b.WriteRune(r)
+	}
+	return b.String()
+}
+
+// learnOps passes every confusion in an alignment to add: each maximal run
+// of non-matching operations (line breaks count as spaces), alone and
+// widened by one matching neighbour on each side. Runs longer than maxRule
+// a side are skipped.
+func learnOps(ops []quality.Op, add func(from, to string)) {
+	sp := func(r rune) rune {
+		if r == '\n' {
+			return ' '
+		}
+		return r
+	}
+	for i := range ops {
+		ops[i].R, ops[i].H = sp(ops[i].R), sp(ops[i].H)
+	}
+	var from, to []rune
+	for s := 0; s < len(ops); {
+		if ops[s].Kind == quality.OpMatch {
+			s++
+			continue
+		}
+		e := s
+		from, to = from[:0], to[:0]
+		for e < len(ops) && ops[e].Kind != quality.OpMatch {
+			if ops[e].R != 0 {
+				from = append(from, ops[e].R)
+			}
+			if ops[e].H != 0 {
+				to = append(to, ops[e].H)
+			}
+			e++
+		}
+		if len(from) > maxRule || len(to) > maxRule {
+			// Longer runs are lost lines, smudges or misread blocks, not
+			// character confusions: the error model learns nothing there.
+			s = e
+			continue
+		}
+		f, t := string(from), string(to)
+		add(f, t)
+		if s > 0 && ops[s-1].R != ' ' {
+			c := string(ops[s-1].R)
+			add(c+f, c+t)
+		}
+		if e < len(ops) && ops[e].R != ' ' {
+			c := string(ops[e].R)
+			add(f+c, t+c)
+		}
+		s = e
+	}
+}

@@ -1,0 +1,177 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"time"
+	"unicode"
+
+	"recto/correct"
+	"recto/ocr"
+	"recto/quality"
+)
+
+var dumpDir string
+
+// tally sums edit distances over a group of pages.
+type tally struct {
+	pages, words, refChars int
+	before, after          int // edit distances
+	changes, wrong         int
+}
+
+func (t *tally) add(o tally) {
+	t.pages += o.pages
+	t.words += o.words
+	t.refChars += o.refChars
+	t.before += o.before
+	t.after += o.after
+	t.changes += o.changes
+	t.wrong += o.wrong
+}
+
+func (t tally) String() string {
+	if t.pages == 0 {
+		return "no pages"
+	}
+	cb, ca := float64(t.before)/float64(t.refChars), float64(t.after)/float64(t.refChars)
+	ratio := 0.0
+	if t.before > 0 {
+		ratio = float64(t.after) / float64(t.before)
+	}
+	return fmt.Sprintf("pages %d  words %d  CER before %.3f%%  after %.3f%%  ratio %.3f  changes %d  wrong %d (%.2f per 10k words)",
+		t.pages, t.words, 100*cb, 100*ca, ratio, t.changes, t.wrong, 1e4*float64(t.wrong)/float64(max(t.words, 1)))
+}
+
+// evalCorpus corrects every heldout page and reports CER before and after
+// by band of uncorrected CER: clean (< 0.5 %), moderate (1–15 %), other.
+func evalCorpus(c *correct.Corrector, dir string, verbose bool) error {
+	names, err := filepath.Glob(filepath.Join(dir, "truth", "heldout", "*.txt"))
+	if err != nil || len(names) == 0 {
+		return fmt.Errorf("no ground truth in %q", filepath.Join(dir, "truth", "heldout"))
+	}
+	sort.Strings(names)
+	bands := map[string]*tally{"clean": {}, "moderate": {}, "other": {}}
+	var tokens int
+	var spent time.Duration
+	for _, n := range names {
+		id := strings.TrimSuffix(filepath.Base(n), ".txt")
+		truth, err := os.ReadFile(n)
+		if err != nil {
+			return err
+		}
+		var in, outText string
+		var changes []correct.Change
+		jsonPath := filepath.Join(dir, "ocr", "heldout", id+".json")
+		t0 := time.Now()
+		if rec, err := ocr.ReadRecord(jsonPath); err == nil {
+			in = rec.Text()
+			out, ch := c.CorrectRecord(rec)
+			outText, changes = out.Text(), ch
+		} else if errors.Is(err, os.ErrNotExist) {
+			data, err := os.ReadFile(filepath.Join(dir, "ocr", "heldout", id+".txt"))
+			if err != nil {
+				return err
+			}
+			in = string(data)
+			outText, changes = c.CorrectText(in)
+		} else {
+			return err
+		}
+		spent += time.Since(t0)
+		if dumpDir != "" {
+			_ = os.WriteFile(filepath.Join(dumpDir, id+".txt"), []byte(outText), 0o644)
+		}
+		tokens += len(strings.Fields(in))
+		t := pageTally(string(truth), in, outText, changes, verbose, id)
+		cer := float64(t.before) / float64(max(t.refChars, 1))
+		switch {
+		case cer < 0.005:
+			bands["clean"].add(t)
+		case cer >= 0.01 && cer <= 0.15:
+			bands["moderate"].add(t)
+		default:
+			bands["other"].add(t)
+		}
+	}
+	for _, b := range []string{"clean", "moderate", "other"} {
+		fmt.Printf("%-9s %v\n", b, bands[b])
+	}
+	fmt.Printf("throughput %.0f tokens/s (wall, one goroutine, includes record copying)\n", float64(tokens)/spent.Seconds())
+	return nil
+}
+
+func evalPairs(c *correct.Corrector, pairs []correct.Pair) {
+	var all tally
+	var spent time.Duration
+	tokens := 0
+	for i, p := range pairs {
+		t0 := time.Now()
+		out, changes := c.CorrectText(p.Hyp)
+		spent += time.Since(t0)
+		tokens += len(strings.Fields(p.Hyp))
+		all.add(pageTally(p.Ref, p.Hyp, out, changes, false, fmt.Sprint(i)))
+	}
+	fmt.Println(all)
+	fmt.Printf("throughput %.0f tokens/s\n", float64(tokens)/spent.Seconds())
+}
+
+// pageTally measures one page. A change is wrong when applying it alone
+// does not bring the page closer to the truth.
+func pageTally(truth, in, out string, changes []correct.Change, verbose bool, id string) tally {
+	var sc quality.Scratch
+	cb := sc.Compare(truth, in, quality.NormOptions{})
+	ca := sc.Compare(truth, out, quality.NormOptions{})
+	before := cb.CharErrors
+	t := tally{pages: 1, words: cb.Words, refChars: cb.Chars, before: before, after: ca.CharErrors, changes: len(changes)}
+	for _, ch := range changes {
+		alone, ok := applyOne(in, ch)
+		good := ok && sc.Compare(truth, alone, quality.NormOptions{}).CharErrors < before
+		if !good {
+			t.wrong++
+		}
+		if verbose {
+			fmt.Printf("%s:%d:%d %q -> %q score %.2f good=%v\n", id, ch.Line, ch.Column, ch.Before, ch.After, ch.Score, good)
+		}
+	}
+	return t
+}
+
+// applyOne applies a single change to text; white space in Before matches
+// any white space.
+func applyOne(text string, ch correct.Change) (string, bool) {
+	lines := strings.SplitAfter(text, "\n")
+	if ch.Line < 1 || ch.Line > len(lines) {
+		return "", false
+	}
+	off := 0
+	for _, l := range lines[:ch.Line-1] {
+		off += len(l)
+	}
+	rs := []rune(lines[ch.Line-1])
+	if ch.Column-1 > len(rs) {
+		return "", false
+	}
+	off += len(string(rs[:ch.Column-1]))
+	rest := text[off:]
+	bf := strings.Fields(ch.Before)
+	i := 0
+	for k, f := range bf {
+		if !strings.HasPrefix(rest[i:], f) {
+			return "", false
+		}
+		i += len(f)
+		if k+1 < len(bf) {
+			j := i
+			for j < len(rest) && unicode.IsSpace(rune(rest[j])) {
+				j++
+			}
+			i = j
+		}
+	}
+	return text[:off] + ch.After + rest[i:], true
+}

@@ -149,10 +149,12 @@ func (al *aligner) alignCore(a, b []rune, d int, dst []Op) []Op {
 	}
 	limit := al.limit
 	if limit == 0 {
-		limit = storedMax
 		if (n+1)*(m+1) <= smallCells {
-			limit = n + m // a small table: the stored rounds always fit
+			// A small table: the stored rounds (d <= n+m) always finish.
+			ops, _ := al.stored(a, b, n+m, dst)
+			return ops
 		}
+		limit = storedMax
 	}
 	bitCost := ((n + 63) / 64) * m
 	wavefronts := true // whether d² is thought to be within bitCost

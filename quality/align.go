@@ -265,6 +265,8 @@ func (al *aligner) bitSplit(a, b []rune) (i, j, df, db int) {
 // stored runs the wavefronts keeping each round, up to limit rounds, and
 // traces back through them. It reports false (appending nothing) when the
 // distance exceeds limit.
+//
+// Complexity: O(n + m + D²) time and O(D²) memory for distance D ≤ limit.
 func (al *aligner) stored(a, b []rune, limit int, dst []Op) ([]Op, bool) {
 	n, m := len(a), len(b)
 	al.waves = al.waves[:0]
@@ -365,6 +367,8 @@ func reverseOps(ops []Op) {
 // end, and sf+sb cannot undercut the distance. With rounds taken in turn
 // that first meeting happens when sf+sb equals the distance. It gives up
 // (ok false) once the rounds have cost about budget steps (sf²+sb²).
+//
+// Complexity: O(n + m + D²) time in the usual case, O(n + m) memory.
 func (al *aligner) split(a, b []rune, budget int) (i, j, df, db int, ok bool) {
 	if len(a)+len(b) >= denseMin {
 		if da, db, ok := al.dense.encode(a, b); ok {

@@ -5,7 +5,6 @@ import (
 	"context"
 	"fmt"
 	"image"
-	"math/rand/v2"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -129,15 +128,4 @@ func cer(tb testing.TB, hyp, ref string) float64 {
 		prev, cur = cur, prev
 	}
 	return float64(prev[len(b)]) / float64(max(1, len(b)))
-}
-
-// addSpeckle darkens a fraction of the pixels, chosen at random, to near
-// black (dust, toner specks: impulse noise).
-func addSpeckle(g *image.Gray, fraction float64, seed uint64) {
-	r := rand.New(rand.NewPCG(seed, 2))
-	for i := range g.Pix {
-		if r.Float64() < fraction {
-			g.Pix[i] = uint8(r.IntN(60))
-		}
-	}
 }

@@ -65,7 +65,9 @@ func Process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 
 	if !p.Blank {
 		t := time.Now()
-		words, err := eng.Recognize(ctx, p.Image, int(math.Round(dpi*scale(sb, p.Image.Bounds()))))
+		// Preparation rotates but never rescales, so the prepared page keeps
+		// the source's resolution.
+		words, err := eng.Recognize(ctx, p.Image, int(math.Round(dpi)))
 		rec.TimingsMS["engine"] = ms(time.Since(t))
 		if err != nil {
 			return nil, nil, err
@@ -88,17 +90,6 @@ func Process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 		return rec, nil, nil
 	}
 	return rec, p.Image, nil
-}
-
-// scale estimates how much preparation enlarged the page (1 when it kept
-// the size). Deskewing grows the canvas by a few percent, which is not
-// counted as scaling.
-func scale(src, prepared image.Rectangle) float64 {
-	s := math.Sqrt(float64(prepared.Dx()*prepared.Dy()) / float64(src.Dx()*src.Dy()))
-	if math.Abs(s-1) < 0.15 {
-		return 1
-	}
-	return s
 }
 
 // clip keeps b inside a w×h page.

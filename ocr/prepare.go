@@ -298,7 +298,7 @@ func measureBackground(g *image.Gray) background {
 	res := background{otsu: otsu(hist)}
 	noise := estimateNoise(g)
 	contrast := int(math.Max(40, 6*noise))
-	mx, my := w/50, h/50
+	mx, my := max(1, w/50), max(1, h/50) // at least 1: the test below reads x+1 and y+1
 	for ty := 0; ty < h; ty += ts {
 		for tx := 0; tx < w; tx += ts {
 			var th [256]int

@@ -114,4 +114,3 @@ func clamp8(v float64) uint8 {
 	}
 	return uint8(math.Round(v))
 }
-

@@ -2,6 +2,8 @@ package correct
 
 import (
 	"math"
+	"os"
+	"strconv"
 	"sort"
 	"strings"
 	"sync"
@@ -62,19 +64,23 @@ type Corrector struct {
 const (
 	// confWeight scales the engine's confidence, as log odds, into the
 	// margin: a word read at 0.9 needs e^(2.2·confWeight) more evidence.
-	confWeight = 1.0
+	confWeightDefault = 1.0
+	// XXX tuning
 	// sureConf is the confidence at or above which a lexicon word is not
 	// questioned at all.
-	sureConf = 0.9
+	sureConfDefault = 0.9
 	// nameConf is the confidence at or above which a capitalised word the
 	// lexicon lacks is taken for a name and left alone.
-	nameConf = 0.8
+	nameConfDefault = 0.8
 	// nameMargin is added to the margin for capitalised unknown words when
 	// the confidence is unknown (plain text).
 	nameMargin = 3.0
 	// realWordMargin is added to the margin to replace a lexicon word by
 	// another through a learned confusion ("modem" for "modern").
-	realWordMargin = 3.0
+	realWordMarginDefault = 3.0
+	// confCentre is the confidence that leaves the margin as it is; engine
+	// confidences above it raise the margin, below it lower it.
+	confCentre = 0.9
 	// minExpandLogP is the least likely confusion used to expand a token
 	// into candidates.
 	minExpandLogP = -9.0
@@ -86,6 +92,30 @@ const (
 
 // New returns a Corrector. lex must not be modified afterwards; m nil
 // means DefaultModel.
+var confWeight, sureConf, nameConf = confWeightDefault, sureConfDefault, nameConfDefault
+
+var realWordMargin = realWordMarginDefault
+var confCentreLogit = math.Log(confCentre / (1 - confCentre))
+
+func init() {
+	if v := os.Getenv("XR"); v != "" {
+		realWordMargin, _ = strconv.ParseFloat(v, 64)
+	}
+	if v := os.Getenv("XC"); v != "" {
+		f, _ := strconv.ParseFloat(v, 64)
+		confCentreLogit = math.Log(f / (1 - f))
+	}
+	if v := os.Getenv("XW"); v != "" {
+		confWeight, _ = strconv.ParseFloat(v, 64)
+	}
+	if v := os.Getenv("XS"); v != "" {
+		sureConf, _ = strconv.ParseFloat(v, 64)
+	}
+	if v := os.Getenv("XN"); v != "" {
+		nameConf, _ = strconv.ParseFloat(v, 64)
+	}
+}
+
 func New(lex *lexicon.Lexicon, m *Model, cfg Config) *Corrector {
 	if m == nil {
 		m = DefaultModel()
@@ -387,8 +417,8 @@ func (c *Corrector) marginFor(conf float64) float64 {
 	if conf < 0 {
 		return c.margin
 	}
-	p := math.Min(math.Max(conf, 0.02), 0.98)
-	return math.Max(c.margin+confWeight*math.Log(p/(1-p)), c.margin/2)
+	p := math.Min(math.Max(conf, 0.02), 0.99)
+	return math.Max(c.margin+confWeight*(math.Log(p/(1-p))-confCentreLogit), c.margin/2)
 }
 
 // word decides whether to change one token.
@@ -647,4 +677,27 @@ func isHyphen(trail string) bool {
 		return true
 	}
 	return false
+}
+
+// CountText adds to coll the words of text that lex knows, and pairs of
+// such words not parted by punctuation, for Config.Collection. Words lex
+// does not know are not counted, so that an OCR error repeated across a
+// collection gains no weight from its repeats.
+func CountText(coll, lex *lexicon.Lexicon, text string) {
+	prev := ""
+	for _, t := range tokenize(text) {
+		w := lookupForm(t.core)
+		if w == "" || !lex.Has(w) {
+			prev = ""
+			continue
+		}
+		coll.Add(w, 1)
+		if prev != "" && t.lead == "" {
+			coll.AddBigram(prev, w, 1)
+		}
+		prev = w
+		if breaksContext(t.trail, "") {
+			prev = ""
+		}
+	}
 }

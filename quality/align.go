@@ -88,6 +88,7 @@ const storedMax = 512
 type aligner struct {
 	bv   bitState
 	colF []int32 // forward column of bitSplit
+	bag  bagCounter
 	// noWaveSplit skips the bidirectional wavefront split (for tests)
 	noWaveSplit bool
 	limit       int     // largest distance traced back with stored wavefronts; 0 means storedMax
@@ -156,15 +157,20 @@ func (al *aligner) alignCore(a, b []rune, d int, dst []Op) []Op {
 	switch {
 	case d < 0:
 		// Try the stored rounds for a while: half the bit-vector cost,
-		// so that a large distance wastes little before the columns.
+		// so that a large distance wastes little before the columns;
+		// not at all when the bag distance, a lower bound, is beyond.
 		l := limit
 		if l*l > bitCost/2 {
 			l = isqrt(bitCost / 2)
 		}
-		if ops, ok := al.stored(a, b, l, dst); ok {
-			return ops
+		lb := al.bag.bound(a, b)
+		if lb <= l {
+			if ops, ok := al.stored(a, b, l, dst); ok {
+				return ops
+			}
 		}
-		wavefronts = l == limit // l rounds were not enough: d > l
+		// d > l, or d >= lb > l
+		wavefronts = l == limit && lb*lb <= bitCost
 	case d*d > bitCost:
 		wavefronts = false
 	case d <= limit:

@@ -33,6 +33,7 @@ type Scratch struct {
 	w0, w1 []int32 // two wavefronts, indexed by diagonal + len(a) + 1
 	al     aligner // Align's buffers
 	bv     bitState
+	bag    bagCounter
 }
 
 // Distance returns the Levenshtein distance between a and b, counted in
@@ -76,8 +77,11 @@ func (s *Scratch) Distance(a, b []rune) int {
 	if target == 0 && int(prev[off]) >= n {
 		return 0
 	}
+	// Past round check the distance is above check; if the bag distance
+	// (a lower bound) already shows it above √budget, stop the rounds now.
+	check := max(1, isqrt(budget/8))
 	for d := 1; ; d++ {
-		if d*d > budget {
+		if d*d > budget || d == check && s.bag.bound(a, b) > dmax {
 			return s.bv.distance(short, long)
 		}
 		lo, hi := max(-d, -n), min(d, m)

@@ -1,6 +1,8 @@
 package main
 
 import (
+	"bytes"
+	"context"
 	"crypto/sha256"
 	"errors"
 	"image"
@@ -260,5 +262,25 @@ func TestOCRProgressLines(t *testing.T) {
 	}
 	if strings.Contains(stderr, "\r") {
 		t.Errorf("status redraws written to a non-terminal:\n%q", stderr)
+	}
+}
+
+func TestOCRInterrupted(t *testing.T) {
+	fakeEngine(t, "eng")
+	in := t.TempDir()
+	ocrtest.WritePNG(t, filepath.Join(in, "a.png"), testPage())
+	out := t.TempDir()
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	root := newRootCommand()
+	root.SetOut(new(bytes.Buffer))
+	root.SetErr(new(bytes.Buffer))
+	root.SetArgs([]string{"ocr", in, "--out", out})
+	err := root.ExecuteContext(ctx)
+	if !errors.Is(err, context.Canceled) {
+		t.Errorf("err = %v, want context.Canceled (exit 130)", err)
+	}
+	if _, err := os.Stat(filepath.Join(out, "failures.tsv")); err != nil {
+		t.Errorf("failures list not written on interruption: %v", err)
 	}
 }

@@ -11,6 +11,7 @@ import (
 	"strings"
 	"time"
 
+	"recto/correct"
 	"recto/lexicon"
 	"recto/ocr"
 	"recto/ocr/ocrtest"
@@ -79,7 +80,7 @@ func newToolkit(o RunOptions) (*toolkit, error) {
 	opts := ocr.Options{DPI: o.DPI, NoPrepare: fake}
 	cfg := tesseract.Config{Lang: o.Lang, PSM: o.PSM}
 	settings := map[string]any{"lang": o.Lang, "psm": o.PSM, "dpi": o.DPI, "rescan": o.Rescan, "correct": o.Correct,
-		"model": modelSum, "lexicon": lexSum, "fake_engine": fake, "record": ocr.RecordVersion}
+		"model": modelSum, "lexicon": lexSum, "margin": o.Margin, "fake_engine": fake, "record": ocr.RecordVersion}
 	tk := &toolkit{
 		write:    func(dir, rel string, r *ocr.Record, g *image.Gray) error { return ocr.WriteOutputs(dir, rel, r, g) },
 		interval: cerInterval,
@@ -91,7 +92,11 @@ func newToolkit(o RunOptions) (*toolkit, error) {
 			v := quality.Triage(quality.PageFeatures(r, lex), model, th)
 			return verdict{PredictedCER: v.PredictedCER, Decision: v.Decision, Reasons: v.Reasons}
 		},
-		correct: newCorrector(lex),
+	}
+	corrector := correct.New(lex, nil, correct.Config{Margin: o.Margin})
+	tk.correct = func(r *ocr.Record) (*ocr.Record, int) {
+		c, changes := corrector.CorrectRecord(r)
+		return c, len(changes)
 	}
 	tk.fingerprint, tk.settingsJSON = fingerprint(settings)
 	if fake {

@@ -5,6 +5,8 @@ package tesseract
 import (
 	"bufio"
 	"context"
+	"image"
+	"image/draw"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -128,30 +130,42 @@ func BenchmarkVersusCLI(b *testing.B) {
 }
 
 // BenchmarkBatchMemory runs a batch of A4-sized pages with two workers and
-// reports the peak resident set of the process (VmHWM) per worker, and how
-// much the resident set grew between the end of the first and the end of
-// the second half of the batch (flat means about 0).
+// reports the peak resident set of the process (VmHWM) per worker, and the
+// trend of the resident set over the second half of the batch, by least
+// squares over one sample per finished page (flat means about 0 MB/page).
 func BenchmarkBatchMemory(b *testing.B) {
 	skipWithoutEngine(b)
-	const jobs, pages = 2, 8
+	const jobs, pages = 2, 12
 	paths := batchPaths(pages)
-	var half, end, peak float64
+	var rss []float64
+	var peak float64
 	for b.Loop() {
-		done := 0
-		runBatch(b, paths, jobs, func(ocr.Result) {
-			done++
-			if done == pages/2 {
-				half = procStatusMB("VmRSS")
-			}
-		})
-		end = procStatusMB("VmRSS")
+		rss = rss[:0]
+		runBatch(b, paths, jobs, func(ocr.Result) { rss = append(rss, procStatusMB("VmRSS")) })
 		peak = procStatusMB("VmHWM")
 	}
 	var ms runtime.MemStats
 	runtime.ReadMemStats(&ms)
+	b.Logf("RSS after each page, MB: %.0f", rss)
 	b.ReportMetric(peak/jobs, "peakRSS-MB/worker")
-	b.ReportMetric(end-half, "RSS-growth-MB")
+	b.ReportMetric(slope(rss[len(rss)/2:]), "RSS-MB/page")
+	b.ReportMetric(rss[len(rss)/2], "RSS-MB-mid")
+	b.ReportMetric(rss[len(rss)-1], "RSS-MB-end")
 	b.ReportMetric(float64(ms.HeapSys)/(1<<20), "GoHeapSys-MB")
+}
+
+// slope is the least-squares slope of ys against 0, 1, 2, ...
+func slope(ys []float64) float64 {
+	n := float64(len(ys))
+	if n < 2 {
+		return 0
+	}
+	var sx, sy, sxx, sxy float64
+	for i, y := range ys {
+		x := float64(i)
+		sx, sy, sxx, sxy = sx+x, sy+y, sxx+x*x, sxy+x*y
+	}
+	return (n*sxy - sx*sy) / (n*sxx - sx*sx)
 }
 
 // cpuTime is the user plus system CPU time of this process so far.
@@ -177,4 +191,48 @@ func procStatusMB(field string) float64 {
 		}
 	}
 	return 0
+}
+
+// BenchmarkOnePass checks two properties of Recognize on a real scan:
+// it recognises the page once (its time matches one gosseract Text call,
+// not the sum of Text and the box listing), and Tesseract runs on one
+// thread (CPU time over wall time at most about 1 on an idle machine;
+// run with OMP_THREAD_LIMIT=2, which the adapter respects, to see the cost
+// of Tesseract's own threads).
+func BenchmarkOnePass(b *testing.B) {
+	e := engineOrSkip(b, Config{}).(*engine)
+	g := mustDecode(b, "../../testdata/engine/phototest.tif")
+	var tRec, tText, tBoth, cpu time.Duration
+	for b.Loop() {
+		c0, t0 := cpuTime(), time.Now()
+		if _, err := e.Recognize(context.Background(), g, 300); err != nil {
+			b.Fatal(err)
+		}
+		t1 := time.Now()
+		cpu += cpuTime() - c0
+		tRec += t1.Sub(t0)
+		e.client.Text()
+		t2 := time.Now()
+		tText += t2.Sub(t1)
+		e.client.Text()
+		e.client.GetBoundingBoxesVerbose()
+		tBoth += time.Since(t2)
+	}
+	n := float64(b.N)
+	b.ReportMetric(tRec.Seconds()*1000/n, "recognize-ms")
+	b.ReportMetric(tText.Seconds()*1000/n, "text-only-ms")
+	b.ReportMetric(tBoth.Seconds()*1000/n, "text+boxes-ms")
+	b.ReportMetric(cpu.Seconds()*1000/n, "recognize-cpu-ms")
+	b.ReportMetric(cpu.Seconds()/tRec.Seconds(), "cpu/wall")
+}
+
+func mustDecode(b *testing.B, path string) *image.Gray {
+	d, err := ocr.DecodeFile(path, ocr.DecodeOptions{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	r := d.Image.Bounds()
+	g := image.NewGray(image.Rect(0, 0, r.Dx(), r.Dy()))
+	draw.Draw(g, g.Bounds(), d.Image, r.Min, draw.Src)
+	return g
 }

@@ -2,8 +2,6 @@ package correct
 
 import (
 	"math"
-	"os"
-	"strconv"
 	"sort"
 	"strings"
 	"sync"
@@ -14,7 +12,7 @@ import (
 
 // DefaultMargin is the margin used when Config.Margin is 0: the best
 // candidate must be e^DefaultMargin times likelier than the token as read.
-const DefaultMargin = 5.0
+const DefaultMargin = 3.0
 
 // Config tunes a Corrector. The zero value is valid and conservative.
 type Config struct {
@@ -62,60 +60,46 @@ type Corrector struct {
 
 // Tuning constants; the figures behind them are in docs/dev-correct.md.
 const (
-	// confWeight scales the engine's confidence, as log odds, into the
-	// margin: a word read at 0.9 needs e^(2.2·confWeight) more evidence.
-	confWeightDefault = 1.0
-	// XXX tuning
+	// confWeight scales the engine's confidence, as log odds relative to
+	// confCentre, into the margin: a word read at 0.97 needs e^1.3 more
+	// evidence than one read at 0.9, one read at 0.5 e^2.2 less.
+	confWeight = 1.0
 	// sureConf is the confidence at or above which a lexicon word is not
 	// questioned at all.
-	sureConfDefault = 0.9
+	sureConf = 0.97
 	// nameConf is the confidence at or above which a capitalised word the
 	// lexicon lacks is taken for a name and left alone.
-	nameConfDefault = 0.8
+	nameConf = 0.93
 	// nameMargin is added to the margin for capitalised unknown words when
 	// the confidence is unknown (plain text).
 	nameMargin = 3.0
+	// textMargin is added to the margin when the engine's confidence is
+	// unknown (plain text): without it, less evidence stands behind each
+	// decision.
+	textMargin = 2.0
 	// realWordMargin is added to the margin to replace a lexicon word by
 	// another through a learned confusion ("modem" for "modern").
-	realWordMarginDefault = 3.0
+	realWordMargin = 1.0
 	// confCentre is the confidence that leaves the margin as it is; engine
 	// confidences above it raise the margin, below it lower it.
 	confCentre = 0.9
-	// minExpandLogP is the least likely confusion used to expand a token
-	// into candidates.
-	minExpandLogP = -9.0
+	// minExpandLogP is the least likely confusion, and minExpand2LogP the
+	// least likely pair of confusions, used to expand a token into
+	// candidates (edit-distance search finds the rest).
+	minExpandLogP  = -7.0
+	minExpand2LogP = -11.0
+	// maxFrontier bounds the one-confusion variants expanded again.
+	maxFrontier = 12
 	// maxExpansions bounds candidates made through confusions per token.
 	maxExpansions = 64
 	// backoff is the stupid-backoff factor (Brants et al. 2007).
 	backoff = 0.4
 )
 
-// New returns a Corrector. lex must not be modified afterwards; m nil
-// means DefaultModel.
-var confWeight, sureConf, nameConf = confWeightDefault, sureConfDefault, nameConfDefault
-
-var realWordMargin = realWordMarginDefault
 var confCentreLogit = math.Log(confCentre / (1 - confCentre))
 
-func init() {
-	if v := os.Getenv("XR"); v != "" {
-		realWordMargin, _ = strconv.ParseFloat(v, 64)
-	}
-	if v := os.Getenv("XC"); v != "" {
-		f, _ := strconv.ParseFloat(v, 64)
-		confCentreLogit = math.Log(f / (1 - f))
-	}
-	if v := os.Getenv("XW"); v != "" {
-		confWeight, _ = strconv.ParseFloat(v, 64)
-	}
-	if v := os.Getenv("XS"); v != "" {
-		sureConf, _ = strconv.ParseFloat(v, 64)
-	}
-	if v := os.Getenv("XN"); v != "" {
-		nameConf, _ = strconv.ParseFloat(v, 64)
-	}
-}
-
+// New returns a Corrector. lex must not be modified afterwards; m nil
+// means DefaultModel.
 func New(lex *lexicon.Lexicon, m *Model, cfg Config) *Corrector {
 	if m == nil {
 		m = DefaultModel()
@@ -415,7 +399,7 @@ func (c *Corrector) known(w string) bool {
 // marginFor returns the margin a token must clear, from its confidence.
 func (c *Corrector) marginFor(conf float64) float64 {
 	if conf < 0 {
-		return c.margin
+		return c.margin + textMargin
 	}
 	p := math.Min(math.Max(conf, 0.02), 0.99)
 	return math.Max(c.margin+confWeight*(math.Log(p/(1-p))-confCentreLogit), c.margin/2)
@@ -429,7 +413,9 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 	q := lookupForm(t.core)
 	known := c.known(q)
 	raw := t.lead + t.core + t.trail
-	if protected(raw, t.core, known) {
+	if protected(raw, t.core, known) || strings.HasPrefix(t.trail, "'") || strings.HasPrefix(t.trail, "’") {
+		// A trailing apostrophe marks an elision ("tellin'") or a plural
+		// possessive: the word is as the printer set it.
 		return edit{}, false
 	}
 	margin := c.marginFor(t.conf)
@@ -533,20 +519,21 @@ func (c *Corrector) expansions(s *scratch, q string, known bool, floor float64) 
 		w    string
 		logp float64
 	}
+	floor = max(floor, minExpand2LogP)
 	level := func(w string, acc float64, first bool) {
 		for k := 0; k < len(w); k++ {
 			if w[k]&0xc0 == 0x80 {
 				continue // inside a multi-byte rune
 			}
 			for _, x := range c.m.expFirst[w[k]] {
-				if acc+x.logp <= floor {
+				if acc+x.logp <= floor || x.logp < minExpandLogP {
 					break // sorted, most likely first
 				}
 				if !strings.HasPrefix(w[k:], x.to) {
 					continue
 				}
 				v := w[:k] + x.from + w[k+len(x.to):]
-				if _, ok := s.vars[v]; ok || len(s.vars) >= 8*maxExpansions {
+				if _, ok := s.vars[v]; ok || len(s.vars) >= 2*maxExpansions {
 					continue
 				}
 				s.vars[v] = acc + x.logp
@@ -560,8 +547,10 @@ func (c *Corrector) expansions(s *scratch, q string, known bool, floor float64) 
 	}
 	level(q, 0, true)
 	if !known {
-		for _, v := range frontier {
-			if len(found) >= maxExpansions {
+		// Second confusions only from the likeliest first ones.
+		sort.SliceStable(frontier, func(i, j int) bool { return s.vars[frontier[i]] > s.vars[frontier[j]] })
+		for i, v := range frontier {
+			if len(found) >= maxExpansions || i == maxFrontier {
 				break
 			}
 			level(v, s.vars[v], false)

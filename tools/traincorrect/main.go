@@ -51,7 +51,7 @@ func main() {
 	case *corpus != "" && !*eval:
 		pairs, err := corpusPairs(*corpus, "fit")
 		check(err)
-		m := correct.Train(pairs, correct.TrainOptions{})
+		m := correct.Train(pairs, correct.TrainOptions{Prior: correct.Classic})
 		report(m)
 		if *out != "" {
 			check(m.Save(*out))

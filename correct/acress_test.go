@@ -32,13 +32,13 @@ const acressCorpus = 44_000_000
 func acressModel() *Model {
 	const n = 1e9
 	rules := []Rule{
-		{From: "ct", To: "c", N: 117_000},   // actress: t deleted after c, .000117
-		{From: "", To: "a", N: 1_440},       // cress: a inserted (at the start), .00000144
-		{From: "ca", To: "ac", N: 1_640},    // caress: ca transposed, .00000164
-		{From: "c", To: "r", N: 209},        // access: c read as r, .000000209
-		{From: "o", To: "e", N: 9_300},      // across: o read as e, .0000093
-		{From: "e", To: "es", N: 32_100},    // acres: s inserted after e, .0000321
-		{From: "s", To: "ss", N: 34_200},    // acres: s inserted after s, .0000342
+		{From: "ct", To: "c", N: 117_000}, // actress: t deleted after c, .000117
+		{From: "", To: "a", N: 1_440},     // cress: a inserted (at the start), .00000144
+		{From: "ca", To: "ac", N: 1_640},  // caress: ca transposed, .00000164
+		{From: "c", To: "r", N: 209},      // access: c read as r, .000000209
+		{From: "o", To: "e", N: 9_300},    // across: o read as e, .0000093
+		{From: "e", To: "es", N: 32_100},  // acres: s inserted after e, .0000321
+		{From: "s", To: "ss", N: 34_200},  // acres: s inserted after s, .0000342
 	}
 	ctx := map[string]int64{}
 	for _, r := range rules {

@@ -73,6 +73,10 @@ const (
 	// nameMargin is added to the margin for capitalised unknown words when
 	// the confidence is unknown (plain text).
 	nameMargin = 3.0
+	// oovPenalty is subtracted from the log probability of keeping a word
+	// the lexicon lacks, on top of the add-one-half unigram estimate: a
+	// string never seen in open text is seldom a word.
+	oovPenalty = 3.0
 	// textMargin is added to the margin when the engine's confidence is
 	// unknown (plain text): without it, less evidence stands behind each
 	// decision.
@@ -435,6 +439,9 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		}
 	}
 	keep := c.m.logIdentity(q) + c.logContext(prev, q, next)
+	if !known {
+		keep -= oovPenalty
+	}
 	// Every candidate scores at most its channel probability (the context
 	// probability is at most 1), and no channel probability exceeds the
 	// likeliest confusion's: frequent words stop here.
@@ -478,7 +485,14 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 	if split != nil {
 		return edit{n: 1, words: []string{t.lead + applyCase(split[0], pattern, upper), applyCase(split[1], caseLower, false) + t.trail}, score: delta}, true
 	}
-	return edit{n: 1, words: []string{t.lead + applyCase(best, pattern, upper) + t.trail}, score: delta}, true
+	trail := t.trail
+	if (strings.HasPrefix(trail, "!") || strings.HasPrefix(trail, "|")) && len(best) > len(q) && strings.HasPrefix(best, q) {
+		// "annua!" → "annual": the engine often reads a final l, t or i
+		// as "!" or "|"; when the correction restores letters at the end,
+		// the mark was one of them.
+		trail = trail[1:]
+	}
+	return edit{n: 1, words: []string{t.lead + applyCase(best, pattern, upper) + trail}, score: delta}, true
 }
 
 // identity is log P(s | s) with s kept as read.

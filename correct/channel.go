@@ -12,6 +12,7 @@ type observed struct {
 	runes []rune   // s as runes
 	off   []int    // byte offset of each rune in s, plus len(s)
 	rules [][]crul // rules[j]: confusions whose To is s[off[j-b]:off[j]]
+	bound float64  // no candidate's log P(s | candidate) exceeds this
 }
 
 type crul struct {
@@ -36,11 +37,13 @@ func (m *Model) prepare(o *observed, s string) {
 	for j := range o.rules {
 		o.rules[j] = o.rules[j][:0]
 	}
+	o.bound = m.maxEdit
 	for j := 1; j <= n; j++ {
 		for b := 1; b <= maxRule && b <= j; b++ {
 			rs := m.byTo[s[o.off[j-b]:o.off[j]]]
 			for k := range rs {
 				o.rules[j] = append(o.rules[j], crul{&rs[k]})
+				o.bound = max(o.bound, rs[k].logp)
 			}
 		}
 	}

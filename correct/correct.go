@@ -443,12 +443,12 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		keep -= oovPenalty
 	}
 	// Every candidate scores at most its channel probability (the context
-	// probability is at most 1), and no channel probability exceeds the
-	// likeliest confusion's: frequent words stop here.
-	if keep+margin >= c.m.maxLogp {
+	// probability is at most 1), and no channel probability exceeds that
+	// of the likeliest edit that fits the token: frequent words stop here.
+	c.m.prepare(&s.obs, q)
+	if keep+margin >= max(s.obs.bound, c.m.spaceDel) {
 		return edit{}, false
 	}
-	c.m.prepare(&s.obs, q)
 	best, bestScore := "", math.Inf(-1)
 	consider := func(w string) {
 		if w == q {

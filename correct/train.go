@@ -54,8 +54,8 @@ const maxRule = 3
 // counted alone and widened by one matching neighbour on either side
 // (longer runs are skipped as garbage)
 // (Brill and Moore 2000, "An improved error model for noisy channel
-// spelling correction"). P(To | From) is then N(From→To) / N(From), with
-// N(From) counted over the reference text.
+// spelling correction"). P(To | From) is then N(From→To) / (N(From) + 20),
+// with N(From) counted over the reference text (see Model.Prob).
 func Train(pairs []Pair, o TrainOptions) *Model {
 	minCount := int64(o.MinCount)
 	if minCount <= 0 {

@@ -108,7 +108,7 @@ func TestAcressRanking(t *testing.T) {
 	m.prepare(&o, "acress")
 	score := map[string]float64{}
 	for w := range acressCounts {
-		ch, _ := m.logChannel(&o, w, nil, nil)
+		ch, _ := m.logChannel(&o, w, nil, nil, math.Inf(-1))
 		score[w] = ch + c.logUni(w)
 	}
 	// P(x|w)·P(w)·1e9 from the table (from memory): actress 3.69, acres 2.22

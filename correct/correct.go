@@ -5,6 +5,7 @@ import (
 	"sort"
 	"strings"
 	"sync"
+	"sync/atomic"
 
 	"recto/lexicon"
 	"recto/ocr"
@@ -56,6 +57,8 @@ type Corrector struct {
 	ix     *deleteIndex
 	total  float64 // unigram total, lexicon and collection
 	pool   sync.Pool
+	neigh  sync.Map     // lexicon word -> []neighbour
+	cached atomic.Int64 // entries in neigh
 }
 
 // Tuning constants; the figures behind them are in docs/dev-correct.md.
@@ -92,6 +95,10 @@ const (
 	// candidates (edit-distance search finds the rest).
 	minExpandLogP  = -7.0
 	minExpand2LogP = -11.0
+	// clearWin is how far beyond the margin a candidate made by undoing
+	// learned confusions must score for the edit-distance search to be
+	// skipped.
+	clearWin = 4.0
 	// maxFrontier bounds the one-confusion variants expanded again.
 	maxFrontier = 12
 	// maxExpansions bounds candidates made through confusions per token.
@@ -127,16 +134,20 @@ func New(lex *lexicon.Lexicon, m *Model, cfg Config) *Corrector {
 }
 
 type scratch struct {
-	obs  observed
-	crs  []rune
-	rs   []rune
-	buf  []float64
-	hs   []uint64
-	ids  []uint32
-	seen map[uint32]struct{}
-	vars map[string]float64
-
-	found, frontier []string
+	obs   observed
+	crs   []rune
+	rs    []rune
+	buf   []float64
+	hs    []uint64
+	ids   []uint32
+	seen  map[uint32]struct{}
+	seenH map[uint64]struct{}
+	logp  map[string]float64 // expansions of a known word: the confusion's log probability
+	found []string
+	front []frontier
+	arena []byte
+	vbuf  []byte
+	qbuf  []byte
 }
 
 // edit replaces tokens [i, i+n) by words.
@@ -455,7 +466,7 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 			return
 		}
 		var ch float64
-		ch, s.buf = c.m.logChannel(&s.obs, w, s.crs, s.buf)
+		ch, s.buf = c.m.logChannel(&s.obs, w, s.crs, s.buf, keep+margin)
 		if ch <= keep+margin {
 			return
 		}
@@ -464,10 +475,20 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 			best, bestScore = w, v
 		}
 	}
-	for _, w := range c.expansions(s, q, known, keep+margin) {
-		consider(w)
+	if known {
+		for _, x := range c.realWordNeighbours(s, q) {
+			if x.logp > keep+margin {
+				consider(x.word)
+			}
+		}
+	} else {
+		for _, w := range c.expansions(s, q, false, keep+margin) {
+			consider(w)
+		}
 	}
-	if !known {
+	// The search of the lexicon is the slow part; skip it when undoing a
+	// learned confusion already gave a clear winner.
+	if !known && bestScore-keep <= margin+clearWin {
 		for _, id := range c.search(s, q) {
 			consider(c.ix.words[id])
 		}
@@ -521,20 +542,23 @@ func (c *Corrector) search(s *scratch, q string) []uint32 {
 
 // expansions returns the lexicon words reached from q by undoing one or two
 // learned confusions (To→From) whose probabilities together exceed floor,
-// sorted. For a known q only single confusions are tried.
+// sorted. For a known q only single confusions are tried. Variants are
+// built in scratch buffers and looked up without allocating.
 func (c *Corrector) expansions(s *scratch, q string, known bool, floor float64) []string {
-	if s.vars == nil {
-		s.vars = make(map[string]float64)
-	}
-	clear(s.vars)
-	found := s.found[:0]
-	frontier := s.frontier[:0]
-	type variant struct {
-		w    string
-		logp float64
-	}
 	floor = max(floor, minExpand2LogP)
-	level := func(w string, acc float64, first bool) {
+	if s.seenH == nil {
+		s.seenH = make(map[uint64]struct{})
+	}
+	clear(s.seenH)
+	if known {
+		if s.logp == nil {
+			s.logp = make(map[string]float64)
+		}
+		clear(s.logp)
+	}
+	found := s.found[:0]
+	s.arena, s.front = s.arena[:0], s.front[:0]
+	level := func(w []byte, acc float64, first bool) {
 		for k := 0; k < len(w); k++ {
 			if w[k]&0xc0 == 0x80 {
 				continue // inside a multi-byte rune
@@ -543,36 +567,96 @@ func (c *Corrector) expansions(s *scratch, q string, known bool, floor float64) 
 				if acc+x.logp <= floor || x.logp < minExpandLogP {
 					break // sorted, most likely first
 				}
-				if !strings.HasPrefix(w[k:], x.to) {
+				if !hasPrefix(w[k:], x.to) {
 					continue
 				}
-				v := w[:k] + x.from + w[k+len(x.to):]
-				if _, ok := s.vars[v]; ok || len(s.vars) >= 2*maxExpansions {
+				v := append(append(append(s.vbuf[:0], w[:k]...), x.from...), w[k+len(x.to):]...)
+				s.vbuf = v
+				h := hashBytes(v)
+				if _, ok := s.seenH[h]; ok || len(s.seenH) >= 2*maxExpansions {
 					continue
 				}
-				s.vars[v] = acc + x.logp
-				if c.lex.Has(v) && indexable(v) {
-					found = append(found, v)
+				s.seenH[h] = struct{}{}
+				if id, ok := c.ix.id[string(v)]; ok {
+					found = append(found, c.ix.words[id])
+					if known {
+						s.logp[c.ix.words[id]] = acc + x.logp
+					}
 				} else if first {
-					frontier = append(frontier, v)
+					s.front = append(s.front, frontier{off: len(s.arena), n: len(v), logp: acc + x.logp})
+					s.arena = append(s.arena, v...)
 				}
 			}
 		}
 	}
-	level(q, 0, true)
+	s.qbuf = append(s.qbuf[:0], q...)
+	level(s.qbuf, 0, true)
 	if !known {
 		// Second confusions only from the likeliest first ones.
-		sort.SliceStable(frontier, func(i, j int) bool { return s.vars[frontier[i]] > s.vars[frontier[j]] })
-		for i, v := range frontier {
+		sort.SliceStable(s.front, func(i, j int) bool { return s.front[i].logp > s.front[j].logp })
+		for i, f := range s.front {
 			if len(found) >= maxExpansions || i == maxFrontier {
 				break
 			}
-			level(v, s.vars[v], false)
+			level(s.arena[f.off:f.off+f.n], f.logp, false)
 		}
 	}
 	sort.Strings(found)
-	s.found, s.frontier = found, frontier
+	s.found = found
 	return found
+}
+
+// neighbour is a lexicon word one learned confusion away from another, with
+// that confusion's log probability.
+type neighbour struct {
+	word string
+	logp float64
+}
+
+// maxCached bounds the words whose neighbours are remembered.
+const maxCached = 200_000
+
+// realWordNeighbours returns the lexicon words one likely confusion away
+// from the lexicon word q, remembered per Corrector (words recur).
+func (c *Corrector) realWordNeighbours(s *scratch, q string) []neighbour {
+	if v, ok := c.neigh.Load(q); ok {
+		return v.([]neighbour)
+	}
+	var ns []neighbour
+	for _, w := range c.expansions(s, q, true, minExpandLogP) {
+		ns = append(ns, neighbour{w, s.logp[w]})
+	}
+	if c.cached.Add(1) <= maxCached {
+		c.neigh.Store(q, ns)
+	}
+	return ns
+}
+
+// frontier is a one-confusion variant kept in scratch.arena.
+type frontier struct {
+	off, n int
+	logp   float64
+}
+
+func hasPrefix(b []byte, p string) bool {
+	if len(b) < len(p) {
+		return false
+	}
+	for i := 0; i < len(p); i++ {
+		if b[i] != p[i] {
+			return false
+		}
+	}
+	return true
+}
+
+func hashBytes(b []byte) uint64 {
+	h := uint64(fnvOffset)
+	for _, c := range b {
+		h ^= uint64(c)
+		h *= fnvPrime
+	}
+	return h
 }
 
 // bestSplit finds the likeliest split of q into two lexicon words.

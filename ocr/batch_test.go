@@ -26,7 +26,7 @@ func corpus(t *testing.T, n int, bad ...int) []string {
 		if contains(bad, i) {
 			os.WriteFile(p, []byte("not a picture"), 0o644)
 		} else {
-			ocrtest.WritePNG(t, p, page(60+i, 40))
+			ocrtest.WritePNG(t, p, page(120+i, 80))
 		}
 		paths = append(paths, p)
 	}

@@ -46,7 +46,7 @@ func Process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 	if o.NoPrepare {
 		t := time.Now()
 		p = &Prepared{Image: toGray(src), Binarization: "none", ToOriginal: func(b Box) Box { return b }}
-		rec.TimingsMS["grey"] = ms(time.Since(t))
+		rec.TimingsMS["gray"] = ms(time.Since(t))
 	} else {
 		var err error
 		p, err = Prepare(src, o.Prep)

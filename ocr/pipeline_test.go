@@ -18,16 +18,23 @@ import (
 	"recto/ocr/ocrtest"
 )
 
-// page returns a w×h white greyscale page with a dark bar, enough for the
-// preparation not to call it blank.
+// page returns a w×h white greyscale page with four lines of dark
+// word-sized bars, enough ink for the preparation not to call it blank.
 func page(w, h int) *image.Gray {
 	g := image.NewGray(image.Rect(0, 0, w, h))
 	for i := range g.Pix {
 		g.Pix[i] = 255
 	}
-	for y := h / 3; y < h/3+h/20+1; y++ {
-		for x := w / 5; x < w*4/5; x++ {
-			g.SetGray(x, y, color.Gray{Y: 20})
+	lh := max(3, h/12)
+	for line := range 4 {
+		y0 := h/6 + line*2*lh
+		for x := w / 8; x < w*7/8; x++ {
+			if (x/6)%4 == 3 { // gaps between words
+				continue
+			}
+			for y := y0; y < y0+lh && y < h; y++ {
+				g.SetGray(x, y, color.Gray{Y: 20})
+			}
 		}
 	}
 	return g
@@ -95,13 +102,13 @@ func TestProcessDefaultsAndKeepImage(t *testing.T) {
 func TestProcessErrors(t *testing.T) {
 	boom := errors.New("engine exploded")
 	eng := &ocrtest.Engine{Func: func(context.Context, *image.Gray, int) ([]ocr.Word, error) { return nil, boom }}
-	rec, img, err := ocr.Process(context.Background(), eng, page(50, 50), 0, ocr.Options{})
+	rec, img, err := ocr.Process(context.Background(), eng, page(120, 80), 0, ocr.Options{})
 	if !errors.Is(err, boom) || rec != nil || img != nil {
 		t.Errorf("engine failure: got %v, %v, %v", rec, img, err)
 	}
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
-	if _, _, err := ocr.Process(ctx, &ocrtest.Engine{}, page(50, 50), 0, ocr.Options{}); !errors.Is(err, context.Canceled) {
+	if _, _, err := ocr.Process(ctx, &ocrtest.Engine{}, page(120, 80), 0, ocr.Options{}); !errors.Is(err, context.Canceled) {
 		t.Errorf("cancelled context: err %v", err)
 	}
 	if _, _, err := ocr.Process(context.Background(), &ocrtest.Engine{}, image.NewGray(image.Rect(0, 0, 0, 0)), 0, ocr.Options{}); err == nil {

@@ -114,27 +114,3 @@ func clamp8(v float64) uint8 {
 	}
 	return uint8(math.Round(v))
 }
-
-func TestSmoke(t *testing.T) {
-	for _, tc := range []struct {
-		name string
-		img  *image.Gray
-	}{
-		{"clean", a4(t, 300)},
-		{"noisy", func() *image.Gray { g := a4(t, 300); addNoise(g, 40, 1); return g }()},
-		{"uneven", func() *image.Gray { g := a4(t, 300); unevenLight(g, 0.4); return g }()},
-		{"skew7", skewed(a4(t, 300), 7)},
-		{"skew-3.3", skewed(a4(t, 300), -3.3)},
-		{"blank", drawPage(t, 2480, 3508, 300, "", 235, 30)},
-		{"blanknoisy", func() *image.Gray { g := drawPage(t, 2480, 3508, 300, "", 235, 30); addNoise(g, 40, 2); return g }()},
-	} {
-		p, err := Prepare(tc.img, PrepOptions{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		t.Logf("%s: skew %.3f bin %s thr %d noise %.1f bg %.0f blank %v", tc.name, p.Skew, p.Binarization, p.Threshold, p.Noise, p.Background, p.Blank)
-		for _, s := range p.Steps {
-			t.Logf("   %-9s %v %6.1fms %s", s.Name, s.Applied, s.Duration.Seconds()*1000, s.Detail)
-		}
-	}
-}

@@ -1,5 +1,10 @@
 package quality
 
+import (
+	"math"
+	"slices"
+)
+
 // OpKind is the kind of one alignment step.
 type OpKind uint8
 
@@ -46,22 +51,28 @@ func Cost(ops []Op) int {
 // Align returns an optimal alignment of ref and hyp, in order: the
 // reference is the R of every op but OpIns, the hypothesis the H of every
 // op but OpDel, and the number of non-match ops equals Distance(ref, hyp).
-// Among optimal alignments it prefers, reading from the end, a match, then
-// a substitution, a deletion, an insertion.
+// Every symbol of a common prefix or suffix is matched.
 //
-// Complexity: O((n+m) + D²) time in the usual case, O((n+m)·D) at worst;
-// O(n+m) memory. Small problems (D ≤ storedMax) keep every wavefront
-// (O(D²) memory) and trace back through them. Larger ones are split at a
-// cell of an optimal path found by running the wavefronts forward from the
-// start and backward from the end until they meet, as in Hirschberg's
-// divide and conquer (Hirschberg 1975, "A linear space algorithm for
-// computing maximal common subsequences") and the bidirectional wavefront
-// aligner (Marco-Sola et al. 2023, "Optimal gap-affine alignment in O(s)
-// space"); each half has about half the distance, so the total time is
-// about twice that of Distance and the memory stays linear.
+// Method: when the distance D is small (D ≤ 512 and D² below the bit-vector
+// cost) every diagonal-transition round is kept and traced back (O(D²)
+// memory, at most about 2 MB). Otherwise the problem is split at a cell of
+// an optimal path and each half is aligned in turn (Hirschberg 1975, "A
+// linear space algorithm for computing maximal common subsequences"): the
+// cell is found either by running the rounds forward from the start and
+// backward from the end until they meet (as in the bidirectional wavefront
+// aligner, Marco-Sola et al. 2023, "Optimal gap-affine alignment in O(s)
+// space") or, when D is large, from two bit-vector columns at the middle of
+// hyp (bitSplit).
+//
+// Complexity, with n = len(ref), m = len(hyp): about twice Distance's time,
+// O(n + m + min(D², ⌈n/64⌉·m)) in the usual case; O(n + m) memory besides
+// the at most 2 MB of stored rounds and the result.
 func Align(ref, hyp []rune) []Op {
 	var s Scratch
-	return s.Align(ref, hyp, nil)
+	// An alignment has between max(n, m) and n+m ops; this covers a few
+	// per cent of edits without growing.
+	l := max(len(ref), len(hyp))
+	return s.Align(ref, hyp, make([]Op, 0, l+l/32+16))
 }
 
 // Align is Align with reusable scratch; it appends the ops to dst and
@@ -75,12 +86,17 @@ func (s *Scratch) Align(ref, hyp []rune, dst []Op) []Op {
 const storedMax = 512
 
 type aligner struct {
-	limit  int     // largest distance traced back with stored wavefronts; 0 means storedMax
-	waves  []int32 // stored wavefronts, round after round
-	start  []int   // start[s] = index in waves of round s's diagonal lo(s)
-	f0, f1 []int32
-	b0, b1 []int32
-	ra, rb []rune // reversed inputs for the backward search
+	bv   bitState
+	colF []int32 // forward column of bitSplit
+	bag  bagCounter
+	// noWaveSplit skips the bidirectional wavefront split (for tests)
+	noWaveSplit bool
+	limit       int     // largest distance traced back with stored wavefronts; 0 means storedMax
+	waves       []int32 // stored wavefronts, round after round
+	start       []int   // start[s] = index in waves of round s's diagonal lo(s)
+	f0, f1      []int32
+	b0, b1      []int32
+	ra, rb      []rune // reversed inputs for the backward search
 }
 
 func (al *aligner) align(a, b []rune, dst []Op) []Op {
@@ -104,7 +120,10 @@ func (al *aligner) align(a, b []rune, dst []Op) []Op {
 }
 
 // alignCore appends an optimal alignment of a and b; d is their distance
-// when known, or -1.
+// when known, or -1. It picks, by estimated cost, between the wavefront
+// traceback with stored rounds (about d² steps), the bidirectional
+// wavefront split (about d² steps, linear memory) and the bit-vector
+// split (about 2·⌈n/64⌉·m word steps, linear memory).
 func (al *aligner) alignCore(a, b []rune, d int, dst []Op) []Op {
 	n, m := len(a), len(b)
 	switch {
@@ -123,19 +142,120 @@ func (al *aligner) alignCore(a, b []rune, d int, dst []Op) []Op {
 			dst = append(dst, Op{OpMatch, a[i], b[i]})
 		}
 		return dst
+	case n == 1 || m == 1:
+		return alignOne(a, b, dst)
 	}
 	limit := al.limit
 	if limit == 0 {
 		limit = storedMax
+		if (n+1)*(m+1) <= smallCells {
+			limit = n + m // a small table: the stored rounds always fit
+		}
 	}
-	if d <= limit { // also when d is unknown (-1)
-		if ops, ok := al.stored(a, b, limit, dst); ok {
+	bitCost := ((n + 63) / 64) * m
+	wavefronts := true // whether d² is thought to be within bitCost
+	switch {
+	case d < 0:
+		// Try the stored rounds for a while: half the bit-vector cost,
+		// so that a large distance wastes little before the columns;
+		// not at all when the bag distance, a lower bound, is beyond.
+		l := limit
+		if l*l > bitCost/2 {
+			l = isqrt(bitCost / 2)
+		}
+		lb := al.bag.bound(a, b)
+		if lb <= l {
+			if ops, ok := al.stored(a, b, l, dst); ok {
+				return ops
+			}
+		}
+		// d > l, or d >= lb > l
+		wavefronts = l == limit && lb*lb <= bitCost
+	case d*d > bitCost:
+		wavefronts = false
+	case d <= limit:
+		if ops, ok := al.stored(a, b, d, dst); ok {
 			return ops
 		}
 	}
-	i, j, df, db := al.split(a, b)
+	if wavefronts && !al.noWaveSplit {
+		if i, j, df, db, ok := al.split(a, b, bitCost); ok {
+			dst = al.alignCore(a[:i], b[:j], df, dst)
+			return al.alignCore(a[i:], b[j:], db, dst)
+		}
+	}
+	i, j, df, db := al.bitSplit(a, b)
 	dst = al.alignCore(a[:i], b[:j], df, dst)
 	return al.alignCore(a[i:], b[j:], db, dst)
+}
+
+// smallCells is the table size (cells) below which the stored rounds are
+// used whatever the distance.
+const smallCells = 1 << 12
+
+func isqrt(x int) int {
+	r := int(math.Sqrt(float64(x)))
+	for r*r > x {
+		r--
+	}
+	for (r+1)*(r+1) <= x {
+		r++
+	}
+	return r
+}
+
+// alignOne aligns when a or b has one symbol: match it with the first
+// equal symbol of the other string if there is one, else substitute it
+// for the first symbol; every other symbol is deleted or inserted.
+func alignOne(a, b []rune, dst []Op) []Op {
+	if len(b) == 1 {
+		p := max(slices.Index(a, b[0]), 0)
+		for i, r := range a {
+			switch {
+			case i != p:
+				dst = append(dst, Op{OpDel, r, 0})
+			case r == b[0]:
+				dst = append(dst, Op{OpMatch, r, r})
+			default:
+				dst = append(dst, Op{OpSub, r, b[0]})
+			}
+		}
+		return dst
+	}
+	p := max(slices.Index(b, a[0]), 0)
+	for j, r := range b {
+		switch {
+		case j != p:
+			dst = append(dst, Op{OpIns, 0, r})
+		case r == a[0]:
+			dst = append(dst, Op{OpMatch, r, r})
+		default:
+			dst = append(dst, Op{OpSub, a[0], r})
+		}
+	}
+	return dst
+}
+
+// bitSplit is Hirschberg's split (Hirschberg 1975) with the columns
+// computed by the bit-vector method: D(i, mid) from the start for every i,
+// the cost from (i, mid) to the end from the reversed strings, and the i
+// with the least sum is on an optimal path. It needs len(b) >= 2.
+//
+// Complexity: O(⌈n/64⌉·m) time, O(n) memory.
+func (al *aligner) bitSplit(a, b []rune) (i, j, df, db int) {
+	n, m := len(a), len(b)
+	mid := m / 2
+	al.colF = append(al.colF[:0], al.bv.column(a, b[:mid])...)
+	al.ra = reversed(al.ra, a)
+	al.rb = reversed(al.rb, b[mid:])
+	colB := al.bv.column(al.ra, al.rb)
+	best := -1
+	for k := 0; k <= n; k++ {
+		if c := int(al.colF[k] + colB[n-k]); best < 0 || c < best {
+			best, i = c, k
+		}
+	}
+	return i, mid, int(al.colF[i]), int(colB[n-i])
 }
 
 // stored runs the wavefronts keeping each round, up to limit rounds, and
@@ -239,17 +359,22 @@ func reverseOps(ops []Op) {
 // the forward furthest row passes the backward one: the cell at the
 // backward row then costs at most sf from the start and at most sb to the
 // end, and sf+sb cannot undercut the distance. With rounds taken in turn
-// that first meeting happens when sf+sb equals the distance.
-func (al *aligner) split(a, b []rune) (i, j, df, db int) {
+// that first meeting happens when sf+sb equals the distance. It gives up
+// (ok false) once the rounds have cost about budget steps (sf²+sb²).
+func (al *aligner) split(a, b []rune, budget int) (i, j, df, db int, ok bool) {
 	n, m := len(a), len(b)
 	al.ra = reversed(al.ra, a)
 	al.rb = reversed(al.rb, b)
-	size := n + m + 3
+	// Rounds stop once sf²+sb² > budget, so sf, sb <= smax and the
+	// wavefronts need only the diagonals -min(n, smax)-1 .. min(m, smax)+1
+	// (the same for the backward ones, whose strings have the same lengths).
+	smax := isqrt(budget) + 1
+	off := min(n, smax) + 1
+	size := off + min(m, smax) + 2
 	al.f0 = fillUnreached(al.f0, size)
 	al.f1 = fillUnreached(al.f1, size)
 	al.b0 = fillUnreached(al.b0, size)
 	al.b1 = fillUnreached(al.b1, size)
-	off := n + 1
 	fprev, fcur := al.f0, al.f1
 	bprev, bcur := al.b0, al.b1
 	fprev[off] = int32(slide(a, b, 0, 0))
@@ -271,6 +396,9 @@ func (al *aligner) split(a, b []rune) (i, j, df, db int) {
 		return 0, false
 	}
 	for t := 1; ; t++ {
+		if sf*sf+sb*sb > budget {
+			return 0, 0, 0, 0, false
+		}
 		if t%2 == 1 {
 			sf++
 			nextRound(a, b, fprev, fcur, off, max(-sf, -n), min(sf, m))
@@ -282,7 +410,7 @@ func (al *aligner) split(a, b []rune) (i, j, df, db int) {
 		}
 		if k, ok := meet(); ok {
 			i = n - int(bprev[m-n-k+off])
-			return i, i + k, sf, sb
+			return i, i + k, sf, sb, true
 		}
 	}
 }

@@ -13,7 +13,12 @@ type Sample struct {
 	ID     string   // page identifier, e.g. its path relative to the OCR folder
 	Record Features // features of the page record; FromRecord false when there was only text
 	Text   Features // features of the page's plain text
-	CER    float64  // measured CER against ground truth
+	CER    float64  // measured CER against ground truth; 0 when EmptyTruth
+
+	// EmptyTruth marks a page whose ground truth is empty (a blank page):
+	// its CER is undefined, Fit leaves it out and Evaluate only checks
+	// that it was decided blank or picture.
+	EmptyTruth bool
 }
 
 // features returns the features the model uses for s.
@@ -43,7 +48,8 @@ const MinFitPages = 20
 // Fit fits a Model on ground-truthed samples: a ridge regression for page
 // records and one for plain text, each with its penalty chosen by k-fold
 // cross-validation (folds drawn with the seed, so fitting is reproducible).
-// Blank pages are left out: triage decides them without the model.
+// Blank pages and pages without any recognised token are left out: triage
+// decides them without the model.
 func Fit(samples []Sample, o FitOptions) (*Model, error) {
 	if o.Seed == 0 {
 		o.Seed = 1
@@ -61,12 +67,15 @@ func Fit(samples []Sample, o FitOptions) (*Model, error) {
 	var recY, txtY []float64
 	for i := range samples {
 		s := &samples[i]
+		if s.EmptyTruth {
+			continue
+		}
 		y := math.Log(math.Min(math.Max(s.CER, 0), 1) + o.Offset)
-		if s.Record.FromRecord && !s.Record.Blank {
+		if s.Record.FromRecord && !s.Record.Blank && s.Record.Tokens > 0 {
 			recX = append(recX, s.Record)
 			recY = append(recY, y)
 		}
-		if !s.Text.Blank {
+		if !s.Text.Blank && s.Text.Tokens > 0 {
 			txtX = append(txtX, s.Text)
 			txtY = append(txtY, y)
 		}
@@ -123,7 +132,17 @@ func fitLinear(fs []Features, y []float64, names []string, o FitOptions) Linear 
 			best, bestErr = lam, sse
 		}
 	}
-	return ridge(X, y, names, best)
+	l := ridge(X, y, names, best)
+	// Duan's smearing factor: the mean of exp(residual) over the fitting
+	// pages turns a prediction of log(CER + Offset) into an estimate of the
+	// mean CER instead of its median (Duan, "Smearing estimate: a
+	// nonparametric retransformation method", JASA 78, 1983).
+	var smear float64
+	for i := range X {
+		smear += math.Exp(y[i] - l.predictRow(X[i]))
+	}
+	l.Smear = smear / float64(n)
+	return l
 }
 
 // ridge fits y ≈ a + Σ b_j·(x_j − mean_j)/sd_j minimising squared error plus
@@ -252,7 +271,7 @@ func Split(samples []Sample, share float64, seed int64) (fit, held []Sample) {
 
 // Evaluation reports how well a model's estimates match measured CER.
 type Evaluation struct {
-	Pages    int     `json:"pages"`    // pages evaluated
+	Pages    int     `json:"pages"`    // pages evaluated (with ground truth)
 	Spearman float64 `json:"spearman"` // rank correlation of predicted against measured CER (NaN if undefined)
 	MAE      float64 `json:"mae"`      // mean absolute error of predicted CER
 
@@ -267,13 +286,16 @@ type Evaluation struct {
 	CleanAccepted float64 `json:"clean_accepted"` // share of those decided accept (NaN when none)
 
 	Decisions map[string]int `json:"decisions"` // pages per decision
+
+	EmptyTruth   int `json:"empty_truth"`    // pages with empty ground truth (not in the figures above)
+	EmptyAsBlank int `json:"empty_as_blank"` // of those, decided blank or picture
 }
 
 // Evaluate runs Triage on every sample and compares with measured CER.
 // Spearman and MAE are computed over pages that are not blank.
 func Evaluate(m *Model, samples []Sample, t Thresholds) Evaluation {
 	t = t.withDefaults()
-	e := Evaluation{Pages: len(samples), RescanAbove: t.Rescan, Decisions: map[string]int{}}
+	e := Evaluation{RescanAbove: t.Rescan, Decisions: map[string]int{}}
 	var pred, meas []float64
 	var cleanAcc int
 	for i := range samples {
@@ -281,6 +303,13 @@ func Evaluate(m *Model, samples []Sample, t Thresholds) Evaluation {
 		f := s.features()
 		v := Triage(f, m, t)
 		e.Decisions[v.Decision]++
+		if s.EmptyTruth {
+			e.EmptyTruth++
+			if v.Decision == DecisionBlank || v.Decision == DecisionPicture {
+				e.EmptyAsBlank++
+			}
+			continue
+		}
 		if !f.Blank {
 			pred = append(pred, v.PredictedCER)
 			meas = append(meas, s.CER)
@@ -302,6 +331,7 @@ func Evaluate(m *Model, samples []Sample, t Thresholds) Evaluation {
 			}
 		}
 	}
+	e.Pages = len(samples) - e.EmptyTruth
 	if len(pred) > 0 {
 		e.MAE /= float64(len(pred))
 	}

@@ -85,7 +85,7 @@ type Report struct {
 	Missing    []string         // pages scored as empty because their hypothesis is missing
 	Unmatched  []string         // hypothesis files (paths under the OCR root) with no reference
 	Failed     []*FileError     // references not scored and hypotheses not read, sorted by file
-	Confusions []ConfusionCount // most frequent first; only with DirConfig.Confusions > 0
+	Confusions []ConfusionCount // most frequent first, over pages with status ok; only with DirConfig.Confusions > 0
 }
 
 // Partial reports whether some page was missing or unreadable.
@@ -96,7 +96,7 @@ func (r *Report) Partial() bool { return len(r.Missing) > 0 || len(r.Failed) > 0
 // bootstrap.
 type DirConfig struct {
 	Norm       NormOptions
-	Confusions int    // keep this many of the most frequent confusions; 0 means none
+	Confusions int    // keep this many of the most frequent confusions (pages whose hypothesis was read); 0 means none
 	Workers    int    // pages scored at once; 0 means GOMAXPROCS
 	Resamples  int    // bootstrap resamples per title; 0 means DefaultResamples
 	Seed       uint64 // bootstrap seed; 0 means DefaultSeed
@@ -124,7 +124,9 @@ func ScoreDirs(ctx context.Context, truth, ocr string, cfg DirConfig) (*Report, 
 		}
 	}
 	rep := &Report{Norm: cfg.Norm}
-	refs, err := listText(truth, func(fe *FileError) {
+	// When one root lies inside the other (--ocr gt/ocr), each walk skips
+	// the other root, so OCR output is never taken for ground truth.
+	refs, err := listText(truth, ocr, func(fe *FileError) {
 		fe.Role = "reference"
 		rep.Failed = append(rep.Failed, fe)
 	})
@@ -134,7 +136,7 @@ func ScoreDirs(ctx context.Context, truth, ocr string, cfg DirConfig) (*Report, 
 	if len(refs) == 0 {
 		return nil, fmt.Errorf("quality: no reference pages (*.txt) under %q", truth)
 	}
-	hyps, err := listText(ocr, func(*FileError) {}) // unreadable hypotheses show up when read
+	hyps, err := listText(ocr, truth, func(*FileError) {}) // unreadable hypotheses show up when read
 	if err != nil {
 		return nil, err
 	}
@@ -198,7 +200,7 @@ func ScoreDirs(ctx context.Context, truth, ocr string, cfg DirConfig) (*Report, 
 				}
 				res.page.Counts = s.Compare(ref, hyp, cfg.Norm)
 				res.scored = true
-				if cfg.Confusions > 0 {
+				if cfg.Confusions > 0 && res.page.Status == StatusOK {
 					ops = s.Align([]rune(Normalize(ref, cfg.Norm)), []rune(Normalize(hyp, cfg.Norm)), ops[:0])
 					res.conf = make(map[Confusion]int)
 					for _, c := range Group(ops) {
@@ -286,11 +288,18 @@ func Summarize(pages []PageScore, resamples int, seed uint64) ([]TitleScore, Cou
 }
 
 // listText returns the '/'-separated paths of the "*.txt" files under
-// root, sorted. A directory whose name ends in ".txt" and a directory that
-// cannot be listed are passed to bad (and the walk goes on).
-func listText(root string, bad func(*FileError)) ([]string, error) {
+// root, sorted, leaving out the directory skip (the other root) if it lies
+// inside. A directory whose name ends in ".txt" and a directory that cannot
+// be listed are passed to bad (and the walk goes on).
+func listText(root, skip string, bad func(*FileError)) ([]string, error) {
 	var out []string
+	skipInfo, skipErr := os.Stat(skip)
 	err := filepath.WalkDir(root, func(p string, d fs.DirEntry, err error) error {
+		if err == nil && d.IsDir() && p != root && skipErr == nil {
+			if fi, err := os.Stat(p); err == nil && os.SameFile(fi, skipInfo) {
+				return fs.SkipDir
+			}
+		}
 		if err != nil {
 			if p == root {
 				return fmt.Errorf("quality: %w", err)

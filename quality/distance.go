@@ -16,6 +16,11 @@ package quality
 // or insertion, then slides along runs of equal symbols. The distance is the
 // first s at which diagonal len(b)-len(a) reaches the last row.
 
+// bitSwitch weighs a wavefront step against a bit-vector block step when
+// Distance decides to change method (see Scratch.Distance); measured with
+// BenchmarkDistance.
+var bitSwitch = 1
+
 // unreached marks a diagonal no round has reached yet; adding a few edits
 // to it stays far below every real row.
 const unreached = -1 << 30
@@ -27,33 +32,58 @@ const unreached = -1 << 30
 type Scratch struct {
 	w0, w1 []int32 // two wavefronts, indexed by diagonal + len(a) + 1
 	al     aligner // Align's buffers
+	bv     bitState
+	bag    bagCounter
 }
 
 // Distance returns the Levenshtein distance between a and b, counted in
 // symbols (code points for text). It allocates nothing once s has grown to
 // the sizes it needs.
 //
-// Complexity: O((n+m) + D²) time in the usual case and O((n+m)·D) at worst,
-// where n = len(a), m = len(b) and D is the distance; O(n+m) memory. For OCR
-// text D is a small fraction of n, so this beats the O(n·m) table by a wide
-// margin; for unrelated strings it is no better than the table.
+// It runs the diagonal-transition rounds and, should they cost more than
+// the bit-vector method would (D² > ⌈min(n,m)/64⌉·max(n,m)), finishes with
+// the bit-vector method instead (bitState.distance).
+//
+// Complexity: O(n + m + min(D², ⌈min(n,m)/64⌉·max(n,m))) time in the usual
+// case, where n = len(a), m = len(b) and D is the distance; O(n+m) memory.
+// For OCR text D is a small fraction of n, so this beats the O(n·m) table by
+// a wide margin; for unrelated strings it is about 64/2 times faster than
+// the table.
 func (s *Scratch) Distance(a, b []rune) int {
 	a, b = trimCommon(a, b)
 	n, m := len(a), len(b)
 	if n == 0 || m == 0 {
 		return n + m
 	}
-	size := n + m + 3
+	// The wavefronts cost about d² steps by round d, the bit vectors
+	// ⌈short/64⌉·long word steps whatever the distance: once the rounds
+	// have spent that much the distance is large, and the bit vectors
+	// finish the job in at most the same time again.
+	short, long := a, b
+	if n > m {
+		short, long = b, a
+	}
+	budget := bitSwitch * ((len(short) + 63) / 64) * len(long)
+	// Rounds stop by d = isqrt(budget), so the wavefronts need only the
+	// diagonals -min(n, dmax)-1 .. min(m, dmax)+1.
+	dmax := isqrt(budget)
+	off := min(n, dmax) + 1 // index of diagonal 0
+	size := off + min(m, dmax) + 2
 	s.w0 = fillUnreached(s.w0, size)
 	s.w1 = fillUnreached(s.w1, size)
 	prev, cur := s.w0, s.w1
-	off := n + 1 // index of diagonal 0
 	prev[off] = int32(slide(a, b, 0, 0))
 	target := m - n
 	if target == 0 && int(prev[off]) >= n {
 		return 0
 	}
+	// Past round check the distance is above check; if the bag distance
+	// (a lower bound) already shows it above √budget, stop the rounds now.
+	check := max(1, isqrt(budget/8))
 	for d := 1; ; d++ {
+		if d*d > budget || d == check && s.bag.bound(a, b) > dmax {
+			return s.bv.distance(short, long)
+		}
 		lo, hi := max(-d, -n), min(d, m)
 		nextRound(a, b, prev, cur, off, lo, hi)
 		if target >= lo && target <= hi && int(cur[target+off]) >= n {

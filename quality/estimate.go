@@ -133,8 +133,8 @@ func (p OCRPage) Features(lex *lexicon.Lexicon) (Features, error) {
 
 // Sample reads the page and its ground truth (UTF-8 text at truthPath) and
 // measures its CER with Compare under the default normalisation. It
-// returns an error naming the file when either cannot be read, and
-// ErrEmptyTruth when the ground truth has no characters.
+// returns an error naming the file when either cannot be read. A page whose
+// ground truth has no characters gets EmptyTruth set and CER 0.
 func (p OCRPage) Sample(truthPath string, lex *lexicon.Lexicon) (Sample, error) {
 	rec, text, err := p.Read()
 	if err != nil {
@@ -148,19 +148,12 @@ func (p OCRPage) Sample(truthPath string, lex *lexicon.Lexicon) (Sample, error) 
 		return Sample{}, fmt.Errorf("quality: %q: ground truth is not valid UTF-8", truthPath)
 	}
 	cer, ok := Compare(string(ref), text, NormOptions{}).CER()
-	if !ok {
-		return Sample{}, fmt.Errorf("quality: %q: %w", truthPath, ErrEmptyTruth)
-	}
-	s := Sample{ID: p.Rel, Text: TextFeatures(text, lex), CER: cer}
+	s := Sample{ID: p.Rel, Text: TextFeatures(text, lex), CER: cer, EmptyTruth: !ok}
 	if rec != nil {
 		s.Record = PageFeatures(rec, lex)
 	}
 	return s, nil
 }
-
-// ErrEmptyTruth is returned by OCRPage.Sample when the ground truth of a
-// page is empty: CER is undefined.
-var ErrEmptyTruth = errors.New("ground truth is empty; CER is undefined")
 
 // TruthPath returns where the ground truth of p lies under truthDir.
 func (p OCRPage) TruthPath(truthDir string) string {
@@ -170,8 +163,8 @@ func (p OCRPage) TruthPath(truthDir string) string {
 // LoadSamples pairs every page under ocrDir with its ground truth under
 // truthDir (same relative path, .txt) and measures its CER. Pages that
 // cannot be used are returned as problems, each naming its file, and do not
-// stop the others: a page without ground truth, with empty ground truth,
-// or whose record cannot be read. err is non-nil only when ocrDir cannot be
+// stop the others: a page without ground truth or whose record cannot be read. Pages with empty ground truth are
+// returned as samples with EmptyTruth set. err is non-nil only when ocrDir cannot be
 // listed or truthDir is not a folder.
 func LoadSamples(ocrDir, truthDir string, lex *lexicon.Lexicon) (samples []Sample, problems []error, err error) {
 	pages, err := FindOCRPages(ocrDir)

@@ -54,7 +54,7 @@ func TestDistanceAgainstTable(t *testing.T) {
 		if want > 0 && len(a) > 0 && len(b) > 0 {
 			checkOps(t, a, b, al.align(a, b, nil), want)
 			if want > 1 {
-				i, j, df, db := al.split(a, b)
+				i, j, df, db, _ := al.split(a, b, 1<<30)
 				if df+db != want || tableDistance(a[:i], b[:j]) != df || tableDistance(a[i:], b[j:]) != db {
 					t.Fatalf("split(%q, %q) = %d,%d,%d,%d; distance %d", string(a), string(b), i, j, df, db, want)
 				}
@@ -89,5 +89,95 @@ func checkOps(t testing.TB, a, b []rune, ops []Op, want int) {
 	}
 	if c := Cost(ops); c != want {
 		t.Fatalf("alignment of %q/%q costs %d, want %d", string(a), string(b), c, want)
+	}
+}
+
+// TestBitDistanceAgainstTable checks the bit-vector method on its own,
+// across block boundaries (64 rows) and with non-ASCII symbols.
+func TestBitDistanceAgainstTable(t *testing.T) {
+	rng := rand.New(rand.NewPCG(8, 9))
+	alphabets := [][]rune{[]rune("ab"), []rune("abcde é𝔄"), []rune("etaoinshrdlu ,.")}
+	var s Scratch
+	for it := range 800 {
+		n := rng.IntN(200)
+		a, b := randomPair(rng, alphabets[it%3], n, []float64{0, 0.1, 0.5, 1}[it%4])
+		if it%5 == 0 {
+			a, b = b, a
+		}
+		if want, got := tableDistance(a, b), s.bv.distance(a, b); got != want {
+			t.Fatalf("bitDistance(%q, %q) = %d, want %d", string(a), string(b), got, want)
+		}
+		if len(b) > 0 {
+			mid := rng.IntN(len(b) + 1)
+			col := s.bv.column(a, b[:mid])
+			want := tableColumn(a, b[:mid])
+			for i := range col {
+				if int(col[i]) != want[i] {
+					t.Fatalf("column(%q, %q)[%d] = %d, want %d", string(a), string(b[:mid]), i, col[i], want[i])
+				}
+			}
+		}
+	}
+}
+
+// tableColumn returns D(i, len(b)) for i = 0..len(a) by the textbook table.
+func tableColumn(a, b []rune) []int {
+	row := make([]int, len(b)+1)
+	for j := range row {
+		row[j] = j
+	}
+	col := []int{len(b)}
+	for i := 1; i <= len(a); i++ {
+		diag := row[0]
+		row[0] = i
+		for j := 1; j <= len(b); j++ {
+			up := row[j]
+			c := diag
+			if a[i-1] != b[j-1] {
+				c++
+			}
+			row[j] = min(c, up+1, row[j-1]+1)
+			diag = up
+		}
+		col = append(col, row[len(b)])
+	}
+	return col
+}
+
+// TestBitSplit checks Hirschberg's split with bit-vector columns against
+// the table on random pairs, and the alignment that uses it throughout.
+func TestBitSplit(t *testing.T) {
+	rng := rand.New(rand.NewPCG(10, 11))
+	alphabets := [][]rune{[]rune("ab"), []rune("abcde é𝔄"), []rune("etaoinshrdlu ,.")}
+	for it := range 600 {
+		a, b := randomPair(rng, alphabets[it%3], 2+rng.IntN(150), []float64{0.05, 0.3, 1}[it%3])
+		if len(b) < 2 {
+			continue
+		}
+		var al aligner
+		want := tableDistance(a, b)
+		i, j, df, db := al.bitSplit(a, b)
+		if df+db != want || tableDistance(a[:i], b[:j]) != df || tableDistance(a[i:], b[j:]) != db {
+			t.Fatalf("bitSplit(%q, %q) = %d,%d,%d,%d; distance %d", string(a), string(b), i, j, df, db, want)
+		}
+		// limit 1 and no wavefront split: every level splits by columns
+		al = aligner{limit: 1, noWaveSplit: true}
+		checkOps(t, a, b, al.align(a, b, nil), want)
+	}
+}
+
+// TestBagBound: the bag distance never exceeds the edit distance
+// (Bartolini, Ciaccia and Patella 2002).
+func TestBagBound(t *testing.T) {
+	rng := rand.New(rand.NewPCG(12, 13))
+	var c bagCounter
+	for it := range 2000 {
+		a, b := randomPair(rng, []rune("abcé𝔄 "), rng.IntN(60), []float64{0.1, 0.5, 1}[it%3])
+		if lb, d := c.bound(a, b), tableDistance(a, b); lb > d {
+			t.Fatalf("bag bound %d > distance %d for %q, %q", lb, d, string(a), string(b))
+		}
+	}
+	if got := c.bound([]rune("abc"), []rune("xbcd")); got != 2 {
+		t.Errorf("bound(abc, xbcd) = %d, want 2", got)
 	}
 }

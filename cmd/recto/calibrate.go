@@ -70,10 +70,10 @@ The model written to --out is the one that was judged; use it with
 	f.StringVar(&o.Truth, "truth", "", "`folder` of ground truth, <page>.txt at the same relative paths")
 	f.StringVar(&o.Out, "out", "", "write the fitted model to this `file` (JSON)")
 	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` (default: embedded English)")
-	f.Float64Var(&o.Holdout, "holdout", 0.3, "share of pages held out for the report (`fraction`)")
-	f.Int64Var(&o.Seed, "seed", 1, "`seed` of the hold-out split and cross-validation folds")
-	f.Float64Var(&o.Rescan, "rescan", quality.DefaultRescan, "declared rescan threshold on CER (`fraction`)")
-	f.Float64Var(&o.Correct, "correct", quality.DefaultCorrect, "declared correct threshold on CER (`fraction`)")
+	f.Float64Var(&o.Holdout, "holdout", 0.3, "`share` of pages held out for the report")
+	f.Int64Var(&o.Seed, "seed", 1, "seed `n` of the hold-out split and cross-validation folds")
+	f.Float64Var(&o.Rescan, "rescan", quality.DefaultRescan, "rescan threshold declared before fitting, a `fraction` of CER")
+	f.Float64Var(&o.Correct, "correct", quality.DefaultCorrect, "correct threshold declared before fitting, a `fraction` of CER")
 	f.Float64Var(&o.Targets.Spearman, "target-spearman", 0.9, "declared target: minimum Spearman rank correlation")
 	f.Float64Var(&o.Targets.Recall, "target-recall", 0.95, "declared target: minimum recall of rescan")
 	f.Float64Var(&o.Targets.Precision, "target-precision", 0.85, "declared target: minimum precision of rescan")
@@ -162,6 +162,9 @@ func writeCalibrateText(w io.Writer, r calibrateReport) {
 	fmt.Fprintf(w, "  mean absolute error of predicted CER  %s\n", fmtFig(e.MAE, true))
 	fmt.Fprintf(w, "  rescan at predicted CER > %.0f%%: %d true, %d false alarms, %d missed\n", 100*e.RescanAbove, e.TruePos, e.FalsePos, e.FalseNeg)
 	fmt.Fprintf(w, "  clean pages (CER < 1%%): %d\n", e.Clean)
+	if e.EmptyTruth > 0 {
+		fmt.Fprintf(w, "  pages with empty ground truth: %d, of which decided blank or picture: %d\n", e.EmptyTruth, e.EmptyAsBlank)
+	}
 	keys := make([]string, 0, len(e.Decisions))
 	for k := range e.Decisions {
 		keys = append(keys, k)

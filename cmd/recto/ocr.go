@@ -179,7 +179,7 @@ func runOCR(ctx context.Context, o OCROptions, g GlobalOptions, args []string) e
 	// A missing language is the user's to fix: fail before any work.
 	have, err := tessLanguages()
 	if err != nil {
-		return fmt.Errorf("ocr: %w", err)
+		return err // names the engine's problem, e.g. ocr.ErrEngineUnavailable
 	}
 	for _, l := range strings.Split(cfg.Lang, "+") {
 		if !contains(have, l) {

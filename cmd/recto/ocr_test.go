@@ -1,6 +1,8 @@
 package main
 
 import (
+	"bytes"
+	"context"
 	"crypto/sha256"
 	"errors"
 	"image"
@@ -36,13 +38,21 @@ func fakeEngine(t *testing.T, langs ...string) *[]*ocrtest.Engine {
 	return &made
 }
 
+// testPage is a small page with four lines of word-sized bars: enough ink
+// for the preparation to send it to the engine.
 func testPage() *image.Gray {
-	g := image.NewGray(image.Rect(0, 0, 80, 50))
+	g := image.NewGray(image.Rect(0, 0, 120, 80))
 	for i := range g.Pix {
 		g.Pix[i] = 250
 	}
-	for x := 10; x < 70; x++ {
-		g.SetGray(x, 20, color.Gray{Y: 10})
+	for line := range 4 {
+		for y := 12 + line*14; y < 19+line*14; y++ {
+			for x := 15; x < 105; x++ {
+				if (x/6)%4 != 3 {
+					g.SetGray(x, y, color.Gray{Y: 10})
+				}
+			}
+		}
 	}
 	return g
 }
@@ -121,7 +131,7 @@ func TestOCRTree(t *testing.T) {
 		t.Errorf("text %q", txt)
 	}
 	rec, err := ocr.ReadRecord(filepath.Join(out, "box1", "p0001.json"))
-	if err != nil || rec.Source != filepath.Join(in, "box1", "p0001.png") || rec.Width != 80 {
+	if err != nil || rec.Source != filepath.Join(in, "box1", "p0001.png") || rec.Width != 120 {
 		t.Errorf("record %+v, %v", rec, err)
 	}
 	if len(*made) != 2 {
@@ -252,5 +262,25 @@ func TestOCRProgressLines(t *testing.T) {
 	}
 	if strings.Contains(stderr, "\r") {
 		t.Errorf("status redraws written to a non-terminal:\n%q", stderr)
+	}
+}
+
+func TestOCRInterrupted(t *testing.T) {
+	fakeEngine(t, "eng")
+	in := t.TempDir()
+	ocrtest.WritePNG(t, filepath.Join(in, "a.png"), testPage())
+	out := t.TempDir()
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	root := newRootCommand()
+	root.SetOut(new(bytes.Buffer))
+	root.SetErr(new(bytes.Buffer))
+	root.SetArgs([]string{"ocr", in, "--out", out})
+	err := root.ExecuteContext(ctx)
+	if !errors.Is(err, context.Canceled) {
+		t.Errorf("err = %v, want context.Canceled (exit 130)", err)
+	}
+	if _, err := os.Stat(filepath.Join(out, "failures.tsv")); err != nil {
+		t.Errorf("failures list not written on interruption: %v", err)
 	}
 }

@@ -1,14 +1,133 @@
 package main
 
-import "github.com/spf13/cobra"
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"unicode/utf8"
 
-// newReportCommand is a placeholder until the capability lands.
+	"github.com/spf13/cobra"
+
+	"recto/ocr/ledger"
+	"recto/quality/report"
+)
+
 func newReportCommand(g *GlobalOptions) *cobra.Command {
 	return &cobra.Command{
-		Use:   "report",
-		Short: "Rebuild the reports of a run from its ledger (not implemented yet)",
+		Use:   "report DIR",
+		Short: "Rebuild the reports of a run from its ledger",
+		Long: `Report rebuilds DIR/report (titles.csv, titles.json, pages.csv, rescan.csv,
+report.html) from the ledger of the run in DIR, without recognising anything.
+It may run while a run is still writing DIR: it shows the pages committed so far.
+` + exitStatusHelp,
+		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			return errNotImplemented
+			return runReport(cmd.Context(), *g, args[0])
 		},
 	}
+}
+
+func runReport(ctx context.Context, g GlobalOptions, dir string) error {
+	abs, err := filepath.Abs(dir)
+	if err != nil {
+		return err
+	}
+	lp := filepath.Join(abs, ledger.FileName)
+	if _, err := os.Stat(lp); errors.Is(err, fs.ErrNotExist) {
+		if m, _ := filepath.Glob(filepath.Join(abs, shardsDir, "*", ledger.FileName)); len(m) > 0 {
+			return fmt.Errorf("report: %q holds %d shard ledgers but no merged one: run 'recto merge %s' first", dir, len(m), dir)
+		}
+		return fmt.Errorf("report: %q is not a run folder (no %s)", dir, ledger.FileName)
+	}
+	l, err := ledger.OpenReadOnly(lp)
+	if err != nil {
+		return fmt.Errorf("report: %w", err)
+	}
+	defer l.Close()
+	rows, err := l.Pages(ctx)
+	if err != nil {
+		return fmt.Errorf("report: %w", err)
+	}
+	root, err := l.Meta(ctx, "collection")
+	if err != nil {
+		return fmt.Errorf("report: %w", err)
+	}
+	repDir := filepath.Join(abs, reportDir)
+	if err := buildReports(repDir, abs, root, rows, cerInterval); err != nil {
+		return err
+	}
+	fmt.Fprintln(g.stdout, filepath.Join(repDir, "report.html"))
+	return nil
+}
+
+// buildReports writes the reports of rows into repDir. Links to images and
+// texts are relative to repDir where possible, so a copied run folder and
+// collection keep working.
+func buildReports(repDir, outDir, root string, rows []ledger.Page, ci report.IntervalFunc) error {
+	pages := make([]report.Page, len(rows))
+	texts := make(map[string]string, len(rows))
+	for i, r := range rows {
+		p := report.Page{
+			Rel: r.Rel, Title: r.Title, Page: r.Page,
+			Failed: r.State != ledger.StateDone, Error: r.Error,
+			Decision: r.Decision, PredictedCER: r.PredictedCER, Reasons: r.Reasons, Corrections: r.Corrections,
+			HasTruth: r.HasTruth, RefChars: r.RefChars, RefWords: r.RefWords,
+			CharErrs: r.CharErrs, WordErrs: r.WordErrs, CharErrsAfter: r.CharErrsAf, WordErrsAfter: r.WordErrsAf,
+			Image: relLink(repDir, r.Source),
+		}
+		if t := finalText(r); t != "" {
+			full := filepath.Join(outDir, filepath.FromSlash(t))
+			p.Text = relLink(repDir, full)
+			texts[r.Rel] = full
+		}
+		pages[i] = p
+	}
+	name := filepath.Base(root)
+	if root == "" {
+		name = filepath.Base(outDir)
+	}
+	err := report.Write(repDir, pages, report.Options{
+		Name:     name,
+		Interval: ci,
+		Snippet: func(p report.Page) string {
+			return readHead(texts[p.Rel], 1024)
+		},
+	})
+	if err != nil {
+		return fmt.Errorf("run: %w", err)
+	}
+	return nil
+}
+
+func relLink(from, to string) string {
+	if to == "" {
+		return ""
+	}
+	if r, err := filepath.Rel(from, to); err == nil {
+		return r
+	}
+	return to
+}
+
+// readHead returns up to n bytes from the start of a file, cut at a rune
+// boundary; "" when it cannot be read.
+func readHead(name string, n int) string {
+	if name == "" {
+		return ""
+	}
+	f, err := os.Open(name)
+	if err != nil {
+		return ""
+	}
+	defer f.Close()
+	buf := make([]byte, n)
+	k, _ := f.Read(buf)
+	buf = buf[:k]
+	for len(buf) > 0 && !utf8.Valid(buf) && len(buf) > k-utf8.UTFMax {
+		buf = buf[:len(buf)-1]
+	}
+	return string(buf)
 }

@@ -1,14 +1,625 @@
 package main
 
-import "github.com/spf13/cobra"
+import (
+	"context"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"image"
+	"io"
+	"io/fs"
+	"os"
+	"path"
+	"path/filepath"
+	"runtime"
+	"sort"
+	"strings"
+	"sync"
+	"time"
 
-// newRunCommand is a placeholder until the capability lands.
+	"github.com/spf13/cobra"
+
+	"recto/ocr"
+	"recto/ocr/ledger"
+	"recto/ocr/shard"
+	"recto/quality"
+)
+
+// RunOptions are the settings of `recto run` (and of the run inside `recto demo`).
+type RunOptions struct {
+	Out        string  // run folder: ledger, outputs, reports
+	Truth      string  // ground-truth folder: <rel without extension>.txt; "" for none
+	Jobs       int     // pages in parallel; 0 means GOMAXPROCS
+	Lang       string  // Tesseract language(s), e.g. "eng" or "eng+fra"
+	PSM        int     // Tesseract page segmentation mode; 0 means the engine default
+	DPI        float64 // resolution to assume when a file records none; 0 means 300
+	Rescan     float64 // predicted CER above which a page is marked rescan; 0 means quality.DefaultRescan
+	Correct    float64 // predicted CER above which a page is corrected; 0 means quality.DefaultCorrect
+	Model      string  // triage model file; "" means the built-in model
+	Lexicon    string  // lexicon file; "" means the built-in lexicon
+	Margin     float64 // correction margin, natural-log odds; 0 means correct.DefaultMargin
+	Shard      string  // "i/n"; "" means from the environment, else every page
+	ShardCount int     // shard count for a Kubernetes Indexed Job (JOB_COMPLETION_INDEX); 0 means RECTO_SHARDS
+}
+
+// AddFlags registers the options on fs-like cobra flags.
+func (o *RunOptions) AddFlags(cmd *cobra.Command) {
+	f := cmd.Flags()
+	f.StringVarP(&o.Out, "out", "o", "", "run `folder` for the ledger, outputs and reports (required)")
+	f.StringVar(&o.Truth, "truth", "", "ground-truth `folder`: the same relative path with .txt scores a page")
+	f.IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages in parallel (default: number of CPUs)")
+	f.StringVarP(&o.Lang, "lang", "l", "eng", "Tesseract `languages`, e.g. eng or eng+fra")
+	f.IntVar(&o.PSM, "psm", 0, "Tesseract page segmentation `mode` (default: the engine's)")
+	f.Float64Var(&o.DPI, "dpi", 0, "resolution to assume when a file records none (default 300)")
+	f.Float64Var(&o.Rescan, "rescan", 0, "mark a page rescan when its predicted `CER` is above this (default 0.10)")
+	f.Float64Var(&o.Correct, "correct", 0, "correct a page when its predicted `CER` is above this (default 0.02)")
+	f.StringVar(&o.Model, "model", "", "triage model `file` (default: built in)")
+	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` for triage and correction (default: built in)")
+	f.Float64Var(&o.Margin, "margin", 0, "correct a word only when the candidate is e^`m` times likelier (default 5)")
+	f.StringVar(&o.Shard, "shard", "", "process only share `i/n` of the pages (default: from JOB_COMPLETION_INDEX or SLURM_ARRAY_TASK_ID, else all)")
+	f.IntVar(&o.ShardCount, "shard-count", 0, "number of shards when the index comes from JOB_COMPLETION_INDEX (default: $RECTO_SHARDS)")
+}
+
 func newRunCommand(g *GlobalOptions) *cobra.Command {
-	return &cobra.Command{
-		Use:   "run",
-		Short: "Run the whole job on a collection: recognise, triage, correct, score, report (not implemented yet)",
+	var o RunOptions
+	cmd := &cobra.Command{
+		Use:   "run COLLECTION --out DIR [--truth DIR]",
+		Short: "Run the whole job on a collection: recognise, triage, correct, score, report",
+		Long: `Run recognises every page image under COLLECTION (titles are its first-level
+folders), estimates each page's quality and decides accept, correct, rescan,
+blank or picture, corrects the pages marked correct, scores pages that have
+ground truth (the same relative path with .txt under --truth) before and
+after correction, and writes reports to DIR/report.
+
+A ledger (DIR/ledger.db, SQLite) records every page as soon as it is done.
+Run the same command again to resume: pages already done whose image and
+settings are unchanged are skipped; a changed image is done again. Killing
+the run loses at most the pages in flight. Only one run may use DIR at a
+time.
+
+Outputs: DIR/ocr/<page>.txt, .alto.xml and .json for every page, and
+DIR/corrected/<page>.* for corrected pages; reports: DIR/report/titles.csv,
+titles.json, pages.csv, rescan.csv and report.html.
+
+Scale-out: --shard i/n (or a Kubernetes Indexed Job or Slurm job array; see
+the README) processes a deterministic share of the pages into
+DIR/shards/<i>-of-<n>; 'recto merge DIR' combines the shards.
+` + exitStatusHelp,
+		Args: cobra.ExactArgs(1),
+		PreRunE: func(cmd *cobra.Command, args []string) error {
+			return o.finalize()
+		},
 		RunE: func(cmd *cobra.Command, args []string) error {
-			return errNotImplemented
+			return runRun(cmd.Context(), o, *g, args)
 		},
 	}
+	o.AddFlags(cmd)
+	return cmd
+}
+
+// finalize validates option values (usage errors, exit status 2).
+func (o *RunOptions) finalize() error {
+	switch {
+	case o.Out == "":
+		return usagef("run: --out DIR is required")
+	case o.Jobs < 0:
+		return usagef("run: --jobs %d: must be 0 (all CPUs) or more", o.Jobs)
+	case o.Rescan < 0 || o.Rescan > 1:
+		return usagef("run: --rescan %g: a CER threshold must be in [0, 1]", o.Rescan)
+	case o.Correct < 0 || o.Correct > 1:
+		return usagef("run: --correct %g: a CER threshold must be in [0, 1]", o.Correct)
+	case o.Rescan > 0 && o.Correct > 0 && o.Correct > o.Rescan:
+		return usagef("run: --correct %g is above --rescan %g: pages worse than the rescan threshold are not corrected", o.Correct, o.Rescan)
+	case o.ShardCount < 0:
+		return usagef("run: --shard-count %d: must be 1 or more", o.ShardCount)
+	case o.Margin < 0:
+		return usagef("run: --margin %g: must be 0 (default) or more", o.Margin)
+	case o.DPI < 0:
+		return usagef("run: --dpi %g: must be positive", o.DPI)
+	}
+	if o.Shard != "" {
+		if _, err := shard.Parse(o.Shard); err != nil {
+			return usagef("run: --%v", strings.TrimPrefix(err.Error(), "shard: invalid "))
+		}
+	}
+	return nil
+}
+
+// Output folders inside a run folder.
+const (
+	ocrDir       = "ocr"       // engine output of every page
+	correctedDir = "corrected" // corrected output of pages marked correct
+	reportDir    = "report"
+	shardsDir    = "shards"
+)
+
+// imageExts are the file extensions taken as page images (lower case):
+// the formats ocr.DecodeFile reads.
+var imageExts = map[string]bool{".tif": true, ".tiff": true, ".png": true, ".jpg": true, ".jpeg": true, ".bmp": true}
+
+// titlePage names a page: the title is the first folder of rel (as in
+// `recto score`), or rootName for an image directly in the root; the page
+// is the rest of rel.
+func titlePage(rel, rootName string) (title, page string) {
+	title, _ = quality.TitlePage(rel, rootName)
+	if _, rest, ok := strings.Cut(rel, "/"); ok {
+		return title, rest
+	}
+	return title, rel
+}
+
+// pageJob is one page image found under the collection.
+type pageJob struct {
+	Rel   string // slash-separated, relative to the collection root
+	Stem  string // output name: Rel without its extension, or with it when two images share the stem
+	Path  string // absolute path
+	Title string
+	Page  string
+}
+
+// listPages walks root for page images, skipping hidden entries and the
+// folder skip (the run folder, when it lies inside the collection). It
+// returns the pages sorted by Rel and the number of other files ignored.
+func listPages(root, skip string) ([]pageJob, int, error) {
+	rootName := filepath.Base(root)
+	var pages []pageJob
+	ignored := 0
+	err := filepath.WalkDir(root, func(p string, d fs.DirEntry, err error) error {
+		if err != nil {
+			if p == root {
+				return err
+			}
+			ignored++ // an unreadable sub-folder must not stop the run
+			if d != nil && d.IsDir() {
+				return fs.SkipDir
+			}
+			return nil
+		}
+		name := d.Name()
+		if p != root && strings.HasPrefix(name, ".") {
+			if d.IsDir() {
+				return fs.SkipDir
+			}
+			return nil
+		}
+		if d.IsDir() {
+			if skip != "" && p == skip {
+				return fs.SkipDir
+			}
+			return nil
+		}
+		if !imageExts[strings.ToLower(filepath.Ext(name))] {
+			ignored++
+			return nil
+		}
+		rel, err := filepath.Rel(root, p)
+		if err != nil {
+			return err
+		}
+		rel = filepath.ToSlash(rel)
+		title, page := titlePage(rel, rootName)
+		pages = append(pages, pageJob{Rel: rel, Path: p, Title: title, Page: page})
+		return nil
+	})
+	if err != nil {
+		return nil, 0, fmt.Errorf("run: collection %q: %w", root, err)
+	}
+	sort.Slice(pages, func(i, j int) bool { return pages[i].Rel < pages[j].Rel })
+	stems := map[string]int{}
+	for _, p := range pages {
+		stems[strings.TrimSuffix(p.Rel, path.Ext(p.Rel))]++
+	}
+	for i, p := range pages {
+		pages[i].Stem = strings.TrimSuffix(p.Rel, path.Ext(p.Rel))
+		if stems[pages[i].Stem] > 1 {
+			pages[i].Stem = p.Rel // p1.png and p1.tif side by side keep apart
+		}
+	}
+	return pages, ignored, nil
+}
+
+// runState is what the workers share.
+type runState struct {
+	o        RunOptions
+	tk       *toolkit
+	outDir   string // absolute run folder
+	truthDir string // absolute, or ""
+	sh       shard.Shard
+	config   string // settings fingerprint
+	done     map[string]ledger.Key
+}
+
+// runRun is the whole job; it knows nothing of cobra.
+func runRun(ctx context.Context, o RunOptions, g GlobalOptions, args []string) error {
+	root, err := filepath.Abs(args[0])
+	if err != nil {
+		return err
+	}
+	if fi, err := os.Stat(root); err != nil {
+		return fmt.Errorf("run: collection: %w", err)
+	} else if !fi.IsDir() {
+		return fmt.Errorf("run: collection %q is not a folder", args[0])
+	}
+	st := &runState{o: o}
+	if st.outDir, err = filepath.Abs(o.Out); err != nil {
+		return err
+	}
+	if st.outDir == root {
+		return usagef("run: --out %q is the collection itself; choose a separate folder", o.Out)
+	}
+	if o.Truth != "" {
+		if st.truthDir, err = filepath.Abs(o.Truth); err != nil {
+			return err
+		}
+		if fi, err := os.Stat(st.truthDir); err != nil || !fi.IsDir() {
+			return fmt.Errorf("run: --truth %q is not a readable folder", o.Truth)
+		}
+	}
+	if o.Shard != "" {
+		st.sh, _ = shard.Parse(o.Shard) // validated in finalize
+	} else if st.sh, err = shard.FromEnv(os.Getenv, o.ShardCount); err != nil {
+		return &usageError{err}
+	}
+	// Fail before any work when the run folder cannot be written.
+	if err := checkWritable(st.outDir); err != nil {
+		return err
+	}
+	st.tk, err = newToolkit(o)
+	if err != nil {
+		return err
+	}
+	st.config = st.tk.fingerprint
+
+	ledgerPath := filepath.Join(st.outDir, ledger.FileName)
+	if st.sh.Sharded() {
+		ledgerPath = filepath.Join(st.outDir, shardsDir, st.sh.Name(), ledger.FileName)
+	}
+	l, err := ledger.Open(ledgerPath)
+	if err != nil {
+		return fmt.Errorf("run: %w", err)
+	}
+	defer l.Close()
+	for k, v := range map[string]string{"collection": root, "truth": st.truthDir, "settings": st.tk.settingsJSON, "shard": st.sh.String()} {
+		if err := l.SetMeta(ctx, k, v); err != nil {
+			return fmt.Errorf("run: %w", err)
+		}
+	}
+	if st.done, err = l.DoneKeys(ctx); err != nil {
+		return fmt.Errorf("run: %w", err)
+	}
+
+	skip := ""
+	if strings.HasPrefix(st.outDir, root+string(filepath.Separator)) {
+		skip = st.outDir
+	}
+	all, ignored, err := listPages(root, skip)
+	if err != nil {
+		return err
+	}
+	var pages []pageJob
+	for _, p := range all {
+		if st.sh.Has(p.Rel) {
+			pages = append(pages, p)
+		}
+	}
+	if !g.Quiet {
+		msg := fmt.Sprintf("recto: %d page images in %q", len(all), args[0])
+		if st.sh.Sharded() {
+			msg += fmt.Sprintf(", %d in shard %s", len(pages), st.sh)
+		}
+		if ignored > 0 {
+			msg += fmt.Sprintf(" (%d other files ignored)", ignored)
+		}
+		fmt.Fprintln(g.stderr, msg)
+	}
+	if len(all) == 0 {
+		return fmt.Errorf("run: no page images (%s) under %q", extList(), args[0])
+	}
+
+	prog := newRunProgress(g.stderr, g.Quiet, len(pages))
+	w := l.NewWriter(func(p ledger.Page) { prog.add(p.State == ledger.StateFailed) })
+	runErr := st.process(ctx, pages, w, prog, g)
+	werr := w.Close()
+	prog.finish()
+	if werr != nil {
+		return fmt.Errorf("run: ledger: %w", werr)
+	}
+	if runErr != nil {
+		return runErr
+	}
+	if err := ctx.Err(); err != nil {
+		return err
+	}
+
+	// Reports: for a shard, its own pages in its shard folder; the merged
+	// report comes from 'recto merge'.
+	repDir := filepath.Join(filepath.Dir(ledgerPath), reportDir)
+	rows, err := l.Pages(ctx)
+	if err != nil {
+		return fmt.Errorf("run: %w", err)
+	}
+	if err := buildReports(repDir, st.outDir, root, rows, st.tk.interval); err != nil {
+		return err
+	}
+	if !g.Quiet {
+		fmt.Fprintf(g.stderr, "recto: report in %s\n", filepath.Join(repDir, "report.html"))
+	}
+	failed := 0
+	inShard := make(map[string]bool, len(pages))
+	for _, p := range pages {
+		inShard[p.Rel] = true
+	}
+	for _, r := range rows {
+		if inShard[r.Rel] && r.State == ledger.StateFailed {
+			failed++
+		}
+	}
+	if failed > 0 {
+		return &partialError{Failed: failed, Total: len(pages), What: "pages"}
+	}
+	return nil
+}
+
+func extList() string {
+	var e []string
+	for k := range imageExts {
+		e = append(e, k)
+	}
+	sort.Strings(e)
+	return strings.Join(e, " ")
+}
+
+// checkWritable makes dir if needed and proves a file can be created in it.
+func checkWritable(dir string) error {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return fmt.Errorf("run: cannot create the output folder %q: %w", dir, errors.Unwrap(err))
+	}
+	f, err := os.CreateTemp(dir, ".recto-write-test-*")
+	if err != nil {
+		return fmt.Errorf("run: the output folder %q is not writable: %w", dir, errors.Unwrap(err))
+	}
+	name := f.Name()
+	f.Close()
+	return os.Remove(name)
+}
+
+// process runs the pages through a pool of workers, each with its own
+// engine, and hands every finished page to the ledger writer.
+func (st *runState) process(ctx context.Context, pages []pageJob, w *ledger.Writer, prog *runProgress, g GlobalOptions) error {
+	jobs := st.o.Jobs
+	if jobs == 0 {
+		jobs = runtime.GOMAXPROCS(0)
+	}
+	jobs = max(1, min(jobs, len(pages)))
+	ch := make(chan pageJob)
+	go func() {
+		defer close(ch)
+		for _, p := range pages {
+			select {
+			case ch <- p:
+			case <-ctx.Done():
+				return
+			}
+		}
+	}()
+	var wg sync.WaitGroup
+	errs := make(chan error, jobs)
+	var warnMu sync.Mutex
+	for range jobs {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			rec, err := st.tk.newRecogniser()
+			if err != nil {
+				errs <- err
+				return
+			}
+			defer rec.Close()
+			for p := range ch {
+				if w.Err() != nil {
+					return
+				}
+				row, skipped := st.onePage(ctx, rec, p)
+				if skipped {
+					prog.skip()
+					continue
+				}
+				if row == nil { // interrupted mid-page: not recorded
+					continue
+				}
+				if row.State == ledger.StateFailed && !g.Quiet {
+					warnMu.Lock()
+					prog.clearLine()
+					fmt.Fprintf(g.stderr, "recto: %s\n", row.Error)
+					warnMu.Unlock()
+				}
+				w.Put(*row)
+			}
+		}()
+	}
+	wg.Wait()
+	close(errs)
+	for err := range errs {
+		return fmt.Errorf("run: %w", err)
+	}
+	return nil
+}
+
+// onePage does every step for one page. It returns skipped when the ledger
+// already holds the page done from the same input and settings, and a nil
+// row when ctx was cancelled before the page finished.
+func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row *ledger.Page, skipped bool) {
+	if ctx.Err() != nil {
+		return nil, false
+	}
+	row = &ledger.Page{Rel: p.Rel, Title: p.Title, Page: p.Page, Source: p.Path, Shard: st.sh.String(),
+		State: ledger.StateFailed, Timings: map[string]float64{}}
+	fail := func(format string, a ...any) (*ledger.Page, bool) {
+		row.Error = fmt.Sprintf(format, a...)
+		return row, false
+	}
+	sum, size, err := hashFile(p.Path)
+	if err != nil {
+		return fail("%q: cannot read: %v", p.Path, errors.Unwrap(err))
+	}
+	row.SHA256, row.Size = sum, size
+	truth, truthSum, hasTruth, err := st.readTruth(p.Rel)
+	if err != nil {
+		return fail("%v", err)
+	}
+	row.Config = st.config + "+" + truthSum
+	if k, ok := st.done[p.Rel]; ok && k == (ledger.Key{SHA256: row.SHA256, Config: row.Config}) {
+		return nil, true
+	}
+	if size == 0 {
+		return fail("%q: empty file (0 bytes)", p.Path)
+	}
+
+	defer func() { // one bad page must never stop the batch
+		if r := recover(); r != nil {
+			row.State, row.Error, row.Outputs = ledger.StateFailed, fmt.Sprintf("%q: internal error: %v", p.Path, r), nil
+			skipped = false
+		}
+	}()
+	t0 := time.Now()
+	r, prepared, err := rec.Recognise(ctx, p.Path)
+	if err != nil {
+		if ctx.Err() != nil {
+			return nil, false
+		}
+		return fail("%v", err)
+	}
+	row.Timings["recognise"] = ms(time.Since(t0))
+	t1 := time.Now()
+	if err := st.tk.write(filepath.Join(st.outDir, ocrDir), p.Stem, r, prepared); err != nil {
+		return fail("%q: writing outputs: %v", p.Path, err)
+	}
+	row.Outputs = outputNames(ocrDir, p.Stem)
+	row.Timings["write"] = ms(time.Since(t1))
+
+	t2 := time.Now()
+	v := st.tk.triage(r)
+	row.Decision, row.PredictedCER, row.Reasons = v.Decision, v.PredictedCER, v.Reasons
+	row.MeanConf, row.Words = r.MeanConfidence, len(r.Words)
+	row.Timings["triage"] = ms(time.Since(t2))
+
+	final := r
+	if v.Decision == "correct" {
+		t3 := time.Now()
+		c, n := st.tk.correct(r)
+		row.Corrections = n
+		row.Timings["correct"] = ms(time.Since(t3))
+		if err := st.tk.write(filepath.Join(st.outDir, correctedDir), p.Stem, c, nil); err != nil {
+			return fail("%q: writing corrected outputs: %v", p.Path, err)
+		}
+		row.Outputs = append(row.Outputs, outputNames(correctedDir, p.Stem)...)
+		final = c
+	}
+	if hasTruth {
+		t4 := time.Now()
+		before := st.tk.compare(truth, r.Text())
+		after := before
+		if final != r {
+			after = st.tk.compare(truth, final.Text())
+		}
+		row.HasTruth = true
+		row.RefChars, row.RefWords = before.Chars, before.Words
+		row.CharErrs, row.WordErrs = before.CharErrors, before.WordErrors
+		row.CharErrsAf, row.WordErrsAf = after.CharErrors, after.WordErrors
+		row.Timings["score"] = ms(time.Since(t4))
+	}
+	row.State, row.Error = ledger.StateDone, ""
+	return row, false
+}
+
+func ms(d time.Duration) float64 { return float64(d.Microseconds()) / 1000 }
+
+// outputNames lists the files ocr.WriteOutputs writes for stem under sub,
+// relative to the run folder.
+func outputNames(sub, stem string) []string {
+	base := path.Join(sub, stem)
+	return []string{base + ocr.SuffixText, base + ocr.SuffixALTO, base + ocr.SuffixRecord}
+}
+
+// finalText returns the run-folder-relative path of a page's final text.
+func finalText(p ledger.Page) string {
+	txt := ""
+	for _, o := range p.Outputs {
+		if strings.HasSuffix(o, ".txt") {
+			txt = o // corrected output comes last
+		}
+	}
+	return txt
+}
+
+func hashFile(name string) (string, int64, error) {
+	f, err := os.Open(name)
+	if err != nil {
+		return "", 0, err
+	}
+	defer f.Close()
+	h := sha256.New()
+	n, err := io.Copy(h, f)
+	if err != nil {
+		return "", 0, err
+	}
+	return hex.EncodeToString(h.Sum(nil)), n, nil
+}
+
+// readTruth returns the ground truth of rel, if any, and its SHA-256 ("-"
+// when there is none).
+func (st *runState) readTruth(rel string) (text, sum string, ok bool, err error) {
+	if st.truthDir == "" {
+		return "", "-", false, nil
+	}
+	name := filepath.Join(st.truthDir, filepath.FromSlash(strings.TrimSuffix(rel, path.Ext(rel))+".txt"))
+	data, err := os.ReadFile(name)
+	if errors.Is(err, fs.ErrNotExist) {
+		return "", "-", false, nil
+	}
+	if err != nil {
+		return "", "", false, fmt.Errorf("ground truth %q: %v", name, errors.Unwrap(err))
+	}
+	s := sha256.Sum256(data)
+	return string(data), hex.EncodeToString(s[:8]), true, nil
+}
+
+// recogniser is one worker's engine: never shared between goroutines.
+type recogniser interface {
+	Recognise(ctx context.Context, path string) (*ocr.Record, *image.Gray, error)
+	Close() error
+}
+
+// verdict is triage's answer for one page.
+type verdict struct {
+	PredictedCER float64
+	Decision     string
+	Reasons      []string
+}
+
+// counts are edit counts against a reference.
+type counts struct {
+	Chars, CharErrors, Words, WordErrors int
+}
+
+// fingerprint hashes the settings that change a page's results.
+func fingerprint(v any) (string, string) {
+	b, _ := json.Marshal(v)
+	s := sha256.Sum256(b)
+	return hex.EncodeToString(s[:8]), string(b)
+}
+
+// fileSum returns a short hash of a file's content for the fingerprint, or
+// "" for an empty name.
+func fileSum(name string) (string, error) {
+	if name == "" {
+		return "", nil
+	}
+	s, _, err := hashFile(name)
+	if err != nil {
+		return "", err
+	}
+	return s[:16], nil
 }

@@ -21,6 +21,7 @@ import (
 	"golang.org/x/image/font/gofont/goregular"
 	"golang.org/x/image/font/gofont/gosmallcaps"
 	"golang.org/x/image/font/opentype"
+	"golang.org/x/image/font/sfnt"
 	"golang.org/x/image/math/fixed"
 )
 
@@ -28,7 +29,7 @@ import (
 // 300 dpi with 20 mm margins set in 11 pt Go Regular.
 type Layout struct {
 	DPI         int     // resolution, dots per inch; 0 means 300
-	WidthMM     float64 // page width, millimetres; 0 means 210 (A4) unless HeightMM is set
+	WidthMM     float64 // page width, millimetres; 0 means 210 (A4)
 	HeightMM    float64 // page height, millimetres; 0 means 297 (A4)
 	MarginMM    float64 // margin on all four sides, millimetres; 0 means 20
 	FontSizePt  float64 // type size, points (1/72 inch); 0 means 11
@@ -89,9 +90,6 @@ func parsedFont(name string) (*opentype.Font, error) {
 func (l Layout) withDefaults() Layout {
 	if l.DPI == 0 {
 		l.DPI = 300
-	}
-	if l.WidthMM == 0 && l.HeightMM == 0 {
-		l.WidthMM, l.HeightMM = 210, 297
 	}
 	if l.WidthMM == 0 {
 		l.WidthMM = 210
@@ -254,9 +252,7 @@ func Render(text string, l Layout) (*Page, string, error) {
 	}
 
 	img := image.NewGray(image.Rect(0, 0, w, h))
-	for i := range img.Pix {
-		img.Pix[i] = 255
-	}
+	fillWhite(img.Pix)
 	page := &Page{Image: img, DPI: float64(l.DPI)}
 
 	paras := splitParagraphs(text)
@@ -378,4 +374,40 @@ func joinRest(first []string, rest [][]string) string {
 		parts = append(parts, strings.Join(p, " "))
 	}
 	return strings.Join(parts, "\n\n")
+}
+
+// Missing returns the distinct runes of text, in order of first
+// appearance, that the font named fontName ("" for "regular") has no glyph
+// for; Render draws those as the font's missing-glyph box, so a page's
+// truth would not match its image. White space is never reported.
+func Missing(text, fontName string) ([]rune, error) {
+	f, err := parsedFont(fontName)
+	if err != nil {
+		return nil, err
+	}
+	var buf sfnt.Buffer
+	var out []rune
+	seen := map[rune]bool{}
+	for _, c := range text {
+		if seen[c] || unicode.IsSpace(c) {
+			continue
+		}
+		seen[c] = true
+		if i, err := f.GlyphIndex(&buf, c); err != nil || i == 0 {
+			out = append(out, c)
+		}
+	}
+	return out, nil
+}
+
+// fillWhite sets every byte of b to 255 by doubling copies, which is much
+// faster than a byte loop (and than one under the race detector).
+func fillWhite(b []byte) {
+	if len(b) == 0 {
+		return
+	}
+	b[0] = 255
+	for n := 1; n < len(b); n *= 2 {
+		copy(b[n:], b[:n])
+	}
 }

@@ -1,0 +1,124 @@
+package main
+
+import (
+	"context"
+	"fmt"
+	"math/rand/v2"
+	"path/filepath"
+	"runtime"
+	"strings"
+	"sync"
+	"testing"
+
+	"recto/lexicon"
+	"recto/ocr"
+	"recto/ocr/ledger"
+)
+
+// benchRecords makes n recognised pages of about 300 words drawn from the
+// built-in lexicon, with OCR-like character errors on some pages, and the
+// clean text as ground truth for every tenth page.
+func benchRecords(n int) ([]*ocr.Record, []string) {
+	words := lexicon.Default().Words()
+	rng := rand.New(rand.NewPCG(1, 2))
+	recs := make([]*ocr.Record, n)
+	truth := make([]string, n)
+	for i := range recs {
+		r := &ocr.Record{Version: ocr.RecordVersion, Width: 2480, Height: 3508, DPI: 300}
+		noise := float64(i%5) * 0.02
+		var ref strings.Builder
+		for k := range 300 {
+			w := words[rng.IntN(len(words))]
+			if k > 0 {
+				if k%10 == 0 {
+					ref.WriteByte('\n')
+				} else {
+					ref.WriteByte(' ')
+				}
+			}
+			ref.WriteString(w)
+			hyp := []rune(w)
+			for j := range hyp {
+				if rng.Float64() < noise {
+					hyp[j] = rune('a' + rng.IntN(26))
+				}
+			}
+			r.Words = append(r.Words, ocr.Word{Text: string(hyp), Conf: 0.95 - 3*noise*rng.Float64(), Line: k / 10,
+				Box: ocr.Box{X: 100 + (k%10)*200, Y: 100 + (k/10)*90, W: 180, H: 60}})
+			r.MeanConfidence += r.Words[k].Conf / 300
+		}
+		recs[i] = r
+		if i%10 == 0 {
+			truth[i] = ref.String()
+		}
+	}
+	return recs, truth
+}
+
+// BenchmarkAfterRecognition10k runs everything a run does after the
+// engine, over 10,000 already-recognised pages on GOMAXPROCS workers:
+// triage (features and model), correction of the pages marked correct,
+// scoring of the pages with ground truth, one ledger commit per page, and
+// every report. Target: under 60 s on 2 cores.
+func BenchmarkAfterRecognition10k(b *testing.B) {
+	const n = 10000
+	recs, truth := benchRecords(n)
+	tk, err := newToolkit(RunOptions{Lang: "eng"})
+	if err != nil {
+		b.Skipf("toolkit: %v", err)
+	}
+	b.ResetTimer()
+	for it := 0; it < b.N; it++ {
+		dir := b.TempDir()
+		l, err := ledger.Open(filepath.Join(dir, ledger.FileName))
+		if err != nil {
+			b.Fatal(err)
+		}
+		w := l.NewWriter(nil)
+		idx := make(chan int)
+		var wg sync.WaitGroup
+		for range runtime.GOMAXPROCS(0) {
+			wg.Add(1)
+			go func() {
+				defer wg.Done()
+				for i := range idx {
+					r := recs[i]
+					row := ledger.Page{Rel: fmt.Sprintf("t%02d/p%05d.tif", i%40, i), Title: fmt.Sprintf("t%02d", i%40), State: ledger.StateDone}
+					v := tk.triage(r)
+					row.Decision, row.PredictedCER, row.Reasons = v.Decision, v.PredictedCER, v.Reasons
+					final := r
+					if v.Decision == "correct" {
+						final, row.Corrections = tk.correct(r)
+					}
+					if truth[i] != "" {
+						c := tk.compare(truth[i], r.Text())
+						a := c
+						if final != r {
+							a = tk.compare(truth[i], final.Text())
+						}
+						row.HasTruth, row.RefChars, row.CharErrs, row.CharErrsAf = true, c.Chars, c.CharErrors, a.CharErrors
+						row.RefWords, row.WordErrs, row.WordErrsAf = c.Words, c.WordErrors, a.WordErrors
+					}
+					w.Put(row)
+				}
+			}()
+		}
+		for i := range n {
+			idx <- i
+		}
+		close(idx)
+		wg.Wait()
+		if err := w.Close(); err != nil {
+			b.Fatal(err)
+		}
+		rows, err := l.Pages(context.Background())
+		if err != nil {
+			b.Fatal(err)
+		}
+		if err := buildReports(filepath.Join(dir, reportDir), dir, "/bench", rows, tk.interval); err != nil {
+			b.Fatal(err)
+		}
+		l.Close()
+	}
+	b.ReportMetric(b.Elapsed().Seconds()/float64(b.N), "s/10k-pages")
+}

@@ -1,0 +1,96 @@
+package main
+
+import (
+	"bytes"
+	"image"
+	"image/png"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+func TestDemoPagesDeterministic(t *testing.T) {
+	a, b := demoPages(), demoPages()
+	if len(a) != 24 {
+		t.Fatalf("%d demo pages, want 24 (three titles of eight)", len(a))
+	}
+	truth := map[string]int{}
+	for i := range a {
+		if a[i] != b[i] {
+			t.Fatalf("page %d differs between calls", i)
+		}
+		if a[i].Truth {
+			truth[a[i].Title]++
+		}
+	}
+	for title, n := range truth {
+		if n != 4 {
+			t.Errorf("%s: ground truth for %d pages, want half (4)", title, n)
+		}
+	}
+	if testing.Short() {
+		return
+	}
+	x, gx, err := renderDemoPage(a[5])
+	if err != nil {
+		t.Fatal(err)
+	}
+	y, gy, _ := renderDemoPage(a[5])
+	if !bytes.Equal(x, y) || gx != gy {
+		t.Error("rendering the same page twice gave different bytes")
+	}
+}
+
+func TestDemoRefusesForeignFolder(t *testing.T) {
+	dir := t.TempDir()
+	mustWrite(t, filepath.Join(dir, "thesis.txt"), []byte("precious"))
+	_, _, err := runRecto(t, "demo", "--out", dir)
+	if err == nil || !strings.Contains(err.Error(), "not made by 'recto demo'") {
+		t.Fatalf("err = %v, want a refusal", err)
+	}
+	if data, _ := os.ReadFile(filepath.Join(dir, "thesis.txt")); string(data) != "precious" {
+		t.Error("the foreign folder was changed")
+	}
+	if _, err := os.Stat(filepath.Join(dir, demoMarker)); err == nil {
+		t.Error("the marker was written into a foreign folder")
+	}
+}
+
+func TestDemoEndToEndFakeEngine(t *testing.T) {
+	t.Setenv("RECTO_FAKE_ENGINE", "1")
+	// Small pages keep the test fast: it checks the demo's plumbing, the
+	// rendering is checked above.
+	render := renderDemoPage
+	renderDemoPage = func(p demoPage) ([]byte, string, error) {
+		img := image.NewGray(image.Rect(0, 0, 40, 20))
+		var buf bytes.Buffer
+		err := png.Encode(&buf, img)
+		return buf.Bytes(), p.Text, err
+	}
+	t.Cleanup(func() { renderDemoPage = render })
+	dir := filepath.Join(t.TempDir(), "demo")
+	stdout, stderr, err := runRecto(t, "demo", "--out", dir)
+	if err != nil {
+		t.Fatal(err, stderr)
+	}
+	want := filepath.Join(dir, "run", reportDir, "report.html")
+	if strings.TrimSpace(stdout) != want {
+		t.Errorf("stdout = %q, want the report path %q", stdout, want)
+	}
+	rows := ledgerRows(t, filepath.Join(dir, "run"))
+	truth := 0
+	for _, r := range rows {
+		if r.HasTruth {
+			truth++
+		}
+	}
+	if len(rows) != 24 || truth != 12 {
+		t.Errorf("%d rows, %d with truth; want 24 and 12", len(rows), truth)
+	}
+	// A second demo reuses the folder and finds every page done.
+	_, stderr, err = runRecto(t, "demo", "--out", dir)
+	if err != nil || !strings.Contains(stderr, "(24 already done)") {
+		t.Errorf("second demo: %v\n%s", err, stderr)
+	}
+}

@@ -1,0 +1,144 @@
+package ledger
+
+import (
+	"context"
+	"errors"
+	"path/filepath"
+	"reflect"
+	"sync/atomic"
+	"testing"
+	"time"
+)
+
+func samplePage(rel string) Page {
+	return Page{
+		Rel: rel, Title: "t", Page: rel, Source: "/in/" + rel, SHA256: "abc", Size: 10, Config: "cfg",
+		State: StateDone, Decision: "accept", PredictedCER: 0.03, Reasons: []string{"low noise"},
+		MeanConf: 0.91, Words: 120, Corrections: 2, HasTruth: true, RefChars: 600, RefWords: 110,
+		CharErrs: 12, WordErrs: 5, CharErrsAf: 10, WordErrsAf: 4,
+		Outputs: []string{"ocr/" + rel + ".txt"}, Timings: map[string]float64{"engine": 1234.5},
+		Done: time.Date(2026, 1, 2, 3, 4, 5, 0, time.UTC),
+	}
+}
+
+func TestRoundTrip(t *testing.T) {
+	ctx := context.Background()
+	path := filepath.Join(t.TempDir(), "sub", FileName)
+	l, err := Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []Page{samplePage("a/1.png"), samplePage("a/2.png")}
+	want[1].State, want[1].Error, want[1].Reasons, want[1].Outputs = StateFailed, `decode "a/2.png": bad`, nil, nil
+	for _, p := range want {
+		if err := l.Put(ctx, p); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := l.SetMeta(ctx, "root", "/in"); err != nil {
+		t.Fatal(err)
+	}
+	l.Close()
+
+	r, err := OpenReadOnly(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer r.Close()
+	got, err := r.Pages(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(got, want) {
+		t.Errorf("Pages() =\n%+v\nwant\n%+v", got, want)
+	}
+	if v, _ := r.Meta(ctx, "root"); v != "/in" {
+		t.Errorf("Meta(root) = %q", v)
+	}
+	keys, err := r.DoneKeys(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(keys) != 1 || keys["a/1.png"] != (Key{"abc", "cfg"}) {
+		t.Errorf("DoneKeys() = %v, want only a/1.png", keys)
+	}
+}
+
+func TestSecondOpenRefused(t *testing.T) {
+	path := filepath.Join(t.TempDir(), FileName)
+	l, err := Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if l2, err := Open(path); !errors.Is(err, ErrLocked) {
+		if l2 != nil {
+			l2.Close()
+		}
+		t.Fatalf("second Open: err = %v, want ErrLocked", err)
+	}
+	l.Close()
+	l3, err := Open(path) // released on close
+	if err != nil {
+		t.Fatalf("Open after Close: %v", err)
+	}
+	l3.Close()
+}
+
+func TestWriterCommitsAll(t *testing.T) {
+	path := filepath.Join(t.TempDir(), FileName)
+	l, err := Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer l.Close()
+	var n atomic.Int32
+	w := l.NewWriter(func(Page) { n.Add(1) })
+	for _, r := range []string{"x/1", "x/2", "x/3", "x/1"} {
+		w.Put(samplePage(r))
+	}
+	if err := w.Close(); err != nil {
+		t.Fatal(err)
+	}
+	pages, _ := l.Pages(context.Background())
+	if len(pages) != 3 || n.Load() != 4 {
+		t.Errorf("rows = %d, commits = %d; want 3 rows, 4 commits", len(pages), n.Load())
+	}
+}
+
+func TestMergePrefersDoneThenLater(t *testing.T) {
+	ctx := context.Background()
+	dir := t.TempDir()
+	put := func(name string, ps ...Page) string {
+		p := filepath.Join(dir, name, FileName)
+		l, err := Open(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, pg := range ps {
+			if err := l.Put(ctx, pg); err != nil {
+				t.Fatal(err)
+			}
+		}
+		l.Close()
+		return p
+	}
+	failed := samplePage("a")
+	failed.State, failed.Done = StateFailed, failed.Done.Add(time.Hour)
+	older := samplePage("b")
+	newer := samplePage("b")
+	newer.Words, newer.Done = 7, newer.Done.Add(time.Minute)
+	s1 := put("s1", failed, older)
+	s2 := put("s2", samplePage("a"), newer, samplePage("c"))
+	dst, err := Open(filepath.Join(dir, "out", FileName))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer dst.Close()
+	if _, err := dst.Merge(ctx, s1, s2); err != nil {
+		t.Fatal(err)
+	}
+	got, _ := dst.Pages(ctx)
+	if len(got) != 3 || got[0].State != StateDone || got[1].Words != 7 || got[2].Rel != "c" {
+		t.Errorf("merged = %+v", got)
+	}
+}

@@ -1,0 +1,387 @@
+// Package report builds the reports of a batch run from its per-page
+// results: titles.csv and titles.json (one row per title), pages.csv,
+// rescan.csv (the work list for the scanning station) and report.html, a
+// single self-contained page that opens offline (inline CSS, a few lines of
+// inline JavaScript to sort the titles table, charts as inline SVG).
+//
+// Every string that comes from a page (file names, OCR text, error
+// messages) reaches the HTML through html/template, which escapes it for
+// its context; control characters and invalid UTF-8 are replaced by U+FFFD
+// first, so the page stays well-formed whatever the OCR produced. CSV cells
+// that a spreadsheet would run as a formula (leading =, +, -, @) are
+// prefixed with an apostrophe.
+//
+// A title's measured CER is pooled: character edits summed over its pages
+// with ground truth, divided by their reference characters summed. Report
+// output depends only on its input (no clock, no map order), so equal
+// inputs give byte-identical files.
+package report
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"os"
+	"path/filepath"
+	"sort"
+	"strconv"
+	"strings"
+	"unicode/utf8"
+)
+
+// Decisions lists the triage decisions in report order.
+var Decisions = []string{"accept", "correct", "rescan", "blank", "picture"}
+
+// Page is one page's results as the report needs them.
+type Page struct {
+	Rel   string // path relative to the collection root, slash-separated
+	Title string // first-level folder
+	Page  string // page name within the title
+
+	Failed bool   // the page could not be processed
+	Error  string // why, when Failed
+
+	Decision     string   // one of Decisions; "" when Failed
+	PredictedCER float64  // estimated CER in [0, 1]
+	Reasons      []string // why the decision was taken
+	Corrections  int      // words changed by correction
+
+	HasTruth      bool // ground truth was scored
+	RefChars      int  // reference characters
+	RefWords      int  // reference words
+	CharErrs      int  // character edits before correction
+	WordErrs      int  // word edits before correction
+	CharErrsAfter int  // character edits after correction
+	WordErrsAfter int  // word edits after correction
+
+	Image   string // link to the page image, relative to the report folder or absolute
+	Text    string // link to the final text, relative to the report folder; "" when none
+	Snippet string // start of the final OCR text, shown for the worst pages
+}
+
+// CER returns the page's measured CER before and after correction; ok is
+// false without ground truth or with an empty reference.
+func (p Page) CER() (before, after float64, ok bool) {
+	if !p.HasTruth || p.RefChars == 0 {
+		return 0, 0, false
+	}
+	n := float64(p.RefChars)
+	return float64(p.CharErrs) / n, float64(p.CharErrsAfter) / n, true
+}
+
+// IntervalFunc returns a confidence interval for a pooled CER, given the
+// character edits and reference characters of each page. ok is false when
+// no interval can be given (e.g. too few pages).
+type IntervalFunc func(errs, chars []int) (lo, hi float64, ok bool)
+
+// Options tune the reports. The zero value is valid.
+type Options struct {
+	Name     string       // collection name shown in the HTML heading; "" means "Collection"
+	Interval IntervalFunc // confidence intervals for measured CER; nil means none
+	Worst    int          // worst pages listed in the HTML; 0 means 25
+
+	// Snippet returns the start of a page's final text; the HTML calls it
+	// only for the worst pages it lists whose Snippet is empty. nil means
+	// no text beyond what Page.Snippet holds.
+	Snippet func(Page) string
+}
+
+// Measured is a pooled error rate over the pages with ground truth.
+type Measured struct {
+	Rate   float64  `json:"rate"`            // errors / units
+	Lo     *float64 `json:"lo,omitempty"`    // interval low end, when known
+	Hi     *float64 `json:"hi,omitempty"`    // interval high end, when known
+	Errors int      `json:"errors"`          // edits summed over pages
+	Units  int      `json:"units"`           // reference characters or words summed
+	Pages  int      `json:"pages,omitempty"` // pages measured
+}
+
+// Title sums one title's pages (or, as Total, the whole collection's).
+type Title struct {
+	Title            string         `json:"title"`
+	Pages            int            `json:"pages"`
+	Failed           int            `json:"failed"`
+	Decisions        map[string]int `json:"decisions"`
+	MeanPredictedCER *float64       `json:"mean_predicted_cer"` // nil when no page was processed
+	TruthPages       int            `json:"truth_pages"`
+	CERBefore        *Measured      `json:"cer_before,omitempty"` // nil without ground truth
+	CERAfter         *Measured      `json:"cer_after,omitempty"`
+	WERBefore        *Measured      `json:"wer_before,omitempty"`
+	WERAfter         *Measured      `json:"wer_after,omitempty"`
+	Corrections      int            `json:"corrections"`
+}
+
+// Summary is the whole report's data.
+type Summary struct {
+	Titles []Title `json:"titles"` // sorted by name
+	Total  Title   `json:"total"`  // all pages; Title is "(all)"
+}
+
+// Summarise sums pages per title.
+func Summarise(pages []Page, o Options) Summary {
+	by := make(map[string][]Page)
+	for _, p := range pages {
+		by[p.Title] = append(by[p.Title], p)
+	}
+	names := make([]string, 0, len(by))
+	for n := range by {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	var s Summary
+	for _, n := range names {
+		s.Titles = append(s.Titles, sumTitle(n, by[n], o))
+	}
+	s.Total = sumTitle("(all)", pages, o)
+	return s
+}
+
+func sumTitle(name string, pages []Page, o Options) Title {
+	t := Title{Title: name, Pages: len(pages), Decisions: make(map[string]int)}
+	for _, d := range Decisions {
+		t.Decisions[d] = 0
+	}
+	var predSum float64
+	var processed int
+	var ce, cc, ceA, we, wc, weA []int
+	for _, p := range pages {
+		if p.Failed {
+			t.Failed++
+			continue
+		}
+		processed++
+		predSum += p.PredictedCER
+		t.Decisions[p.Decision]++
+		t.Corrections += p.Corrections
+		if p.HasTruth {
+			t.TruthPages++
+			ce, cc, ceA = append(ce, p.CharErrs), append(cc, p.RefChars), append(ceA, p.CharErrsAfter)
+			we, wc, weA = append(we, p.WordErrs), append(wc, p.RefWords), append(weA, p.WordErrsAfter)
+		}
+	}
+	if processed > 0 {
+		m := predSum / float64(processed)
+		t.MeanPredictedCER = &m
+	}
+	t.CERBefore = measure(ce, cc, o.Interval)
+	t.CERAfter = measure(ceA, cc, o.Interval)
+	t.WERBefore = measure(we, wc, nil)
+	t.WERAfter = measure(weA, wc, nil)
+	return t
+}
+
+func measure(errs, units []int, ci IntervalFunc) *Measured {
+	m := Measured{Pages: len(errs)}
+	for i := range errs {
+		m.Errors += errs[i]
+		m.Units += units[i]
+	}
+	if m.Units == 0 {
+		return nil
+	}
+	m.Rate = float64(m.Errors) / float64(m.Units)
+	if ci != nil {
+		if lo, hi, ok := ci(errs, units); ok {
+			m.Lo, m.Hi = &lo, &hi
+		}
+	}
+	return &m
+}
+
+// Write builds every report into dir (created if missing). Each file is
+// written to a temporary name and renamed, so a reader never sees half a
+// report.
+func Write(dir string, pages []Page, o Options) error {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return fmt.Errorf("report: %w", err)
+	}
+	pages = sortedPages(pages)
+	s := Summarise(pages, o)
+	files := []struct {
+		name  string
+		build func() ([]byte, error)
+	}{
+		{"titles.csv", func() ([]byte, error) { return TitlesCSV(s) }},
+		{"titles.json", func() ([]byte, error) { return TitlesJSON(s) }},
+		{"pages.csv", func() ([]byte, error) { return PagesCSV(pages) }},
+		{"rescan.csv", func() ([]byte, error) { return RescanCSV(pages) }},
+		{"report.html", func() ([]byte, error) { return HTML(s, pages, o) }},
+	}
+	for _, f := range files {
+		data, err := f.build()
+		if err != nil {
+			return fmt.Errorf("report: %s: %w", f.name, err)
+		}
+		if err := writeFileAtomic(filepath.Join(dir, f.name), data); err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+func sortedPages(pages []Page) []Page {
+	out := append([]Page(nil), pages...)
+	sort.Slice(out, func(i, j int) bool { return out[i].Rel < out[j].Rel })
+	return out
+}
+
+func writeFileAtomic(path string, data []byte) error {
+	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*")
+	if err != nil {
+		return fmt.Errorf("report: %w", err)
+	}
+	tmp := f.Name()
+	_, err = f.Write(data)
+	if err == nil {
+		err = f.Sync()
+	}
+	if cerr := f.Close(); err == nil {
+		err = cerr
+	}
+	if err == nil {
+		err = os.Chmod(tmp, 0o644)
+	}
+	if err == nil {
+		err = os.Rename(tmp, path)
+	}
+	if err != nil {
+		os.Remove(tmp)
+		return fmt.Errorf("report: write %q: %w", path, err)
+	}
+	return nil
+}
+
+// TitlesJSON renders the summary as indented JSON.
+func TitlesJSON(s Summary) ([]byte, error) {
+	b, err := json.MarshalIndent(s, "", "  ")
+	if err != nil {
+		return nil, err
+	}
+	return append(b, '\n'), nil
+}
+
+func f4(x float64) string { return strconv.FormatFloat(x, 'f', 4, 64) }
+
+func optF4(p *float64) string {
+	if p == nil {
+		return ""
+	}
+	return f4(*p)
+}
+
+func rateCells(m *Measured) []string {
+	if m == nil {
+		return []string{"", "", ""}
+	}
+	return []string{f4(m.Rate), optF4(m.Lo), optF4(m.Hi)}
+}
+
+// cell makes a text cell safe to open in a spreadsheet: a leading =, +, -,
+// @, tab or carriage return would start a formula, so it gets an apostrophe.
+func cell(s string) string {
+	s = Clean(s)
+	if s != "" && strings.ContainsRune("=+-@\t\r", rune(s[0])) {
+		return "'" + s
+	}
+	return s
+}
+
+func writeCSV(rows [][]string) ([]byte, error) {
+	var buf bytes.Buffer
+	w := csv.NewWriter(&buf)
+	if err := w.WriteAll(rows); err != nil {
+		return nil, err
+	}
+	return buf.Bytes(), nil
+}
+
+// TitlesCSV renders one row per title and a last row for the whole collection.
+func TitlesCSV(s Summary) ([]byte, error) {
+	head := []string{"title", "pages", "failed"}
+	head = append(head, Decisions...)
+	head = append(head, "mean_predicted_cer", "truth_pages",
+		"cer_before", "cer_before_lo", "cer_before_hi",
+		"cer_after", "cer_after_lo", "cer_after_hi",
+		"wer_before", "wer_after", "corrections")
+	rows := [][]string{head}
+	for _, t := range append(append([]Title(nil), s.Titles...), s.Total) {
+		r := []string{cell(t.Title), strconv.Itoa(t.Pages), strconv.Itoa(t.Failed)}
+		for _, d := range Decisions {
+			r = append(r, strconv.Itoa(t.Decisions[d]))
+		}
+		r = append(r, optF4(t.MeanPredictedCER), strconv.Itoa(t.TruthPages))
+		r = append(r, rateCells(t.CERBefore)...)
+		r = append(r, rateCells(t.CERAfter)...)
+		r = append(r, rateCells(t.WERBefore)[0], rateCells(t.WERAfter)[0], strconv.Itoa(t.Corrections))
+		rows = append(rows, r)
+	}
+	return writeCSV(rows)
+}
+
+// PagesCSV renders one row per page.
+func PagesCSV(pages []Page) ([]byte, error) {
+	rows := [][]string{{"title", "page", "path", "state", "decision", "predicted_cer", "reasons",
+		"corrections", "ref_chars", "char_errors_before", "char_errors_after", "cer_before", "cer_after",
+		"ref_words", "word_errors_before", "word_errors_after", "error"}}
+	for _, p := range pages {
+		state := "done"
+		if p.Failed {
+			state = "failed"
+		}
+		r := []string{cell(p.Title), cell(p.Page), cell(p.Rel), state, p.Decision, "", cell(strings.Join(p.Reasons, "; ")),
+			strconv.Itoa(p.Corrections), "", "", "", "", "", "", "", "", cell(p.Error)}
+		if !p.Failed {
+			r[5] = f4(p.PredictedCER)
+		}
+		if p.HasTruth {
+			r[8], r[9], r[10] = strconv.Itoa(p.RefChars), strconv.Itoa(p.CharErrs), strconv.Itoa(p.CharErrsAfter)
+			if b, a, ok := p.CER(); ok {
+				r[11], r[12] = f4(b), f4(a)
+			}
+			r[13], r[14], r[15] = strconv.Itoa(p.RefWords), strconv.Itoa(p.WordErrs), strconv.Itoa(p.WordErrsAfter)
+		}
+		rows = append(rows, r)
+	}
+	return writeCSV(rows)
+}
+
+// RescanCSV lists the pages to scan again: those triage marked rescan and
+// those that could not be read at all.
+func RescanCSV(pages []Page) ([]byte, error) {
+	rows := [][]string{{"title", "page", "path", "predicted_cer", "why"}}
+	for _, p := range pages {
+		switch {
+		case p.Failed:
+			rows = append(rows, []string{cell(p.Title), cell(p.Page), cell(p.Rel), "", cell("unreadable: " + p.Error)})
+		case p.Decision == "rescan":
+			rows = append(rows, []string{cell(p.Title), cell(p.Page), cell(p.Rel), f4(p.PredictedCER), cell(strings.Join(p.Reasons, "; "))})
+		}
+	}
+	return writeCSV(rows)
+}
+
+// Clean replaces what must not appear in HTML, XML or CSV text: invalid
+// UTF-8, C0 and C1 control characters other than tab and newline,
+// and the non-characters U+FFFE and U+FFFF. Each becomes U+FFFD.
+func Clean(s string) string {
+	if utf8.ValidString(s) && strings.IndexFunc(s, bad) < 0 {
+		return s // fast path: nearly every string is clean
+	}
+	var b strings.Builder
+	b.Grow(len(s))
+	for _, r := range s { // invalid UTF-8 comes out as U+FFFD
+		if bad(r) {
+			r = utf8.RuneError
+		}
+		b.WriteRune(r)
+	}
+	return b.String()
+}
+
+func bad(r rune) bool {
+	if r == '\t' || r == '\n' {
+		return false
+	}
+	return r < 0x20 || (r >= 0x7f && r <= 0x9f) || r == 0xFFFE || r == 0xFFFF
+}

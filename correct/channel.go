@@ -12,6 +12,7 @@ type observed struct {
 	runes []rune   // s as runes
 	off   []int    // byte offset of each rune in s, plus len(s)
 	rules [][]crul // rules[j]: confusions whose To is s[off[j-b]:off[j]]
+	bound float64  // no candidate's log P(s | candidate) exceeds this
 }
 
 type crul struct {
@@ -36,11 +37,13 @@ func (m *Model) prepare(o *observed, s string) {
 	for j := range o.rules {
 		o.rules[j] = o.rules[j][:0]
 	}
+	o.bound = m.maxEdit
 	for j := 1; j <= n; j++ {
 		for b := 1; b <= maxRule && b <= j; b++ {
 			rs := m.byTo[s[o.off[j-b]:o.off[j]]]
 			for k := range rs {
 				o.rules[j] = append(o.rules[j], crul{&rs[k]})
+				o.bound = max(o.bound, rs[k].logp)
 			}
 		}
 	}
@@ -51,7 +54,12 @@ func (m *Model) prepare(o *observed, s string) {
 // lower-case candidate into the observed token, as a product over a
 // partition into confusions of up to three characters, kept characters,
 // and unseen one-character edits at smoothed rates. buf is scratch space.
-func (m *Model) logChannel(o *observed, cand string, crs []rune, buf []float64) (float64, []float64) {
+// Every step multiplies by a probability and no step spans more than
+// maxRule candidate characters, so the best value over any maxRule
+// consecutive rows of the table bounds the result: as soon as that is at or
+// below limit, logChannel gives up and returns -Inf (pass -Inf to always
+// finish).
+func (m *Model) logChannel(o *observed, cand string, crs []rune, buf []float64, limit float64) (float64, []float64) {
 	crs = crs[:0]
 	for _, r := range cand {
 		crs = append(crs, r)
@@ -64,7 +72,12 @@ func (m *Model) logChannel(o *observed, cand string, crs []rune, buf []float64) 
 	}
 	d := buf[:size]
 	inf := math.Inf(-1)
+	var recent [maxRule]float64 // best of the last rows, by i % maxRule
+	for k := range recent {
+		recent[k] = 0
+	}
 	for i := 0; i <= n; i++ {
+		rowBest := inf
 		for j := 0; j <= mm; j++ {
 			if i == 0 && j == 0 {
 				d[0] = 0
@@ -115,6 +128,17 @@ func (m *Model) logChannel(o *observed, cand string, crs []rune, buf []float64) 
 				}
 			}
 			d[i*w+j] = best
+			rowBest = max(rowBest, best)
+		}
+		recent[i%maxRule] = rowBest
+		if i >= maxRule-1 {
+			best := recent[0]
+			for _, v := range recent[1:] {
+				best = max(best, v)
+			}
+			if best <= limit {
+				return inf, buf
+			}
 		}
 	}
 	return d[n*w+mm], buf

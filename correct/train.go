@@ -6,6 +6,8 @@ import (
 	"unicode/utf8"
 
 	"golang.org/x/text/unicode/norm"
+
+	"recto/quality"
 )
 
 // Pair is one training example: the ground truth of a page (or line) and
@@ -21,11 +23,25 @@ type TrainOptions struct {
 	// fewer times than this; 0 means 2. One-character confusions are kept
 	// at any count.
 	MinCount int
-	// MaxCells bounds the alignment table of one pair (reference runes ×
-	// hypothesis runes); bigger pairs are aligned line by line when both
-	// sides have the same number of lines and skipped otherwise. 0 means
-	// 40 million.
-	MaxCells int
+	// Prior lists confusions known beforehand (such as Classic); each
+	// gets a pseudo-count of PriorRate times the count of its From in the
+	// reference text, on top of what the pairs show, so that it has some
+	// probability even when the training pages never show it.
+	Prior []Rule
+	// PriorRate is the prior probability of each Prior confusion; 0 means
+	// 0.002.
+	PriorRate float64
+}
+
+// Classic lists the OCR confusions of letter shapes that every engine is
+// known to make (common practice: rn/m, cl/d, li/h, vv/w, ii/u, 0/o, 1/l/I,
+// 5/s, e/c, in both directions where both occur), for TrainOptions.Prior.
+var Classic = []Rule{
+	{From: "m", To: "rn"}, {From: "rn", To: "m"}, {From: "d", To: "cl"}, {From: "cl", To: "d"},
+	{From: "h", To: "li"}, {From: "li", To: "h"}, {From: "w", To: "vv"}, {From: "u", To: "ii"},
+	{From: "o", To: "0"}, {From: "l", To: "1"}, {From: "i", To: "1"}, {From: "i", To: "l"},
+	{From: "l", To: "i"}, {From: "s", To: "5"}, {From: "e", To: "c"}, {From: "c", To: "e"},
+	{From: "h", To: "b"}, {From: "m", To: "in"}, {From: "m", To: "ni"}, {From: "n", To: "ri"},
 }
 
 // maxRule is the longest From or To learned, in characters.
@@ -33,24 +49,23 @@ const maxRule = 3
 
 // Train learns an error model from aligned pairs. Both sides are put in
 // NFC, lower-cased and have runs of white space collapsed to one space;
-// each pair is aligned with a Levenshtein alignment, and every maximal run
+// each pair is aligned with a Levenshtein alignment (quality.Align), and every maximal run
 // of differences of at most three characters a side becomes a confusion,
 // counted alone and widened by one matching neighbour on either side
+// (longer runs are skipped as garbage)
 // (Brill and Moore 2000, "An improved error model for noisy channel
-// spelling correction"). P(To | From) is then N(From→To) / N(From), with
-// N(From) counted over the reference text.
+// spelling correction"). P(To | From) is then N(From→To) / (N(From) + 20),
+// with N(From) counted over the reference text (see Model.Prob).
 func Train(pairs []Pair, o TrainOptions) *Model {
 	minCount := int64(o.MinCount)
 	if minCount <= 0 {
 		minCount = 2
 	}
-	maxCells := o.MaxCells
-	if maxCells <= 0 {
-		maxCells = 40_000_000
-	}
 	counts := make(map[[2]string]int64)
 	var refs [][]rune
 	var words int64
+	var sc quality.Scratch
+	var ops []quality.Op
 	add := func(from, to string) {
 		if from == to || utf8.RuneCountInString(from) > maxRule || utf8.RuneCountInString(to) > maxRule {
 			return
@@ -61,26 +76,19 @@ func Train(pairs []Pair, o TrainOptions) *Model {
 		ref, hyp := []rune(trainForm(p.Ref)), []rune(trainForm(p.Hyp))
 		words += int64(len(strings.Fields(string(ref))))
 		refs = append(refs, ref)
-		if len(ref)*len(hyp) <= maxCells {
-			learnOps(alignRunes(ref, hyp), add)
-			continue
-		}
-		rl, hl := strings.Split(string(ref), "\n"), strings.Split(string(hyp), "\n")
-		if len(rl) != len(hl) {
-			continue
-		}
-		for i := range rl {
-			r, h := []rune(rl[i]), []rune(hl[i])
-			if len(r)*len(h) <= maxCells {
-				learnOps(alignRunes(r, h), add)
-			}
-		}
+		ops = sc.Align(ref, hyp, ops[:0])
+		learnOps(ops, add)
 	}
 	// Count every From in the reference text.
 	need := make(map[string]int64)
 	for k := range counts {
 		if k[0] != "" {
 			need[k[0]] = 0
+		}
+	}
+	for _, r := range o.Prior {
+		if r.From != "" {
+			need[r.From] = 0
 		}
 	}
 	var chars int64
@@ -99,10 +107,22 @@ func Train(pairs []Pair, o TrainOptions) *Model {
 			}
 		}
 	}
+	rate := o.PriorRate
+	if rate <= 0 {
+		rate = 0.002
+	}
+	for _, r := range o.Prior {
+		if r.From == "" || r.From == r.To {
+			continue
+		}
+		if pseudo := int64(rate*float64(need[r.From]) + 0.5); pseudo > 0 {
+			counts[[2]string{r.From, r.To}] += pseudo
+		}
+	}
 	var rules []Rule
 	for k, n := range counts {
 		from, to := k[0], k[1]
-		if utf8.RuneCountInString(from)+utf8.RuneCountInString(to) > 2 && n < minCount {
+		if utf8.RuneCountInString(from)+utf8.RuneCountInString(to) > 2 && n < minCount && !inPrior(o.Prior, from, to) {
 			continue
 		}
 		if from != "" && need[from] < n {
@@ -125,8 +145,8 @@ func Train(pairs []Pair, o TrainOptions) *Model {
 }
 
 // trainForm is the form texts are compared in: NFC, lower case, white space
-// runs collapsed to one space, except that line breaks are kept (as "\n")
-// so that long pages can be aligned line by line.
+// runs collapsed to one space, except that line breaks are kept (as "\n",
+// read as spaces by learnOps).
 func trainForm(s string) string {
 	s = strings.ToLower(norm.NFC.String(s))
 	var b strings.Builder
@@ -156,8 +176,8 @@ func trainForm(s string) string {
 // learnOps passes every confusion in an alignment to add: each maximal run
 // of non-matching operations (line breaks count as spaces), alone and
 // widened by one matching neighbour on each side. Runs longer than maxRule
-// a side are passed one operation at a time.
-func learnOps(ops []alignOp, add func(from, to string)) {
+// a side are skipped.
+func learnOps(ops []quality.Op, add func(from, to string)) {
 	sp := func(r rune) rune {
 		if r == '\n' {
 			return ' '
@@ -169,13 +189,13 @@ func learnOps(ops []alignOp, add func(from, to string)) {
 	}
 	var from, to []rune
 	for s := 0; s < len(ops); {
-		if ops[s].Kind == opMatch {
+		if ops[s].Kind == quality.OpMatch {
 			s++
 			continue
 		}
 		e := s
 		from, to = from[:0], to[:0]
-		for e < len(ops) && ops[e].Kind != opMatch {
+		for e < len(ops) && ops[e].Kind != quality.OpMatch {
 			if ops[e].R != 0 {
 				from = append(from, ops[e].R)
 			}
@@ -185,9 +205,8 @@ func learnOps(ops []alignOp, add func(from, to string)) {
 			e++
 		}
 		if len(from) > maxRule || len(to) > maxRule {
-			for k := s; k < e; k++ {
-				add(opString(ops[k].R), opString(ops[k].H))
-			}
+			// Longer runs are lost lines, smudges or misread blocks, not
+			// character confusions: the error model learns nothing there.
 			s = e
 			continue
 		}
@@ -205,9 +224,11 @@ func learnOps(ops []alignOp, add func(from, to string)) {
 	}
 }
 
-func opString(r rune) string {
-	if r == 0 {
-		return ""
+func inPrior(prior []Rule, from, to string) bool {
+	for _, r := range prior {
+		if r.From == from && r.To == to {
+			return true
+		}
 	}
-	return string(r)
+	return false
 }

@@ -124,7 +124,10 @@ func read(r io.Reader, name string) (*Lexicon, error) {
 			if err != nil {
 				return nil, &ParseError{File: name, Line: n, Err: err}
 			}
-			l = &Lexicon{words: make(map[string]int64, h[0]), bigrams: make(map[string]int64, h[1])}
+			// Each entry takes at least 4 bytes ("w\t0\n"): never trust a
+			// size hint beyond what the data can hold.
+			limit := len(data) / 4
+			l = &Lexicon{words: make(map[string]int64, min(h[0], limit)), bigrams: make(map[string]int64, min(h[1], limit))}
 			continue
 		}
 		if len(line) == 0 || line[0] == '#' {

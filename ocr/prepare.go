@@ -47,7 +47,7 @@ type PrepOptions struct {
 
 // Step records one preparation step.
 type Step struct {
-	Name     string        // "gray", "noise", "denoise", "deskew", "binarize", "cleanup", "blank"
+	Name     string        // "gray", "noise", "denoise", "measure", "deskew", "binarize", "cleanup", "blank"
 	Applied  bool          // false when the step measured and decided not to act, or was off
 	Duration time.Duration // wall time of the step, measurement included
 	Detail   string        // what was measured and decided, for people
@@ -159,6 +159,7 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 	if blank {
 		p.Blank = true
 	}
+	step("measure", true, "paper level %d, background variation %.0f, %d ink pixels at half size", bg.paper, bg.variation, bg.ink)
 
 	switch method {
 	case "", "auto":
@@ -172,14 +173,19 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 	rot := rotation{}
 	rotated := false
 	if o.Deskew != Off && !blank {
-		var it integral
+		// On an evenly lit page one level (Otsu's, of the half-size
+		// page) separates ink from paper, at both sizes, and the final
+		// stage of the search uses the full-size ink. Otherwise the
+		// half-size page is binarised by Sauvola's method and the
+		// search stays at half size.
 		b2 := image.NewGray(g2.Rect)
-		sauvola(b2, g2, sauvolaWindow(g2.Rect.Dx(), g2.Rect.Dy()), &it)
-		// The final stage of the search uses the full-size ink when one
-		// level separates it from the paper (the page is evenly lit).
 		t := -1
-		if method != "sauvola" {
+		if method == "sauvola" {
+			var it integral
+			sauvola(b2, g2, sauvolaWindow(g2.Rect.Dx(), g2.Rect.Dy()), &it)
+		} else {
 			t = bg.otsu
+			threshold(b2, g2, t)
 		}
 		deg, ok := findSkew(b2, g, t, maxSkew)
 		switch {
@@ -321,10 +327,10 @@ func measureBackground(g *image.Gray) background {
 			}
 			// A pixel counts when the pixel right of it or below it is
 			// dark too: noise rarely darkens two neighbours together.
-			for y := max(ty, my); y < min(y1, h-my); y++ {
+			for y := max(ty, my); y < min(y1, h-my, h-1); y++ {
 				row := g.Pix[y*g.Stride : y*g.Stride+w]
 				next := g.Pix[(y+1)*g.Stride : (y+1)*g.Stride+w]
-				for x := max(tx, mx); x < min(x1, w-mx); x++ {
+				for x := max(tx, mx); x < min(x1, w-mx, w-1); x++ {
 					if row[x] < lim && (row[x+1] < lim || next[x] < lim) {
 						res.ink++
 					}

@@ -1,5 +1,7 @@
 package quality
 
+import "slices"
+
 // bitState is the working memory of the bit-vector method.
 type bitState struct {
 	pv, mv []uint64       // vertical deltas +1 / -1 of the current column
@@ -72,25 +74,36 @@ func (s *bitState) distance(a, b []rune) int {
 		// The horizontal delta entering a block from above, as two bits:
 		// +1 on row 0 (D(0, j) = j).
 		hpos, hneg := uint64(1), uint64(0)
-		for k := range nb {
-			eq, p, m := eqs[k], pv[k], mv[k]
-			xv := eq | m
-			eq |= hneg // a -1 entering acts as a match on the block's first row
-			xh := (((eq & p) + p) ^ p) | eq
-			ph := m | ^(xh | p)
-			mh := p & xh
-			top := uint(63)
-			if k == nb-1 {
-				top = lastBit
-			}
-			opos, oneg := ph>>top&1, mh>>top&1
-			pv[k] = mh<<1 | hneg | ^(xv | ph<<1 | hpos)
-			mv[k] = (ph<<1 | hpos) & xv
-			hpos, hneg = opos, oneg
+		last := nb - 1
+		for k := range last {
+			var ph, mh uint64
+			pv[k], mv[k], ph, mh = blockStep(eqs[k], pv[k], mv[k], hpos, hneg)
+			hpos, hneg = ph>>63, mh>>63
 		}
+		var ph, mh uint64
+		pv[last], mv[last], ph, mh = blockStep(eqs[last], pv[last], mv[last], hpos, hneg)
+		hpos, hneg = ph>>lastBit&1, mh>>lastBit&1
 		score += int(hpos) - int(hneg)
 	}
 	return score
+}
+
+// blockStep advances one 64-row block by one column: eq is the block's
+// match vector for the column's symbol, p and m its vertical +1 and -1
+// deltas, hpos and hneg the horizontal delta (+1, -1, or neither) entering
+// from the row above the block. It returns the new vertical deltas and the
+// block's horizontal deltas before the shift, whose top bit is the delta
+// leaving the block.
+func blockStep(eq, p, m, hpos, hneg uint64) (np, nm, ph, mh uint64) {
+	xv := eq | m
+	eq |= hneg // a -1 entering acts as a match on the block's first row
+	xh := (((eq & p) + p) ^ p) | eq
+	ph = m | ^(xh | p)
+	mh = p & xh
+	sph := ph<<1 | hpos
+	np = mh<<1 | hneg | ^(xv | sph)
+	nm = sph & xv
+	return np, nm, ph, mh
 }
 
 // buildPeq fills the match vectors of a: for each distinct symbol, nb
@@ -138,4 +151,119 @@ func (s *bitState) peqOf(c rune, nb int) []uint64 {
 		return nil
 	}
 	return s.peq[int(idx)*nb : int(idx+1)*nb]
+}
+
+// bagCounter computes the bag distance, a lower bound on the Levenshtein
+// distance (Bartolini, Ciaccia and Patella 2002, "String matching with
+// metric trees using an approximate distance"): count each symbol in a and
+// in b; the distance is at least the larger of a's total surplus and b's,
+// since one edit lowers each by at most 1. It lets Distance and Align skip
+// the diagonal rounds when the distance is sure to be large.
+type bagCounter struct {
+	ascii [128]int32
+	other map[rune]int32
+}
+
+// bound returns the bag distance of a and b in O(len(a)+len(b)) time.
+func (c *bagCounter) bound(a, b []rune) int { return bagBound(c, a, b) }
+
+// bagBound is bagCounter.bound for either kind of symbol.
+func bagBound[T symbol](c *bagCounter, a, b []T) int {
+	clear(c.ascii[:])
+	if c.other == nil {
+		c.other = make(map[rune]int32)
+	}
+	clear(c.other)
+	for _, r := range a {
+		if r >= 0 && r < 128 {
+			c.ascii[r]++
+		} else {
+			c.other[rune(r)]++
+		}
+	}
+	for _, r := range b {
+		if r >= 0 && r < 128 {
+			c.ascii[r]--
+		} else {
+			c.other[rune(r)]--
+		}
+	}
+	pos, neg := 0, 0
+	for _, v := range c.ascii {
+		if v > 0 {
+			pos += int(v)
+		} else {
+			neg -= int(v)
+		}
+	}
+	for _, v := range c.other {
+		if v > 0 {
+			pos += int(v)
+		} else {
+			neg -= int(v)
+		}
+	}
+	return max(pos, neg)
+}
+
+// denseCoder re-encodes two texts of at most 256 distinct symbols as one
+// byte per symbol (codes in order of first appearance); equal symbols get
+// equal bytes, so distances and split points are unchanged.
+type denseCoder struct {
+	ascii  [128]int16 // code of an ASCII symbol, or -1
+	other  map[rune]uint8
+	da, db []byte
+}
+
+// encode returns the byte forms of a and b, valid until the next call, or
+// false when they use more than 256 distinct symbols. O(len(a)+len(b)).
+func (c *denseCoder) encode(a, b []rune) ([]byte, []byte, bool) {
+	for i := range c.ascii {
+		c.ascii[i] = -1
+	}
+	if c.other == nil {
+		c.other = make(map[rune]uint8)
+	}
+	clear(c.other)
+	next := 0
+	code := func(r rune) (byte, bool) {
+		if r >= 0 && r < 128 {
+			if v := c.ascii[r]; v >= 0 {
+				return byte(v), true
+			}
+		} else if v, ok := c.other[r]; ok {
+			return v, true
+		}
+		if next == 256 {
+			return 0, false
+		}
+		v := byte(next)
+		next++
+		if r >= 0 && r < 128 {
+			c.ascii[r] = int16(v)
+		} else {
+			c.other[r] = v
+		}
+		return v, true
+	}
+	var ok bool
+	c.da, c.db = slices.Grow(c.da[:0], len(a)), slices.Grow(c.db[:0], len(b))
+	if c.da, ok = appendCodes(c.da, a, code); !ok {
+		return nil, nil, false
+	}
+	if c.db, ok = appendCodes(c.db, b, code); !ok {
+		return nil, nil, false
+	}
+	return c.da, c.db, true
+}
+
+func appendCodes(dst []byte, s []rune, code func(rune) (byte, bool)) ([]byte, bool) {
+	for _, r := range s {
+		v, ok := code(r)
+		if !ok {
+			return dst, false
+		}
+		dst = append(dst, v)
+	}
+	return dst, true
 }

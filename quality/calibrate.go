@@ -48,7 +48,8 @@ const MinFitPages = 20
 // Fit fits a Model on ground-truthed samples: a ridge regression for page
 // records and one for plain text, each with its penalty chosen by k-fold
 // cross-validation (folds drawn with the seed, so fitting is reproducible).
-// Blank pages are left out: triage decides them without the model.
+// Blank pages and pages without any recognised token are left out: triage
+// decides them without the model.
 func Fit(samples []Sample, o FitOptions) (*Model, error) {
 	if o.Seed == 0 {
 		o.Seed = 1
@@ -70,11 +71,11 @@ func Fit(samples []Sample, o FitOptions) (*Model, error) {
 			continue
 		}
 		y := math.Log(math.Min(math.Max(s.CER, 0), 1) + o.Offset)
-		if s.Record.FromRecord && !s.Record.Blank {
+		if s.Record.FromRecord && !s.Record.Blank && s.Record.Tokens > 0 {
 			recX = append(recX, s.Record)
 			recY = append(recY, y)
 		}
-		if !s.Text.Blank {
+		if !s.Text.Blank && s.Text.Tokens > 0 {
 			txtX = append(txtX, s.Text)
 			txtY = append(txtY, y)
 		}
@@ -131,7 +132,17 @@ func fitLinear(fs []Features, y []float64, names []string, o FitOptions) Linear 
 			best, bestErr = lam, sse
 		}
 	}
-	return ridge(X, y, names, best)
+	l := ridge(X, y, names, best)
+	// Duan's smearing factor: the mean of exp(residual) over the fitting
+	// pages turns a prediction of log(CER + Offset) into an estimate of the
+	// mean CER instead of its median (Duan, "Smearing estimate: a
+	// nonparametric retransformation method", JASA 78, 1983).
+	var smear float64
+	for i := range X {
+		smear += math.Exp(y[i] - l.predictRow(X[i]))
+	}
+	l.Smear = smear / float64(n)
+	return l
 }
 
 // ridge fits y ≈ a + Σ b_j·(x_j − mean_j)/sd_j minimising squared error plus

@@ -124,7 +124,9 @@ func ScoreDirs(ctx context.Context, truth, ocr string, cfg DirConfig) (*Report, 
 		}
 	}
 	rep := &Report{Norm: cfg.Norm}
-	refs, err := listText(truth, func(fe *FileError) {
+	// When one root lies inside the other (--ocr gt/ocr), each walk skips
+	// the other root, so OCR output is never taken for ground truth.
+	refs, err := listText(truth, ocr, func(fe *FileError) {
 		fe.Role = "reference"
 		rep.Failed = append(rep.Failed, fe)
 	})
@@ -134,7 +136,7 @@ func ScoreDirs(ctx context.Context, truth, ocr string, cfg DirConfig) (*Report, 
 	if len(refs) == 0 {
 		return nil, fmt.Errorf("quality: no reference pages (*.txt) under %q", truth)
 	}
-	hyps, err := listText(ocr, func(*FileError) {}) // unreadable hypotheses show up when read
+	hyps, err := listText(ocr, truth, func(*FileError) {}) // unreadable hypotheses show up when read
 	if err != nil {
 		return nil, err
 	}
@@ -286,11 +288,18 @@ func Summarize(pages []PageScore, resamples int, seed uint64) ([]TitleScore, Cou
 }
 
 // listText returns the '/'-separated paths of the "*.txt" files under
-// root, sorted. A directory whose name ends in ".txt" and a directory that
-// cannot be listed are passed to bad (and the walk goes on).
-func listText(root string, bad func(*FileError)) ([]string, error) {
+// root, sorted, leaving out the directory skip (the other root) if it lies
+// inside. A directory whose name ends in ".txt" and a directory that cannot
+// be listed are passed to bad (and the walk goes on).
+func listText(root, skip string, bad func(*FileError)) ([]string, error) {
 	var out []string
+	skipInfo, skipErr := os.Stat(skip)
 	err := filepath.WalkDir(root, func(p string, d fs.DirEntry, err error) error {
+		if err == nil && d.IsDir() && p != root && skipErr == nil {
+			if fi, err := os.Stat(p); err == nil && os.SameFile(fi, skipInfo) {
+				return fs.SkipDir
+			}
+		}
 		if err != nil {
 			if p == root {
 				return fmt.Errorf("quality: %w", err)

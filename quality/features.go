@@ -41,7 +41,13 @@ type Features struct {
 	Coverage float64 `json:"coverage"` // share of the page area covered by word boxes
 	Density  float64 `json:"density"`  // characters per square inch of page (page size from Width, Height, DPI)
 
-	Blank bool `json:"blank"` // the engine found no ink worth recognising, or no characters were recognised
+	Noise float64 `json:"noise"` // the page's estimated noise, grey levels (standard deviation), from the record
+
+	// Blank is true when there is nothing to read: the record says the
+	// engine found no ink worth recognising, or (plain text only, where ink
+	// cannot be seen) the text has no characters. A record with ink but no
+	// recognised character is not blank: see Triage.
+	Blank bool `json:"blank"`
 }
 
 // PageFeatures computes the features of a page record. lex nil means the
@@ -82,7 +88,8 @@ func PageFeatures(rec *ocr.Record, lex *lexicon.Lexicon) Features {
 			f.Density = float64(f.Chars) / (area / (rec.DPI * rec.DPI))
 		}
 	}
-	f.Blank = rec.Blank || f.Chars == 0
+	f.Noise = rec.Noise
+	f.Blank = rec.Blank
 	return f
 }
 

@@ -28,9 +28,11 @@ type Model struct {
 	Fit     FitInfo `json:"fit"`     // how the model was made
 }
 
-// Linear is one regression: prediction = Intercept + Σ Coef·(x − Mean)/Scale.
+// Linear is one regression: y = Intercept + Σ Coef·(x − Mean)/Scale
+// predicts log(CER + Offset); the CER estimate is Smear·exp(y) − Offset.
 type Linear struct {
 	Intercept float64 `json:"intercept"`
+	Smear     float64 `json:"smear"`  // retransformation factor (Duan's smearing estimate); 0 is read as 1
 	Lambda    float64 `json:"lambda"` // ridge penalty used, on standardised terms
 	Terms     []Term  `json:"terms"`
 }
@@ -74,12 +76,13 @@ var termFuncs = map[string]func(f *Features) float64{
 	"conf_x_miss":   func(f *Features) float64 { return (1 - f.MeanConf) * lexMiss(f) },
 	"coverage":      func(f *Features) float64 { return f.Coverage },
 	"log_density":   func(f *Features) float64 { return math.Log1p(f.Density) },
+	"noise":         func(f *Features) float64 { return f.Noise },
 }
 
 // recordTerms and textTerms are the terms Fit uses.
 var (
 	textTerms   = []string{"lex_miss", "sqrt_lex_miss", "garbage", "sqrt_garbage", "short", "non_letter", "punct", "symbols", "digits", "upper", "log_tokens"}
-	recordTerms = append([]string{"mean_conf", "low_conf", "sqrt_low_conf", "conf_x_miss", "coverage", "log_density"}, textTerms...)
+	recordTerms = append([]string{"mean_conf", "low_conf", "sqrt_low_conf", "conf_x_miss", "coverage", "log_density", "noise"}, textTerms...)
 )
 
 func lexMiss(f *Features) float64 {
@@ -194,7 +197,11 @@ func (m *Model) PredictCER(f Features) float64 {
 	for _, t := range l.Terms {
 		y += t.Coef * (termFuncs[t.Name](&f) - t.Mean) / t.Scale
 	}
-	return clamp01(math.Exp(y) - m.Offset)
+	smear := l.Smear
+	if smear == 0 {
+		smear = 1
+	}
+	return clamp01(smear*math.Exp(y) - m.Offset)
 }
 
 // Contribution is one term's share of a prediction, in units of

@@ -98,7 +98,7 @@ func TestBitDistanceAgainstTable(t *testing.T) {
 	rng := rand.New(rand.NewPCG(8, 9))
 	alphabets := [][]rune{[]rune("ab"), []rune("abcde é𝔄"), []rune("etaoinshrdlu ,.")}
 	var s Scratch
-	for it := range 2000 {
+	for it := range 800 {
 		n := rng.IntN(200)
 		a, b := randomPair(rng, alphabets[it%3], n, []float64{0, 0.1, 0.5, 1}[it%4])
 		if it%5 == 0 {
@@ -149,7 +149,7 @@ func tableColumn(a, b []rune) []int {
 func TestBitSplit(t *testing.T) {
 	rng := rand.New(rand.NewPCG(10, 11))
 	alphabets := [][]rune{[]rune("ab"), []rune("abcde é𝔄"), []rune("etaoinshrdlu ,.")}
-	for it := range 1500 {
+	for it := range 600 {
 		a, b := randomPair(rng, alphabets[it%3], 2+rng.IntN(150), []float64{0.05, 0.3, 1}[it%3])
 		if len(b) < 2 {
 			continue
@@ -163,5 +163,58 @@ func TestBitSplit(t *testing.T) {
 		// limit 1 and no wavefront split: every level splits by columns
 		al = aligner{limit: 1, noWaveSplit: true}
 		checkOps(t, a, b, al.align(a, b, nil), want)
+	}
+}
+
+// TestBagBound: the bag distance never exceeds the edit distance
+// (Bartolini, Ciaccia and Patella 2002).
+func TestBagBound(t *testing.T) {
+	rng := rand.New(rand.NewPCG(12, 13))
+	var c bagCounter
+	for it := range 2000 {
+		a, b := randomPair(rng, []rune("abcé𝔄 "), rng.IntN(60), []float64{0.1, 0.5, 1}[it%3])
+		if lb, d := c.bound(a, b), tableDistance(a, b); lb > d {
+			t.Fatalf("bag bound %d > distance %d for %q, %q", lb, d, string(a), string(b))
+		}
+	}
+	if got := c.bound([]rune("abc"), []rune("xbcd")); got != 2 {
+		t.Errorf("bound(abc, xbcd) = %d, want 2", got)
+	}
+}
+
+// TestDensePath runs Distance and the alignment split on byte-encoded
+// texts (normally only for long ones) against the table, and checks the
+// fallback when a pair has more than 256 distinct symbols.
+func TestDensePath(t *testing.T) {
+	saved := denseMin
+	denseMin = 0
+	t.Cleanup(func() { denseMin = saved })
+	rng := rand.New(rand.NewPCG(14, 15))
+	wide := make([]rune, 300)
+	for i := range wide {
+		wide[i] = rune(0x4E00 + i) // 300 distinct CJK ideographs
+	}
+	alphabets := [][]rune{[]rune("ab"), []rune("abcde é𝔄"), wide}
+	var s Scratch
+	for it := range 900 {
+		alpha := alphabets[it%3]
+		a, b := randomPair(rng, alpha, rng.IntN(120), []float64{0.05, 0.3, 1}[it%3])
+		if it%3 == 2 {
+			a = append(a, wide...) // force more than 256 symbols
+		}
+		want := tableDistance(a, b)
+		if got := s.Distance(a, b); got != want {
+			t.Fatalf("Distance(%q, %q) = %d, want %d", string(a), string(b), got, want)
+		}
+		al := aligner{limit: 1}
+		checkOps(t, a, b, al.align(a, b, nil), want)
+	}
+	var c denseCoder
+	if _, _, ok := c.encode(wide, nil); ok {
+		t.Error("300 distinct symbols encoded as bytes")
+	}
+	da, db, ok := c.encode([]rune("aé𝔄"), []rune("𝔄a"))
+	if !ok || string(da) != "\x00\x01\x02" || string(db) != "\x02\x00" {
+		t.Errorf("encode = %q, %q, %v", da, db, ok)
 	}
 }

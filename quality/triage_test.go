@@ -29,7 +29,11 @@ func TestTriageDecisions(t *testing.T) {
 		{"needs rescan", page, 0.30, Thresholds{}, DecisionRescan},
 		{"stricter rescan threshold", page, 0.05, Thresholds{Rescan: 0.04}, DecisionRescan},
 		{"blank", Features{FromRecord: true, Blank: true}, 0.9, Thresholds{}, DecisionBlank},
-		{"picture", Features{FromRecord: true, Tokens: 6, LexWords: 2, LexHit: 0.5}, 0.9, Thresholds{}, DecisionPicture},
+		{"picture: clean scan, almost no text", Features{FromRecord: true, Tokens: 6, LexWords: 2, LexHit: 0.5, Noise: 6}, 0.9, Thresholds{}, DecisionPicture},
+		{"noisy scan, almost no text", Features{FromRecord: true, Tokens: 6, LexWords: 2, LexHit: 0.5, Noise: 30}, 0.9, Thresholds{}, DecisionRescan},
+		{"ink, nothing recognised", Features{FromRecord: true, Noise: 30}, 0.001, Thresholds{}, DecisionRescan},
+		{"text only, empty", Features{Blank: true}, 0.9, Thresholds{}, DecisionBlank},
+		{"nearly blank: a page number", Features{FromRecord: true, Tokens: 1, Chars: 2, Noise: 6}, 0.9, Thresholds{}, DecisionBlank},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -53,7 +57,7 @@ func TestTriageReasons(t *testing.T) {
 			t.Errorf("reasons %q lack %q", all, want)
 		}
 	}
-	v = Triage(Features{Blank: true}, nil, Thresholds{})
+	v = Triage(Features{FromRecord: true, Blank: true}, nil, Thresholds{})
 	if v.Decision != DecisionBlank || v.Reasons[0] != "page is blank" {
 		t.Errorf("blank page: %+v", v)
 	}

@@ -1,14 +1,541 @@
 package main
 
-import "github.com/spf13/cobra"
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"runtime"
+	"sort"
+	"strings"
+	"sync"
+	"unicode/utf8"
 
-// newCorrectCommand is a placeholder until the capability lands.
+	"github.com/spf13/cobra"
+
+	"recto/correct"
+	"recto/lexicon"
+	"recto/ocr"
+	"recto/ocr/alto"
+)
+
+// CorrectOptions are the options of `recto correct`.
+type CorrectOptions struct {
+	Out        string  // output directory; must not be IN or inside it
+	DryRun     bool    // list the changes on stdout, write nothing
+	Model      string  // model file from `recto correct train`; "" for the embedded one
+	Lexicon    string  // lexicon file; "" for the embedded English one
+	Margin     float64 // natural-log odds a correction must win by; 0 = default
+	Jobs       int     // pages corrected in parallel; 0 means GOMAXPROCS
+	Collection bool    // add the input pages' own word counts to the context model
+}
+
+// CorrectTrainOptions are the options of `recto correct train`.
+type CorrectTrainOptions struct {
+	OCR      string // directory of OCR .txt files
+	Truth    string // directory of ground-truth .txt files, same relative names
+	Out      string // model file to write
+	MinCount int    // drop longer confusions seen fewer times; 0 = default
+}
+
 func newCorrectCommand(g *GlobalOptions) *cobra.Command {
-	return &cobra.Command{
-		Use:   "correct",
-		Short: "Correct common OCR confusions with a noisy-channel model (not implemented yet)",
+	var o CorrectOptions
+	cmd := &cobra.Command{
+		Use:   "correct IN --out DIR",
+		Short: "Correct common OCR confusions with a noisy-channel model",
+		Long: `Correct common OCR confusions (rn/m, cl/d, li/h, 0/o, 1/l, e/c, lost or
+stray spaces...) in the pages under IN, a folder written by 'recto ocr'.
+
+Every <name>.txt under IN is read; when <name>.json (the page record) is
+beside it, its word confidences are used (a confident word is harder to
+change) and a corrected record is written too; when <name>.alto.xml is
+beside it, a corrected ALTO file is written with the engine's reading kept
+as an ALTERNATIVE of each changed word. Outputs go under --out with the
+same relative names, and DIR/changes.jsonl lists every change, one JSON
+object a line: page, line, column (1-based, in characters), before, after,
+score (how much likelier the correction is, as a natural-log ratio).
+
+A word is changed only when the best candidate beats the word as read by
+--margin. Numbers, dates, roman numerals, URLs and confident capitalised
+words the lexicon lacks (likely names) are left alone. Words hyphenated at
+a line end are joined when the joined word is in the lexicon.
+
+The files under IN are never modified: --out must be another folder.
+--dry-run prints the changes (JSON lines) on stdout and writes nothing.
+
+  recto correct scans/ocr --out scans/corrected
+  recto correct scans/ocr --dry-run
+  recto correct train --ocr corpus/ocr --truth corpus/truth --out my.model
+` + exitStatusHelp,
+		Args: cobra.ExactArgs(1),
+		PreRunE: func(cmd *cobra.Command, args []string) error {
+			if o.Out == "" && !o.DryRun {
+				return usagef("correct: --out is required (or --dry-run)")
+			}
+			if o.Margin < 0 {
+				return usagef("correct: --margin must not be negative, not %v", o.Margin)
+			}
+			if o.Jobs < 0 {
+				return usagef("correct: --jobs must be positive")
+			}
+			return nil
+		},
 		RunE: func(cmd *cobra.Command, args []string) error {
-			return errNotImplemented
+			return runCorrect(cmd.Context(), o, *g, args[0])
 		},
 	}
+	f := cmd.Flags()
+	f.StringVarP(&o.Out, "out", "o", "", "write corrected pages and changes.jsonl under `dir`")
+	f.BoolVar(&o.DryRun, "dry-run", false, "list the changes on stdout without writing anything")
+	f.StringVar(&o.Model, "model", "", "error model `file` from 'recto correct train' (default: embedded)")
+	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` (default: embedded English)")
+	f.Float64Var(&o.Margin, "margin", 0, fmt.Sprintf("log-odds `margin` a correction must win by (0 = %g; higher is more cautious)", correct.DefaultMargin))
+	f.IntVarP(&o.Jobs, "jobs", "j", 0, "pages corrected in parallel (`n`; default: number of CPUs)")
+	f.BoolVar(&o.Collection, "collection", false, "also count the input pages' known words and word pairs for the context")
+	cmd.AddCommand(newCorrectTrainCommand(g))
+	return cmd
+}
+
+func newCorrectTrainCommand(g *GlobalOptions) *cobra.Command {
+	var o CorrectTrainOptions
+	cmd := &cobra.Command{
+		Use:   "train --ocr DIR --truth DIR --out MODEL",
+		Short: "Learn an error model from OCR output and its ground truth",
+		Long: `Learn the character confusions of your own scans: every <name>.txt under
+--truth is paired with <name>.txt under --ocr, the two are aligned
+character by character, and each run of differences of up to three
+characters a side is counted, alone and with a neighbouring character.
+The model file (versioned, gzip-compressed JSON) is used with
+'recto correct --model'.
+` + exitStatusHelp,
+		Args: cobra.NoArgs,
+		PreRunE: func(cmd *cobra.Command, args []string) error {
+			if o.OCR == "" || o.Truth == "" || o.Out == "" {
+				return usagef("correct train: --ocr, --truth and --out are required")
+			}
+			if o.MinCount < 0 {
+				return usagef("correct train: --min-count must not be negative")
+			}
+			return nil
+		},
+		RunE: func(cmd *cobra.Command, args []string) error {
+			return runCorrectTrain(cmd.Context(), o, *g)
+		},
+	}
+	f := cmd.Flags()
+	f.StringVar(&o.OCR, "ocr", "", "`dir` of OCR output (.txt)")
+	f.StringVar(&o.Truth, "truth", "", "`dir` of ground truth (.txt, same names)")
+	f.StringVarP(&o.Out, "out", "o", "", "model `file` to write")
+	f.IntVar(&o.MinCount, "min-count", 0, "drop confusions of three or more characters seen fewer than `n` times (0 = 2)")
+	return cmd
+}
+
+// correctPage is one page to correct: its name relative to IN, without
+// suffix, and which inputs it has.
+type correctPage struct {
+	rel     string // slash-separated, no suffix
+	txt     bool
+	json    bool
+	altoXML bool
+}
+
+// correctResult is what correcting one page gave.
+type correctResult struct {
+	changes []correct.Change
+	err     error
+}
+
+// changeLine is one line of changes.jsonl.
+type changeLine struct {
+	Page   string  `json:"page"`
+	Line   int     `json:"line"`
+	Column int     `json:"column"`
+	Before string  `json:"before"`
+	After  string  `json:"after"`
+	Score  float64 `json:"score"`
+}
+
+func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in string) error {
+	st, err := os.Stat(in)
+	if err != nil {
+		return fmt.Errorf("correct: %w", err)
+	}
+	if !st.IsDir() {
+		return usagef("correct: %q is not a folder (give the folder 'recto ocr' wrote)", in)
+	}
+	if o.Out != "" {
+		if inside, err := within(o.Out, in); err != nil {
+			return fmt.Errorf("correct: %w", err)
+		} else if inside {
+			return usagef("correct: --out %q is %q or inside it; originals are never modified, choose another folder", o.Out, in)
+		}
+	}
+	pages, err := findCorrectPages(in)
+	if err != nil {
+		return err
+	}
+	if len(pages) == 0 {
+		return fmt.Errorf("correct: no .txt or .json pages under %q", in)
+	}
+	m := correct.DefaultModel()
+	if o.Model != "" {
+		if m, err = correct.LoadModel(o.Model); err != nil {
+			return err
+		}
+	}
+	lex := lexicon.Default()
+	if o.Lexicon != "" {
+		if lex, err = lexicon.Load(o.Lexicon); err != nil {
+			return err
+		}
+	}
+	cfg := correct.Config{Margin: o.Margin}
+	if o.Collection {
+		cfg.Collection = collectionCounts(in, pages, lex)
+	}
+	c := correct.New(lex, m, cfg)
+
+	jobs := o.Jobs
+	if jobs <= 0 {
+		jobs = runtime.GOMAXPROCS(0)
+	}
+	jobs = min(jobs, len(pages))
+	results := make([]correctResult, len(pages))
+	idx := make(chan int)
+	var wg sync.WaitGroup
+	var mu sync.Mutex // serialises messages on stderr
+	for range jobs {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range idx {
+				results[i] = correctOne(c, in, o, pages[i], g, &mu)
+			}
+		}()
+	}
+feed:
+	for i := range pages {
+		select {
+		case idx <- i:
+		case <-ctx.Done():
+			break feed
+		}
+	}
+	close(idx)
+	wg.Wait()
+	if err := ctx.Err(); err != nil {
+		return err
+	}
+
+	var lines bytes.Buffer
+	enc := json.NewEncoder(&lines)
+	enc.SetEscapeHTML(false)
+	failed, total := 0, 0
+	for i, r := range results {
+		if r.err != nil {
+			failed++
+			fmt.Fprintf(g.stderr, "recto: %v\n", r.err)
+			continue
+		}
+		for _, ch := range r.changes {
+			total++
+			_ = enc.Encode(changeLine{Page: pages[i].rel, Line: ch.Line, Column: ch.Column, Before: ch.Before, After: ch.After, Score: ch.Score})
+		}
+	}
+	if o.DryRun {
+		if _, err := g.stdout.Write(lines.Bytes()); err != nil {
+			return err
+		}
+	} else {
+		if err := writeFileAtomic(filepath.Join(o.Out, "changes.jsonl"), lines.Bytes()); err != nil {
+			return err
+		}
+	}
+	if !g.Quiet {
+		fmt.Fprintf(g.stderr, "correct: %d changes in %d pages\n", total, len(pages)-failed)
+	}
+	if failed == len(pages) {
+		return fmt.Errorf("correct: every page failed")
+	}
+	if failed > 0 {
+		return &partialError{Failed: failed, Total: len(pages), What: "pages"}
+	}
+	return nil
+}
+
+// within reports whether dir is base or lies inside it.
+func within(dir, base string) (bool, error) {
+	d, err := filepath.Abs(dir)
+	if err != nil {
+		return false, err
+	}
+	b, err := filepath.Abs(base)
+	if err != nil {
+		return false, err
+	}
+	if rd, err := filepath.EvalSymlinks(d); err == nil {
+		d = rd
+	}
+	if rb, err := filepath.EvalSymlinks(b); err == nil {
+		b = rb
+	}
+	rel, err := filepath.Rel(b, d)
+	if err != nil {
+		return false, nil
+	}
+	return rel == "." || (rel != ".." && !strings.HasPrefix(rel, ".."+string(filepath.Separator))), nil
+}
+
+// findCorrectPages lists the pages under dir, sorted by name: every
+// <name>.txt, and every <name>.json page record without a .txt twin.
+func findCorrectPages(dir string) ([]correctPage, error) {
+	byRel := map[string]*correctPage{}
+	err := filepath.WalkDir(dir, func(path string, d fs.DirEntry, err error) error {
+		if err != nil {
+			return fmt.Errorf("correct: %w", err)
+		}
+		if d.IsDir() {
+			return nil
+		}
+		name := d.Name()
+		var suffix string
+		switch {
+		case strings.HasSuffix(name, ocr.SuffixALTO):
+			suffix = ocr.SuffixALTO
+		case strings.HasSuffix(name, ocr.SuffixRecord):
+			suffix = ocr.SuffixRecord
+		case strings.HasSuffix(name, ocr.SuffixText):
+			suffix = ocr.SuffixText
+		default:
+			return nil
+		}
+		rel, err := filepath.Rel(dir, path)
+		if err != nil {
+			return err
+		}
+		rel = filepath.ToSlash(strings.TrimSuffix(rel, suffix))
+		p := byRel[rel]
+		if p == nil {
+			p = &correctPage{rel: rel}
+			byRel[rel] = p
+		}
+		switch suffix {
+		case ocr.SuffixALTO:
+			p.altoXML = true
+		case ocr.SuffixRecord:
+			p.json = true
+		default:
+			p.txt = true
+		}
+		return nil
+	})
+	if err != nil {
+		return nil, err
+	}
+	var pages []correctPage
+	for _, p := range byRel {
+		if p.txt || p.json {
+			pages = append(pages, *p)
+		}
+	}
+	sort.Slice(pages, func(i, j int) bool { return pages[i].rel < pages[j].rel })
+	return pages, nil
+}
+
+// correctOne corrects one page and, unless this is a dry run, writes its
+// outputs. Errors name the file.
+func correctOne(c *correct.Corrector, in string, o CorrectOptions, p correctPage, g GlobalOptions, mu *sync.Mutex) correctResult {
+	warn := func(format string, args ...any) {
+		if !g.Quiet {
+			mu.Lock()
+			fmt.Fprintf(g.stderr, format, args...)
+			mu.Unlock()
+		}
+	}
+	base := filepath.Join(in, filepath.FromSlash(p.rel))
+	outBase := filepath.Join(o.Out, filepath.FromSlash(p.rel))
+	if p.json {
+		rec, err := ocr.ReadRecord(base + ocr.SuffixRecord)
+		if err != nil {
+			return correctResult{err: err}
+		}
+		for i, w := range rec.Words {
+			if !utf8.ValidString(w.Text) {
+				return correctResult{err: fmt.Errorf("correct: %q: word %d is not valid UTF-8", base+ocr.SuffixRecord, i+1)}
+			}
+		}
+		if len(rec.Words) == 0 {
+			warn("correct: %q: empty page, copied as it is\n", base+ocr.SuffixRecord)
+		}
+		out, changes := c.CorrectRecord(rec)
+		if o.DryRun {
+			return correctResult{changes: changes}
+		}
+		if err := writeFileAtomic(outBase+ocr.SuffixText, []byte(out.Text())); err != nil {
+			return correctResult{err: err}
+		}
+		var buf bytes.Buffer
+		enc := json.NewEncoder(&buf)
+		enc.SetIndent("", "  ")
+		enc.SetEscapeHTML(false)
+		if err := enc.Encode(out); err != nil {
+			return correctResult{err: fmt.Errorf("correct: %q: %w", outBase+ocr.SuffixRecord, err)}
+		}
+		if err := writeFileAtomic(outBase+ocr.SuffixRecord, buf.Bytes()); err != nil {
+			return correctResult{err: err}
+		}
+		if p.altoXML {
+			buf.Reset()
+			if err := alto.Write(&buf, out); err != nil {
+				return correctResult{err: fmt.Errorf("correct: %q: %w", outBase+ocr.SuffixALTO, err)}
+			}
+			if err := writeFileAtomic(outBase+ocr.SuffixALTO, buf.Bytes()); err != nil {
+				return correctResult{err: err}
+			}
+		}
+		return correctResult{changes: changes}
+	}
+	data, err := os.ReadFile(base + ocr.SuffixText)
+	if err != nil {
+		return correctResult{err: fmt.Errorf("correct: %w", err)}
+	}
+	if !utf8.Valid(data) {
+		return correctResult{err: fmt.Errorf("correct: %q: not valid UTF-8 text (at byte %d)", base+ocr.SuffixText, firstInvalid(data))}
+	}
+	if len(bytes.TrimSpace(data)) == 0 {
+		warn("correct: %q: empty page, copied as it is\n", base+ocr.SuffixText)
+	}
+	out, changes := c.CorrectText(string(data))
+	if !o.DryRun {
+		if err := writeFileAtomic(outBase+ocr.SuffixText, []byte(out)); err != nil {
+			return correctResult{err: err}
+		}
+	}
+	return correctResult{changes: changes}
+}
+
+func firstInvalid(b []byte) int {
+	for i := 0; i < len(b); {
+		r, n := utf8.DecodeRune(b[i:])
+		if r == utf8.RuneError && n <= 1 {
+			return i
+		}
+		i += n
+	}
+	return len(b)
+}
+
+// writeFileAtomic writes data to path through a temporary file in the same
+// directory, creating missing directories.
+func writeFileAtomic(path string, data []byte) error {
+	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+		return fmt.Errorf("correct: %w", err)
+	}
+	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*")
+	if err != nil {
+		return fmt.Errorf("correct: %w", err)
+	}
+	if _, err := f.Write(data); err != nil {
+		f.Close()
+		os.Remove(f.Name())
+		return fmt.Errorf("correct: %q: %w", path, err)
+	}
+	if err := f.Close(); err != nil {
+		os.Remove(f.Name())
+		return fmt.Errorf("correct: %q: %w", path, err)
+	}
+	if err := os.Rename(f.Name(), path); err != nil {
+		os.Remove(f.Name())
+		return fmt.Errorf("correct: %w", err)
+	}
+	return nil
+}
+
+// collectionCounts counts the words the lexicon knows, and pairs of them,
+// over the pages' text. Unknown words are not counted: an OCR error that
+// recurs across the collection must not gain weight from its own repeats.
+func collectionCounts(in string, pages []correctPage, lex *lexicon.Lexicon) *lexicon.Lexicon {
+	coll := lexicon.New()
+	for _, p := range pages {
+		base := filepath.Join(in, filepath.FromSlash(p.rel))
+		var text string
+		if p.txt {
+			data, err := os.ReadFile(base + ocr.SuffixText)
+			if err != nil || !utf8.Valid(data) {
+				continue
+			}
+			text = string(data)
+		} else if rec, err := ocr.ReadRecord(base + ocr.SuffixRecord); err == nil {
+			text = rec.Text()
+		}
+		correct.CountText(coll, lex, text)
+	}
+	return coll
+}
+
+func runCorrectTrain(ctx context.Context, o CorrectTrainOptions, g GlobalOptions) error {
+	var pairs []correct.Pair
+	missing := 0
+	err := filepath.WalkDir(o.Truth, func(path string, d fs.DirEntry, err error) error {
+		if err != nil {
+			return fmt.Errorf("correct train: %w", err)
+		}
+		if d.IsDir() || !strings.HasSuffix(d.Name(), ocr.SuffixText) {
+			return nil
+		}
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+		rel, err := filepath.Rel(o.Truth, path)
+		if err != nil {
+			return err
+		}
+		ref, err := readUTF8(path)
+		if err != nil {
+			return err
+		}
+		hyp, err := readUTF8(filepath.Join(o.OCR, rel))
+		if errors.Is(err, fs.ErrNotExist) {
+			missing++
+			if !g.Quiet {
+				fmt.Fprintf(g.stderr, "correct train: no OCR twin for %q, skipped\n", path)
+			}
+			return nil
+		}
+		if err != nil {
+			return err
+		}
+		pairs = append(pairs, correct.Pair{Ref: ref, Hyp: hyp})
+		return nil
+	})
+	if err != nil {
+		return err
+	}
+	if len(pairs) == 0 {
+		return fmt.Errorf("correct train: no page of %q has an OCR twin under %q", o.Truth, o.OCR)
+	}
+	m := correct.Train(pairs, correct.TrainOptions{MinCount: o.MinCount})
+	if err := m.Save(o.Out); err != nil {
+		return err
+	}
+	if !g.Quiet {
+		fmt.Fprintf(g.stderr, "correct train: %d pairs (%d without OCR twin), %d reference characters, %d confusions\n",
+			len(pairs), missing, m.Chars(), len(m.Rules()))
+	}
+	return nil
+}
+
+func readUTF8(path string) (string, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return "", fmt.Errorf("correct train: %w", err)
+	}
+	if !utf8.Valid(data) {
+		return "", fmt.Errorf("correct train: %q: not valid UTF-8 text (at byte %d)", path, firstInvalid(data))
+	}
+	return string(data), nil
 }

@@ -39,6 +39,7 @@ type RunOptions struct {
 	Correct    float64 // predicted CER above which a page is corrected; 0 means quality.DefaultCorrect
 	Model      string  // triage model file; "" means the built-in model
 	Lexicon    string  // lexicon file; "" means the built-in lexicon
+	Margin     float64 // correction margin, natural-log odds; 0 means correct.DefaultMargin
 	Shard      string  // "i/n"; "" means from the environment, else every page
 	ShardCount int     // shard count for a Kubernetes Indexed Job (JOB_COMPLETION_INDEX); 0 means RECTO_SHARDS
 }
@@ -56,6 +57,7 @@ func (o *RunOptions) AddFlags(cmd *cobra.Command) {
 	f.Float64Var(&o.Correct, "correct", 0, "correct a page when its predicted `CER` is above this (default 0.02)")
 	f.StringVar(&o.Model, "model", "", "triage model `file` (default: built in)")
 	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` for triage and correction (default: built in)")
+	f.Float64Var(&o.Margin, "margin", 0, "correct a word only when the candidate is e^`m` times likelier (default 5)")
 	f.StringVar(&o.Shard, "shard", "", "process only share `i/n` of the pages (default: from JOB_COMPLETION_INDEX or SLURM_ARRAY_TASK_ID, else all)")
 	f.IntVar(&o.ShardCount, "shard-count", 0, "number of shards when the index comes from JOB_COMPLETION_INDEX (default: $RECTO_SHARDS)")
 }
@@ -112,6 +114,8 @@ func (o *RunOptions) finalize() error {
 		return usagef("run: --correct %g is above --rescan %g: pages worse than the rescan threshold are not corrected", o.Correct, o.Rescan)
 	case o.ShardCount < 0:
 		return usagef("run: --shard-count %d: must be 1 or more", o.ShardCount)
+	case o.Margin < 0:
+		return usagef("run: --margin %g: must be 0 (default) or more", o.Margin)
 	case o.DPI < 0:
 		return usagef("run: --dpi %g: must be positive", o.DPI)
 	}
@@ -267,6 +271,9 @@ func runRun(ctx context.Context, o RunOptions, g GlobalOptions, args []string) e
 		return err
 	}
 	st.config = st.tk.fingerprint
+	if st.tk.close != nil {
+		defer st.tk.close()
+	}
 
 	ledgerPath := filepath.Join(st.outDir, ledger.FileName)
 	if st.sh.Sharded() {

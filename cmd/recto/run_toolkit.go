@@ -9,8 +9,10 @@ import (
 	"os"
 	"strconv"
 	"strings"
+	"sync"
 	"time"
 
+	"recto/correct"
 	"recto/lexicon"
 	"recto/ocr"
 	"recto/ocr/ocrtest"
@@ -31,6 +33,7 @@ type toolkit struct {
 	correct       func(*ocr.Record) (*ocr.Record, int)
 	compare       func(ref, hyp string) counts
 	interval      report.IntervalFunc
+	close         func() // releases an engine no worker took; may be nil
 }
 
 // cerInterval is the reports' interval for a title's pooled CER: the
@@ -79,7 +82,7 @@ func newToolkit(o RunOptions) (*toolkit, error) {
 	opts := ocr.Options{DPI: o.DPI, NoPrepare: fake}
 	cfg := tesseract.Config{Lang: o.Lang, PSM: o.PSM}
 	settings := map[string]any{"lang": o.Lang, "psm": o.PSM, "dpi": o.DPI, "rescan": o.Rescan, "correct": o.Correct,
-		"model": modelSum, "lexicon": lexSum, "fake_engine": fake, "record": ocr.RecordVersion}
+		"model": modelSum, "lexicon": lexSum, "margin": o.Margin, "fake_engine": fake, "record": ocr.RecordVersion}
 	tk := &toolkit{
 		write:    func(dir, rel string, r *ocr.Record, g *image.Gray) error { return ocr.WriteOutputs(dir, rel, r, g) },
 		interval: cerInterval,
@@ -91,7 +94,10 @@ func newToolkit(o RunOptions) (*toolkit, error) {
 			v := quality.Triage(quality.PageFeatures(r, lex), model, th)
 			return verdict{PredictedCER: v.PredictedCER, Decision: v.Decision, Reasons: v.Reasons}
 		},
-		correct: newCorrector(lex),
+	}
+	tk.correct = func(r *ocr.Record) (*ocr.Record, int) {
+		c, changes := correctorFor(lex, o.Margin).CorrectRecord(r)
+		return c, len(changes)
 	}
 	tk.fingerprint, tk.settingsJSON = fingerprint(settings)
 	if fake {
@@ -105,11 +111,14 @@ func newToolkit(o RunOptions) (*toolkit, error) {
 		if err != nil {
 			return nil, fmt.Errorf("run: %w", err)
 		}
-		first := &eng
+		var mu sync.Mutex // workers start concurrently
+		first := eng
 		tk.newRecogniser = func() (recogniser, error) {
-			if *first != nil { // the engine made for the check serves the first worker
-				e := *first
-				*first = nil
+			mu.Lock()
+			e := first
+			first = nil
+			mu.Unlock()
+			if e != nil { // the engine made for the check serves the first worker
 				return &engineRecogniser{eng: e, opts: opts}, nil
 			}
 			e, err := newEngine(cfg)
@@ -118,8 +127,38 @@ func newToolkit(o RunOptions) (*toolkit, error) {
 			}
 			return &engineRecogniser{eng: e, opts: opts}, nil
 		}
+		tk.close = func() {
+			mu.Lock()
+			defer mu.Unlock()
+			if first != nil {
+				first.Close()
+				first = nil
+			}
+		}
 	}
 	return tk, nil
+}
+
+// correctors caches correctors by lexicon and margin: building one indexes
+// the lexicon, which takes seconds, so it is done when the first page needs
+// correction and once per process (tests run many jobs in one process).
+var correctors sync.Map // correctorKey -> *correctorEntry
+
+type correctorKey struct {
+	lex    *lexicon.Lexicon
+	margin float64
+}
+
+type correctorEntry struct {
+	once sync.Once
+	c    *correct.Corrector
+}
+
+func correctorFor(lex *lexicon.Lexicon, margin float64) *correct.Corrector {
+	v, _ := correctors.LoadOrStore(correctorKey{lex, margin}, &correctorEntry{})
+	e := v.(*correctorEntry)
+	e.once.Do(func() { e.c = correct.New(lex, nil, correct.Config{Margin: margin}) })
+	return e.c
 }
 
 // engineRecogniser is one worker's engine and options.

@@ -39,11 +39,12 @@ PAIRS
   title named after that folder. A missing hypothesis is scored as empty text
   and listed as missing; a hypothesis that cannot be read is scored as empty
   text and reported; a *.txt under --ocr with no reference is listed as
-  unmatched and not scored.
+  unmatched and not scored. If one folder lies inside the other, it is left
+  out of the other's search.
 
 NORMALISATION
-  Before scoring, both texts are normalised. Always: a leading UTF-8 byte
-  order mark is dropped; the text is put in Unicode NFC; every run of white
+  Before scoring, both texts are normalised. Always: the UTF-8 byte order
+  mark (U+FEFF) is dropped; the text is put in Unicode NFC; every run of white
   space, line breaks included (CRLF is fine), becomes one space; leading and
   trailing space is trimmed. Options, each off by default:
     --fold-case          Unicode case folding ("Straße" = "STRASSE")
@@ -72,7 +73,7 @@ OUTPUT (stdout)
          cer_mean, cer_low, cer_high; also missing, unmatched, failed and,
          with --confusions, confusions
   csv    one row per page: title,page,status,chars,char_errors,cer,words,
-         word_errors,wer
+         word_errors,wer,normalization (the same description on every row)
   --confusions N adds the N most frequent confusions, from an optimal
   alignment: adjacent edits are grouped, so "m→rn" is one confusion; "∅"
   stands for nothing and "␣" for a space (not available with csv).
@@ -85,7 +86,8 @@ EXIT STATUS
   1    failure: unreadable --truth/--ocr, no reference page, nothing scored
   2    usage error: bad flag or option value
   3    partial: some hypotheses missing or unreadable, or some references
-       unreadable (the rest were scored and reported)`
+       unreadable (the rest were scored and reported)
+  130  interrupted (SIGINT or SIGTERM)`
 
 func newScoreCommand(g *GlobalOptions) *cobra.Command {
 	var o ScoreOptions
@@ -305,14 +307,15 @@ func formatRate(v float64, ok bool) string {
 
 func writeScoreCSV(w io.Writer, rep *quality.Report) error {
 	cw := csv.NewWriter(w)
-	cw.Write([]string{"title", "page", "status", "chars", "char_errors", "cer", "words", "word_errors", "wer"})
+	norm := rep.Norm.String()
+	cw.Write([]string{"title", "page", "status", "chars", "char_errors", "cer", "words", "word_errors", "wer", "normalization"})
 	for _, p := range rep.Pages {
 		cer, cok := p.CER()
 		wer, wok := p.WER()
 		cw.Write([]string{
 			p.Title, p.Page, p.Status,
 			strconv.Itoa(p.Chars), strconv.Itoa(p.CharErrors), formatRate(cer, cok),
-			strconv.Itoa(p.Words), strconv.Itoa(p.WordErrors), formatRate(wer, wok),
+			strconv.Itoa(p.Words), strconv.Itoa(p.WordErrors), formatRate(wer, wok), norm,
 		})
 	}
 	cw.Flush()
@@ -341,16 +344,19 @@ func writeScoreTable(w io.Writer, rep *quality.Report) error {
 	}
 	name := func(s string) string { return s + strings.Repeat(" ", width-utf8.RuneCountInString(s)) }
 
-	tw := tabwriter.NewWriter(&b, 0, 0, 2, ' ', tabwriter.AlignRight)
+	var tb strings.Builder
+	tw := tabwriter.NewWriter(&tb, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintf(tw, "%s\tstatus\tchars\tchar errors\tCER\twords\tword errors\tWER\t\n", name("page"))
 	for _, p := range rep.Pages {
 		fmt.Fprintf(tw, "%s\t%s\t%d\t%d\t%s\t%d\t%d\t%s\t\n", name(p.Page), p.Status,
 			p.Chars, p.CharErrors, percent(p.CER()), p.Words, p.WordErrors, percent(p.WER()))
 	}
 	tw.Flush()
+	b.WriteString(dropIndent(tb.String()))
 	b.WriteString("\n")
 
-	tw = tabwriter.NewWriter(&b, 0, 0, 2, ' ', tabwriter.AlignRight)
+	tb.Reset()
+	tw = tabwriter.NewWriter(&tb, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintf(tw, "%s\tpages\tchars\tchar errors\tCER\tmean page CER\t95%% interval\twords\tword errors\tWER\t\n", name("title"))
 	for _, t := range rep.Titles {
 		interval := "-"
@@ -365,6 +371,7 @@ func writeScoreTable(w io.Writer, rep *quality.Report) error {
 		rep.Total.Chars, rep.Total.CharErrors, percent(rep.Total.CER()),
 		rep.Total.Words, rep.Total.WordErrors, percent(rep.Total.WER()))
 	tw.Flush()
+	b.WriteString(dropIndent(tb.String()))
 	fmt.Fprintf(&b, "\nTitles and total are micro-averaged; the interval is a %d-resample percentile bootstrap over pages.\n", quality.DefaultResamples)
 
 	list := func(head string, items []string) {
@@ -386,13 +393,40 @@ func writeScoreTable(w io.Writer, rep *quality.Report) error {
 
 	if len(rep.Confusions) > 0 {
 		fmt.Fprintf(&b, "\nMost frequent confusions (reference→hypothesis, ∅ = nothing, ␣ = space):\n")
-		tw = tabwriter.NewWriter(&b, 0, 0, 2, ' ', tabwriter.AlignRight)
+		tb.Reset()
+		tw = tabwriter.NewWriter(&tb, 0, 0, 2, ' ', tabwriter.AlignRight)
 		fmt.Fprintln(tw, "count\tconfusion\t")
 		for _, c := range rep.Confusions {
 			fmt.Fprintf(tw, "%d\t%s\t\n", c.Count, c)
 		}
 		tw.Flush()
+		b.WriteString(dropIndent(tb.String()))
 	}
 	_, err := io.WriteString(w, b.String())
 	return err
+}
+
+// dropIndent removes the padding tabwriter puts before the first column
+// when it aligns right: the indent the lines share.
+func dropIndent(s string) string {
+	lines := strings.SplitAfter(s, "\n")
+	indent := -1
+	for _, l := range lines {
+		if strings.TrimSpace(l) == "" {
+			continue
+		}
+		n := len(l) - len(strings.TrimLeft(l, " "))
+		if indent < 0 || n < indent {
+			indent = n
+		}
+	}
+	if indent <= 0 {
+		return s
+	}
+	for i, l := range lines {
+		if len(l) >= indent {
+			lines[i] = l[indent:]
+		}
+	}
+	return strings.Join(lines, "")
 }

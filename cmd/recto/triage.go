@@ -81,9 +81,9 @@ on your own ground-truthed pages with 'recto calibrate' and pass it with
 	f.StringVar(&o.RescanList, "rescan-list", "", "write the pages to rescan to this CSV `file`")
 	f.StringVar(&o.Model, "model", "", "quality model `file` from 'recto calibrate' (default: embedded)")
 	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` (default: embedded English)")
-	f.Float64Var(&o.Rescan, "rescan", quality.DefaultRescan, "rescan above this predicted CER (`fraction`, 0.10 = 10%)")
-	f.Float64Var(&o.Correct, "correct", quality.DefaultCorrect, "correct above this predicted CER (`fraction`)")
-	f.IntVarP(&o.Jobs, "jobs", "j", 0, "pages read in parallel (`n`; default: number of CPUs)")
+	f.Float64Var(&o.Rescan, "rescan", quality.DefaultRescan, "rescan above this predicted CER, a `fraction` (0.10 = 10%)")
+	f.Float64Var(&o.Correct, "correct", quality.DefaultCorrect, "correct above this predicted CER, a `fraction` (0.02 = 2%)")
+	f.IntVarP(&o.Jobs, "jobs", "j", 0, "read `n` pages in parallel (0: number of CPUs)")
 	return cmd
 }
 

@@ -50,11 +50,13 @@ func KindByName(name string) (Kind, bool) {
 
 // Level returns a mixed degradation of severity t in [0, 1] (clamped) for
 // a 300 dpi page of 10 to 12 pt text. 0 is clean; up to about 0.3 the
-// plain engine still reads nearly everything; from 0.3 to 0.9 its character
-// error rate climbs through the whole range; at 1 it reads nothing and a
-// person struggles. (Calibrated against Tesseract 5.3 on 100x90 mm pages;
-// see docs/dev-synth.md.) The seed picks how the severity is shared among
-// the effects (each gets between a quarter of it and all of it; one random
+// engine still reads nearly everything; from 0.3 to 0.9 its character error
+// rate climbs through most of the range; from 0.9 to 1 the damage rises
+// steeply, and at 1 the engine reads next to nothing (CER 0.7 to 1) and a
+// person can make out only a few words. (Calibrated against Tesseract 5.3,
+// with and without recto's page preparation, on 100x90 mm pages; see
+// docs/dev-synth.md.) The seed picks how the severity is shared among the
+// effects (each gets between a quarter of it and all of it; one random
 // effect gets all of it) and becomes the Degradation's Seed, so equal
 // (t, seed) give equal results. For a fixed seed every effect grows with t.
 func Level(t float64, seed uint64) Degradation {
@@ -63,17 +65,18 @@ func Level(t float64, seed uint64) Degradation {
 	if t == 0 {
 		return d
 	}
-	// Effect strength u as a function of t: the engine's error rate rises
-	// steeply between u = 0.42 and u = 0.75, so that stretch takes most of
-	// the t range (measured on 80 pages, docs/dev-synth.md).
+	// Effect strength u as a function of t: recto's error rate rises
+	// between u = 0.42 and about 0.85, so that stretch takes most of the t
+	// range; u = 1.6 at t = 1 makes every seed unreadable (measured,
+	// docs/dev-synth.md). Effects past their range are clamped by Degrade.
 	var u float64
 	switch {
 	case t <= 0.3:
 		u = 1.4 * t
 	case t <= 0.9:
-		u = 0.42 + 0.5*(t-0.3)
+		u = 0.42 + 0.43/0.6*(t-0.3)
 	default:
-		u = 0.72 + 1.3*(t-0.9)
+		u = 0.85 + 7.5*(t-0.9)
 	}
 	r := rand.New(rand.NewPCG(seed, 0x1e7e1))
 	const effects = 9
@@ -92,7 +95,7 @@ func Level(t float64, seed uint64) Degradation {
 	d.SaltPepper = 0.1 * s[3] * s[3]
 	d.Light = 0.85 * s[4]
 	d.Contrast = 0.85 * math.Pow(s[5], 1.5)
-	d.Scale = 1 - 0.7*s[6]
+	d.Scale = max(0.2, 1-0.7*s[6]) // at most 5x smaller (60 dpi); 0 would mean unchanged
 	d.Wear = 0.45 * math.Pow(s[7], 1.5)
 	d.Bleed = 0.7 * math.Pow(s[8], 1.5)
 	return d

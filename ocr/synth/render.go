@@ -29,7 +29,7 @@ import (
 // 300 dpi with 20 mm margins set in 11 pt Go Regular.
 type Layout struct {
 	DPI         int     // resolution, dots per inch; 0 means 300
-	WidthMM     float64 // page width, millimetres; 0 means 210 (A4) unless HeightMM is set
+	WidthMM     float64 // page width, millimetres; 0 means 210 (A4)
 	HeightMM    float64 // page height, millimetres; 0 means 297 (A4)
 	MarginMM    float64 // margin on all four sides, millimetres; 0 means 20
 	FontSizePt  float64 // type size, points (1/72 inch); 0 means 11
@@ -90,9 +90,6 @@ func parsedFont(name string) (*opentype.Font, error) {
 func (l Layout) withDefaults() Layout {
 	if l.DPI == 0 {
 		l.DPI = 300
-	}
-	if l.WidthMM == 0 && l.HeightMM == 0 {
-		l.WidthMM, l.HeightMM = 210, 297
 	}
 	if l.WidthMM == 0 {
 		l.WidthMM = 210
@@ -255,9 +252,7 @@ func Render(text string, l Layout) (*Page, string, error) {
 	}
 
 	img := image.NewGray(image.Rect(0, 0, w, h))
-	for i := range img.Pix {
-		img.Pix[i] = 255
-	}
+	fillWhite(img.Pix)
 	page := &Page{Image: img, DPI: float64(l.DPI)}
 
 	paras := splitParagraphs(text)
@@ -403,4 +398,16 @@ func Missing(text, fontName string) ([]rune, error) {
 		}
 	}
 	return out, nil
+}
+
+// fillWhite sets every byte of b to 255 by doubling copies, which is much
+// faster than a byte loop (and than one under the race detector).
+func fillWhite(b []byte) {
+	if len(b) == 0 {
+		return
+	}
+	b[0] = 255
+	for n := 1; n < len(b); n *= 2 {
+		copy(b[n:], b[:n])
+	}
 }

@@ -17,6 +17,9 @@ const sample = "The harbour at Wenlow Cross froze on 3 January 1881, and the “
 
 var small = Layout{WidthMM: 100, HeightMM: 90, MarginMM: 8}
 
+// tiny keeps the degradation tests fast under the race detector.
+var tiny = Layout{WidthMM: 70, HeightMM: 45, MarginMM: 4, DPI: 200, FontSizePt: 10}
+
 func mustRender(t testing.TB, text string, l Layout) *Page {
 	t.Helper()
 	p, _, err := Render(text, l)
@@ -129,7 +132,7 @@ func TestRenderLongWordIsBroken(t *testing.T) {
 
 func TestRenderEmptyAndErrors(t *testing.T) {
 	for _, text := range []string{"", "   \n\n\t\n"} {
-		p, rest, err := Render(text, small)
+		p, rest, err := Render(text, tiny)
 		if err != nil || rest != "" || p.Truth != "" || len(p.Lines) != 0 {
 			t.Errorf("Render(%q) = truth %q, rest %q, err %v", text, p.Truth, rest, err)
 			continue
@@ -137,7 +140,7 @@ func TestRenderEmptyAndErrors(t *testing.T) {
 		if n := ink(p.Image, p.Image.Bounds()); n != 0 {
 			t.Errorf("Render(%q): %d dark pixels on an empty page", text, n)
 		}
-		_ = Degrade(p, Level(1, 1)) // must not panic
+		_ = Degrade(p, Degradation{Skew: 3, Blur: 1, Noise: 5, SaltPepper: 0.1, Light: 0.5, Contrast: 0.3, Scale: 0.5, Wear: 0.3, Bleed: 0.5, Seed: 1}) // must not panic
 	}
 	for _, tc := range []struct {
 		name string
@@ -166,7 +169,7 @@ func TestRenderFonts(t *testing.T) {
 }
 
 func TestDeterminism(t *testing.T) {
-	p := mustRender(t, sample, small)
+	p := mustRender(t, sample, tiny)
 	d := Level(0.7, 42)
 	a, b := Degrade(p, d), Degrade(p, d)
 	if !bytes.Equal(a.Image.Pix, b.Image.Pix) {
@@ -176,14 +179,14 @@ func TestDeterminism(t *testing.T) {
 	if c := Degrade(p, d); bytes.Equal(a.Image.Pix, c.Image.Pix) {
 		t.Error("different seeds gave the same pixels")
 	}
-	q := mustRender(t, sample, small)
+	q := mustRender(t, sample, tiny)
 	if !bytes.Equal(p.Image.Pix, q.Image.Pix) {
 		t.Error("Render is not deterministic")
 	}
 }
 
 func TestDegradeLeavesInputAlone(t *testing.T) {
-	p := mustRender(t, sample, small)
+	p := mustRender(t, sample, tiny)
 	before := bytes.Clone(p.Image.Pix)
 	box := p.Lines[0].Box
 	_ = Degrade(p, Degradation{Skew: 3, Noise: 20, Scale: 0.5, Seed: 1})
@@ -226,7 +229,10 @@ func inkAngle(img *image.Gray) float64 {
 
 func TestSkewMatchesRequest(t *testing.T) {
 	// A rule of em dashes: a long thin bar whose ink axis is the baseline.
-	rule := mustRender(t, strings.Repeat("—", 40), Layout{WidthMM: 120, HeightMM: 60, MarginMM: 10, FontSizePt: 14})
+	rule := mustRender(t, strings.Repeat("—", 25), Layout{WidthMM: 120, HeightMM: 30, MarginMM: 5, FontSizePt: 12, DPI: 200})
+	if len(rule.Lines) != 1 {
+		t.Fatalf("the rule takes %d lines, want 1", len(rule.Lines))
+	}
 	if a := inkAngle(rule.Image); math.Abs(a) > 0.02 {
 		t.Fatalf("unskewed rule measures %.3f°", a)
 	}
@@ -237,7 +243,7 @@ func TestSkewMatchesRequest(t *testing.T) {
 		}
 	}
 	// Line boxes follow: the rotated first line's box still holds its ink.
-	p := mustRender(t, sample, small)
+	p := mustRender(t, sample, tiny)
 	q := Degrade(p, Degradation{Skew: 4, Seed: 1})
 	if n, m := ink(q.Image, q.Lines[0].Box), ink(p.Image, p.Lines[0].Box); float64(n) < 0.95*float64(m) {
 		t.Errorf("rotated first-line box holds %d dark pixels, unrotated %d", n, m)
@@ -381,7 +387,7 @@ func TestLight(t *testing.T) {
 }
 
 func TestWearErasesFraction(t *testing.T) {
-	p := mustRender(t, strings.Repeat(sample+" ", 2), Layout{WidthMM: 150, HeightMM: 120, MarginMM: 8, Font: "bold"})
+	p := mustRender(t, strings.Repeat(sample+" ", 2), Layout{WidthMM: 110, HeightMM: 80, MarginMM: 5, DPI: 200, FontSizePt: 10, Font: "bold"})
 	before := ink(p.Image, p.Image.Bounds())
 	for _, w := range []float64{0.1, 0.3, 0.6} {
 		after := ink(Degrade(p, Degradation{Wear: w, Seed: 2}).Image, p.Image.Bounds())
@@ -393,7 +399,7 @@ func TestWearErasesFraction(t *testing.T) {
 }
 
 func TestBleedThickens(t *testing.T) {
-	p := mustRender(t, sample, small)
+	p := mustRender(t, sample, tiny)
 	before := ink(p.Image, p.Image.Bounds())
 	prev := before
 	for _, b := range []float64{0.3, 0.6, 1} {
@@ -421,12 +427,12 @@ func TestKinds(t *testing.T) {
 		}
 		d := k.D
 		d.Seed = 1
-		q := Degrade(mustRender(t, text, small), d)
+		q := Degrade(mustRender(t, text, tiny), d)
 		if n := ink(q.Image, q.Image.Bounds()); k.Blank && n > 0 {
 			t.Errorf("kind %q: %d dark pixels on a blank page", k.Name, n)
 		}
 		// Even faded ink stays well below the paper.
-		if n := darker(q.Image, 200); !k.Blank && n < 1000 {
+		if n := darker(q.Image, 200); !k.Blank && n < 300 {
 			t.Errorf("kind %q: only %d pixels darker than 200", k.Name, n)
 		}
 	}
@@ -530,5 +536,23 @@ func TestDegradeTinyPages(t *testing.T) {
 		if q == nil || q.Image == nil {
 			t.Fatalf("%v: nil page", size)
 		}
+	}
+}
+
+func TestDefaultLayoutIsA4(t *testing.T) {
+	// ISO 216: A4 is 210 mm × 297 mm; at 300 dpi that is 2480 × 3508
+	// pixels (210/25.4·300 = 2480.3, 297/25.4·300 = 3507.9).
+	p, _, err := Render("x", Layout{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if b := p.Image.Bounds(); b.Dx() != 2480 || b.Dy() != 3508 || p.DPI != 300 {
+		t.Errorf("zero Layout gives %v at %.0f dpi, want 2480x3508 at 300", b, p.DPI)
+	}
+	// 11 pt type at 300 dpi: an em of 11/72 inch = 45.8 px; the box spans
+	// the font's ascent plus descent, a little over one em for Go Regular
+	// (from memory), so about 45-60 px.
+	if h := p.Lines[0].Words[0].Box.Dy(); h < 30 || h > 70 {
+		t.Errorf("line box %d px high for 11 pt at 300 dpi", h)
 	}
 }

@@ -19,7 +19,7 @@ const (
 	padT, padB     = 10.0, 30.0
 	histBins       = 15   // bins of histStep, plus one overflow bin
 	histStep       = 0.02 // CER per bin
-	snippetRunes   = 240
+	snippetRunes   = 160
 )
 
 type barView struct {

@@ -26,7 +26,6 @@ const (
 	pageWidthMM  = 100
 	pageHeightMM = 90
 	marginMM     = 8
-	pageDPI      = 300
 	kindShare    = 0.25 // share of pages degraded by a named kind; the rest by Level(t), t uniform in [0, 1]
 	fitPercent   = 70   // share of ids in the "fit" split
 )
@@ -63,6 +62,7 @@ type buildOptions struct {
 	Workers int
 	Force   bool
 	OCR     string
+	DPI     int
 }
 
 func runBuild(args []string) error {
@@ -75,10 +75,11 @@ func runBuild(args []string) error {
 	fs.IntVar(&o.Workers, "workers", 2, "pages rendered or recognised at once")
 	fs.BoolVar(&o.Force, "force", false, "write into an output dir that already holds a corpus")
 	fs.StringVar(&o.OCR, "ocr", "auto", "recognise the pages: `auto` (when the engine is available), on, off")
+	fs.IntVar(&o.DPI, "dpi", 300, "page resolution, dots per inch (Level is calibrated at 300)")
 	if err := fs.Parse(args); err != nil {
 		return err
 	}
-	if o.Out == "" || fs.NArg() > 0 || o.N < 1 || o.Workers < 1 {
+	if o.Out == "" || fs.NArg() > 0 || o.N < 1 || o.Workers < 1 || o.DPI < 50 || o.DPI > 1200 {
 		fs.Usage()
 		return errors.New("usage: go run ./tools/corpus -out DIR [-n N] [-seed S]")
 	}
@@ -118,7 +119,7 @@ func runBuild(args []string) error {
 	renderTime := time.Since(start)
 	fmt.Fprintf(os.Stderr, "corpus: rendered %d pages to %s in %.1f s (%d failed)\n", len(plans)-failed, o.Out, renderTime.Seconds(), failed)
 
-	sum := summary{Command: "go run ./tools/corpus " + strings.Join(args, " "), Pages: len(plans), RenderFailed: failed, RenderSeconds: renderTime.Seconds()}
+	sum := summary{Command: "go run ./tools/corpus " + strings.Join(args, " "), Pages: len(plans), DPI: o.DPI, RenderFailed: failed, RenderSeconds: renderTime.Seconds()}
 	if o.OCR != "off" {
 		if err := recogniseAll(context.Background(), o, plans, &sum); err != nil {
 			if o.OCR == "on" || !errors.Is(err, errNoEngine) {
@@ -142,6 +143,7 @@ func runBuild(args []string) error {
 type summary struct {
 	Command       string        `json:"command"`
 	Pages         int           `json:"pages"`
+	DPI           int           `json:"dpi"`
 	RenderFailed  int           `json:"render_failed"`
 	RenderSeconds float64       `json:"render_seconds"`
 	OCRPages      int           `json:"ocr_pages,omitempty"`
@@ -304,7 +306,7 @@ func renderAll(o buildOptions, plans []pagePlan, ps []passage) int {
 		go func() {
 			defer wg.Done()
 			for i := range idx {
-				if err := renderOne(o.Out, plans[i], ps); err != nil {
+				if err := renderOne(o.Out, o.DPI, plans[i], ps); err != nil {
 					mu.Lock()
 					failed++
 					mu.Unlock()
@@ -321,12 +323,12 @@ func renderAll(o buildOptions, plans []pagePlan, ps []passage) int {
 	return failed
 }
 
-func renderOne(out string, p pagePlan, ps []passage) error {
+func renderOne(out string, dpi int, p pagePlan, ps []passage) error {
 	text := ps[p.Passage].Text
 	if p.Blank {
 		text = ""
 	}
-	page, _, err := synth.Render(text, synth.Layout{DPI: pageDPI, WidthMM: pageWidthMM, HeightMM: pageHeightMM, MarginMM: marginMM, FontSizePt: p.SizePt, Font: p.Font})
+	page, _, err := synth.Render(text, synth.Layout{DPI: dpi, WidthMM: pageWidthMM, HeightMM: pageHeightMM, MarginMM: marginMM, FontSizePt: p.SizePt, Font: p.Font})
 	if err != nil {
 		return err
 	}

@@ -58,7 +58,8 @@ func TestBuildWritesCorpus(t *testing.T) {
 	dir := t.TempDir()
 	out := filepath.Join(dir, "c")
 	text := filepath.Join("..", "..", "testdata", "synth", "passages.jsonl.gz")
-	if err := runBuild([]string{"-out", out, "-n", "4", "-seed", "3", "-ocr", "off", "-text", text}); err != nil {
+	// 100 dpi keeps the test fast under the race detector.
+	if err := runBuild([]string{"-out", out, "-n", "4", "-seed", "3", "-ocr", "off", "-dpi", "100", "-text", text}); err != nil {
 		t.Fatal(err)
 	}
 	man, err := os.ReadFile(filepath.Join(out, "MANIFEST.tsv"))
@@ -78,6 +79,9 @@ func TestBuildWritesCorpus(t *testing.T) {
 		}
 		if f[2] != "blank" && len(strings.Fields(string(truth))) < 50 {
 			t.Errorf("%s: only %d words of truth", id, len(strings.Fields(string(truth))))
+		}
+		if f[2] == "blank" && len(truth) != 0 {
+			t.Errorf("%s: blank page with truth %q", id, truth)
 		}
 		if _, err := os.Stat(filepath.Join(out, "images", split, id+".png")); err != nil {
 			t.Error(err)

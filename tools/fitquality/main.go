@@ -14,6 +14,8 @@
 package main
 
 import (
+	"bytes"
+	"encoding/json"
 	"flag"
 	"fmt"
 	"io"
@@ -41,14 +43,12 @@ func run(args []string, stdout, stderr io.Writer) error {
 	seed := fs.Int64("seed", 1, "`seed` of the cross-validation folds")
 	sample := fs.String("sample", "", "vendor a held-out sample (page .json + truth .txt) into this `folder`")
 	sampleN := fs.Int("sample-n", 40, "pages in the vendored sample")
-	sim := fs.String("simulate", "", "fallback without a corpus: fit on character noise put into the .txt files of this `folder`")
+	offset := fs.Float64("offset", 0, "regression target is log(CER + `offset`) (0: the quality.Fit default)")
+	correct := fs.Float64("correct", 0, "correct threshold for the report (0: the default)")
 	if err := fs.Parse(args); err != nil {
 		return err
 	}
 	lex := lexicon.Default()
-	if *sim != "" {
-		return runSimulated(*sim, *out, *seed, lex, stdout)
-	}
 	load := func(split string) ([]quality.Sample, error) {
 		s, problems, err := quality.LoadSamples(filepath.Join(*corpus, "ocr", split), filepath.Join(*corpus, "truth", split), lex)
 		for _, p := range problems {
@@ -64,7 +64,7 @@ func run(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	m, err := quality.Fit(fit, quality.FitOptions{Seed: *seed, Source: "recto synthetic corpus (tools/corpus), split \"fit\""})
+	m, err := quality.Fit(fit, quality.FitOptions{Seed: *seed, Offset: *offset, Source: "recto synthetic corpus (tools/corpus), split \"fit\""})
 	if err != nil {
 		return err
 	}
@@ -73,8 +73,9 @@ func run(args []string, stdout, stderr io.Writer) error {
 	fmt.Fprintf(stdout, "fitted on %d pages (%d as text), judged on %d held-out pages\n", m.Fit.Pages, m.Fit.TextPages, len(held))
 	fmt.Fprintf(stdout, "ridge penalty: record %.3g, text %.3g\n\n", m.Record.Lambda, m.Text.Lambda)
 
-	report(stdout, "embedded model, page records", m, held, false)
-	report(stdout, "embedded model, plain text only", m, held, true)
+	th := quality.Thresholds{Correct: *correct}
+	report(stdout, "embedded model, page records", m, held, false, th)
+	report(stdout, "embedded model, plain text only", m, held, true, th)
 	baselines(stdout, held)
 
 	if *out != "" {
@@ -89,7 +90,7 @@ func run(args []string, stdout, stderr io.Writer) error {
 	return nil
 }
 
-func report(w io.Writer, name string, m *quality.Model, held []quality.Sample, textOnly bool) {
+func report(w io.Writer, name string, m *quality.Model, held []quality.Sample, textOnly bool, th quality.Thresholds) {
 	s := held
 	if textOnly {
 		s = make([]quality.Sample, len(held))
@@ -98,7 +99,7 @@ func report(w io.Writer, name string, m *quality.Model, held []quality.Sample, t
 			s[i] = x
 		}
 	}
-	e := quality.Evaluate(m, s, quality.Thresholds{})
+	e := quality.Evaluate(m, s, th)
 	met, lines := quality.Targets{}.Check(e)
 	fmt.Fprintf(w, "%s (%d held-out pages):\n", name, e.Pages)
 	fmt.Fprintf(w, "  MAE %.4f; rescan: %d true, %d false alarms, %d missed; %d clean pages; decisions %v\n",
@@ -179,11 +180,15 @@ func vendor(corpus, dir string, held []quality.Sample, n int, w io.Writer) error
 		}
 	}
 	count := 0
+	manifest := manifestLines(corpus)
+	var list strings.Builder
+	list.WriteString(manifest[""])
 	for i := range s {
 		if !picked[i] {
 			continue
 		}
 		id := s[i].ID
+		list.WriteString(manifest[filepath.Base(id)])
 		base := filepath.Base(id)
 		copies := [][2]string{
 			{filepath.Join(corpus, "ocr", "heldout", base+".json"), filepath.Join(dir, "ocr", base+".json")},
@@ -194,37 +199,39 @@ func vendor(corpus, dir string, held []quality.Sample, n int, w io.Writer) error
 			if err != nil {
 				return err
 			}
+			if strings.HasSuffix(c[0], ".json") { // same record, without indentation
+				var buf bytes.Buffer
+				if err := json.Compact(&buf, data); err != nil {
+					return fmt.Errorf("%q: %w", c[0], err)
+				}
+				data = append(buf.Bytes(), '\n')
+			}
 			if err := os.WriteFile(c[1], data, 0o644); err != nil {
 				return err
 			}
 		}
 		count++
 	}
+	if err := os.WriteFile(filepath.Join(dir, "MANIFEST.tsv"), []byte(list.String()), 0o644); err != nil {
+		return err
+	}
 	fmt.Fprintf(w, "vendored %d held-out pages into %s (CER %s)\n", count, dir, strings.TrimSpace(fmt.Sprintf("%.3f..%.3f", s[0].CER, s[len(s)-1].CER)))
 	return nil
 }
 
-func runSimulated(dir, out string, seed int64, lex *lexicon.Lexicon, w io.Writer) error {
-	all, err := simulate(dir, 600, seed, lex)
+// manifestLines maps page ids to their MANIFEST.tsv line ("" to the header).
+func manifestLines(corpus string) map[string]string {
+	m := map[string]string{}
+	data, err := os.ReadFile(filepath.Join(corpus, "MANIFEST.tsv"))
 	if err != nil {
-		return err
+		return m
 	}
-	// Page records are not simulated: the record regression is the text one.
-	for i := range all {
-		all[i].Record = all[i].Text
-		all[i].Record.FromRecord = true
+	for i, line := range strings.Split(strings.TrimSpace(string(data)), "\n") {
+		id, _, _ := strings.Cut(line, "\t")
+		if i == 0 {
+			id = ""
+		}
+		m[id] = line + "\n"
 	}
-	fit, held := quality.Split(all, 0.3, seed)
-	m, err := quality.Fit(fit, quality.FitOptions{Seed: seed, Source: "INTERIM: simulated character noise in " + dir + " (no rendered pages, no confidences)"})
-	if err != nil {
-		return err
-	}
-	m.Record = m.Text
-	m.Fit.Holdout, m.Fit.HeldOut = 0.3, len(held)
-	m.Fit.Command = fmt.Sprintf("go run ./tools/fitquality -simulate %s -out quality/model/default.json -seed %d", dir, seed)
-	report(w, "simulated noise, plain text", m, held, true)
-	if out != "" {
-		return m.Save(out)
-	}
-	return nil
+	return m
 }

@@ -10,10 +10,14 @@ import (
 	"time"
 	"unicode"
 
-	"golang.org/x/text/unicode/norm"
-
 	"recto/correct"
 	"recto/ocr"
+	"recto/quality"
+)
+
+var (
+	dumpDir  string
+	normOpts quality.NormOptions
 )
 
 // tally sums edit distances over a group of pages.
@@ -82,6 +86,9 @@ func evalCorpus(c *correct.Corrector, dir string, verbose bool) error {
 			return err
 		}
 		spent += time.Since(t0)
+		if dumpDir != "" {
+			_ = os.WriteFile(filepath.Join(dumpDir, id+".txt"), []byte(outText), 0o644)
+		}
 		tokens += len(strings.Fields(in))
 		t := pageTally(string(truth), in, outText, changes, verbose, id)
 		cer := float64(t.before) / float64(max(t.refChars, 1))
@@ -119,21 +126,18 @@ func evalPairs(c *correct.Corrector, pairs []correct.Pair) {
 // pageTally measures one page. A change is wrong when applying it alone
 // does not bring the page closer to the truth.
 func pageTally(truth, in, out string, changes []correct.Change, verbose bool, id string) tally {
-	tl, il := strings.Split(strings.TrimRight(truth, "\n"), "\n"), strings.Split(strings.TrimRight(in, "\n"), "\n")
-	if len(tl) == len(il) && len(tl) > 1 && len(changes) > 0 {
-		return pageTallyLines(tl, il, in, out, changes, verbose, id)
-	}
-	ref := []rune(normal(truth))
-	before := distance(ref, []rune(normal(in)))
-	t := tally{pages: 1, words: len(strings.Fields(truth)), refChars: len(ref), before: before,
-		after: distance(ref, []rune(normal(out))), changes: len(changes)}
+	var sc quality.Scratch
+	cb := sc.Compare(truth, in, normOpts)
+	ca := sc.Compare(truth, out, normOpts)
+	before := cb.CharErrors
+	t := tally{pages: 1, words: cb.Words, refChars: cb.Chars, before: before, after: ca.CharErrors, changes: len(changes)}
 	for _, ch := range changes {
 		alone, ok := applyOne(in, ch)
-		good := ok && distance(ref, []rune(normal(alone))) < before
+		good := ok && sc.Compare(truth, alone, normOpts).CharErrors < before
 		if !good {
 			t.wrong++
 		}
-		if verbose && (!good || before == 0) {
+		if verbose {
 			fmt.Printf("%s:%d:%d %q -> %q score %.2f good=%v\n", id, ch.Line, ch.Column, ch.Before, ch.After, ch.Score, good)
 		}
 	}
@@ -173,78 +177,4 @@ func applyOne(text string, ch correct.Change) (string, bool) {
 		}
 	}
 	return text[:off] + ch.After + rest[i:], true
-}
-
-// normal is the comparison form: NFC with white space runs as one space.
-func normal(s string) string {
-	return strings.Join(strings.Fields(norm.NFC.String(s)), " ")
-}
-
-// distance is the Levenshtein distance over runes (two rows).
-func distance(a, b []rune) int {
-	if len(a) == 0 {
-		return len(b)
-	}
-	prev := make([]int32, len(b)+1)
-	cur := make([]int32, len(b)+1)
-	for j := range prev {
-		prev[j] = int32(j)
-	}
-	for i := 1; i <= len(a); i++ {
-		cur[0] = int32(i)
-		for j := 1; j <= len(b); j++ {
-			c := prev[j-1]
-			if a[i-1] != b[j-1] {
-				c++
-			}
-			if v := prev[j] + 1; v < c {
-				c = v
-			}
-			if v := cur[j-1] + 1; v < c {
-				c = v
-			}
-			cur[j] = c
-		}
-		prev, cur = cur, prev
-	}
-	return int(prev[len(b)])
-}
-
-// pageTallyLines is pageTally for pages whose lines match the truth's one
-// to one: wrong changes are judged on their own line (and the next, for
-// joins across a line end).
-func pageTallyLines(tl, il []string, in, out string, changes []correct.Change, verbose bool, id string) tally {
-	truth := strings.Join(tl, "\n")
-	ref := []rune(normal(truth))
-	t := tally{pages: 1, words: len(strings.Fields(truth)), refChars: len(ref), changes: len(changes)}
-	ol := strings.Split(strings.TrimRight(out, "\n"), "\n")
-	if len(ol) == len(tl) {
-		for i := range tl {
-			r := []rune(normal(tl[i]))
-			t.before += distance(r, []rune(normal(il[i])))
-			t.after += distance(r, []rune(normal(ol[i])))
-		}
-	} else {
-		t.before, t.after = distance(ref, []rune(normal(in))), distance(ref, []rune(normal(out)))
-	}
-	for _, ch := range changes {
-		lo, hi := ch.Line-1, min(ch.Line+1, len(il))
-		if lo < 0 || lo >= len(il) {
-			t.wrong++
-			continue
-		}
-		seg := strings.Join(il[lo:hi], "\n")
-		r := []rune(normal(strings.Join(tl[lo:hi], "\n")))
-		c := ch
-		c.Line = 1
-		alone, ok := applyOne(seg, c)
-		good := ok && distance(r, []rune(normal(alone))) < distance(r, []rune(normal(seg)))
-		if !good {
-			t.wrong++
-		}
-		if verbose && (!good || t.before == 0) {
-			fmt.Printf("%s:%d:%d %q -> %q score %.2f good=%v\n", id, ch.Line, ch.Column, ch.Before, ch.After, ch.Score, good)
-		}
-	}
-	return t
 }

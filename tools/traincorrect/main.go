@@ -12,7 +12,6 @@
 package main
 
 import (
-	"bufio"
 	"flag"
 	"fmt"
 	"math/rand/v2"
@@ -21,7 +20,6 @@ import (
 	"runtime/pprof"
 	"sort"
 	"strings"
-	"unicode"
 
 	"recto/correct"
 	"recto/correct/correcttest"
@@ -34,11 +32,13 @@ func main() {
 	out := flag.String("out", "", "write the trained model here")
 	eval := flag.Bool("eval", false, "measure the corrector on the heldout split of -corpus (or on planted text)")
 	modelPath := flag.String("model", "", "model to evaluate (default: the embedded one)")
-	wordlist := flag.String("wordlist", "/usr/share/dict/american-english", "word list for the lexicon (one word a line)")
-	textDir := flag.String("text", "", "directory of .txt running text to count words and pairs from, for the lexicon")
+	lexFlag := flag.String("lexicon", "default", "lexicon: \"default\" (embedded), \"fair\" (rebuilt like the default but without the texts of -corpus heldout pages), or a file")
+	dataDir := flag.String("data", "/work/data", "-lexicon fair: directory holding moby/ and sotu/ (npm packages)")
 	margin := flag.Float64("margin", 0, "correction margin (0 = default)")
 	rate := flag.Float64("rate", 0.08, "-plant: share of words given a confusion")
 	verbose := flag.Bool("v", false, "list every change on clean pages")
+	flag.StringVar(&dumpDir, "dump", "", "-eval: write each corrected page here as <id>.txt")
+	flag.BoolVar(&normOpts.PlainTypography, "plain", false, "-eval: compare with quality's PlainTypography normalisation (curly quotes, dashes as plain)")
 	cpuprofile := flag.String("cpuprofile", "", "write a CPU profile of the evaluation here")
 	flag.Parse()
 	if *cpuprofile != "" {
@@ -52,7 +52,7 @@ func main() {
 	case *corpus != "" && !*eval:
 		pairs, err := corpusPairs(*corpus, "fit")
 		check(err)
-		m := correct.Train(pairs, correct.TrainOptions{})
+		m := correct.Train(pairs, correct.TrainOptions{Prior: correct.Classic})
 		report(m)
 		if *out != "" {
 			check(m.Save(*out))
@@ -72,7 +72,7 @@ func main() {
 			m, err = correct.LoadModel(*modelPath)
 			check(err)
 		}
-		lex, err := buildLexicon(*wordlist, *textDir)
+		lex, err := loadLexicon(*lexFlag, *corpus, *dataDir)
 		check(err)
 		c := correct.New(lex, m, correct.Config{Margin: *margin})
 		if *corpus != "" {
@@ -175,54 +175,70 @@ func corpusPairs(dir, split string) ([]correct.Pair, error) {
 	return pairs, nil
 }
 
-// buildLexicon makes a lexicon from a word list and counts over running
-// text: a stand-in until lexicon.Default lands.
-func buildLexicon(wordlist, textDir string) (*lexicon.Lexicon, error) {
-	lex := lexicon.New()
-	if wordlist != "" {
-		f, err := os.Open(wordlist)
+// loadLexicon returns the embedded lexicon, a lexicon file, or ("fair")
+// one rebuilt as lexicon/data/SOURCES.md says but leaving out the source
+// texts of the corpus's heldout pages, so that the context model has not
+// seen the pages it is measured on.
+func loadLexicon(which, corpus, data string) (*lexicon.Lexicon, error) {
+	switch which {
+	case "default":
+		return lexicon.Default(), nil
+	case "fair":
+	default:
+		return lexicon.Load(which)
+	}
+	held := map[string]bool{}
+	if corpus != "" {
+		rows, err := manifest(corpus)
 		if err != nil {
 			return nil, err
 		}
-		sc := bufio.NewScanner(f)
-		for sc.Scan() {
-			w := strings.TrimSpace(sc.Text())
-			if w != "" {
-				lex.Add(w, 0)
+		for _, r := range rows {
+			if r["split"] == "heldout" {
+				held[r["source"]] = true
 			}
 		}
-		f.Close()
 	}
-	if textDir != "" {
-		names, _ := filepath.Glob(filepath.Join(textDir, "*.txt"))
+	b := lexicon.NewBuilder()
+	if err := b.AddWordList("/usr/share/dict/american-english"); err != nil {
+		return nil, err
+	}
+	skipped := 0
+	for _, set := range []string{"moby", "sotu"} {
+		names, _ := filepath.Glob(filepath.Join(data, set, "package", "data", "*.txt"))
 		for _, n := range names {
-			data, err := os.ReadFile(n)
-			if err != nil {
+			if held[set+"/"+strings.TrimSuffix(filepath.Base(n), ".txt")] {
+				skipped++
+				continue
+			}
+			if err := b.AddTextFile(n); err != nil {
 				return nil, err
 			}
-			CountText(lex, string(data))
 		}
 	}
+	lex := b.Lexicon()
+	fmt.Fprintf(os.Stderr, "fair lexicon: %d words, %d source texts of heldout pages left out\n", lex.Len(), skipped)
 	return lex, nil
 }
 
-// CountText adds the words and word pairs of text to lex.
-func CountText(lex *lexicon.Lexicon, text string) {
-	prev := ""
-	for _, f := range strings.Fields(text) {
-		w := strings.TrimFunc(f, func(r rune) bool { return !unicode.IsLetter(r) && !unicode.IsDigit(r) })
-		w = strings.ReplaceAll(w, "’", "'")
-		if w == "" {
-			prev = ""
-			continue
-		}
-		lex.Add(w, 1)
-		if prev != "" {
-			lex.AddBigram(prev, w, 1)
-		}
-		prev = w
-		if strings.TrimRightFunc(f, func(r rune) bool { return !unicode.IsLetter(r) && !unicode.IsDigit(r) }) != f {
-			prev = ""
-		}
+// manifest reads DIR/MANIFEST.tsv: a header line, then tab-separated rows.
+func manifest(dir string) ([]map[string]string, error) {
+	data, err := os.ReadFile(filepath.Join(dir, "MANIFEST.tsv"))
+	if err != nil {
+		return nil, err
 	}
+	lines := strings.Split(strings.TrimRight(string(data), "\n"), "\n")
+	head := strings.Split(lines[0], "\t")
+	var rows []map[string]string
+	for _, l := range lines[1:] {
+		f := strings.Split(l, "\t")
+		r := map[string]string{}
+		for i, h := range head {
+			if i < len(f) {
+				r[h] = f[i]
+			}
+		}
+		rows = append(rows, r)
+	}
+	return rows, nil
 }

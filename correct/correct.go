@@ -466,7 +466,7 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 			return
 		}
 		var ch float64
-		ch, s.buf = c.m.logChannel(&s.obs, w, s.crs, s.buf, keep+margin)
+		ch, s.buf = c.m.logChannel(&s.obs, w, &s.crs, s.buf, keep+margin)
 		if ch <= keep+margin {
 			return
 		}
@@ -475,22 +475,36 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 			best, bestScore = w, v
 		}
 	}
-	if known {
+	switch {
+	case known:
 		for _, x := range c.realWordNeighbours(s, q) {
 			if x.logp > keep+margin {
 				consider(x.word)
 			}
 		}
-	} else {
+	case s.obs.n() >= longWord:
+		// The search finds every word within two edits, single learned
+		// confusions included; undoing confusions only adds words further
+		// away, so it runs only when the search found no winner.
+		for _, id := range c.search(s, q) {
+			consider(c.ix.words[id])
+		}
+		if bestScore-keep <= margin {
+			for _, w := range c.expansions(s, q, false, keep+margin) {
+				consider(w)
+			}
+		}
+	default:
+		// Short tokens are searched within one edit only: undo learned
+		// confusions first ("rnan" → "man"), and search when that gave no
+		// clear winner.
 		for _, w := range c.expansions(s, q, false, keep+margin) {
 			consider(w)
 		}
-	}
-	// The search of the lexicon is the slow part; skip it when undoing a
-	// learned confusion already gave a clear winner.
-	if !known && bestScore-keep <= margin+clearWin {
-		for _, id := range c.search(s, q) {
-			consider(c.ix.words[id])
+		if bestScore-keep <= margin+clearWin {
+			for _, id := range c.search(s, q) {
+				consider(c.ix.words[id])
+			}
 		}
 	}
 	var split []string

@@ -2,11 +2,10 @@ package correct
 
 import (
 	"math"
-	"os"
-	"strconv"
 	"sort"
 	"strings"
 	"sync"
+	"sync/atomic"
 
 	"recto/lexicon"
 	"recto/ocr"
@@ -14,7 +13,7 @@ import (
 
 // DefaultMargin is the margin used when Config.Margin is 0: the best
 // candidate must be e^DefaultMargin times likelier than the token as read.
-const DefaultMargin = 5.0
+const DefaultMargin = 3.0
 
 // Config tunes a Corrector. The zero value is valid and conservative.
 type Config struct {
@@ -58,64 +57,60 @@ type Corrector struct {
 	ix     *deleteIndex
 	total  float64 // unigram total, lexicon and collection
 	pool   sync.Pool
+	neigh  sync.Map     // lexicon word -> []neighbour
+	cached atomic.Int64 // entries in neigh
 }
 
 // Tuning constants; the figures behind them are in docs/dev-correct.md.
 const (
-	// confWeight scales the engine's confidence, as log odds, into the
-	// margin: a word read at 0.9 needs e^(2.2·confWeight) more evidence.
-	confWeightDefault = 1.0
-	// XXX tuning
+	// confWeight scales the engine's confidence, as log odds relative to
+	// confCentre, into the margin: a word read at 0.97 needs e^1.3 more
+	// evidence than one read at 0.9, one read at 0.5 e^2.2 less.
+	confWeight = 1.0
 	// sureConf is the confidence at or above which a lexicon word is not
 	// questioned at all.
-	sureConfDefault = 0.9
+	sureConf = 0.97
 	// nameConf is the confidence at or above which a capitalised word the
 	// lexicon lacks is taken for a name and left alone.
-	nameConfDefault = 0.8
+	nameConf = 0.93
 	// nameMargin is added to the margin for capitalised unknown words when
 	// the confidence is unknown (plain text).
 	nameMargin = 3.0
+	// oovPenalty is subtracted from the log probability of keeping a word
+	// the lexicon lacks, on top of the add-one-half unigram estimate: a
+	// string never seen in open text is seldom a word.
+	oovPenalty = 3.0
+	// textMargin is added to the margin when the engine's confidence is
+	// unknown (plain text): without it, less evidence stands behind each
+	// decision.
+	textMargin = 2.0
 	// realWordMargin is added to the margin to replace a lexicon word by
 	// another through a learned confusion ("modem" for "modern").
-	realWordMarginDefault = 3.0
+	realWordMargin = 1.0
 	// confCentre is the confidence that leaves the margin as it is; engine
 	// confidences above it raise the margin, below it lower it.
 	confCentre = 0.9
-	// minExpandLogP is the least likely confusion used to expand a token
-	// into candidates.
-	minExpandLogP = -9.0
+	// minExpandLogP is the least likely confusion, and minExpand2LogP the
+	// least likely pair of confusions, used to expand a token into
+	// candidates (edit-distance search finds the rest).
+	minExpandLogP  = -7.0
+	minExpand2LogP = -11.0
+	// clearWin is how far beyond the margin a candidate made by undoing
+	// learned confusions must score for the edit-distance search to be
+	// skipped.
+	clearWin = 4.0
+	// maxFrontier bounds the one-confusion variants expanded again.
+	maxFrontier = 12
 	// maxExpansions bounds candidates made through confusions per token.
 	maxExpansions = 64
 	// backoff is the stupid-backoff factor (Brants et al. 2007).
 	backoff = 0.4
 )
 
-// New returns a Corrector. lex must not be modified afterwards; m nil
-// means DefaultModel.
-var confWeight, sureConf, nameConf = confWeightDefault, sureConfDefault, nameConfDefault
-
-var realWordMargin = realWordMarginDefault
 var confCentreLogit = math.Log(confCentre / (1 - confCentre))
 
-func init() {
-	if v := os.Getenv("XR"); v != "" {
-		realWordMargin, _ = strconv.ParseFloat(v, 64)
-	}
-	if v := os.Getenv("XC"); v != "" {
-		f, _ := strconv.ParseFloat(v, 64)
-		confCentreLogit = math.Log(f / (1 - f))
-	}
-	if v := os.Getenv("XW"); v != "" {
-		confWeight, _ = strconv.ParseFloat(v, 64)
-	}
-	if v := os.Getenv("XS"); v != "" {
-		sureConf, _ = strconv.ParseFloat(v, 64)
-	}
-	if v := os.Getenv("XN"); v != "" {
-		nameConf, _ = strconv.ParseFloat(v, 64)
-	}
-}
-
+// New returns a Corrector. lex must not be modified afterwards; m nil
+// means DefaultModel.
 func New(lex *lexicon.Lexicon, m *Model, cfg Config) *Corrector {
 	if m == nil {
 		m = DefaultModel()
@@ -139,16 +134,20 @@ func New(lex *lexicon.Lexicon, m *Model, cfg Config) *Corrector {
 }
 
 type scratch struct {
-	obs  observed
-	crs  []rune
-	rs   []rune
-	buf  []float64
-	hs   []uint64
-	ids  []uint32
-	seen map[uint32]struct{}
-	vars map[string]float64
-
-	found, frontier []string
+	obs   observed
+	crs   []rune
+	rs    []rune
+	buf   []float64
+	hs    []uint64
+	ids   []uint32
+	seen  map[uint32]struct{}
+	seenH map[uint64]struct{}
+	logp  map[string]float64 // expansions of a known word: the confusion's log probability
+	found []string
+	front []frontier
+	arena []byte
+	vbuf  []byte
+	qbuf  []byte
 }
 
 // edit replaces tokens [i, i+n) by words.
@@ -415,7 +414,7 @@ func (c *Corrector) known(w string) bool {
 // marginFor returns the margin a token must clear, from its confidence.
 func (c *Corrector) marginFor(conf float64) float64 {
 	if conf < 0 {
-		return c.margin
+		return c.margin + textMargin
 	}
 	p := math.Min(math.Max(conf, 0.02), 0.99)
 	return math.Max(c.margin+confWeight*(math.Log(p/(1-p))-confCentreLogit), c.margin/2)
@@ -429,7 +428,9 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 	q := lookupForm(t.core)
 	known := c.known(q)
 	raw := t.lead + t.core + t.trail
-	if protected(raw, t.core, known) {
+	if protected(raw, t.core, known) || strings.HasPrefix(t.trail, "'") || strings.HasPrefix(t.trail, "’") {
+		// A trailing apostrophe marks an elision ("tellin'") or a plural
+		// possessive: the word is as the printer set it.
 		return edit{}, false
 	}
 	margin := c.marginFor(t.conf)
@@ -449,20 +450,23 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		}
 	}
 	keep := c.m.logIdentity(q) + c.logContext(prev, q, next)
+	if !known {
+		keep -= oovPenalty
+	}
 	// Every candidate scores at most its channel probability (the context
-	// probability is at most 1), and no channel probability exceeds the
-	// likeliest confusion's: frequent words stop here.
-	if keep+margin >= c.m.maxLogp {
+	// probability is at most 1), and no channel probability exceeds that
+	// of the likeliest edit that fits the token: frequent words stop here.
+	c.m.prepare(&s.obs, q)
+	if keep+margin >= max(s.obs.bound, c.m.spaceDel) {
 		return edit{}, false
 	}
-	c.m.prepare(&s.obs, q)
 	best, bestScore := "", math.Inf(-1)
 	consider := func(w string) {
 		if w == q {
 			return
 		}
 		var ch float64
-		ch, s.buf = c.m.logChannel(&s.obs, w, s.crs, s.buf)
+		ch, s.buf = c.m.logChannel(&s.obs, w, &s.crs, s.buf, keep+margin)
 		if ch <= keep+margin {
 			return
 		}
@@ -471,12 +475,36 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 			best, bestScore = w, v
 		}
 	}
-	for _, w := range c.expansions(s, q, known, keep+margin) {
-		consider(w)
-	}
-	if !known {
+	switch {
+	case known:
+		for _, x := range c.realWordNeighbours(s, q) {
+			if x.logp > keep+margin {
+				consider(x.word)
+			}
+		}
+	case s.obs.n() >= longWord:
+		// The search finds every word within two edits, single learned
+		// confusions included; undoing confusions only adds words further
+		// away, so it runs only when the search found no winner.
 		for _, id := range c.search(s, q) {
 			consider(c.ix.words[id])
+		}
+		if bestScore-keep <= margin {
+			for _, w := range c.expansions(s, q, false, keep+margin) {
+				consider(w)
+			}
+		}
+	default:
+		// Short tokens are searched within one edit only: undo learned
+		// confusions first ("rnan" → "man"), and search when that gave no
+		// clear winner.
+		for _, w := range c.expansions(s, q, false, keep+margin) {
+			consider(w)
+		}
+		if bestScore-keep <= margin+clearWin {
+			for _, id := range c.search(s, q) {
+				consider(c.ix.words[id])
+			}
 		}
 	}
 	var split []string
@@ -492,7 +520,14 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 	if split != nil {
 		return edit{n: 1, words: []string{t.lead + applyCase(split[0], pattern, upper), applyCase(split[1], caseLower, false) + t.trail}, score: delta}, true
 	}
-	return edit{n: 1, words: []string{t.lead + applyCase(best, pattern, upper) + t.trail}, score: delta}, true
+	trail := t.trail
+	if (strings.HasPrefix(trail, "!") || strings.HasPrefix(trail, "|")) && len(best) > len(q) && strings.HasPrefix(best, q) {
+		// "annua!" → "annual": the engine often reads a final l, t or i
+		// as "!" or "|"; when the correction restores letters at the end,
+		// the mark was one of them.
+		trail = trail[1:]
+	}
+	return edit{n: 1, words: []string{t.lead + applyCase(best, pattern, upper) + trail}, score: delta}, true
 }
 
 // identity is log P(s | s) with s kept as read.
@@ -521,55 +556,121 @@ func (c *Corrector) search(s *scratch, q string) []uint32 {
 
 // expansions returns the lexicon words reached from q by undoing one or two
 // learned confusions (To→From) whose probabilities together exceed floor,
-// sorted. For a known q only single confusions are tried.
+// sorted. For a known q only single confusions are tried. Variants are
+// built in scratch buffers and looked up without allocating.
 func (c *Corrector) expansions(s *scratch, q string, known bool, floor float64) []string {
-	if s.vars == nil {
-		s.vars = make(map[string]float64)
+	floor = max(floor, minExpand2LogP)
+	if s.seenH == nil {
+		s.seenH = make(map[uint64]struct{})
 	}
-	clear(s.vars)
+	clear(s.seenH)
+	if known {
+		if s.logp == nil {
+			s.logp = make(map[string]float64)
+		}
+		clear(s.logp)
+	}
 	found := s.found[:0]
-	frontier := s.frontier[:0]
-	type variant struct {
-		w    string
-		logp float64
-	}
-	level := func(w string, acc float64, first bool) {
+	s.arena, s.front = s.arena[:0], s.front[:0]
+	level := func(w []byte, acc float64, first bool) {
 		for k := 0; k < len(w); k++ {
 			if w[k]&0xc0 == 0x80 {
 				continue // inside a multi-byte rune
 			}
 			for _, x := range c.m.expFirst[w[k]] {
-				if acc+x.logp <= floor {
+				if acc+x.logp <= floor || x.logp < minExpandLogP {
 					break // sorted, most likely first
 				}
-				if !strings.HasPrefix(w[k:], x.to) {
+				if !hasPrefix(w[k:], x.to) {
 					continue
 				}
-				v := w[:k] + x.from + w[k+len(x.to):]
-				if _, ok := s.vars[v]; ok || len(s.vars) >= 8*maxExpansions {
+				v := append(append(append(s.vbuf[:0], w[:k]...), x.from...), w[k+len(x.to):]...)
+				s.vbuf = v
+				h := hashBytes(v)
+				if _, ok := s.seenH[h]; ok || len(s.seenH) >= 2*maxExpansions {
 					continue
 				}
-				s.vars[v] = acc + x.logp
-				if c.lex.Has(v) && indexable(v) {
-					found = append(found, v)
+				s.seenH[h] = struct{}{}
+				if id, ok := c.ix.id[string(v)]; ok {
+					found = append(found, c.ix.words[id])
+					if known {
+						s.logp[c.ix.words[id]] = acc + x.logp
+					}
 				} else if first {
-					frontier = append(frontier, v)
+					s.front = append(s.front, frontier{off: len(s.arena), n: len(v), logp: acc + x.logp})
+					s.arena = append(s.arena, v...)
 				}
 			}
 		}
 	}
-	level(q, 0, true)
+	s.qbuf = append(s.qbuf[:0], q...)
+	level(s.qbuf, 0, true)
 	if !known {
-		for _, v := range frontier {
-			if len(found) >= maxExpansions {
+		// Second confusions only from the likeliest first ones.
+		sort.SliceStable(s.front, func(i, j int) bool { return s.front[i].logp > s.front[j].logp })
+		for i, f := range s.front {
+			if len(found) >= maxExpansions || i == maxFrontier {
 				break
 			}
-			level(v, s.vars[v], false)
+			level(s.arena[f.off:f.off+f.n], f.logp, false)
 		}
 	}
 	sort.Strings(found)
-	s.found, s.frontier = found, frontier
+	s.found = found
 	return found
+}
+
+// neighbour is a lexicon word one learned confusion away from another, with
+// that confusion's log probability.
+type neighbour struct {
+	word string
+	logp float64
+}
+
+// maxCached bounds the words whose neighbours are remembered.
+const maxCached = 200_000
+
+// realWordNeighbours returns the lexicon words one likely confusion away
+// from the lexicon word q, remembered per Corrector (words recur).
+func (c *Corrector) realWordNeighbours(s *scratch, q string) []neighbour {
+	if v, ok := c.neigh.Load(q); ok {
+		return v.([]neighbour)
+	}
+	var ns []neighbour
+	for _, w := range c.expansions(s, q, true, minExpandLogP) {
+		ns = append(ns, neighbour{w, s.logp[w]})
+	}
+	if c.cached.Add(1) <= maxCached {
+		c.neigh.Store(q, ns)
+	}
+	return ns
+}
+
+// frontier is a one-confusion variant kept in scratch.arena.
+type frontier struct {
+	off, n int
+	logp   float64
+}
+
+func hasPrefix(b []byte, p string) bool {
+	if len(b) < len(p) {
+		return false
+	}
+	for i := 0; i < len(p); i++ {
+		if b[i] != p[i] {
+			return false
+		}
+	}
+	return true
+}
+
+func hashBytes(b []byte) uint64 {
+	h := uint64(fnvOffset)
+	for _, c := range b {
+		h ^= uint64(c)
+		h *= fnvPrime
+	}
+	return h
 }
 
 // bestSplit finds the likeliest split of q into two lexicon words.

@@ -18,10 +18,11 @@ import (
 // whatever the deletions reach beyond that. Hash collisions only add
 // candidates, which scoring rejects.
 type deleteIndex struct {
-	words  []string // lexicon keys, by id
-	counts []int64  // unigram counts, by id
-	keys   []uint64 // sorted deletion hashes
-	ids    []uint32 // ids[i] is the word filed under keys[i]
+	words  []string          // lexicon keys, by id
+	id     map[string]uint32 // id of each word
+	counts []int64           // unigram counts, by id
+	keys   []uint64          // sorted deletion hashes
+	ids    []uint32          // ids[i] is the word filed under keys[i]
 }
 
 // longWord is the length (in runes) from which words and tokens are
@@ -71,7 +72,7 @@ type hashID struct {
 }
 
 func buildIndex(lex *lexicon.Lexicon) *deleteIndex {
-	ix := &deleteIndex{}
+	ix := &deleteIndex{id: make(map[string]uint32)}
 	var pairs []hashID
 	var rs []rune
 	var hs []uint64
@@ -81,6 +82,7 @@ func buildIndex(lex *lexicon.Lexicon) *deleteIndex {
 		}
 		id := uint32(len(ix.words))
 		ix.words = append(ix.words, w)
+		ix.id[w] = id
 		ix.counts = append(ix.counts, lex.Count(w))
 		rs = append(rs[:0], []rune(w)...)
 		depth := 1

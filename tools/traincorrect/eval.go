@@ -15,7 +15,10 @@ import (
 	"recto/quality"
 )
 
-var dumpDir string
+var (
+	dumpDir  string
+	normOpts quality.NormOptions
+)
 
 // tally sums edit distances over a group of pages.
 type tally struct {
@@ -124,13 +127,13 @@ func evalPairs(c *correct.Corrector, pairs []correct.Pair) {
 // does not bring the page closer to the truth.
 func pageTally(truth, in, out string, changes []correct.Change, verbose bool, id string) tally {
 	var sc quality.Scratch
-	cb := sc.Compare(truth, in, quality.NormOptions{})
-	ca := sc.Compare(truth, out, quality.NormOptions{})
+	cb := sc.Compare(truth, in, normOpts)
+	ca := sc.Compare(truth, out, normOpts)
 	before := cb.CharErrors
 	t := tally{pages: 1, words: cb.Words, refChars: cb.Chars, before: before, after: ca.CharErrors, changes: len(changes)}
 	for _, ch := range changes {
 		alone, ok := applyOne(in, ch)
-		good := ok && sc.Compare(truth, alone, quality.NormOptions{}).CharErrors < before
+		good := ok && sc.Compare(truth, alone, normOpts).CharErrors < before
 		if !good {
 			t.wrong++
 		}

@@ -38,6 +38,7 @@ func main() {
 	rate := flag.Float64("rate", 0.08, "-plant: share of words given a confusion")
 	verbose := flag.Bool("v", false, "list every change on clean pages")
 	flag.StringVar(&dumpDir, "dump", "", "-eval: write each corrected page here as <id>.txt")
+	flag.BoolVar(&normOpts.PlainTypography, "plain", false, "-eval: compare with quality's PlainTypography normalisation (curly quotes, dashes as plain)")
 	cpuprofile := flag.String("cpuprofile", "", "write a CPU profile of the evaluation here")
 	flag.Parse()
 	if *cpuprofile != "" {
@@ -51,7 +52,7 @@ func main() {
 	case *corpus != "" && !*eval:
 		pairs, err := corpusPairs(*corpus, "fit")
 		check(err)
-		m := correct.Train(pairs, correct.TrainOptions{})
+		m := correct.Train(pairs, correct.TrainOptions{Prior: correct.Classic})
 		report(m)
 		if *out != "" {
 			check(m.Save(*out))

@@ -2,7 +2,6 @@ package ocr
 
 import (
 	"image"
-	"math"
 )
 
 // histogram counts the grey levels of g.
@@ -149,6 +148,10 @@ func (it *integral) build(g *image.Gray) {
 // sauvola binarises src into dst (same size; may be the same image) with a
 // win×win window clipped at the image edges, in O(pixels) through integral
 // images. it is scratch space, reused across calls.
+//
+// The test v ≤ m·(1 + k·(s/R − 1)) is evaluated without a square root:
+// with a = v − m·(1 − k) it holds when a ≤ 0, or else when
+// a² ≤ (m·k/R)²·s².
 func sauvola(dst, src *image.Gray, win int, it *integral) {
 	it.build(src)
 	w, h := it.w, it.h
@@ -160,22 +163,50 @@ func sauvola(dst, src *image.Gray, win int, it *integral) {
 		topQ, botQ := it.sumSq[y0*W:y0*W+W], it.sumSq[y1*W:y1*W+W]
 		s := src.Pix[y*src.Stride : y*src.Stride+w]
 		d := dst.Pix[y*dst.Stride : y*dst.Stride+w]
-		for x, v := range s {
+		rows := y1 - y0
+		// Interior: the window is whole across, x0 = x−r and x1 = x+r+1.
+		lo, hi := min(r, w), max(min(r, w), w-r-1)
+		if win <= w {
+			inv := 1 / float64(win*rows)
+			n := hi - lo
+			b0, b1 := bot[:n], bot[win:win+n]
+			t0, t1 := top[:n], top[win:win+n]
+			q0, q1 := botQ[:n], botQ[win:win+n]
+			u0, u1 := topQ[:n], topQ[win:win+n]
+			sv, dv := s[lo:lo+n], d[lo:lo+n]
+			for i := range sv {
+				m := float64(b1[i]-b0[i]-t1[i]+t0[i]) * inv
+				variance := float64(q1[i]-q0[i]-u1[i]+u0[i])*inv - m*m
+				dv[i] = sauvolaPixel(sv[i], m, variance)
+			}
+		} else {
+			lo, hi = 0, 0
+		}
+		// Edges, where the window is clipped.
+		for x := 0; x < w; x++ {
+			if x == lo && hi > lo {
+				x = hi - 1
+				continue
+			}
 			x0, x1 := max(0, x-r), min(w, x+r+1)
-			n := float64((x1 - x0) * (y1 - y0))
-			sum := float64(bot[x1] - bot[x0] - top[x1] + top[x0])
-			sq := float64(botQ[x1] - botQ[x0] - topQ[x1] + topQ[x0])
-			m := sum / n
-			variance := sq/n - m*m
-			if variance < 0 {
-				variance = 0
-			}
-			t := m * (1 + sauvolaK*(math.Sqrt(variance)/sauvolaR-1))
-			if float64(v) <= t {
-				d[x] = 0
-			} else {
-				d[x] = 255
-			}
+			inv := 1 / float64((x1-x0)*rows)
+			m := float64(bot[x1]-bot[x0]-top[x1]+top[x0]) * inv
+			variance := float64(botQ[x1]-botQ[x0]-topQ[x1]+topQ[x0])*inv - m*m
+			d[x] = sauvolaPixel(s[x], m, variance)
 		}
 	}
+}
+
+// sauvolaPixel applies Sauvola's test to grey level v with window mean m
+// and variance: 0 (ink) or 255.
+func sauvolaPixel(v uint8, m, variance float64) uint8 {
+	const k, kr = sauvolaK, sauvolaK / sauvolaR
+	a := float64(v) - m*(1-k)
+	if a <= 0 {
+		return 0
+	}
+	if b := m * kr; a*a <= b*b*variance {
+		return 0
+	}
+	return 255
 }

@@ -47,7 +47,7 @@ type PrepOptions struct {
 
 // Step records one preparation step.
 type Step struct {
-	Name     string        // "gray", "noise", "denoise", "deskew", "binarize", "cleanup", "blank"
+	Name     string        // "gray", "noise", "denoise", "measure", "deskew", "binarize", "cleanup", "blank"
 	Applied  bool          // false when the step measured and decided not to act, or was off
 	Duration time.Duration // wall time of the step, measurement included
 	Detail   string        // what was measured and decided, for people
@@ -81,7 +81,9 @@ const (
 
 	// MinSkew is the smallest skew, in degrees, that Auto deskewing
 	// corrects: below it rotation's resampling costs more than it gains
-	// (a 0.05° skew moves the end of a 2,480-pixel line by 2 pixels).
+	// (a 0.05° skew moves the end of a 2,480-pixel line by 2 pixels). On
+	// pages narrower than 1,146 pixels the bar is higher: the skew must
+	// move the far end of a line across the page by at least one pixel.
 	MinSkew = 0.05
 
 	// unevenFraction: Auto binarisation uses Sauvola when the background
@@ -159,6 +161,7 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 	if blank {
 		p.Blank = true
 	}
+	step("measure", true, "paper level %d, background variation %.0f, %d ink pixels at half size", bg.paper, bg.variation, bg.ink)
 
 	switch method {
 	case "", "auto":
@@ -172,21 +175,26 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 	rot := rotation{}
 	rotated := false
 	if o.Deskew != Off && !blank {
-		var it integral
+		// On an evenly lit page one level (Otsu's, of the half-size
+		// page) separates ink from paper, at both sizes, and the final
+		// stage of the search uses the full-size ink. Otherwise the
+		// half-size page is binarised by Sauvola's method and the
+		// search stays at half size.
 		b2 := image.NewGray(g2.Rect)
-		sauvola(b2, g2, sauvolaWindow(g2.Rect.Dx(), g2.Rect.Dy()), &it)
-		// The final stage of the search uses the full-size ink when one
-		// level separates it from the paper (the page is evenly lit).
 		t := -1
-		if method != "sauvola" {
+		if method == "sauvola" {
+			var it integral
+			sauvola(b2, g2, sauvolaWindow(g2.Rect.Dx(), g2.Rect.Dy()), &it)
+		} else {
 			t = bg.otsu
+			threshold(b2, g2, t)
 		}
 		deg, ok := findSkew(b2, g, t, maxSkew)
 		switch {
 		case !ok:
 			step("deskew", false, "no clear skew found")
-		case math.Abs(deg) < MinSkew && o.Deskew == Auto:
-			step("deskew", false, "skew %.2f° below %.2f°", deg, MinSkew)
+		case math.Abs(deg) < minSkew(W) && o.Deskew == Auto:
+			step("deskew", false, "skew %.2f° below %.2f°", deg, minSkew(W))
 		default:
 			g = rotate(g, -deg)
 			rot = newRotation(-deg, W, H)
@@ -321,10 +329,10 @@ func measureBackground(g *image.Gray) background {
 			}
 			// A pixel counts when the pixel right of it or below it is
 			// dark too: noise rarely darkens two neighbours together.
-			for y := max(ty, my); y < min(y1, h-my); y++ {
+			for y := max(ty, my); y < min(y1, h-my, h-1); y++ {
 				row := g.Pix[y*g.Stride : y*g.Stride+w]
 				next := g.Pix[(y+1)*g.Stride : (y+1)*g.Stride+w]
-				for x := max(tx, mx); x < min(x1, w-mx); x++ {
+				for x := max(tx, mx); x < min(x1, w-mx, w-1); x++ {
 					if row[x] < lim && (row[x+1] < lim || next[x] < lim) {
 						res.ink++
 					}
@@ -371,4 +379,11 @@ func denoisePasses(noise float64) int {
 		return 2
 	}
 	return 1
+}
+
+// minSkew is the smallest skew Auto deskewing corrects on a page w pixels
+// wide: MinSkew, or the angle whose tangent is 1/w (one pixel across the
+// page) if larger.
+func minSkew(w int) float64 {
+	return math.Max(MinSkew, math.Atan(1/float64(max(w, 1)))*180/math.Pi)
 }

@@ -14,6 +14,8 @@ import (
 
 	"github.com/spf13/cobra"
 	"golang.org/x/sync/errgroup"
+
+	"recto/ocr/synth"
 )
 
 // DemoOptions are the settings of `recto demo`.
@@ -27,12 +29,45 @@ const demoMarker = ".recto-demo"
 
 // demoPage is one page of the demo collection before rendering.
 type demoPage struct {
-	Title string  // title folder name
-	Name  string  // file name without extension, e.g. "page-01"
-	Text  string  // the page text (also its ground truth)
-	Level float64 // degradation severity in [0, 1]
-	Kind  string  // a named degradation preset instead of Level, "" for none
-	Truth bool    // ground truth is written for this page
+	Title string // title folder name (the title's short name)
+	Name  string // file name without extension, e.g. "page-01"
+	Truth bool   // ground truth is written for this page
+
+	title synth.Title // the title it belongs to
+	index int         // its page index in title, from 0
+}
+
+// demoPages lists the pages of synth.Demo(): ground truth for every other
+// text page of each title (half of them: the first, third, ...; a blank
+// page has nothing to transcribe).
+func demoPages() []demoPage {
+	var out []demoPage
+	for _, t := range synth.Demo() {
+		text := 0
+		for i, body := range t.Pages {
+			p := demoPage{Title: t.ID, Name: fmt.Sprintf("page-%02d", i+1), title: t, index: i}
+			if strings.TrimSpace(body) != "" {
+				p.Truth = text%2 == 0
+				text++
+			}
+			out = append(out, p)
+		}
+	}
+	return out
+}
+
+// renderDemoPage renders and degrades one page; it returns the PNG bytes
+// (with the resolution recorded) and the page's ground truth.
+var renderDemoPage = func(p demoPage) ([]byte, string, error) {
+	pg, err := p.title.Page(p.index)
+	if err != nil {
+		return nil, "", err
+	}
+	var buf bytes.Buffer
+	if err := synth.WritePNG(&buf, pg.Image, pg.DPI); err != nil {
+		return nil, "", err
+	}
+	return buf.Bytes(), pg.Truth + "\n", nil
 }
 
 func newDemoCommand(g *GlobalOptions) *cobra.Command {
@@ -124,7 +159,8 @@ func runDemo(ctx context.Context, o DemoOptions, g GlobalOptions) error {
 func demoStamp(pages []demoPage) string {
 	h := sha256.New()
 	for _, p := range pages {
-		fmt.Fprintf(h, "%q %q %q %g %q %v\n", p.Title, p.Name, p.Text, p.Level, p.Kind, p.Truth)
+		k := p.title.Kinds[p.index]
+		fmt.Fprintf(h, "%q %q %v %q %+v %+v %q\n", p.Title, p.Name, p.Truth, k.Name, k.D, p.title.Layout, p.title.Pages[p.index])
 	}
 	return fmt.Sprintf("demo collection %x\n", h.Sum(nil))
 }
@@ -170,15 +206,4 @@ func writeIfChanged(name string, data []byte) error {
 		return fmt.Errorf("demo: %q: %w", name, err)
 	}
 	return nil
-}
-
-// demoSlug makes a title into a folder name.
-func demoSlug(s string) string {
-	return strings.Map(func(r rune) rune {
-		switch {
-		case r >= 'a' && r <= 'z', r >= 'A' && r <= 'Z', r >= '0' && r <= '9', r == '-', r == ' ':
-			return r
-		}
-		return -1
-	}, s)
 }

@@ -90,11 +90,27 @@ func TestKillAndResume(t *testing.T) {
 		if err := c.Start(); err != nil {
 			t.Fatal(err)
 		}
-		time.Sleep(time.Duration(rng.Int64N(int64(whole))))
-		if err := c.Process.Signal(syscall.SIGKILL); err == nil {
-			kills++
+		// Kill at a random moment after this run has committed a page of
+		// its own (start-up, which loads the lexicon, varies a lot).
+		before := countRows(killed)
+		exited := make(chan error, 1)
+		go func() { exited <- c.Wait() }()
+		var err error
+		waiting := true
+		for deadline := time.Now().Add(whole); waiting && time.Now().Before(deadline) && countRows(killed) <= before; {
+			select {
+			case err = <-exited:
+				waiting = false
+			case <-time.After(10 * time.Millisecond):
+			}
 		}
-		err := c.Wait()
+		if waiting {
+			time.Sleep(time.Duration(rng.Int64N(int64(300 * time.Millisecond))))
+			if err := c.Process.Signal(syscall.SIGKILL); err == nil {
+				kills++
+			}
+			err = <-exited
+		}
 		if st := exitStatus(err); st == exitPartial || st == exitOK {
 			if midway >= 1 {
 				break // finished before the kill landed
@@ -116,6 +132,17 @@ func TestKillAndResume(t *testing.T) {
 		t.Fatal("no kill landed part-way through a run: the test proved nothing")
 	}
 	sameRun(t, clean, killed)
+}
+
+// countRows returns the rows in the ledger of dir, 0 when there is none yet.
+func countRows(dir string) int {
+	l, err := ledger.OpenReadOnly(filepath.Join(dir, ledger.FileName))
+	if err != nil {
+		return 0
+	}
+	defer l.Close()
+	rows, _ := l.Pages(context.Background())
+	return len(rows)
 }
 
 // exitStatus returns a command's exit status, -1 when killed by a signal.

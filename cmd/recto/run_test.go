@@ -16,6 +16,7 @@ import (
 	"testing"
 
 	"recto/ocr/ledger"
+	"recto/ocr/synth"
 )
 
 // testCollection writes a small collection: titles of fake-engine pages
@@ -30,17 +31,20 @@ func testCollection(t testing.TB, titles, perTitle int, broken bool) (string, st
 		title := fmt.Sprintf("Title %c", 'A'+ti)
 		for p := range perTitle {
 			rel := filepath.Join(title, fmt.Sprintf("p%03d.png", p))
-			img := image.NewGray(image.Rect(0, 0, 16+p, 8+ti))
+			// An A4 page at 75 dpi (recorded in the file): page-sized, so
+			// that triage's text-density feature is realistic, yet small.
+			img := image.NewGray(image.Rect(0, 0, 620+p, 877+ti))
 			for i := range img.Pix {
 				img.Pix[i] = uint8(255 - (i*7+p)%40)
 			}
 			var buf bytes.Buffer
-			if err := png.Encode(&buf, img); err != nil {
+			if err := synth.WritePNG(&buf, img, 75); err != nil {
 				t.Fatal(err)
 			}
 			mustWrite(t, filepath.Join(coll, rel), buf.Bytes())
-			ref := fmt.Sprintf("Harbour notes of Wrenmouth, page %d.\nThe ferry to Lantern Isle ran %d times.\n", p, p*3+ti)
-			hyp := strings.NewReplacer("rn", "m", "of", "o f").Replace(ref)
+			ref := fmt.Sprintf("Harbour notes of Wrenmouth, page %d.\nThe ferry to Lantern Isle ran %d times.\n", p, p*3+ti) +
+				strings.Repeat("The harbour master reported that the northern quay was mended before the winter storms came in from the sea.\n", 6)
+			hyp := strings.NewReplacer("rn", "m", "of", "o f", "the", "tbe", "ere", "cre").Replace(ref)
 			if p%3 == 0 {
 				hyp = strings.ReplaceAll(hyp, "e", "c") // a bad page
 			}
@@ -255,17 +259,26 @@ func TestShardsMergeEqualsSingleRun(t *testing.T) {
 	coll, truth := testCollection(t, 3, 7, true)
 	base := t.TempDir()
 	single := filepath.Join(base, "single")
-	if _, _, err := runRecto(t, "run", coll, "--out", single, "--truth", truth); err == nil {
+	if _, _, err := runRecto(t, "run", coll, "--out", single, "--truth", truth, "--correct", "0.001", "--rescan", "1"); err == nil {
 		t.Fatal("want partial failure from the broken files")
 	}
 	shared := filepath.Join(base, "shared")
 	for i := range 3 {
-		runRecto(t, "run", coll, "--out", shared, "--truth", truth, "--shard", fmt.Sprintf("%d/3", i))
+		runRecto(t, "run", coll, "--out", shared, "--truth", truth, "--correct", "0.001", "--rescan", "1", "--shard", fmt.Sprintf("%d/3", i))
 	}
 	if _, se, err := runRecto(t, "merge", shared); err != nil {
 		t.Fatal(err, se)
 	}
 	sameRun(t, single, shared)
+	corrected := 0
+	for _, r := range ledgerRows(t, single) {
+		if r.Decision == "correct" {
+			corrected++
+		}
+	}
+	if corrected == 0 {
+		t.Error("no page went through correction: the comparison does not cover it")
+	}
 
 	// Shard index from a Slurm array environment, separate folders.
 	var dirs []string
@@ -274,7 +287,7 @@ func TestShardsMergeEqualsSingleRun(t *testing.T) {
 		t.Setenv("SLURM_ARRAY_TASK_MIN", "1")
 		t.Setenv("SLURM_ARRAY_TASK_COUNT", "3")
 		d := filepath.Join(base, fmt.Sprintf("node%d", i))
-		runRecto(t, "run", coll, "--out", d, "--truth", truth)
+		runRecto(t, "run", coll, "--out", d, "--truth", truth, "--correct", "0.001", "--rescan", "1")
 		dirs = append(dirs, d)
 	}
 	merged := filepath.Join(base, "merged")
@@ -291,11 +304,14 @@ func TestHostileTextStaysValid(t *testing.T) {
 	t.Setenv("RECTO_FAKE_ENGINE", "1")
 	coll, _ := testCollection(t, 1, 1, false)
 	hostile := "<script>alert(1)</script> ]]> &amp; \x01\x08\x1b \uFFFE\uFFFF \xff <!-- x --> \"quoted\"\n"
-	plain := strings.Repeat("the harbour and the ferry were open to every ship in the bay\n", 4)
+	plain := strings.Repeat("tbe harbour and tbe fcrry wcre opcn to evcry sbip in the bay\n", 6)
 	mustWrite(t, filepath.Join(coll, "Title A", "p000.png.fake.txt"), []byte(hostile+plain+hostile))
 	out := filepath.Join(t.TempDir(), "out")
 	if _, se, err := runRecto(t, "run", coll, "--out", out, "--correct", "0.001", "--rescan", "1"); err != nil {
 		t.Fatal(err, se)
+	}
+	if r := ledgerRows(t, out)[0]; r.Decision != "correct" {
+		t.Fatalf("hostile page decided %q (%v), want correct", r.Decision, r.Reasons)
 	}
 	for _, sub := range []string{ocrDir, correctedDir} {
 		data, err := os.ReadFile(filepath.Join(out, sub, "Title A", "p000.alto.xml"))

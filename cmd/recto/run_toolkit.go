@@ -9,6 +9,7 @@ import (
 	"os"
 	"strconv"
 	"strings"
+	"sync"
 	"time"
 
 	"recto/correct"
@@ -32,6 +33,7 @@ type toolkit struct {
 	correct       func(*ocr.Record) (*ocr.Record, int)
 	compare       func(ref, hyp string) counts
 	interval      report.IntervalFunc
+	close         func() // releases an engine no worker took; may be nil
 }
 
 // cerInterval is the reports' interval for a title's pooled CER: the
@@ -93,9 +95,8 @@ func newToolkit(o RunOptions) (*toolkit, error) {
 			return verdict{PredictedCER: v.PredictedCER, Decision: v.Decision, Reasons: v.Reasons}
 		},
 	}
-	corrector := correct.New(lex, nil, correct.Config{Margin: o.Margin})
 	tk.correct = func(r *ocr.Record) (*ocr.Record, int) {
-		c, changes := corrector.CorrectRecord(r)
+		c, changes := correctorFor(lex, o.Margin).CorrectRecord(r)
 		return c, len(changes)
 	}
 	tk.fingerprint, tk.settingsJSON = fingerprint(settings)
@@ -110,11 +111,14 @@ func newToolkit(o RunOptions) (*toolkit, error) {
 		if err != nil {
 			return nil, fmt.Errorf("run: %w", err)
 		}
-		first := &eng
+		var mu sync.Mutex // workers start concurrently
+		first := eng
 		tk.newRecogniser = func() (recogniser, error) {
-			if *first != nil { // the engine made for the check serves the first worker
-				e := *first
-				*first = nil
+			mu.Lock()
+			e := first
+			first = nil
+			mu.Unlock()
+			if e != nil { // the engine made for the check serves the first worker
 				return &engineRecogniser{eng: e, opts: opts}, nil
 			}
 			e, err := newEngine(cfg)
@@ -123,8 +127,38 @@ func newToolkit(o RunOptions) (*toolkit, error) {
 			}
 			return &engineRecogniser{eng: e, opts: opts}, nil
 		}
+		tk.close = func() {
+			mu.Lock()
+			defer mu.Unlock()
+			if first != nil {
+				first.Close()
+				first = nil
+			}
+		}
 	}
 	return tk, nil
+}
+
+// correctors caches correctors by lexicon and margin: building one indexes
+// the lexicon, which takes seconds, so it is done when the first page needs
+// correction and once per process (tests run many jobs in one process).
+var correctors sync.Map // correctorKey -> *correctorEntry
+
+type correctorKey struct {
+	lex    *lexicon.Lexicon
+	margin float64
+}
+
+type correctorEntry struct {
+	once sync.Once
+	c    *correct.Corrector
+}
+
+func correctorFor(lex *lexicon.Lexicon, margin float64) *correct.Corrector {
+	v, _ := correctors.LoadOrStore(correctorKey{lex, margin}, &correctorEntry{})
+	e := v.(*correctorEntry)
+	e.once.Do(func() { e.c = correct.New(lex, nil, correct.Config{Margin: margin}) })
+	return e.c
 }
 
 // engineRecogniser is one worker's engine and options.

@@ -142,6 +142,8 @@ type scratch struct {
 	ids   []uint32
 	seen  map[uint32]struct{}
 	seenH map[uint64]struct{}
+	lm    []neighbour // candidates with their context scores
+	cands []string
 	logp  map[string]float64 // expansions of a known word: the confusion's log probability
 	found []string
 	front []frontier
@@ -475,6 +477,33 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 			best, bestScore = w, v
 		}
 	}
+	// scoreAll scores words likeliest-in-context first: once a word's
+	// context score plus the best channel score any candidate can have
+	// falls below the best so far, none of the rest can win.
+	scoreAll := func(words []string) {
+		s.lm = s.lm[:0]
+		for _, w := range words {
+			if w != q {
+				s.lm = append(s.lm, neighbour{w, c.logContext(prev, w, next)})
+			}
+		}
+		sort.Slice(s.lm, func(i, j int) bool {
+			if s.lm[i].logp != s.lm[j].logp {
+				return s.lm[i].logp > s.lm[j].logp
+			}
+			return s.lm[i].word < s.lm[j].word
+		})
+		for _, x := range s.lm {
+			if x.logp+s.obs.bound <= max(bestScore, keep+margin) {
+				break
+			}
+			var ch float64
+			ch, s.buf = c.m.logChannel(&s.obs, x.word, &s.crs, s.buf, keep+margin-x.logp)
+			if v := ch + x.logp; v > bestScore || (v == bestScore && x.word < best) {
+				best, bestScore = x.word, v
+			}
+		}
+	}
 	switch {
 	case known:
 		for _, x := range c.realWordNeighbours(s, q) {
@@ -486,25 +515,25 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		// The search finds every word within two edits, single learned
 		// confusions included; undoing confusions only adds words further
 		// away, so it runs only when the search found no winner.
+		s.cands = s.cands[:0]
 		for _, id := range c.search(s, q) {
-			consider(c.ix.words[id])
+			s.cands = append(s.cands, c.ix.words[id])
 		}
+		scoreAll(s.cands)
 		if bestScore-keep <= margin {
-			for _, w := range c.expansions(s, q, false, keep+margin) {
-				consider(w)
-			}
+			scoreAll(c.expansions(s, q, false, keep+margin))
 		}
 	default:
 		// Short tokens are searched within one edit only: undo learned
 		// confusions first ("rnan" → "man"), and search when that gave no
 		// clear winner.
-		for _, w := range c.expansions(s, q, false, keep+margin) {
-			consider(w)
-		}
+		scoreAll(c.expansions(s, q, false, keep+margin))
 		if bestScore-keep <= margin+clearWin {
+			s.cands = s.cands[:0]
 			for _, id := range c.search(s, q) {
-				consider(c.ix.words[id])
+				s.cands = append(s.cands, c.ix.words[id])
 			}
+			scoreAll(s.cands)
 		}
 	}
 	var split []string

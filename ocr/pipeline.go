@@ -49,7 +49,11 @@ func Process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 		rec.TimingsMS["gray"] = ms(time.Since(t))
 	} else {
 		var err error
-		p, err = Prepare(src, o.Prep)
+		po := o.Prep
+		if po.DPI <= 0 {
+			po.DPI = dpi
+		}
+		p, err = Prepare(src, po)
 		if err != nil {
 			return nil, nil, err
 		}
@@ -65,9 +69,13 @@ func Process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 
 	if !p.Blank {
 		t := time.Now()
-		// Preparation rotates but never rescales, so the prepared page keeps
-		// the source's resolution.
-		words, err := eng.Recognize(ctx, p.Image, int(math.Round(dpi)))
+		// Preparation may enlarge a low-resolution page; the engine is
+		// told the prepared page's resolution.
+		edpi := dpi
+		if p.DPI > 0 {
+			edpi = p.DPI
+		}
+		words, err := eng.Recognize(ctx, p.Image, int(math.Round(edpi)))
 		rec.TimingsMS["engine"] = ms(time.Since(t))
 		if err != nil {
 			return nil, nil, err

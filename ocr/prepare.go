@@ -43,11 +43,17 @@ type PrepOptions struct {
 	Binarize string
 
 	MaxSkew float64 // largest skew searched either way, degrees; 0 means 15
+
+	// DPI is the page's resolution, dots per inch; 0 means unknown. With
+	// automatic binarisation a page below LowDPI is first enlarged to
+	// TargetDPI (Catmull-Rom cubic), unless it would exceed 20 million
+	// pixels.
+	DPI float64
 }
 
 // Step records one preparation step.
 type Step struct {
-	Name     string        // "gray", "noise", "denoise", "measure", "deskew", "binarize", "cleanup", "blank"
+	Name     string        // "gray", "noise", "denoise", "scale", "measure", "deskew", "binarize", "cleanup", "blank"
 	Applied  bool          // false when the step measured and decided not to act, or was off
 	Duration time.Duration // wall time of the step, measurement included
 	Detail   string        // what was measured and decided, for people
@@ -62,11 +68,14 @@ type Prepared struct {
 	Noise        float64     // estimated noise before denoising, standard deviation in grey levels
 	Background   float64     // background variation: spread of the local paper level across the page, grey levels (0-255)
 	Blank        bool        // no ink worth recognising was found; Image is then all white
+	Scale        float64     // factor Image was enlarged by before deskewing; 1 when it was not
+	DPI          float64     // resolution of Image, dots per inch: PrepOptions.DPI × Scale; 0 when unknown
 	Steps        []Step      // what ran, in order
 
 	// ToOriginal maps a box in Image's pixels back to the original image's
-	// pixels (undoing the rotation), clipped to the original image. A
-	// rotated box maps to the smallest upright box holding it.
+	// pixels (undoing the rotation and the enlargement), clipped to the
+	// original image. A rotated or shrunk box maps to the smallest upright
+	// box holding it.
 	ToOriginal func(b Box) Box
 }
 
@@ -97,7 +106,8 @@ const (
 var ErrNoPixels = errors.New("ocr: image has no pixels")
 
 // Prepare turns a decoded page into the image the engine reads:
-// greyscale; noise estimate, and a blur when the noise is high; skew
+// greyscale; noise estimate, and a blur when the noise is high;
+// enlargement of low-resolution pages (automatic binarisation only); skew
 // estimate and rotation with white corners; binarisation by Otsu's method or
 // Sauvola's local method; removal of speckle and border ink; and blank-page
 // detection. src is not modified. Every step is timed and recorded in
@@ -123,8 +133,9 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 	}
 	maxSkew = min(maxSkew, 45)
 
-	p := &Prepared{}
+	p := &Prepared{Scale: 1, DPI: max(o.DPI, 0)}
 	W, H := src.Bounds().Dx(), src.Bounds().Dy()
+	srcW, srcH := W, H
 	t := time.Now()
 	step := func(name string, applied bool, detail string, args ...any) {
 		now := time.Now()
@@ -147,6 +158,15 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 		step("denoise", true, "%d passes of a 3×3 box blur (noise %.1f)", passes, p.Noise)
 	} else {
 		step("denoise", false, "noise %.1f below %.0f", p.Noise, DenoiseThreshold)
+	}
+
+	if s := upscaleFactor(W, H, o.DPI); s > 1 && (method == "" || method == "auto") {
+		g = upscale(g, s)
+		W, H = g.Rect.Dx(), g.Rect.Dy()
+		p.Scale, p.DPI = s, TargetDPI
+		step("scale", true, "%.0f dpi below %.0f: enlarged ×%.2f to %d×%d", o.DPI, LowDPI, s, W, H)
+	} else {
+		step("scale", false, "%s", scaleDetail(o.DPI, method))
 	}
 
 	// Analysis at reduced resolution: half size for skew and ink, and the
@@ -243,12 +263,29 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 	}
 
 	p.Image = g
+	toScaled := func(b Box) Box { return clipBox(b, W, H) }
 	if rotated {
-		p.ToOriginal = func(b Box) Box { return rot.boxToSrc(b) }
+		toScaled = rot.boxToSrc
+	}
+	if s := p.Scale; s > 1 {
+		p.ToOriginal = func(b Box) Box { return clipBox(scaleBoxDown(toScaled(b), s), srcW, srcH) }
 	} else {
-		p.ToOriginal = func(b Box) Box { return clipBox(b, W, H) }
+		p.ToOriginal = toScaled
 	}
 	return p, nil
+}
+
+// scaleDetail says why a page was not enlarged.
+func scaleDetail(dpi float64, method string) string {
+	switch {
+	case dpi <= 0:
+		return "resolution unknown"
+	case dpi >= LowDPI:
+		return "resolution high enough"
+	case method != "" && method != "auto":
+		return "binarisation " + method + " requested: not enlarged"
+	}
+	return "enlarged page would be too large: resolution tag doubtful"
 }
 
 // boxToSrc maps a box of the rotated image to the smallest upright box of

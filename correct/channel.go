@@ -19,6 +19,9 @@ type crul struct {
 	r *crule
 }
 
+// n returns the token's length in runes.
+func (o *observed) n() int { return len(o.runes) }
+
 // prepare fills o for the lower-case token s.
 func (m *Model) prepare(o *observed, s string) {
 	o.s = s
@@ -59,18 +62,35 @@ func (m *Model) prepare(o *observed, s string) {
 // consecutive rows of the table bounds the result: as soon as that is at or
 // below limit, logChannel gives up and returns -Inf (pass -Inf to always
 // finish).
-func (m *Model) logChannel(o *observed, cand string, crs []rune, buf []float64, limit float64) (float64, []float64) {
-	crs = crs[:0]
+func (m *Model) logChannel(o *observed, cand string, rbuf *[]rune, buf []float64, limit float64) (float64, []float64) {
+	var crs []rune
+	if rbuf != nil {
+		crs = (*rbuf)[:0]
+	}
 	for _, r := range cand {
 		crs = append(crs, r)
 	}
+	if rbuf != nil {
+		*rbuf = crs
+	}
 	n, mm := len(crs), len(o.runes)
 	w := mm + 1
-	size := (n + 1) * w
+	size := (n+1)*w + 2*n
 	if cap(buf) < size {
 		buf = make([]float64, size)
 	}
-	d := buf[:size]
+	d := buf[:(n+1)*w]
+	// Per candidate character: log P(kept) and log P(deleted), looked up
+	// once rather than once per cell.
+	keep, del := buf[(n+1)*w:(n+1)*w+n], buf[(n+1)*w+n:size]
+	for i, r := range crs {
+		keep[i] = m.keepLog(r)
+		if v, ok := m.del[r]; ok {
+			del[i] = v
+		} else {
+			del[i] = m.delFloor
+		}
+	}
 	inf := math.Inf(-1)
 	var recent [maxRule]float64 // best of the last rows, by i % maxRule
 	for k := range recent {
@@ -87,18 +107,14 @@ func (m *Model) logChannel(o *observed, cand string, crs []rune, buf []float64, 
 			if i > 0 && j > 0 {
 				v := d[(i-1)*w+j-1]
 				if crs[i-1] == o.runes[j-1] {
-					v += m.keepLog(crs[i-1])
+					v += keep[i-1]
 				} else {
 					v += m.subFloor
 				}
 				best = v
 			}
 			if i > 0 {
-				dl, ok := m.del[crs[i-1]]
-				if !ok {
-					dl = m.delFloor
-				}
-				if v := d[(i-1)*w+j] + dl; v > best {
+				if v := d[(i-1)*w+j] + del[i-1]; v > best {
 					best = v
 				}
 			}

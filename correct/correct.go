@@ -142,6 +142,8 @@ type scratch struct {
 	ids   []uint32
 	seen  map[uint32]struct{}
 	seenH map[uint64]struct{}
+	lm    []neighbour // candidates with their context scores
+	cands []string
 	logp  map[string]float64 // expansions of a known word: the confusion's log probability
 	found []string
 	front []frontier
@@ -466,7 +468,7 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 			return
 		}
 		var ch float64
-		ch, s.buf = c.m.logChannel(&s.obs, w, s.crs, s.buf, keep+margin)
+		ch, s.buf = c.m.logChannel(&s.obs, w, &s.crs, s.buf, keep+margin)
 		if ch <= keep+margin {
 			return
 		}
@@ -475,22 +477,63 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 			best, bestScore = w, v
 		}
 	}
-	if known {
+	// scoreAll scores words likeliest-in-context first: once a word's
+	// context score plus the best channel score any candidate can have
+	// falls below the best so far, none of the rest can win.
+	scoreAll := func(words []string) {
+		s.lm = s.lm[:0]
+		for _, w := range words {
+			if w != q {
+				s.lm = append(s.lm, neighbour{w, c.logContext(prev, w, next)})
+			}
+		}
+		sort.Slice(s.lm, func(i, j int) bool {
+			if s.lm[i].logp != s.lm[j].logp {
+				return s.lm[i].logp > s.lm[j].logp
+			}
+			return s.lm[i].word < s.lm[j].word
+		})
+		for _, x := range s.lm {
+			if x.logp+s.obs.bound <= max(bestScore, keep+margin) {
+				break
+			}
+			var ch float64
+			ch, s.buf = c.m.logChannel(&s.obs, x.word, &s.crs, s.buf, keep+margin-x.logp)
+			if v := ch + x.logp; v > bestScore || (v == bestScore && x.word < best) {
+				best, bestScore = x.word, v
+			}
+		}
+	}
+	switch {
+	case known:
 		for _, x := range c.realWordNeighbours(s, q) {
 			if x.logp > keep+margin {
 				consider(x.word)
 			}
 		}
-	} else {
-		for _, w := range c.expansions(s, q, false, keep+margin) {
-			consider(w)
-		}
-	}
-	// The search of the lexicon is the slow part; skip it when undoing a
-	// learned confusion already gave a clear winner.
-	if !known && bestScore-keep <= margin+clearWin {
+	case s.obs.n() >= longWord:
+		// The search finds every word within two edits, single learned
+		// confusions included; undoing confusions only adds words further
+		// away, so it runs only when the search found no winner.
+		s.cands = s.cands[:0]
 		for _, id := range c.search(s, q) {
-			consider(c.ix.words[id])
+			s.cands = append(s.cands, c.ix.words[id])
+		}
+		scoreAll(s.cands)
+		if bestScore-keep <= margin {
+			scoreAll(c.expansions(s, q, false, keep+margin))
+		}
+	default:
+		// Short tokens are searched within one edit only: undo learned
+		// confusions first ("rnan" → "man"), and search when that gave no
+		// clear winner.
+		scoreAll(c.expansions(s, q, false, keep+margin))
+		if bestScore-keep <= margin+clearWin {
+			s.cands = s.cands[:0]
+			for _, id := range c.search(s, q) {
+				s.cands = append(s.cands, c.ix.words[id])
+			}
+			scoreAll(s.cands)
 		}
 	}
 	var split []string

@@ -387,3 +387,59 @@ func BenchmarkCorrectDegraded(b *testing.B) {
 	pages, tokens := benchPages(b, false)
 	benchCorrect(b, pages, tokens)
 }
+
+// TestConfidenceMatters: the same misreadings are corrected more readily
+// when the engine was unsure of them than when it was confident.
+func TestConfidenceMatters(t *testing.T) {
+	c := testCorrector(Config{})
+	words := []string{"tbe", "wbale", "rnoment", "sbip", "harpooneer", "rnen", "clay", "vvhite", "tlie", "5ea", "c0uld", "wliich"}
+	changed := func(conf float64) int {
+		n := 0
+		for _, w := range words {
+			rec := &ocr.Record{Words: []ocr.Word{{Text: "and", Conf: 0.96}, {Text: w, Conf: conf}, {Text: "was", Conf: 0.96}}}
+			if _, ch := c.CorrectRecord(rec); len(ch) > 0 {
+				n++
+			}
+		}
+		return n
+	}
+	low, high := changed(0.3), changed(0.99)
+	if !(low > high) {
+		t.Errorf("%d of %d words changed at confidence 0.3 and %d at 0.99; low confidence should make more eligible", low, len(words), high)
+	}
+}
+
+// TestCollectionCounts: word pairs counted from the collection's own text
+// feed the context model and can decide between candidates.
+func TestCollectionCounts(t *testing.T) {
+	lex := lexicon.New()
+	for _, w := range []string{"harbour", "the", "master", "was", "met", "ferny"} {
+		lex.Add(w, 1000)
+	}
+	lex.Add("ferry", 2000)
+	lex.Add("zzzz", 10_000_000) // the rest of the corpus
+	// x is read for r and for n alike: the channel cannot tell "ferxy" apart.
+	ctx := map[string]int64{"r": 100_000, "n": 100_000}
+	for _, c := range "abcdefghijklmopqstuvwxyz" {
+		ctx[string(c)] = 100_000
+	}
+	m := newModel([]Rule{{From: "r", To: "x", N: 1000}, {From: "n", To: "x", N: 1000}}, ctx, 1_000_000, 200_000, 1)
+	in := "the ferxy master"
+	if out, _ := New(lex, m, Config{}).CorrectText(in); out != "the ferry master" {
+		t.Fatalf("without collection counts: %q, want the more frequent ferry", out)
+	}
+	coll := lexicon.New()
+	CountText(coll, lex, strings.Repeat("the ferny master was met. ", 20))
+	if coll.Bigram("ferny", "master") != 20 || coll.Count("was") != 20 || coll.Bigram("was", "met") != 20 || coll.Bigram("met", "the") != 0 {
+		t.Fatalf("CountText: ferny master %d, was %d, was met %d, met the %d; want 20, 20, 20, 0 (no pair across a full stop)",
+			coll.Bigram("ferny", "master"), coll.Count("was"), coll.Bigram("was", "met"), coll.Bigram("met", "the"))
+	}
+	if out, _ := New(lex, m, Config{Collection: coll}).CorrectText(in); out != "the ferny master" {
+		t.Errorf("with collection counts: %q, want the collection's pair ferny master", out)
+	}
+	// Unknown words are not counted.
+	CountText(coll, lex, "tbe tbe tbe")
+	if coll.Count("tbe") != 0 {
+		t.Error("CountText counted a word the lexicon lacks")
+	}
+}

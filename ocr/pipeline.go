@@ -102,8 +102,8 @@ func clip(b Box, w, h int) Box {
 func ms(d time.Duration) float64 { return float64(d.Microseconds()) / 1000 }
 
 // ProcessFile decodes the page image at path, processes it and fills the
-// record's Source (path as given), SHA256 (of the file's bytes) and the
-// "decode" timing. Errors name the file. The file is only read.
+// record's Source (path as given), SHA256 (of the file's bytes), the
+// decoder's Warnings and the "decode" timing. Errors name the file. The file is only read.
 func ProcessFile(ctx context.Context, eng Engine, path string, o Options) (*Record, *image.Gray, error) {
 	if err := ctx.Err(); err != nil {
 		return nil, nil, err
@@ -127,6 +127,7 @@ func ProcessFile(ctx context.Context, eng Engine, path string, o Options) (*Reco
 	}
 	rec.Source = path
 	rec.SHA256 = sum
+	rec.Warnings = d.Warnings
 	rec.TimingsMS["decode"] = ms(decode)
 	return rec, prepared, nil
 }

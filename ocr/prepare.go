@@ -81,7 +81,9 @@ const (
 
 	// MinSkew is the smallest skew, in degrees, that Auto deskewing
 	// corrects: below it rotation's resampling costs more than it gains
-	// (a 0.05° skew moves the end of a 2,480-pixel line by 2 pixels).
+	// (a 0.05° skew moves the end of a 2,480-pixel line by 2 pixels). On
+	// pages narrower than 1,146 pixels the bar is higher: the skew must
+	// move the far end of a line across the page by at least one pixel.
 	MinSkew = 0.05
 
 	// unevenFraction: Auto binarisation uses Sauvola when the background
@@ -191,8 +193,8 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 		switch {
 		case !ok:
 			step("deskew", false, "no clear skew found")
-		case math.Abs(deg) < MinSkew && o.Deskew == Auto:
-			step("deskew", false, "skew %.2f° below %.2f°", deg, MinSkew)
+		case math.Abs(deg) < minSkew(W) && o.Deskew == Auto:
+			step("deskew", false, "skew %.2f° below %.2f°", deg, minSkew(W))
 		default:
 			g = rotate(g, -deg)
 			rot = newRotation(-deg, W, H)
@@ -377,4 +379,11 @@ func denoisePasses(noise float64) int {
 		return 2
 	}
 	return 1
+}
+
+// minSkew is the smallest skew Auto deskewing corrects on a page w pixels
+// wide: MinSkew, or the angle whose tangent is 1/w (one pixel across the
+// page) if larger.
+func minSkew(w int) float64 {
+	return math.Max(MinSkew, math.Atan(1/float64(max(w, 1)))*180/math.Pi)
 }

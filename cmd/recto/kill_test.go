@@ -68,7 +68,9 @@ func TestKillAndResume(t *testing.T) {
 	base := t.TempDir()
 	env := append(os.Environ(), "RECTO_FAKE_ENGINE=1", "RECTO_FAKE_DELAY_MS=25")
 	run := func(out string) *exec.Cmd {
-		c := exec.Command(bin, "run", coll, "--out", out, "--truth", truth, "--jobs", "2", "--quiet")
+		// No page is corrected (building the corrector takes seconds per
+		// process); the shard tests cover correction.
+		c := exec.Command(bin, "run", coll, "--out", out, "--truth", truth, "--jobs", "2", "--quiet", "--correct", "0.99", "--rescan", "1")
 		c.Env = env
 		return c
 	}
@@ -167,7 +169,7 @@ func TestInterruptExits130(t *testing.T) {
 	coll, _ := testCollection(t, 2, 20, false)
 	out := filepath.Join(t.TempDir(), "out")
 	env := append(os.Environ(), "RECTO_FAKE_ENGINE=1", "RECTO_FAKE_DELAY_MS=30")
-	c := exec.Command(bin, "run", coll, "--out", out, "--jobs", "2", "--quiet")
+	c := exec.Command(bin, "run", coll, "--out", out, "--jobs", "2", "--quiet", "--correct", "0.99", "--rescan", "1")
 	c.Env = env
 	if err := c.Start(); err != nil {
 		t.Fatal(err)
@@ -195,7 +197,7 @@ func TestInterruptExits130(t *testing.T) {
 			t.Errorf("%s recorded as %s (%s): an interrupted page must not be recorded", r.Rel, r.State, r.Error)
 		}
 	}
-	c = exec.Command(bin, "run", coll, "--out", out, "--jobs", "2", "--quiet")
+	c = exec.Command(bin, "run", coll, "--out", out, "--jobs", "2", "--quiet", "--correct", "0.99", "--rescan", "1")
 	c.Env = env
 	if err := c.Run(); err != nil {
 		t.Fatalf("resumed run: %v", err)

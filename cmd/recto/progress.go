@@ -74,14 +74,16 @@ func (p *runProgress) add(failed bool) {
 
 func (p *runProgress) skip() { p.skipped.Add(1) }
 
-// clearLine erases the bar so that a message can be printed; the caller
-// then writes its line and the next tick redraws the bar.
-func (p *runProgress) clearLine() {
+// message prints one line (a failed page) on the progress writer, erasing
+// the bar first on a terminal; the next tick redraws it. Messages are
+// printed under --quiet too: failures are never silent.
+func (p *runProgress) message(line string) {
+	p.mu.Lock()
+	defer p.mu.Unlock()
 	if p.tty && !p.quiet {
-		p.mu.Lock()
 		fmt.Fprint(p.w, "\r\033[K")
-		p.mu.Unlock()
 	}
+	fmt.Fprintln(p.w, line)
 }
 
 // finish stops drawing and prints the last state on its own line.

@@ -409,7 +409,6 @@ func (st *runState) process(ctx context.Context, pages []pageJob, w *ledger.Writ
 	}()
 	var wg sync.WaitGroup
 	errs := make(chan error, jobs)
-	var warnMu sync.Mutex
 	for range jobs {
 		wg.Add(1)
 		go func() {
@@ -432,11 +431,8 @@ func (st *runState) process(ctx context.Context, pages []pageJob, w *ledger.Writ
 				if row == nil { // interrupted mid-page: not recorded
 					continue
 				}
-				if row.State == ledger.StateFailed && !g.Quiet {
-					warnMu.Lock()
-					prog.clearLine()
-					fmt.Fprintf(g.stderr, "recto: %s\n", row.Error)
-					warnMu.Unlock()
+				if row.State == ledger.StateFailed {
+					prog.message("recto: " + row.Error)
 				}
 				w.Put(*row)
 			}

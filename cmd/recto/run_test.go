@@ -256,7 +256,7 @@ func TestRunUsageErrors(t *testing.T) {
 // three shards in separate folders merged with --out.
 func TestShardsMergeEqualsSingleRun(t *testing.T) {
 	t.Setenv("RECTO_FAKE_ENGINE", "1")
-	coll, truth := testCollection(t, 3, 7, true)
+	coll, truth := testCollection(t, 2, 3, true)
 	base := t.TempDir()
 	single := filepath.Join(base, "single")
 	if _, _, err := runRecto(t, "run", coll, "--out", single, "--truth", truth, "--correct", "0.001", "--rescan", "1"); err == nil {

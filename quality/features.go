@@ -70,18 +70,20 @@ type Features struct {
 func PageFeatures(rec *ocr.Record, lex *lexicon.Lexicon) Features {
 	f := Features{FromRecord: true}
 	var lines [][]string
-	if lex == nil {
-		lex = lexicon.Default()
-	}
-	var confSum, charConfSum, charSum, doubt float64
+	var confs [][]float64 // confidence of each token, shaped like lines
+	var confSum, charConfSum, charSum float64
 	var nw, low, under30, under90 int
 	var boxArea float64
 	for i, w := range rec.Words {
 		toks := strings.Fields(w.Text)
 		if i == 0 || w.Line != rec.Words[i-1].Line || w.Block != rec.Words[i-1].Block {
 			lines = append(lines, nil)
+			confs = append(confs, nil)
 		}
 		lines[len(lines)-1] = append(lines[len(lines)-1], toks...)
+		for range toks {
+			confs[len(confs)-1] = append(confs[len(confs)-1], w.Conf)
+		}
 		if len(toks) == 0 {
 			continue
 		}
@@ -90,11 +92,6 @@ func PageFeatures(rec *ocr.Record, lex *lexicon.Lexicon) Features {
 		n := float64(utf8.RuneCountInString(w.Text))
 		charConfSum += n * w.Conf
 		charSum += n
-		for _, t := range toks {
-			if suspect(t, lex) {
-				doubt += float64(utf8.RuneCountInString(t)) * (1 - w.Conf)
-			}
-		}
 		if w.Conf < LowConfidence {
 			low++
 		}
@@ -113,10 +110,7 @@ func PageFeatures(rec *ocr.Record, lex *lexicon.Lexicon) Features {
 		f.ConfUnder90 = float64(under90) / float64(nw)
 		f.CharConf = charConfSum / charSum
 	}
-	textStats(&f, lines, joinHyphens(rec), lex)
-	if f.Chars > 0 {
-		f.SuspectDoubt = doubt / float64(f.Chars)
-	}
+	textStats(&f, lines, confs, joinHyphens(rec), lex)
 	if area := float64(rec.Width) * float64(rec.Height); area > 0 {
 		f.Coverage = min(boxArea/area, 1)
 		if rec.DPI > 0 {
@@ -138,7 +132,7 @@ func TextFeatures(text string, lex *lexicon.Lexicon) Features {
 			lines = append(lines, toks)
 		}
 	}
-	textStats(&f, lines, lexWords(strings.ReplaceAll(text, "-\n", "")), lex)
+	textStats(&f, lines, nil, lexWords(strings.ReplaceAll(text, "-\n", "")), lex)
 	f.Blank = f.Chars == 0
 	return f
 }
@@ -193,14 +187,16 @@ func lexWords(text string) []string {
 	return out
 }
 
-// textStats fills the token, lexicon, garbage, line and character-class
-// fields from the tokens of each line (lines without tokens left out) and
-// the words for lexicon lookup.
-func textStats(f *Features, lines [][]string, words []string, lex *lexicon.Lexicon) {
+// textStats fills the token, lexicon, garbage, suspect, line and
+// character-class fields from the tokens of each line and the words for
+// lexicon lookup; confs, when not nil, holds each token's confidence in the
+// shape of lines (a page record's) and gives SuspectDoubt.
+func textStats(f *Features, lines [][]string, confs [][]float64, words []string, lex *lexicon.Lexicon) {
 	if lex == nil {
 		lex = lexicon.Default()
 	}
 	var suspectChars int
+	var doubt float64
 	var garbage, short, stray, letters, digits, punct, other, upper, edge, nlines int
 	for _, toks := range lines {
 		if len(toks) == 0 {
@@ -214,8 +210,8 @@ func textStats(f *Features, lines [][]string, words []string, lex *lexicon.Lexic
 	if nlines > 0 {
 		f.EdgeJunk = float64(edge) / float64(nlines)
 	}
-	for _, toks := range lines {
-		for _, t := range toks {
+	for li, toks := range lines {
+		for ti, t := range toks {
 			f.Tokens++
 			if IsGarbage(t) {
 				garbage++
@@ -224,7 +220,11 @@ func textStats(f *Features, lines [][]string, words []string, lex *lexicon.Lexic
 				stray++
 			}
 			if suspect(t, lex) {
-				suspectChars += utf8.RuneCountInString(t)
+				n := utf8.RuneCountInString(t)
+				suspectChars += n
+				if confs != nil {
+					doubt += float64(n) * (1 - confs[li][ti])
+				}
 			}
 			n := 0
 			for _, r := range t {
@@ -257,6 +257,7 @@ func textStats(f *Features, lines [][]string, words []string, lex *lexicon.Lexic
 	if f.Chars > 0 {
 		c := float64(f.Chars)
 		f.Suspect = float64(suspectChars) / c
+		f.SuspectDoubt = doubt / c
 		f.Letters, f.Digits, f.Punct, f.Symbols = float64(letters)/c, float64(digits)/c, float64(punct)/c, float64(other)/c
 	}
 	if letters > 0 {
@@ -288,8 +289,20 @@ func suspect(tok string, lex *lexicon.Lexicon) bool {
 	if IsGarbage(tok) || !strings.ContainsFunc(tok, func(r rune) bool { return unicode.IsLetter(r) || unicode.IsDigit(r) }) {
 		return true
 	}
-	for _, w := range lexWords(tok) {
-		if utf8.RuneCountInString(w) >= 2 && !lex.Has(w) && !lex.HasFold(w) {
+	t := strings.TrimFunc(tok, func(r rune) bool { return !unicode.IsLetter(r) && !unicode.IsDigit(r) })
+	for _, r := range t {
+		if !unicode.IsLetter(r) && !unicode.IsMark(r) && r != '\'' && r != '’' && r != '-' {
+			return false // digits or other marks inside: the garbage rules judge it
+		}
+	}
+	for part := range strings.SplitSeq(t, "-") {
+		if utf8.RuneCountInString(part) < 2 {
+			continue
+		}
+		if strings.ContainsRune(part, '’') {
+			part = strings.ReplaceAll(part, "’", "'")
+		}
+		if !lex.Has(part) && !lex.HasFold(part) {
 			return true
 		}
 	}

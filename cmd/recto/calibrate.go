@@ -43,6 +43,11 @@ held-out pages: Spearman rank correlation of predicted against measured CER,
 mean absolute error, precision and recall of 'rescan' at the --rescan
 threshold (declared before fitting), and the share of clean pages (CER < 1%)
 accepted. The report says plainly whether each declared target was met.
+
+The rescan cut is chosen on the fitting pages only: the lowest margin below
+--rescan at which cross-validated estimates (each page estimated by a model
+that did not see it) catch --target-recall + 0.03 of the fitting pages above
+--rescan (never below half of --rescan). The report gives the cut.
 The model written to --out is the one that was judged; use it with
 'recto triage --model MODEL'.` + exitStatusHelp,
 		Args: cobra.NoArgs,

@@ -69,7 +69,15 @@ const (
 	confWeight = 1.0
 	// sureConf is the confidence at or above which a lexicon word is not
 	// questioned at all.
-	sureConf = 0.97
+	sureConf = 0.9
+	// strictConf is the confidence at or above which a lower-case word the
+	// lexicon lacks is changed only into a word reached by undoing learned
+	// confusions, each at least e^strictStepLogP likely: a word read that
+	// clearly is more often a rare word than an OCR error ("ling").
+	strictConf     = 0.85
+	strictStepLogP = -5.0
+	// listedFloor is the least unigram count a listed word gets.
+	listedFloor = 1.0
 	// nameConf is the confidence at or above which a capitalised word the
 	// lexicon lacks is taken for a name and left alone.
 	nameConf = 0.93
@@ -348,12 +356,18 @@ func breaksContext(trail, lead string) bool {
 	return strings.TrimRight(trail, "'’\"”") != "" || strings.TrimLeft(lead, "'‘\"“") != ""
 }
 
-// logUni returns log P(w) with add-one-half smoothing over lexicon and
-// collection counts.
+// count returns the unigram count of w over lexicon and collection, at
+// least listedFloor for a word the lexicon lists.
 func (c *Corrector) count(w string) float64 {
 	n := float64(c.lex.Count(w))
 	if c.coll != nil {
 		n += float64(c.coll.Count(w))
+	}
+	if n < listedFloor && c.lex.Has(w) {
+		// A listed word without a count (a word-list entry never met in
+		// the counted texts) is rare, not impossible: it scores like a
+		// word counted once.
+		n = listedFloor
 	}
 	return n
 }
@@ -366,6 +380,8 @@ func (c *Corrector) bigram(a, b string) float64 {
 	return n
 }
 
+// logUni returns log P(w) with add-one-half smoothing over lexicon and
+// collection counts.
 func (c *Corrector) logUni(w string) float64 {
 	return math.Log((c.count(w) + 0.5) / c.total)
 }
@@ -451,6 +467,7 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 			margin += nameMargin
 		}
 	}
+	strict := !known && !upper && t.conf >= strictConf
 	keep := c.m.logIdentity(q) + c.logContext(prev, q, next)
 	if !known {
 		keep -= oovPenalty
@@ -511,6 +528,8 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 				consider(x.word)
 			}
 		}
+	case strict:
+		scoreAll(c.expansions(s, q, false, keep+margin, strictStepLogP))
 	case s.obs.n() >= longWord:
 		// The search finds every word within two edits, single learned
 		// confusions included; undoing confusions only adds words further
@@ -521,13 +540,13 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		}
 		scoreAll(s.cands)
 		if bestScore-keep <= margin {
-			scoreAll(c.expansions(s, q, false, keep+margin))
+			scoreAll(c.expansions(s, q, false, keep+margin, minExpandLogP))
 		}
 	default:
 		// Short tokens are searched within one edit only: undo learned
 		// confusions first ("rnan" → "man"), and search when that gave no
 		// clear winner.
-		scoreAll(c.expansions(s, q, false, keep+margin))
+		scoreAll(c.expansions(s, q, false, keep+margin, minExpandLogP))
 		if bestScore-keep <= margin+clearWin {
 			s.cands = s.cands[:0]
 			for _, id := range c.search(s, q) {
@@ -587,7 +606,7 @@ func (c *Corrector) search(s *scratch, q string) []uint32 {
 // learned confusions (To→From) whose probabilities together exceed floor,
 // sorted. For a known q only single confusions are tried. Variants are
 // built in scratch buffers and looked up without allocating.
-func (c *Corrector) expansions(s *scratch, q string, known bool, floor float64) []string {
+func (c *Corrector) expansions(s *scratch, q string, known bool, floor, minStep float64) []string {
 	floor = max(floor, minExpand2LogP)
 	if s.seenH == nil {
 		s.seenH = make(map[uint64]struct{})
@@ -607,7 +626,7 @@ func (c *Corrector) expansions(s *scratch, q string, known bool, floor float64) 
 				continue // inside a multi-byte rune
 			}
 			for _, x := range c.m.expFirst[w[k]] {
-				if acc+x.logp <= floor || x.logp < minExpandLogP {
+				if acc+x.logp <= floor || x.logp < minStep {
 					break // sorted, most likely first
 				}
 				if !hasPrefix(w[k:], x.to) {
@@ -666,7 +685,7 @@ func (c *Corrector) realWordNeighbours(s *scratch, q string) []neighbour {
 		return v.([]neighbour)
 	}
 	var ns []neighbour
-	for _, w := range c.expansions(s, q, true, minExpandLogP) {
+	for _, w := range c.expansions(s, q, true, minExpandLogP, minExpandLogP) {
 		ns = append(ns, neighbour{w, s.logp[w]})
 	}
 	if c.cached.Add(1) <= maxCached {

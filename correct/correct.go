@@ -75,7 +75,7 @@ const (
 	// confusions, each at least e^strictStepLogP likely: a word read that
 	// clearly is more often a rare word than an OCR error ("ling").
 	strictConf     = 0.85
-	strictStepLogP = -5.0
+	strictStepLogP = -7.0
 	// listedFloor is the least unigram count a listed word gets.
 	listedFloor = 1.0
 	// nameConf is the confidence at or above which a capitalised word the

@@ -149,7 +149,7 @@ type scratch struct {
 	hs    []uint64
 	ids   []uint32
 	seen  map[uint32]struct{}
-	seenH map[uint64]struct{}
+	seenV variantSet
 	lm    []neighbour // candidates with their context scores
 	cands []string
 	logp  map[string]float64 // expansions of a known word: the confusion's log probability
@@ -608,10 +608,7 @@ func (c *Corrector) search(s *scratch, q string) []uint32 {
 // built in scratch buffers and looked up without allocating.
 func (c *Corrector) expansions(s *scratch, q string, known bool, floor, minStep float64) []string {
 	floor = max(floor, minExpand2LogP)
-	if s.seenH == nil {
-		s.seenH = make(map[uint64]struct{})
-	}
-	clear(s.seenH)
+	s.seenV.reset()
 	if known {
 		if s.logp == nil {
 			s.logp = make(map[string]float64)
@@ -635,10 +632,16 @@ func (c *Corrector) expansions(s *scratch, q string, known bool, floor, minStep 
 				v := append(append(append(s.vbuf[:0], w[:k]...), x.from...), w[k+len(x.to):]...)
 				s.vbuf = v
 				h := hashBytes(v)
-				if _, ok := s.seenH[h]; ok || len(s.seenH) >= 2*maxExpansions {
+				if !s.seenV.add(h) {
 					continue
 				}
-				s.seenH[h] = struct{}{}
+				if !c.ix.mayHave(h) {
+					if first {
+						s.front = append(s.front, frontier{off: len(s.arena), n: len(v), logp: acc + x.logp})
+						s.arena = append(s.arena, v...)
+					}
+					continue
+				}
 				if id, ok := c.ix.id[string(v)]; ok {
 					found = append(found, c.ix.words[id])
 					if known {
@@ -710,6 +713,53 @@ func hasPrefix(b []byte, p string) bool {
 		}
 	}
 	return true
+}
+
+// variantSet remembers the hashes of the variants made for one token, at
+// most 2*maxExpansions, in a small open-addressing table cleared by
+// generation rather than by zeroing.
+type variantSet struct {
+	slot [4 * maxExpansions]uint64 // hash|1, or 0 for empty
+	gen  [4 * maxExpansions]uint32
+	cur  uint32
+	n    int
+}
+
+func (v *variantSet) reset() {
+	v.cur++
+	v.n = 0
+	if v.cur == 0 { // wrapped: old generations would look current
+		v.gen = [4 * maxExpansions]uint32{}
+		v.cur = 1
+	}
+}
+
+// add records h and reports whether it was new and there was room.
+func (v *variantSet) add(h uint64) bool {
+	h |= 1
+	const mask = 4*maxExpansions - 1
+	for i := uint32(h) & mask; ; i = (i + 1) & mask {
+		if v.gen[i] != v.cur {
+			if v.n >= 2*maxExpansions {
+				return false
+			}
+			v.gen[i], v.slot[i] = v.cur, h
+			v.n++
+			return true
+		}
+		if v.slot[i] == h {
+			return false
+		}
+	}
+}
+
+func hashString(s string) uint64 {
+	h := uint64(fnvOffset)
+	for i := 0; i < len(s); i++ {
+		h ^= uint64(s[i])
+		h *= fnvPrime
+	}
+	return h
 }
 
 func hashBytes(b []byte) uint64 {

@@ -69,7 +69,15 @@ const (
 	confWeight = 1.0
 	// sureConf is the confidence at or above which a lexicon word is not
 	// questioned at all.
-	sureConf = 0.97
+	sureConf = 0.9
+	// strictConf is the confidence at or above which a lower-case word the
+	// lexicon lacks is changed only into a word reached by undoing learned
+	// confusions, each at least e^strictStepLogP likely: a word read that
+	// clearly is more often a rare word than an OCR error ("ling").
+	strictConf     = 0.85
+	strictStepLogP = -7.0
+	// listedFloor is the least unigram count a listed word gets.
+	listedFloor = 1.0
 	// nameConf is the confidence at or above which a capitalised word the
 	// lexicon lacks is taken for a name and left alone.
 	nameConf = 0.93
@@ -141,7 +149,7 @@ type scratch struct {
 	hs    []uint64
 	ids   []uint32
 	seen  map[uint32]struct{}
-	seenH map[uint64]struct{}
+	seenV variantSet
 	lm    []neighbour // candidates with their context scores
 	cands []string
 	logp  map[string]float64 // expansions of a known word: the confusion's log probability
@@ -348,12 +356,18 @@ func breaksContext(trail, lead string) bool {
 	return strings.TrimRight(trail, "'’\"”") != "" || strings.TrimLeft(lead, "'‘\"“") != ""
 }
 
-// logUni returns log P(w) with add-one-half smoothing over lexicon and
-// collection counts.
+// count returns the unigram count of w over lexicon and collection, at
+// least listedFloor for a word the lexicon lists.
 func (c *Corrector) count(w string) float64 {
 	n := float64(c.lex.Count(w))
 	if c.coll != nil {
 		n += float64(c.coll.Count(w))
+	}
+	if n < listedFloor && c.lex.Has(w) {
+		// A listed word without a count (a word-list entry never met in
+		// the counted texts) is rare, not impossible: it scores like a
+		// word counted once.
+		n = listedFloor
 	}
 	return n
 }
@@ -366,6 +380,8 @@ func (c *Corrector) bigram(a, b string) float64 {
 	return n
 }
 
+// logUni returns log P(w) with add-one-half smoothing over lexicon and
+// collection counts.
 func (c *Corrector) logUni(w string) float64 {
 	return math.Log((c.count(w) + 0.5) / c.total)
 }
@@ -451,6 +467,7 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 			margin += nameMargin
 		}
 	}
+	strict := !known && !upper && t.conf >= strictConf
 	keep := c.m.logIdentity(q) + c.logContext(prev, q, next)
 	if !known {
 		keep -= oovPenalty
@@ -511,6 +528,8 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 				consider(x.word)
 			}
 		}
+	case strict:
+		scoreAll(c.expansions(s, q, false, keep+margin, strictStepLogP))
 	case s.obs.n() >= longWord:
 		// The search finds every word within two edits, single learned
 		// confusions included; undoing confusions only adds words further
@@ -521,13 +540,13 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		}
 		scoreAll(s.cands)
 		if bestScore-keep <= margin {
-			scoreAll(c.expansions(s, q, false, keep+margin))
+			scoreAll(c.expansions(s, q, false, keep+margin, minExpandLogP))
 		}
 	default:
 		// Short tokens are searched within one edit only: undo learned
 		// confusions first ("rnan" → "man"), and search when that gave no
 		// clear winner.
-		scoreAll(c.expansions(s, q, false, keep+margin))
+		scoreAll(c.expansions(s, q, false, keep+margin, minExpandLogP))
 		if bestScore-keep <= margin+clearWin {
 			s.cands = s.cands[:0]
 			for _, id := range c.search(s, q) {
@@ -587,12 +606,9 @@ func (c *Corrector) search(s *scratch, q string) []uint32 {
 // learned confusions (To→From) whose probabilities together exceed floor,
 // sorted. For a known q only single confusions are tried. Variants are
 // built in scratch buffers and looked up without allocating.
-func (c *Corrector) expansions(s *scratch, q string, known bool, floor float64) []string {
+func (c *Corrector) expansions(s *scratch, q string, known bool, floor, minStep float64) []string {
 	floor = max(floor, minExpand2LogP)
-	if s.seenH == nil {
-		s.seenH = make(map[uint64]struct{})
-	}
-	clear(s.seenH)
+	s.seenV.reset()
 	if known {
 		if s.logp == nil {
 			s.logp = make(map[string]float64)
@@ -607,7 +623,7 @@ func (c *Corrector) expansions(s *scratch, q string, known bool, floor float64) 
 				continue // inside a multi-byte rune
 			}
 			for _, x := range c.m.expFirst[w[k]] {
-				if acc+x.logp <= floor || x.logp < minExpandLogP {
+				if acc+x.logp <= floor || x.logp < minStep {
 					break // sorted, most likely first
 				}
 				if !hasPrefix(w[k:], x.to) {
@@ -616,10 +632,16 @@ func (c *Corrector) expansions(s *scratch, q string, known bool, floor float64) 
 				v := append(append(append(s.vbuf[:0], w[:k]...), x.from...), w[k+len(x.to):]...)
 				s.vbuf = v
 				h := hashBytes(v)
-				if _, ok := s.seenH[h]; ok || len(s.seenH) >= 2*maxExpansions {
+				if !s.seenV.add(h) {
 					continue
 				}
-				s.seenH[h] = struct{}{}
+				if !c.ix.mayHave(h) {
+					if first {
+						s.front = append(s.front, frontier{off: len(s.arena), n: len(v), logp: acc + x.logp})
+						s.arena = append(s.arena, v...)
+					}
+					continue
+				}
 				if id, ok := c.ix.id[string(v)]; ok {
 					found = append(found, c.ix.words[id])
 					if known {
@@ -666,7 +688,7 @@ func (c *Corrector) realWordNeighbours(s *scratch, q string) []neighbour {
 		return v.([]neighbour)
 	}
 	var ns []neighbour
-	for _, w := range c.expansions(s, q, true, minExpandLogP) {
+	for _, w := range c.expansions(s, q, true, minExpandLogP, minExpandLogP) {
 		ns = append(ns, neighbour{w, s.logp[w]})
 	}
 	if c.cached.Add(1) <= maxCached {
@@ -691,6 +713,53 @@ func hasPrefix(b []byte, p string) bool {
 		}
 	}
 	return true
+}
+
+// variantSet remembers the hashes of the variants made for one token, at
+// most 2*maxExpansions, in a small open-addressing table cleared by
+// generation rather than by zeroing.
+type variantSet struct {
+	slot [4 * maxExpansions]uint64 // hash|1, or 0 for empty
+	gen  [4 * maxExpansions]uint32
+	cur  uint32
+	n    int
+}
+
+func (v *variantSet) reset() {
+	v.cur++
+	v.n = 0
+	if v.cur == 0 { // wrapped: old generations would look current
+		v.gen = [4 * maxExpansions]uint32{}
+		v.cur = 1
+	}
+}
+
+// add records h and reports whether it was new and there was room.
+func (v *variantSet) add(h uint64) bool {
+	h |= 1
+	const mask = 4*maxExpansions - 1
+	for i := uint32(h) & mask; ; i = (i + 1) & mask {
+		if v.gen[i] != v.cur {
+			if v.n >= 2*maxExpansions {
+				return false
+			}
+			v.gen[i], v.slot[i] = v.cur, h
+			v.n++
+			return true
+		}
+		if v.slot[i] == h {
+			return false
+		}
+	}
+}
+
+func hashString(s string) uint64 {
+	h := uint64(fnvOffset)
+	for i := 0; i < len(s); i++ {
+		h ^= uint64(s[i])
+		h *= fnvPrime
+	}
+	return h
 }
 
 func hashBytes(b []byte) uint64 {

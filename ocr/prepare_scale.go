@@ -7,13 +7,16 @@ import (
 
 // Low-resolution pages.
 const (
-	// LowDPI is the resolution below which automatic preparation first
-	// enlarges the page to TargetDPI. On synthetic pages at 100 and 120
-	// dpi, thresholding at the page's own resolution cost characters the
-	// plain engine read correctly ("warden." read as "warden,"), while the
-	// enlarged page read without error; at 150 and 200 dpi no treatment
-	// lost a character (docs/dev-prep.md, TestLowResolutionTreatments).
-	// The limit is set at 200 to keep a margin over the failures seen.
+	// LowDPI is the resolution below which automatic preparation treats a
+	// page as low-resolution: an evenly lit page is deskewed and denoised
+	// but not binarised (the engine thresholds it itself), an unevenly lit
+	// one is enlarged to TargetDPI before Sauvola's method. On synthetic
+	// pages at 100-150 dpi, Otsu's threshold at the page's own resolution
+	// cost characters the plain engine read ("warden." read as "warden,";
+	// worn type), and Sauvola's method at the page's own resolution did
+	// too, on an A4 page; the treatment above was never worse than the
+	// plain engine (docs/dev-prep.md, TestLowResolutionTreatments). At 200
+	// dpi no treatment lost a character on clean type.
 	LowDPI = 200.0
 
 	// TargetDPI is the resolution low-resolution pages are enlarged to:

@@ -74,6 +74,10 @@ func TestLowResolutionTreatments(t *testing.T) {
 		}
 		pages = append(pages, page{"small 150 dpi " + k + " s7", small, lowresPara, 150, 7, 0, k})
 	}
+	// For comparison: worn type at full resolution.
+	for _, seed := range []uint64{3, 7, 11} {
+		pages = append(pages, page{fmt.Sprintf("small 300 dpi worn s%d", seed), small, lowresPara, 300, seed, 0, "worn"})
+	}
 	if f := os.Getenv("RECTO_LOWRES_ONLY"); f != "" {
 		var keep []page
 		for _, p := range pages {

@@ -1,6 +1,7 @@
 package ocr
 
 import (
+	"context"
 	"fmt"
 	"image"
 	"math"
@@ -144,4 +145,73 @@ func darkNear(g *image.Gray, b Box, d int, level uint8) bool {
 		}
 	}
 	return false
+}
+
+// dpiEngine records the resolution and size of the page it is given and
+// returns one word covering a fixed box of it.
+type dpiEngine struct {
+	dpi  int
+	size image.Rectangle
+	box  Box
+}
+
+func (e *dpiEngine) Recognize(_ context.Context, img *image.Gray, dpi int) ([]Word, error) {
+	e.dpi, e.size = dpi, img.Rect
+	return []Word{{Text: "x", Conf: 1, Box: e.box}}, nil
+}
+
+func (e *dpiEngine) Close() error { return nil }
+
+// TestProcessLowResolution checks the contract between Process and
+// Prepare: the page's resolution reaches preparation, the engine is told
+// the prepared page's resolution, and word boxes come back in the
+// original's pixels.
+func TestProcessLowResolution(t *testing.T) {
+	page := drawPage(t, 700, 420, 120, pageText, 235, 30)
+	uneven := toGray(page)
+	unevenLight(uneven, 0.3)
+	for _, c := range []struct {
+		name    string
+		img     *image.Gray
+		dpi     float64
+		opts    Options
+		wantDPI int
+		scale   int // the prepared page's size over the original's, ×2 (whole numbers only)
+	}{
+		{"120 dpi, even", page, 120, Options{}, 120, 2},
+		{"120 dpi, uneven", uneven, 120, Options{}, 300, 5},
+		{"untagged, uneven", uneven, 0, Options{}, 300, 2}, // DefaultDPI: not enlarged
+		{"untagged, uneven, -dpi 120", uneven, 0, Options{DPI: 120}, 300, 5},
+		{"120 dpi, uneven, binarisation otsu", uneven, 120, Options{Prep: PrepOptions{Binarize: "otsu"}}, 120, 2},
+	} {
+		e := &dpiEngine{box: Box{X: 250, Y: 100, W: 50, H: 25}}
+		rec, _, err := Process(context.Background(), e, c.img, c.dpi, c.opts)
+		if err != nil {
+			t.Fatalf("%s: %v", c.name, err)
+		}
+		// A slight skew found on the page grows the canvas by a few pixels.
+		if e.dpi != c.wantDPI || !near(e.size.Dx()*2, c.img.Rect.Dx()*c.scale, 8) || !near(e.size.Dy()*2, c.img.Rect.Dy()*c.scale, 8) {
+			t.Errorf("%s: engine got %d dpi, %v; want %d dpi, size ×%g", c.name, e.dpi, e.size, c.wantDPI, float64(c.scale)/2)
+		}
+		want := e.box
+		if c.scale == 5 {
+			want = Box{X: 100, Y: 40, W: 20, H: 10}
+		}
+		if len(rec.Words) != 1 || !nearBox(rec.Words[0].Box, want, 2) {
+			t.Errorf("%s: words %+v, want one at %+v", c.name, rec.Words, want)
+		}
+		wantRec := c.dpi
+		if wantRec <= 0 {
+			wantRec = c.opts.dpi()
+		}
+		if rec.DPI != wantRec {
+			t.Errorf("%s: record dpi %g, want the page's %g", c.name, rec.DPI, wantRec)
+		}
+	}
+}
+
+func near(a, b, d int) bool { return a-b <= d && b-a <= d }
+
+func nearBox(a, b Box, d int) bool {
+	return near(a.X, b.X, d) && near(a.Y, b.Y, d) && near(a.X+a.W, b.X+b.W, d) && near(a.Y+a.H, b.Y+b.H, d)
 }

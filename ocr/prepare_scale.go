@@ -26,12 +26,14 @@ const (
 	// maxUpscaledPixels bounds the enlarged page (a little over A3 at
 	// 300 dpi). A page that would grow beyond it is larger in pixels than
 	// any real page at low resolution, so its resolution tag is more likely
-	// wrong (72 dpi written by a camera or an editor); it is left as it is.
+	// wrong (72 dpi written by a camera or an editor); it is prepared as a
+	// page at 300 dpi would be.
 	maxUpscaledPixels = 20_000_000
 )
 
-// upscaleFactor returns the factor a page of w×h pixels at dpi is enlarged
-// by, or 1 when it is left as it is.
+// upscaleFactor returns the factor that brings a page of w×h pixels at dpi
+// to TargetDPI, or 1 when the page is not a low-resolution page: unknown
+// resolution, at least LowDPI, or a doubtful tag.
 func upscaleFactor(w, h int, dpi float64) float64 {
 	if dpi <= 0 || dpi >= LowDPI {
 		return 1

@@ -45,9 +45,10 @@ type PrepOptions struct {
 	MaxSkew float64 // largest skew searched either way, degrees; 0 means 15
 
 	// DPI is the page's resolution, dots per inch; 0 means unknown. With
-	// automatic binarisation a page below LowDPI is first enlarged to
-	// TargetDPI (Catmull-Rom cubic), unless it would exceed 20 million
-	// pixels.
+	// automatic binarisation a page below LowDPI is not binarised when
+	// evenly lit, and is enlarged to TargetDPI (Catmull-Rom cubic) before
+	// Sauvola's method when unevenly lit; a page whose enlargement would
+	// exceed 20 million pixels is treated as if at 300 dpi.
 	DPI float64
 }
 
@@ -68,7 +69,7 @@ type Prepared struct {
 	Noise        float64     // estimated noise before denoising, standard deviation in grey levels
 	Background   float64     // background variation: spread of the local paper level across the page, grey levels (0-255)
 	Blank        bool        // no ink worth recognising was found; Image is then all white
-	Scale        float64     // factor Image was enlarged by before deskewing; 1 when it was not
+	Scale        float64     // factor Image was enlarged by before deskewing (low-resolution, unevenly lit pages); 1 when it was not
 	DPI          float64     // resolution of Image, dots per inch: PrepOptions.DPI × Scale; 0 when unknown
 	Steps        []Step      // what ran, in order
 
@@ -107,7 +108,7 @@ var ErrNoPixels = errors.New("ocr: image has no pixels")
 
 // Prepare turns a decoded page into the image the engine reads:
 // greyscale; noise estimate, and a blur when the noise is high;
-// enlargement of low-resolution pages (automatic binarisation only); skew
+// the treatment of low-resolution pages (automatic binarisation only); skew
 // estimate and rotation with white corners; binarisation by Otsu's method or
 // Sauvola's local method; removal of speckle and border ink; and blank-page
 // detection. src is not modified. Every step is timed and recorded in
@@ -160,15 +161,6 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 		step("denoise", false, "noise %.1f below %.0f", p.Noise, DenoiseThreshold)
 	}
 
-	if s := upscaleFactor(W, H, o.DPI); s > 1 && (method == "" || method == "auto") {
-		g = upscale(g, s)
-		W, H = g.Rect.Dx(), g.Rect.Dy()
-		p.Scale, p.DPI = s, TargetDPI
-		step("scale", true, "%.0f dpi below %.0f: enlarged ×%.2f to %d×%d", o.DPI, LowDPI, s, W, H)
-	} else {
-		step("scale", false, "%s", scaleDetail(o.DPI, method))
-	}
-
 	// Analysis at reduced resolution: half size for skew and ink, and the
 	// local paper level on tiles of a quarter-size page.
 	g2 := half(g)
@@ -183,13 +175,32 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 	}
 	step("measure", true, "paper level %d, background variation %.0f, %d ink pixels at half size", bg.paper, bg.variation, bg.ink)
 
-	switch method {
-	case "", "auto":
+	auto := method == "" || method == "auto"
+	if auto {
 		if bg.variation > unevenFraction*float64(bg.paper-bg.otsu) {
 			method = "sauvola"
 		} else {
 			method = "otsu"
 		}
+	}
+
+	// Low-resolution pages (see LowDPI): an evenly lit page is handed
+	// over in grey, an unevenly lit one is enlarged before Sauvola's
+	// method; both measured never worse than the plain engine, where
+	// thresholding at the page's own resolution was.
+	sc := upscaleFactor(W, H, o.DPI)
+	switch {
+	case !auto || sc == 1 || blank:
+		step("scale", false, "%s", scaleDetail(o.DPI, auto, blank))
+	case method == "otsu":
+		method = "none"
+		step("scale", false, "%.0f dpi below %.0f, evenly lit: not enlarged, not binarised", o.DPI, LowDPI)
+	default:
+		g = upscale(g, sc)
+		W, H = g.Rect.Dx(), g.Rect.Dy()
+		p.Scale, p.DPI = sc, TargetDPI
+		g2 = half(g)
+		step("scale", true, "%.0f dpi below %.0f, unevenly lit: enlarged ×%.2f to %d×%d", o.DPI, LowDPI, sc, W, H)
 	}
 
 	rot := rotation{}
@@ -275,17 +286,19 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 	return p, nil
 }
 
-// scaleDetail says why a page was not enlarged.
-func scaleDetail(dpi float64, method string) string {
+// scaleDetail says why a page was not treated as a low-resolution page.
+func scaleDetail(dpi float64, auto, blank bool) string {
 	switch {
 	case dpi <= 0:
 		return "resolution unknown"
 	case dpi >= LowDPI:
-		return "resolution high enough"
-	case method != "" && method != "auto":
-		return "binarisation " + method + " requested: not enlarged"
+		return fmt.Sprintf("%.0f dpi: resolution high enough", dpi)
+	case !auto:
+		return fmt.Sprintf("%.0f dpi, binarisation requested: left as it is", dpi)
+	case blank:
+		return fmt.Sprintf("%.0f dpi, blank page", dpi)
 	}
-	return "enlarged page would be too large: resolution tag doubtful"
+	return fmt.Sprintf("%.0f dpi, but the enlarged page would exceed %d pixels: resolution tag doubtful, left as it is", dpi, maxUpscaledPixels)
 }
 
 // boxToSrc maps a box of the rotated image to the smallest upright box of

@@ -48,27 +48,44 @@ func TestLowResolutionTreatments(t *testing.T) {
 		dpi    float64
 		seed   uint64
 		light  float64
+		kind   string // another synth preset combined with the low resolution
 	}
 	a4 := synth.Layout{}
 	small := synth.Layout{WidthMM: 150, HeightMM: 62, MarginMM: 8}
 	a4text := strings.Repeat(lowresPara+"\n\n", 3)
 	var pages []page
 	for _, dpi := range []float64{100, 120, 150, 200} {
-		pages = append(pages, page{fmt.Sprintf("A4 %g dpi s7", dpi), a4, a4text, dpi, 7, 0})
+		pages = append(pages, page{fmt.Sprintf("A4 %g dpi s7", dpi), a4, a4text, dpi, 7, 0, ""})
 	}
-	pages = append(pages, page{"A4 120 dpi s3", a4, a4text, 120, 3, 0})
+	pages = append(pages, page{"A4 120 dpi s3", a4, a4text, 120, 3, 0, ""})
 	for _, dpi := range []float64{100, 120, 150} {
 		for _, seed := range []uint64{3, 7, 11} {
-			pages = append(pages, page{fmt.Sprintf("small %g dpi s%d", dpi, seed), small, lowresPara, dpi, seed, 0})
+			pages = append(pages, page{fmt.Sprintf("small %g dpi s%d", dpi, seed), small, lowresPara, dpi, seed, 0, ""})
 		}
 	}
-	pages = append(pages, page{"small 120 dpi uneven s7", small, lowresPara, 120, 7, 0.8})
-	pages = append(pages, page{"A4 120 dpi uneven s7", a4, a4text, 120, 7, 0.8})
+	pages = append(pages, page{"small 120 dpi uneven s7", small, lowresPara, 120, 7, 0.8, ""})
+	pages = append(pages, page{"A4 120 dpi uneven s7", a4, a4text, 120, 7, 0.8, ""})
+	for _, k := range []string{"skewed", "noisy", "faded", "worn", "bleeding", "blank"} {
+		pages = append(pages, page{"small 120 dpi " + k + " s7", small, lowresPara, 120, 7, 0, k})
+	}
+	for _, k := range []string{"noisy", "worn"} {
+		for _, seed := range []uint64{3, 11} {
+			pages = append(pages, page{fmt.Sprintf("small 120 dpi %s s%d", k, seed), small, lowresPara, 120, seed, 0, k})
+		}
+		pages = append(pages, page{"small 150 dpi " + k + " s7", small, lowresPara, 150, 7, 0, k})
+	}
+	// For comparison: worn type at full resolution.
+	for _, seed := range []uint64{3, 7, 11} {
+		pages = append(pages, page{fmt.Sprintf("small 300 dpi worn s%d", seed), small, lowresPara, 300, seed, 0, "worn"})
+	}
 	if f := os.Getenv("RECTO_LOWRES_ONLY"); f != "" {
 		var keep []page
 		for _, p := range pages {
-			if strings.Contains(p.name, f) {
-				keep = append(keep, p)
+			for _, part := range strings.Split(f, ",") {
+				if strings.Contains(p.name, part) {
+					keep = append(keep, p)
+					break
+				}
 			}
 		}
 		pages = keep
@@ -96,6 +113,10 @@ func TestLowResolutionTreatments(t *testing.T) {
 	treatments := []treatment{
 		{"plain", func(p *synth.Page) (string, error) { return process(p.Image, p.DPI, ocr.Options{NoPrepare: true}) }},
 		{"auto", func(p *synth.Page) (string, error) { return process(p.Image, p.DPI, ocr.Options{}) }},
+		{"auto-300", func(p *synth.Page) (string, error) {
+			// automatic preparation as if the page were at 300 dpi: not enlarged
+			return process(p.Image, p.DPI, ocr.Options{Prep: ocr.PrepOptions{DPI: 300}})
+		}},
 		{"otsu", func(p *synth.Page) (string, error) {
 			return process(p.Image, p.DPI, ocr.Options{Prep: ocr.PrepOptions{Binarize: "otsu"}})
 		}},
@@ -108,6 +129,7 @@ func TestLowResolutionTreatments(t *testing.T) {
 		{"up-lin+otsu", upscale(imaging.Linear, ocr.Options{Prep: ocr.PrepOptions{Binarize: "otsu"}})},
 		{"up-cub+otsu", upscale(imaging.CatmullRom, ocr.Options{Prep: ocr.PrepOptions{Binarize: "otsu"}})},
 		{"up-cub+auto", upscale(imaging.CatmullRom, ocr.Options{})},
+		{"up-cub+grey", upscale(imaging.CatmullRom, ocr.Options{Prep: ocr.PrepOptions{Binarize: "none"}})},
 	}
 	if f := os.Getenv("RECTO_LOWRES_TREAT"); f != "" {
 		var keep []treatment
@@ -126,16 +148,31 @@ func TestLowResolutionTreatments(t *testing.T) {
 	}
 	b.WriteString("\n")
 	for _, pg := range pages {
-		clean, rest, err := synth.Render(pg.text, pg.layout)
+		d := synth.Degradation{Scale: pg.dpi / 300, Blur: 0.8, Light: pg.light, Seed: pg.seed}
+		text := pg.text
+		if pg.kind != "" {
+			k, _ := synth.KindByName(pg.kind)
+			if k.Blank {
+				text = ""
+			}
+			blur := d.Blur
+			d = k.D
+			d.Scale, d.Blur, d.Seed = pg.dpi/300, max(blur, k.D.Blur), pg.seed
+		}
+		clean, rest, err := synth.Render(text, pg.layout)
 		if err != nil || rest != "" {
 			t.Fatalf("%s: render: %v, left over %q", pg.name, err, rest)
 		}
-		p := synth.Degrade(clean, synth.Degradation{Scale: pg.dpi / 300, Blur: 0.8, Light: pg.light, Seed: pg.seed})
+		p := synth.Degrade(clean, d)
 		fmt.Fprintf(&b, "| %s (%d×%d) |", pg.name, p.Image.Rect.Dx(), p.Image.Rect.Dy())
 		for _, tr := range treatments {
 			text, err := tr.run(p)
 			if err != nil {
 				t.Fatalf("%s, %s: %v", pg.name, tr.name, err)
+			}
+			if p.Truth == "" {
+				fmt.Fprintf(&b, " %d chars |", len([]rune(strings.TrimSpace(text))))
+				continue
 			}
 			cer, _ := quality.Compare(p.Truth, text, quality.NormOptions{}).CER()
 			fmt.Fprintf(&b, " %.4f |", cer)

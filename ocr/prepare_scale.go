@@ -7,13 +7,16 @@ import (
 
 // Low-resolution pages.
 const (
-	// LowDPI is the resolution below which automatic preparation first
-	// enlarges the page to TargetDPI. On synthetic pages at 100 and 120
-	// dpi, thresholding at the page's own resolution cost characters the
-	// plain engine read correctly ("warden." read as "warden,"), while the
-	// enlarged page read without error; at 150 and 200 dpi no treatment
-	// lost a character (docs/dev-prep.md, TestLowResolutionTreatments).
-	// The limit is set at 200 to keep a margin over the failures seen.
+	// LowDPI is the resolution below which automatic preparation treats a
+	// page as low-resolution: an evenly lit page is deskewed and denoised
+	// but not binarised (the engine thresholds it itself), an unevenly lit
+	// one is enlarged to TargetDPI before Sauvola's method. On synthetic
+	// pages at 100-150 dpi, Otsu's threshold at the page's own resolution
+	// cost characters the plain engine read ("warden." read as "warden,";
+	// worn type), and Sauvola's method at the page's own resolution did
+	// too, on an A4 page; the treatment above was never worse than the
+	// plain engine (docs/dev-prep.md, TestLowResolutionTreatments). At 200
+	// dpi no treatment lost a character on clean type.
 	LowDPI = 200.0
 
 	// TargetDPI is the resolution low-resolution pages are enlarged to:
@@ -23,12 +26,14 @@ const (
 	// maxUpscaledPixels bounds the enlarged page (a little over A3 at
 	// 300 dpi). A page that would grow beyond it is larger in pixels than
 	// any real page at low resolution, so its resolution tag is more likely
-	// wrong (72 dpi written by a camera or an editor); it is left as it is.
+	// wrong (72 dpi written by a camera or an editor); it is prepared as a
+	// page at 300 dpi would be.
 	maxUpscaledPixels = 20_000_000
 )
 
-// upscaleFactor returns the factor a page of w×h pixels at dpi is enlarged
-// by, or 1 when it is left as it is.
+// upscaleFactor returns the factor that brings a page of w×h pixels at dpi
+// to TargetDPI, or 1 when the page is not a low-resolution page: unknown
+// resolution, at least LowDPI, or a doubtful tag.
 func upscaleFactor(w, h int, dpi float64) float64 {
 	if dpi <= 0 || dpi >= LowDPI {
 		return 1

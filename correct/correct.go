@@ -1,8 +1,9 @@
 package correct
 
 import (
+	"cmp"
 	"math"
-	"sort"
+	"slices"
 	"strings"
 	"sync"
 	"sync/atomic"
@@ -490,11 +491,11 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 				s.lm = append(s.lm, neighbour{word: w, logp: c.logContext(prev, w, next)})
 			}
 		}
-		sort.Slice(s.lm, func(i, j int) bool {
-			if s.lm[i].logp != s.lm[j].logp {
-				return s.lm[i].logp > s.lm[j].logp
+		slices.SortFunc(s.lm, func(a, b neighbour) int {
+			if a.logp != b.logp {
+				return cmp.Compare(b.logp, a.logp)
 			}
-			return s.lm[i].word < s.lm[j].word
+			return strings.Compare(a.word, b.word)
 		})
 		for _, x := range s.lm {
 			if x.logp+s.obs.bound <= max(bestScore, keep+margin) {
@@ -649,7 +650,7 @@ func (c *Corrector) expansions(s *scratch, q string, known bool, floor, minStep 
 	level(s.qbuf, 0, true)
 	if !known {
 		// Second confusions only from the likeliest first ones.
-		sort.SliceStable(s.front, func(i, j int) bool { return s.front[i].logp > s.front[j].logp })
+		slices.SortStableFunc(s.front, func(a, b frontier) int { return cmp.Compare(b.logp, a.logp) })
 		for i, f := range s.front {
 			if len(found) >= maxExpansions || i == maxFrontier {
 				break
@@ -657,7 +658,7 @@ func (c *Corrector) expansions(s *scratch, q string, known bool, floor, minStep 
 			level(s.arena[f.off:f.off+f.n], f.logp, false)
 		}
 	}
-	sort.Strings(found)
+	slices.Sort(found)
 	s.found = found
 	return found
 }

@@ -1,8 +1,9 @@
 package correct
 
 import (
+	"cmp"
 	"math"
-	"sort"
+	"slices"
 	"strings"
 	"sync"
 	"sync/atomic"
@@ -480,20 +481,6 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		return edit{}, false
 	}
 	best, bestScore := "", math.Inf(-1)
-	consider := func(w string) {
-		if w == q {
-			return
-		}
-		var ch float64
-		ch, s.buf = c.m.logChannel(&s.obs, w, &s.crs, s.buf, keep+margin)
-		if ch <= keep+margin {
-			return
-		}
-		v := ch + c.logContext(prev, w, next)
-		if v > bestScore || (v == bestScore && w < best) {
-			best, bestScore = w, v
-		}
-	}
 	// scoreAll scores words likeliest-in-context first: once a word's
 	// context score plus the best channel score any candidate can have
 	// falls below the best so far, none of the rest can win.
@@ -501,14 +488,14 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		s.lm = s.lm[:0]
 		for _, w := range words {
 			if w != q {
-				s.lm = append(s.lm, neighbour{w, c.logContext(prev, w, next)})
+				s.lm = append(s.lm, neighbour{word: w, logp: c.logContext(prev, w, next)})
 			}
 		}
-		sort.Slice(s.lm, func(i, j int) bool {
-			if s.lm[i].logp != s.lm[j].logp {
-				return s.lm[i].logp > s.lm[j].logp
+		slices.SortFunc(s.lm, func(a, b neighbour) int {
+			if a.logp != b.logp {
+				return cmp.Compare(b.logp, a.logp)
 			}
-			return s.lm[i].word < s.lm[j].word
+			return strings.Compare(a.word, b.word)
 		})
 		for _, x := range s.lm {
 			if x.logp+s.obs.bound <= max(bestScore, keep+margin) {
@@ -523,9 +510,14 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 	}
 	switch {
 	case known:
+		// The channel score of each neighbour is remembered with it (it
+		// does not depend on the context), so only neighbours that could
+		// still win cost a context score.
 		for _, x := range c.realWordNeighbours(s, q) {
-			if x.logp > keep+margin {
-				consider(x.word)
+			if x.word != q && x.logp > keep+margin && x.ch > keep+margin {
+				if v := x.ch + c.logContext(prev, x.word, next); v > bestScore || (v == bestScore && x.word < best) {
+					best, bestScore = x.word, v
+				}
 			}
 		}
 	case strict:
@@ -658,7 +650,7 @@ func (c *Corrector) expansions(s *scratch, q string, known bool, floor, minStep 
 	level(s.qbuf, 0, true)
 	if !known {
 		// Second confusions only from the likeliest first ones.
-		sort.SliceStable(s.front, func(i, j int) bool { return s.front[i].logp > s.front[j].logp })
+		slices.SortStableFunc(s.front, func(a, b frontier) int { return cmp.Compare(b.logp, a.logp) })
 		for i, f := range s.front {
 			if len(found) >= maxExpansions || i == maxFrontier {
 				break
@@ -666,30 +658,35 @@ func (c *Corrector) expansions(s *scratch, q string, known bool, floor, minStep 
 			level(s.arena[f.off:f.off+f.n], f.logp, false)
 		}
 	}
-	sort.Strings(found)
+	slices.Sort(found)
 	s.found = found
 	return found
 }
 
 // neighbour is a lexicon word one learned confusion away from another, with
-// that confusion's log probability.
+// that confusion's log probability and the channel score log P(other |
+// word); or, in scratch.lm, a candidate with its context score in logp.
 type neighbour struct {
 	word string
 	logp float64
+	ch   float64
 }
 
 // maxCached bounds the words whose neighbours are remembered.
 const maxCached = 200_000
 
 // realWordNeighbours returns the lexicon words one likely confusion away
-// from the lexicon word q, remembered per Corrector (words recur).
+// from the lexicon word q with their channel scores, remembered per
+// Corrector (words recur). s.obs must hold q.
 func (c *Corrector) realWordNeighbours(s *scratch, q string) []neighbour {
 	if v, ok := c.neigh.Load(q); ok {
 		return v.([]neighbour)
 	}
 	var ns []neighbour
 	for _, w := range c.expansions(s, q, true, minExpandLogP, minExpandLogP) {
-		ns = append(ns, neighbour{w, s.logp[w]})
+		var ch float64
+		ch, s.buf = c.m.logChannel(&s.obs, w, &s.crs, s.buf, math.Inf(-1))
+		ns = append(ns, neighbour{w, s.logp[w], ch})
 	}
 	if c.cached.Add(1) <= maxCached {
 		c.neigh.Store(q, ns)

@@ -194,7 +194,7 @@ func pageTally(truth, in, out string, changes []correct.Change, verbose bool, id
 			t.wrong++
 		}
 		if verbose {
-			fmt.Printf("%s:%d:%d %q -> %q score %.2f good=%v\n", id, ch.Line, ch.Column, ch.Before, ch.After, ch.Score, good)
+			fmt.Printf("%s:%d:%d %q -> %q score %.2f good=%v page-cer=%.4f\n", id, ch.Line, ch.Column, ch.Before, ch.After, ch.Score, good, float64(before)/float64(max(cb.Chars, 1)))
 		}
 	}
 	return t

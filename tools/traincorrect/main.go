@@ -43,6 +43,7 @@ func main() {
 	split := flag.String("split", "heldout", "-eval: pages to measure: \"heldout\", or \"dev\" (the development fifth of fit, left out of training)")
 	truthDir := flag.String("truth", "", "-eval: measure the pages with ground truth under this directory instead of -corpus (OCR under -ocr)")
 	ocrDir := flag.String("ocr", "", "-eval with -truth: directory of the OCR records (.json) or text, same relative paths")
+	final := flag.Bool("final", false, "train on all of fit, development pages included (once the constants are set on dev)")
 	guard := flag.Bool("guard", false, "-eval: also correct the full source texts of the -corpus heldout pages as clean plain text (use with -lexicon fair, which leaves them out)")
 	flag.Parse()
 	if *cpuprofile != "" {
@@ -54,9 +55,13 @@ func main() {
 
 	switch {
 	case *corpus != "" && !*eval:
-		pairs, err := corpusPairs(*corpus, "fit")
+		split := "fit"
+		if *final {
+			split = "fit+dev"
+		}
+		pairs, err := corpusPairs(*corpus, split)
 		check(err)
-		fmt.Fprintf(os.Stderr, "training on %d fit pages (dev pages left out)\n", len(pairs))
+		fmt.Fprintf(os.Stderr, "training on %d pages (%s)\n", len(pairs), split)
 		m := correct.Train(pairs, correct.TrainOptions{Prior: correct.Classic})
 		report(m)
 		if *out != "" {
@@ -166,7 +171,13 @@ func wrap(s string, width int) string {
 	return b.String()
 }
 
+// corpusPairs returns the pages of a split; "fit" leaves out the
+// development pages, "fit+dev" is all of fit.
 func corpusPairs(dir, split string) ([]correct.Pair, error) {
+	withDev := split == "fit+dev"
+	if withDev {
+		split = "fit"
+	}
 	names, err := filepath.Glob(filepath.Join(dir, "truth", split, "*.txt"))
 	if err != nil || len(names) == 0 {
 		return nil, fmt.Errorf("no ground truth in %q", filepath.Join(dir, "truth", split))
@@ -174,7 +185,7 @@ func corpusPairs(dir, split string) ([]correct.Pair, error) {
 	sort.Strings(names)
 	var pairs []correct.Pair
 	for _, n := range names {
-		if split == "fit" && isDev(strings.TrimSuffix(filepath.Base(n), ".txt")) {
+		if split == "fit" && !withDev && isDev(strings.TrimSuffix(filepath.Base(n), ".txt")) {
 			continue
 		}
 		ref, err := os.ReadFile(n)

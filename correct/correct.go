@@ -1,12 +1,12 @@
 package correct
 
 import (
+	"cmp"
 	"math"
-	"os"
-	"strconv"
-	"sort"
+	"slices"
 	"strings"
 	"sync"
+	"sync/atomic"
 
 	"recto/lexicon"
 	"recto/ocr"
@@ -14,7 +14,7 @@ import (
 
 // DefaultMargin is the margin used when Config.Margin is 0: the best
 // candidate must be e^DefaultMargin times likelier than the token as read.
-const DefaultMargin = 5.0
+const DefaultMargin = 3.0
 
 // Config tunes a Corrector. The zero value is valid and conservative.
 type Config struct {
@@ -58,64 +58,68 @@ type Corrector struct {
 	ix     *deleteIndex
 	total  float64 // unigram total, lexicon and collection
 	pool   sync.Pool
+	neigh  sync.Map     // lexicon word -> []neighbour
+	cached atomic.Int64 // entries in neigh
 }
 
 // Tuning constants; the figures behind them are in docs/dev-correct.md.
 const (
-	// confWeight scales the engine's confidence, as log odds, into the
-	// margin: a word read at 0.9 needs e^(2.2·confWeight) more evidence.
-	confWeightDefault = 1.0
-	// XXX tuning
+	// confWeight scales the engine's confidence, as log odds relative to
+	// confCentre, into the margin: a word read at 0.97 needs e^1.3 more
+	// evidence than one read at 0.9, one read at 0.5 e^2.2 less.
+	confWeight = 1.0
 	// sureConf is the confidence at or above which a lexicon word is not
 	// questioned at all.
-	sureConfDefault = 0.9
+	sureConf = 0.9
+	// strictConf is the confidence at or above which a lower-case word the
+	// lexicon lacks is changed only into a word reached by undoing learned
+	// confusions, each at least e^strictStepLogP likely: a word read that
+	// clearly is more often a rare word than an OCR error ("ling").
+	strictConf     = 0.85
+	strictStepLogP = -7.0
+	// listedFloor is the least unigram count a listed word gets.
+	listedFloor = 1.0
 	// nameConf is the confidence at or above which a capitalised word the
 	// lexicon lacks is taken for a name and left alone.
-	nameConfDefault = 0.8
+	nameConf = 0.93
 	// nameMargin is added to the margin for capitalised unknown words when
 	// the confidence is unknown (plain text).
 	nameMargin = 3.0
+	// oovPenalty is subtracted from the log probability of keeping a word
+	// the lexicon lacks, on top of the add-one-half unigram estimate: a
+	// string never seen in open text is seldom a word.
+	oovPenalty = 3.0
+	// textMargin is added to the margin when the engine's confidence is
+	// unknown (plain text): without it, less evidence stands behind each
+	// decision.
+	textMargin = 2.0
 	// realWordMargin is added to the margin to replace a lexicon word by
 	// another through a learned confusion ("modem" for "modern").
-	realWordMarginDefault = 3.0
+	realWordMargin = 1.0
 	// confCentre is the confidence that leaves the margin as it is; engine
 	// confidences above it raise the margin, below it lower it.
 	confCentre = 0.9
-	// minExpandLogP is the least likely confusion used to expand a token
-	// into candidates.
-	minExpandLogP = -9.0
+	// minExpandLogP is the least likely confusion, and minExpand2LogP the
+	// least likely pair of confusions, used to expand a token into
+	// candidates (edit-distance search finds the rest).
+	minExpandLogP  = -7.0
+	minExpand2LogP = -11.0
+	// clearWin is how far beyond the margin a candidate made by undoing
+	// learned confusions must score for the edit-distance search to be
+	// skipped.
+	clearWin = 4.0
+	// maxFrontier bounds the one-confusion variants expanded again.
+	maxFrontier = 12
 	// maxExpansions bounds candidates made through confusions per token.
 	maxExpansions = 64
 	// backoff is the stupid-backoff factor (Brants et al. 2007).
 	backoff = 0.4
 )
 
-// New returns a Corrector. lex must not be modified afterwards; m nil
-// means DefaultModel.
-var confWeight, sureConf, nameConf = confWeightDefault, sureConfDefault, nameConfDefault
-
-var realWordMargin = realWordMarginDefault
 var confCentreLogit = math.Log(confCentre / (1 - confCentre))
 
-func init() {
-	if v := os.Getenv("XR"); v != "" {
-		realWordMargin, _ = strconv.ParseFloat(v, 64)
-	}
-	if v := os.Getenv("XC"); v != "" {
-		f, _ := strconv.ParseFloat(v, 64)
-		confCentreLogit = math.Log(f / (1 - f))
-	}
-	if v := os.Getenv("XW"); v != "" {
-		confWeight, _ = strconv.ParseFloat(v, 64)
-	}
-	if v := os.Getenv("XS"); v != "" {
-		sureConf, _ = strconv.ParseFloat(v, 64)
-	}
-	if v := os.Getenv("XN"); v != "" {
-		nameConf, _ = strconv.ParseFloat(v, 64)
-	}
-}
-
+// New returns a Corrector. lex must not be modified afterwards; m nil
+// means DefaultModel.
 func New(lex *lexicon.Lexicon, m *Model, cfg Config) *Corrector {
 	if m == nil {
 		m = DefaultModel()
@@ -139,16 +143,22 @@ func New(lex *lexicon.Lexicon, m *Model, cfg Config) *Corrector {
 }
 
 type scratch struct {
-	obs  observed
-	crs  []rune
-	rs   []rune
-	buf  []float64
-	hs   []uint64
-	ids  []uint32
-	seen map[uint32]struct{}
-	vars map[string]float64
-
-	found, frontier []string
+	obs   observed
+	crs   []rune
+	rs    []rune
+	buf   []float64
+	hs    []uint64
+	ids   []uint32
+	seen  map[uint32]struct{}
+	seenV variantSet
+	lm    []neighbour // candidates with their context scores
+	cands []string
+	logp  map[string]float64 // expansions of a known word: the confusion's log probability
+	found []string
+	front []frontier
+	arena []byte
+	vbuf  []byte
+	qbuf  []byte
 }
 
 // edit replaces tokens [i, i+n) by words.
@@ -347,12 +357,18 @@ func breaksContext(trail, lead string) bool {
 	return strings.TrimRight(trail, "'’\"”") != "" || strings.TrimLeft(lead, "'‘\"“") != ""
 }
 
-// logUni returns log P(w) with add-one-half smoothing over lexicon and
-// collection counts.
+// count returns the unigram count of w over lexicon and collection, at
+// least listedFloor for a word the lexicon lists.
 func (c *Corrector) count(w string) float64 {
 	n := float64(c.lex.Count(w))
 	if c.coll != nil {
 		n += float64(c.coll.Count(w))
+	}
+	if n < listedFloor && c.lex.Has(w) {
+		// A listed word without a count (a word-list entry never met in
+		// the counted texts) is rare, not impossible: it scores like a
+		// word counted once.
+		n = listedFloor
 	}
 	return n
 }
@@ -365,6 +381,8 @@ func (c *Corrector) bigram(a, b string) float64 {
 	return n
 }
 
+// logUni returns log P(w) with add-one-half smoothing over lexicon and
+// collection counts.
 func (c *Corrector) logUni(w string) float64 {
 	return math.Log((c.count(w) + 0.5) / c.total)
 }
@@ -415,7 +433,7 @@ func (c *Corrector) known(w string) bool {
 // marginFor returns the margin a token must clear, from its confidence.
 func (c *Corrector) marginFor(conf float64) float64 {
 	if conf < 0 {
-		return c.margin
+		return c.margin + textMargin
 	}
 	p := math.Min(math.Max(conf, 0.02), 0.99)
 	return math.Max(c.margin+confWeight*(math.Log(p/(1-p))-confCentreLogit), c.margin/2)
@@ -429,7 +447,9 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 	q := lookupForm(t.core)
 	known := c.known(q)
 	raw := t.lead + t.core + t.trail
-	if protected(raw, t.core, known) {
+	if protected(raw, t.core, known) || strings.HasPrefix(t.trail, "'") || strings.HasPrefix(t.trail, "’") {
+		// A trailing apostrophe marks an elision ("tellin'") or a plural
+		// possessive: the word is as the printer set it.
 		return edit{}, false
 	}
 	margin := c.marginFor(t.conf)
@@ -448,35 +468,83 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 			margin += nameMargin
 		}
 	}
+	strict := !known && !upper && t.conf >= strictConf
 	keep := c.m.logIdentity(q) + c.logContext(prev, q, next)
+	if !known {
+		keep -= oovPenalty
+	}
 	// Every candidate scores at most its channel probability (the context
-	// probability is at most 1), and no channel probability exceeds the
-	// likeliest confusion's: frequent words stop here.
-	if keep+margin >= c.m.maxLogp {
+	// probability is at most 1), and no channel probability exceeds that
+	// of the likeliest edit that fits the token: frequent words stop here.
+	c.m.prepare(&s.obs, q)
+	if keep+margin >= max(s.obs.bound, c.m.spaceDel) {
 		return edit{}, false
 	}
-	c.m.prepare(&s.obs, q)
 	best, bestScore := "", math.Inf(-1)
-	consider := func(w string) {
-		if w == q {
-			return
+	// scoreAll scores words likeliest-in-context first: once a word's
+	// context score plus the best channel score any candidate can have
+	// falls below the best so far, none of the rest can win.
+	scoreAll := func(words []string) {
+		s.lm = s.lm[:0]
+		for _, w := range words {
+			if w != q {
+				s.lm = append(s.lm, neighbour{word: w, logp: c.logContext(prev, w, next)})
+			}
 		}
-		var ch float64
-		ch, s.buf = c.m.logChannel(&s.obs, w, s.crs, s.buf)
-		if ch <= keep+margin {
-			return
-		}
-		v := ch + c.logContext(prev, w, next)
-		if v > bestScore || (v == bestScore && w < best) {
-			best, bestScore = w, v
+		slices.SortFunc(s.lm, func(a, b neighbour) int {
+			if a.logp != b.logp {
+				return cmp.Compare(b.logp, a.logp)
+			}
+			return strings.Compare(a.word, b.word)
+		})
+		for _, x := range s.lm {
+			if x.logp+s.obs.bound <= max(bestScore, keep+margin) {
+				break
+			}
+			var ch float64
+			ch, s.buf = c.m.logChannel(&s.obs, x.word, &s.crs, s.buf, keep+margin-x.logp)
+			if v := ch + x.logp; v > bestScore || (v == bestScore && x.word < best) {
+				best, bestScore = x.word, v
+			}
 		}
 	}
-	for _, w := range c.expansions(s, q, known, keep+margin) {
-		consider(w)
-	}
-	if !known {
+	switch {
+	case known:
+		// The channel score of each neighbour is remembered with it (it
+		// does not depend on the context), so only neighbours that could
+		// still win cost a context score.
+		for _, x := range c.realWordNeighbours(s, q) {
+			if x.word != q && x.logp > keep+margin && x.ch > keep+margin {
+				if v := x.ch + c.logContext(prev, x.word, next); v > bestScore || (v == bestScore && x.word < best) {
+					best, bestScore = x.word, v
+				}
+			}
+		}
+	case strict:
+		scoreAll(c.expansions(s, q, false, keep+margin, strictStepLogP))
+	case s.obs.n() >= longWord:
+		// The search finds every word within two edits, single learned
+		// confusions included; undoing confusions only adds words further
+		// away, so it runs only when the search found no winner.
+		s.cands = s.cands[:0]
 		for _, id := range c.search(s, q) {
-			consider(c.ix.words[id])
+			s.cands = append(s.cands, c.ix.words[id])
+		}
+		scoreAll(s.cands)
+		if bestScore-keep <= margin {
+			scoreAll(c.expansions(s, q, false, keep+margin, minExpandLogP))
+		}
+	default:
+		// Short tokens are searched within one edit only: undo learned
+		// confusions first ("rnan" → "man"), and search when that gave no
+		// clear winner.
+		scoreAll(c.expansions(s, q, false, keep+margin, minExpandLogP))
+		if bestScore-keep <= margin+clearWin {
+			s.cands = s.cands[:0]
+			for _, id := range c.search(s, q) {
+				s.cands = append(s.cands, c.ix.words[id])
+			}
+			scoreAll(s.cands)
 		}
 	}
 	var split []string
@@ -492,7 +560,14 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 	if split != nil {
 		return edit{n: 1, words: []string{t.lead + applyCase(split[0], pattern, upper), applyCase(split[1], caseLower, false) + t.trail}, score: delta}, true
 	}
-	return edit{n: 1, words: []string{t.lead + applyCase(best, pattern, upper) + t.trail}, score: delta}, true
+	trail := t.trail
+	if (strings.HasPrefix(trail, "!") || strings.HasPrefix(trail, "|")) && len(best) > len(q) && strings.HasPrefix(best, q) {
+		// "annua!" → "annual": the engine often reads a final l, t or i
+		// as "!" or "|"; when the correction restores letters at the end,
+		// the mark was one of them.
+		trail = trail[1:]
+	}
+	return edit{n: 1, words: []string{t.lead + applyCase(best, pattern, upper) + trail}, score: delta}, true
 }
 
 // identity is log P(s | s) with s kept as read.
@@ -521,55 +596,176 @@ func (c *Corrector) search(s *scratch, q string) []uint32 {
 
 // expansions returns the lexicon words reached from q by undoing one or two
 // learned confusions (To→From) whose probabilities together exceed floor,
-// sorted. For a known q only single confusions are tried.
-func (c *Corrector) expansions(s *scratch, q string, known bool, floor float64) []string {
-	if s.vars == nil {
-		s.vars = make(map[string]float64)
+// sorted. For a known q only single confusions are tried. Variants are
+// built in scratch buffers and looked up without allocating.
+func (c *Corrector) expansions(s *scratch, q string, known bool, floor, minStep float64) []string {
+	floor = max(floor, minExpand2LogP)
+	s.seenV.reset()
+	if known {
+		if s.logp == nil {
+			s.logp = make(map[string]float64)
+		}
+		clear(s.logp)
 	}
-	clear(s.vars)
 	found := s.found[:0]
-	frontier := s.frontier[:0]
-	type variant struct {
-		w    string
-		logp float64
-	}
-	level := func(w string, acc float64, first bool) {
+	s.arena, s.front = s.arena[:0], s.front[:0]
+	level := func(w []byte, acc float64, first bool) {
 		for k := 0; k < len(w); k++ {
 			if w[k]&0xc0 == 0x80 {
 				continue // inside a multi-byte rune
 			}
 			for _, x := range c.m.expFirst[w[k]] {
-				if acc+x.logp <= floor {
+				if acc+x.logp <= floor || x.logp < minStep {
 					break // sorted, most likely first
 				}
-				if !strings.HasPrefix(w[k:], x.to) {
+				if !hasPrefix(w[k:], x.to) {
 					continue
 				}
-				v := w[:k] + x.from + w[k+len(x.to):]
-				if _, ok := s.vars[v]; ok || len(s.vars) >= 8*maxExpansions {
+				v := append(append(append(s.vbuf[:0], w[:k]...), x.from...), w[k+len(x.to):]...)
+				s.vbuf = v
+				h := hashBytes(v)
+				if !s.seenV.add(h) {
 					continue
 				}
-				s.vars[v] = acc + x.logp
-				if c.lex.Has(v) && indexable(v) {
-					found = append(found, v)
+				if !c.ix.mayHave(h) {
+					if first {
+						s.front = append(s.front, frontier{off: len(s.arena), n: len(v), logp: acc + x.logp})
+						s.arena = append(s.arena, v...)
+					}
+					continue
+				}
+				if id, ok := c.ix.id[string(v)]; ok {
+					found = append(found, c.ix.words[id])
+					if known {
+						s.logp[c.ix.words[id]] = acc + x.logp
+					}
 				} else if first {
-					frontier = append(frontier, v)
+					s.front = append(s.front, frontier{off: len(s.arena), n: len(v), logp: acc + x.logp})
+					s.arena = append(s.arena, v...)
 				}
 			}
 		}
 	}
-	level(q, 0, true)
+	s.qbuf = append(s.qbuf[:0], q...)
+	level(s.qbuf, 0, true)
 	if !known {
-		for _, v := range frontier {
-			if len(found) >= maxExpansions {
+		// Second confusions only from the likeliest first ones.
+		slices.SortStableFunc(s.front, func(a, b frontier) int { return cmp.Compare(b.logp, a.logp) })
+		for i, f := range s.front {
+			if len(found) >= maxExpansions || i == maxFrontier {
 				break
 			}
-			level(v, s.vars[v], false)
+			level(s.arena[f.off:f.off+f.n], f.logp, false)
 		}
 	}
-	sort.Strings(found)
-	s.found, s.frontier = found, frontier
+	slices.Sort(found)
+	s.found = found
 	return found
+}
+
+// neighbour is a lexicon word one learned confusion away from another, with
+// that confusion's log probability and the channel score log P(other |
+// word); or, in scratch.lm, a candidate with its context score in logp.
+type neighbour struct {
+	word string
+	logp float64
+	ch   float64
+}
+
+// maxCached bounds the words whose neighbours are remembered.
+const maxCached = 200_000
+
+// realWordNeighbours returns the lexicon words one likely confusion away
+// from the lexicon word q with their channel scores, remembered per
+// Corrector (words recur). s.obs must hold q.
+func (c *Corrector) realWordNeighbours(s *scratch, q string) []neighbour {
+	if v, ok := c.neigh.Load(q); ok {
+		return v.([]neighbour)
+	}
+	var ns []neighbour
+	for _, w := range c.expansions(s, q, true, minExpandLogP, minExpandLogP) {
+		var ch float64
+		ch, s.buf = c.m.logChannel(&s.obs, w, &s.crs, s.buf, math.Inf(-1))
+		ns = append(ns, neighbour{w, s.logp[w], ch})
+	}
+	if c.cached.Add(1) <= maxCached {
+		c.neigh.Store(q, ns)
+	}
+	return ns
+}
+
+// frontier is a one-confusion variant kept in scratch.arena.
+type frontier struct {
+	off, n int
+	logp   float64
+}
+
+func hasPrefix(b []byte, p string) bool {
+	if len(b) < len(p) {
+		return false
+	}
+	for i := 0; i < len(p); i++ {
+		if b[i] != p[i] {
+			return false
+		}
+	}
+	return true
+}
+
+// variantSet remembers the hashes of the variants made for one token, at
+// most 2*maxExpansions, in a small open-addressing table cleared by
+// generation rather than by zeroing.
+type variantSet struct {
+	slot [4 * maxExpansions]uint64 // hash|1, or 0 for empty
+	gen  [4 * maxExpansions]uint32
+	cur  uint32
+	n    int
+}
+
+func (v *variantSet) reset() {
+	v.cur++
+	v.n = 0
+	if v.cur == 0 { // wrapped: old generations would look current
+		v.gen = [4 * maxExpansions]uint32{}
+		v.cur = 1
+	}
+}
+
+// add records h and reports whether it was new and there was room.
+func (v *variantSet) add(h uint64) bool {
+	h |= 1
+	const mask = 4*maxExpansions - 1
+	for i := uint32(h) & mask; ; i = (i + 1) & mask {
+		if v.gen[i] != v.cur {
+			if v.n >= 2*maxExpansions {
+				return false
+			}
+			v.gen[i], v.slot[i] = v.cur, h
+			v.n++
+			return true
+		}
+		if v.slot[i] == h {
+			return false
+		}
+	}
+}
+
+func hashString(s string) uint64 {
+	h := uint64(fnvOffset)
+	for i := 0; i < len(s); i++ {
+		h ^= uint64(s[i])
+		h *= fnvPrime
+	}
+	return h
+}
+
+func hashBytes(b []byte) uint64 {
+	h := uint64(fnvOffset)
+	for _, c := range b {
+		h ^= uint64(c)
+		h *= fnvPrime
+	}
+	return h
 }
 
 // bestSplit finds the likeliest split of q into two lexicon words.

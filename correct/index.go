@@ -18,10 +18,24 @@ import (
 // whatever the deletions reach beyond that. Hash collisions only add
 // candidates, which scoring rejects.
 type deleteIndex struct {
-	words  []string // lexicon keys, by id
-	counts []int64  // unigram counts, by id
-	keys   []uint64 // sorted deletion hashes
-	ids    []uint32 // ids[i] is the word filed under keys[i]
+	words  []string          // lexicon keys, by id
+	id     map[string]uint32 // id of each word
+	counts []int64           // unigram counts, by id
+	keys   []uint64          // sorted deletion hashes
+	ids    []uint32          // ids[i] is the word filed under keys[i]
+	bloom  []uint64          // Bloom filter of the words' hashBytes, 2 probes
+}
+
+// bloomBits is the size of deleteIndex.bloom in bits (256 KiB): about 20
+// bits a word for the embedded lexicon, so about 1 % false positives.
+const bloomBits = 1 << 21
+
+// mayHave reports whether the word with hashBytes h may be in the index;
+// false means it is not. Most variants made by undoing confusions are not
+// words, and the filter answers for them without touching the word map.
+func (ix *deleteIndex) mayHave(h uint64) bool {
+	a, b := h&(bloomBits-1), (h>>32)&(bloomBits-1)
+	return ix.bloom[a>>6]&(1<<(a&63)) != 0 && ix.bloom[b>>6]&(1<<(b&63)) != 0
 }
 
 // longWord is the length (in runes) from which words and tokens are
@@ -71,7 +85,7 @@ type hashID struct {
 }
 
 func buildIndex(lex *lexicon.Lexicon) *deleteIndex {
-	ix := &deleteIndex{}
+	ix := &deleteIndex{id: make(map[string]uint32), bloom: make([]uint64, bloomBits/64)}
 	var pairs []hashID
 	var rs []rune
 	var hs []uint64
@@ -81,6 +95,11 @@ func buildIndex(lex *lexicon.Lexicon) *deleteIndex {
 		}
 		id := uint32(len(ix.words))
 		ix.words = append(ix.words, w)
+		ix.id[w] = id
+		h := hashString(w)
+		a, b := h&(bloomBits-1), (h>>32)&(bloomBits-1)
+		ix.bloom[a>>6] |= 1 << (a & 63)
+		ix.bloom[b>>6] |= 1 << (b & 63)
 		ix.counts = append(ix.counts, lex.Count(w))
 		rs = append(rs[:0], []rune(w)...)
 		depth := 1

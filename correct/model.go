@@ -64,6 +64,7 @@ type Model struct {
 	expand   []expansion        // rewrites To→From for candidate expansion, most likely first
 	expFirst [256][]expansion   // expand by first byte of To
 	maxLogp  float64            // the likeliest confusion or unseen edit, log probability
+	maxEdit  float64            // the likeliest deletion or unseen edit, log probability
 }
 
 // crule is a compiled rule: From as runes and its log probability.
@@ -197,17 +198,23 @@ func (m *Model) Rules() []Rule {
 }
 
 // Prob returns the model's estimate of P(to | from): the probability that
-// the correct string from is read as to. It is 0 for unseen rules.
+// the correct string from is read as to, N(from→to) / (N(from) + 20). It
+// is 0 for unseen rules.
 func (m *Model) Prob(from, to string) float64 {
 	i := sort.Search(len(m.rules), func(i int) bool {
 		r := m.rules[i]
 		return r.From > from || (r.From == from && r.To >= to)
 	})
 	if i < len(m.rules) && m.rules[i].From == from && m.rules[i].To == to {
-		return float64(m.rules[i].N) / float64(m.contextCount(from))
+		return float64(m.rules[i].N) / (float64(m.contextCount(from)) + contextPrior)
 	}
 	return 0
 }
+
+// contextPrior is added to N(From) when estimating P(To | From), so that a
+// confusion seen once in a context seen twice does not get probability
+// one-half: the estimate shrinks towards zero where evidence is thin.
+const contextPrior = 20
 
 func (m *Model) contextCount(from string) int64 {
 	if from == "" {
@@ -269,7 +276,7 @@ func (m *Model) compile() {
 		if containsSpace(r.From) || containsSpace(r.To) {
 			continue
 		}
-		p := float64(r.N) / float64(m.contextCount(r.From))
+		p := float64(r.N) / (float64(m.contextCount(r.From)) + contextPrior)
 		if p <= 0 || p >= 1 {
 			p = math.Min(math.Max(p, 1e-12), 0.999)
 		}
@@ -314,9 +321,11 @@ func (m *Model) compile() {
 			m.maxLogp = max(m.maxLogp, r.logp)
 		}
 	}
+	m.maxEdit = max(m.subFloor, m.insFloor, m.delFloor)
 	for _, v := range m.del {
-		m.maxLogp = max(m.maxLogp, v)
+		m.maxEdit = max(m.maxEdit, v)
 	}
+	m.maxLogp = max(m.maxLogp, m.maxEdit)
 	sort.SliceStable(m.expand, func(i, j int) bool { return m.expand[i].logp > m.expand[j].logp })
 	// A confusion widened by a matching neighbour ("th"→"tli") rewrites
 	// nothing its narrow form ("h"→"li") does not: expand by the narrow one.

@@ -23,6 +23,25 @@ type TrainOptions struct {
 	// fewer times than this; 0 means 2. One-character confusions are kept
 	// at any count.
 	MinCount int
+	// Prior lists confusions known beforehand (such as Classic); each
+	// gets a pseudo-count of PriorRate times the count of its From in the
+	// reference text, on top of what the pairs show, so that it has some
+	// probability even when the training pages never show it.
+	Prior []Rule
+	// PriorRate is the prior probability of each Prior confusion; 0 means
+	// 0.002.
+	PriorRate float64
+}
+
+// Classic lists the OCR confusions of letter shapes that every engine is
+// known to make (common practice: rn/m, cl/d, li/h, vv/w, ii/u, 0/o, 1/l/I,
+// 5/s, e/c, in both directions where both occur), for TrainOptions.Prior.
+var Classic = []Rule{
+	{From: "m", To: "rn"}, {From: "rn", To: "m"}, {From: "d", To: "cl"}, {From: "cl", To: "d"},
+	{From: "h", To: "li"}, {From: "li", To: "h"}, {From: "w", To: "vv"}, {From: "u", To: "ii"},
+	{From: "o", To: "0"}, {From: "l", To: "1"}, {From: "i", To: "1"}, {From: "i", To: "l"},
+	{From: "l", To: "i"}, {From: "s", To: "5"}, {From: "e", To: "c"}, {From: "c", To: "e"},
+	{From: "h", To: "b"}, {From: "m", To: "in"}, {From: "m", To: "ni"}, {From: "n", To: "ri"},
 }
 
 // maxRule is the longest From or To learned, in characters.
@@ -35,8 +54,8 @@ const maxRule = 3
 // counted alone and widened by one matching neighbour on either side
 // (longer runs are skipped as garbage)
 // (Brill and Moore 2000, "An improved error model for noisy channel
-// spelling correction"). P(To | From) is then N(From→To) / N(From), with
-// N(From) counted over the reference text.
+// spelling correction"). P(To | From) is then N(From→To) / (N(From) + 20),
+// with N(From) counted over the reference text (see Model.Prob).
 func Train(pairs []Pair, o TrainOptions) *Model {
 	minCount := int64(o.MinCount)
 	if minCount <= 0 {
@@ -67,6 +86,11 @@ func Train(pairs []Pair, o TrainOptions) *Model {
 			need[k[0]] = 0
 		}
 	}
+	for _, r := range o.Prior {
+		if r.From != "" {
+			need[r.From] = 0
+		}
+	}
 	var chars int64
 	for _, ref := range refs {
 		chars += int64(len(ref))
@@ -83,10 +107,22 @@ func Train(pairs []Pair, o TrainOptions) *Model {
 			}
 		}
 	}
+	rate := o.PriorRate
+	if rate <= 0 {
+		rate = 0.002
+	}
+	for _, r := range o.Prior {
+		if r.From == "" || r.From == r.To {
+			continue
+		}
+		if pseudo := int64(rate*float64(need[r.From]) + 0.5); pseudo > 0 {
+			counts[[2]string{r.From, r.To}] += pseudo
+		}
+	}
 	var rules []Rule
 	for k, n := range counts {
 		from, to := k[0], k[1]
-		if utf8.RuneCountInString(from)+utf8.RuneCountInString(to) > 2 && n < minCount {
+		if utf8.RuneCountInString(from)+utf8.RuneCountInString(to) > 2 && n < minCount && !inPrior(o.Prior, from, to) {
 			continue
 		}
 		if from != "" && need[from] < n {
@@ -186,4 +222,13 @@ func learnOps(ops []quality.Op, add func(from, to string)) {
 		}
 		s = e
 	}
+}
+
+func inPrior(prior []Rule, from, to string) bool {
+	for _, r := range prior {
+		if r.From == from && r.To == to {
+			return true
+		}
+	}
+	return false
 }

@@ -4,11 +4,13 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"image"
 	"os"
 	"path/filepath"
 	"sort"
 	"strings"
 	"sync"
+	"sync/atomic"
 	"testing"
 	"time"
 
@@ -45,11 +47,24 @@ func contains(list []int, v int) bool {
 type engines struct {
 	mu   sync.Mutex
 	list []*ocrtest.Engine
+
+	inFlight, maxInFlight atomic.Int64 // across all engines
 }
 
 func (e *engines) new(delay time.Duration) func() (ocr.Engine, error) {
 	return func() (ocr.Engine, error) {
-		eng := &ocrtest.Engine{Delay: delay, Words: []ocr.Word{{Text: "Ledger", Conf: 0.9, Box: ocr.Box{X: 1, Y: 1, W: 5, H: 5}}}}
+		eng := &ocrtest.Engine{Func: func(ctx context.Context, _ *image.Gray, _ int) ([]ocr.Word, error) {
+			n := e.inFlight.Add(1)
+			defer e.inFlight.Add(-1)
+			for m := e.maxInFlight.Load(); n > m && !e.maxInFlight.CompareAndSwap(m, n); m = e.maxInFlight.Load() {
+			}
+			select {
+			case <-time.After(delay):
+			case <-ctx.Done():
+				return nil, ctx.Err()
+			}
+			return []ocr.Word{{Text: "Ledger", Conf: 0.9, Box: ocr.Box{X: 1, Y: 1, W: 5, H: 5}}}, nil
+		}}
 		e.mu.Lock()
 		e.list = append(e.list, eng)
 		e.mu.Unlock()
@@ -63,7 +78,7 @@ func TestRunBatch(t *testing.T) {
 	var written sync.Map
 	res, err := ocr.RunBatch(context.Background(), paths, ocr.BatchConfig{
 		Jobs:      3,
-		NewEngine: es.new(2 * time.Millisecond),
+		NewEngine: es.new(20 * time.Millisecond),
 		Done:      func(r *ocr.Result) error { written.Store(r.Index, true); return nil },
 	})
 	if err != nil {
@@ -99,6 +114,10 @@ func TestRunBatch(t *testing.T) {
 	}
 	if len(es.list) != 3 {
 		t.Errorf("%d engines created, want one per worker (3)", len(es.list))
+	}
+	// Pages really run in parallel, and never more than --jobs at once.
+	if m := es.maxInFlight.Load(); m < 2 || m > 3 {
+		t.Errorf("at most %d pages were recognised at once, want 2 or 3 with 3 workers", m)
 	}
 	total := 0
 	for i, e := range es.list {

@@ -16,14 +16,14 @@ import "image"
 // would dominate that average on a page, so we take the median |response|
 // instead (for a zero-mean normal variable, median|X| = 0.6745 sd(X)), which
 // ignores edges as long as they cover under half the page. Rows are sampled
-// so that at most about 2 million responses are computed.
+// so that at most about 500,000 responses are computed.
 func estimateNoise(g *image.Gray) float64 {
 	w, h := g.Rect.Dx(), g.Rect.Dy()
 	if w < 3 || h < 3 {
 		return 0
 	}
 	step := 1
-	for (h-2)/step*(w-2) > 2_000_000 {
+	for (h-2)/step*(w-2) > 500_000 {
 		step++
 	}
 	var hist [16*255 + 1]int
@@ -65,32 +65,42 @@ func estimateNoise(g *image.Gray) float64 {
 }
 
 // boxBlur replaces g by the mean over a (2r+1)×(2r+1) window, clipped at the
-// edges, using running sums: O(pixels) whatever r. Two passes approximate a
-// Gaussian (common practice).
+// edges, using running sums: O(pixels) whatever r. It runs as two 1-D
+// passes, each rounding its result, so it may differ from the exact 2-D
+// mean by one grey level. Two passes approximate a Gaussian (common
+// practice).
 func boxBlur(g *image.Gray, r int) {
 	w, h := g.Rect.Dx(), g.Rect.Dy()
 	if r < 1 || w == 0 || h == 0 {
 		return
 	}
 	s := g.Stride
+	// Division by the window count n ≤ 2r+1 as a multiplication:
+	// (sum·⌈2¹⁶/n⌉ + 2¹⁵) >> 16 rounds sum/n to the nearest integer for the
+	// sums that occur (at most 255·n).
+	recip := make([]uint32, 2*r+2)
+	for n := 1; n < len(recip); n++ {
+		recip[n] = (1<<16 + uint32(n) - 1) / uint32(n)
+	}
 	// Horizontal pass, one row at a time through a copy of the row.
 	row := make([]uint8, w)
 	for y := 0; y < h; y++ {
 		p := g.Pix[y*s : y*s+w]
 		copy(row, p)
-		sum, cnt := 0, 0
+		var sum uint32
+		cnt := 0
 		for x := 0; x <= r && x < w; x++ {
-			sum += int(row[x])
+			sum += uint32(row[x])
 			cnt++
 		}
 		for x := 0; x < w; x++ {
-			p[x] = uint8((sum + cnt/2) / cnt)
+			p[x] = uint8((sum*recip[cnt] + 1<<15) >> 16)
 			if x+r+1 < w {
-				sum += int(row[x+r+1])
+				sum += uint32(row[x+r+1])
 				cnt++
 			}
 			if x-r >= 0 {
-				sum -= int(row[x-r])
+				sum -= uint32(row[x-r])
 				cnt--
 			}
 		}
@@ -98,11 +108,11 @@ func boxBlur(g *image.Gray, r int) {
 	// Vertical pass: column sums over a sliding window of rows, kept in a
 	// ring of the last r+1 original rows.
 	ring := make([]uint8, (r+1)*w)
-	col := make([]int32, w)
+	col := make([]uint32, w)
 	cnt := 0
 	for y := 0; y <= r && y < h; y++ {
 		for x, v := range g.Pix[y*s : y*s+w] {
-			col[x] += int32(v)
+			col[x] += uint32(v)
 		}
 		cnt++
 	}
@@ -111,21 +121,20 @@ func boxBlur(g *image.Gray, r int) {
 		// Save the original row y before overwriting it; it leaves the
 		// window at y+r+1.
 		copy(ring[(y%(r+1))*w:], p)
-		half := int32(cnt / 2)
-		c := int32(cnt)
+		m := recip[cnt]
 		for x := range p {
-			p[x] = uint8((col[x] + half) / c)
+			p[x] = uint8((col[x]*m + 1<<15) >> 16)
 		}
 		if y+r+1 < h {
 			for x, v := range g.Pix[(y+r+1)*s : (y+r+1)*s+w] {
-				col[x] += int32(v)
+				col[x] += uint32(v)
 			}
 			cnt++
 		}
 		if y-r >= 0 {
 			old := ring[((y-r)%(r+1))*w : ((y-r)%(r+1))*w+w]
 			for x, v := range old {
-				col[x] -= int32(v)
+				col[x] -= uint32(v)
 			}
 			cnt--
 		}

@@ -55,3 +55,18 @@ func TestNoiseEstimate(t *testing.T) {
 		}
 	}
 }
+
+// TestBoxBlurRounding checks the reciprocal division against integer
+// rounding for every sum that can occur.
+func TestBoxBlurRounding(t *testing.T) {
+	for n := uint32(1); n <= 7; n++ {
+		rc := (1<<16 + n - 1) / n
+		for sum := uint32(0); sum <= 255*n; sum++ {
+			got := (sum*rc + 1<<15) >> 16
+			want := (2*sum + n) / (2 * n) // round half up
+			if d := int(got) - int(want); d < -1 || d > 1 || got > 255 {
+				t.Fatalf("n=%d sum=%d: %d, want %d", n, sum, got, want)
+			}
+		}
+	}
+}

@@ -49,7 +49,11 @@ func Process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 		rec.TimingsMS["gray"] = ms(time.Since(t))
 	} else {
 		var err error
-		p, err = Prepare(src, o.Prep)
+		po := o.Prep
+		if po.DPI <= 0 {
+			po.DPI = dpi
+		}
+		p, err = Prepare(src, po)
 		if err != nil {
 			return nil, nil, err
 		}
@@ -65,7 +69,13 @@ func Process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 
 	if !p.Blank {
 		t := time.Now()
-		words, err := eng.Recognize(ctx, p.Image, int(math.Round(dpi*scale(sb, p.Image.Bounds()))))
+		// Preparation may enlarge a low-resolution page; the engine is
+		// told the prepared page's resolution.
+		edpi := dpi
+		if p.DPI > 0 {
+			edpi = p.DPI
+		}
+		words, err := eng.Recognize(ctx, p.Image, int(math.Round(edpi)))
 		rec.TimingsMS["engine"] = ms(time.Since(t))
 		if err != nil {
 			return nil, nil, err
@@ -90,17 +100,6 @@ func Process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 	return rec, p.Image, nil
 }
 
-// scale estimates how much preparation enlarged the page (1 when it kept
-// the size). Deskewing grows the canvas by a few percent, which is not
-// counted as scaling.
-func scale(src, prepared image.Rectangle) float64 {
-	s := math.Sqrt(float64(prepared.Dx()*prepared.Dy()) / float64(src.Dx()*src.Dy()))
-	if math.Abs(s-1) < 0.15 {
-		return 1
-	}
-	return s
-}
-
 // clip keeps b inside a w×h page.
 func clip(b Box, w, h int) Box {
 	x0, y0 := max(0, b.X), max(0, b.Y)
@@ -111,8 +110,8 @@ func clip(b Box, w, h int) Box {
 func ms(d time.Duration) float64 { return float64(d.Microseconds()) / 1000 }
 
 // ProcessFile decodes the page image at path, processes it and fills the
-// record's Source (path as given), SHA256 (of the file's bytes) and the
-// "decode" timing. Errors name the file. The file is only read.
+// record's Source (path as given), SHA256 (of the file's bytes), the
+// decoder's Warnings and the "decode" timing. Errors name the file. The file is only read.
 func ProcessFile(ctx context.Context, eng Engine, path string, o Options) (*Record, *image.Gray, error) {
 	if err := ctx.Err(); err != nil {
 		return nil, nil, err
@@ -136,6 +135,7 @@ func ProcessFile(ctx context.Context, eng Engine, path string, o Options) (*Reco
 	}
 	rec.Source = path
 	rec.SHA256 = sum
+	rec.Warnings = d.Warnings
 	rec.TimingsMS["decode"] = ms(decode)
 	return rec, prepared, nil
 }

@@ -43,11 +43,18 @@ type PrepOptions struct {
 	Binarize string
 
 	MaxSkew float64 // largest skew searched either way, degrees; 0 means 15
+
+	// DPI is the page's resolution, dots per inch; 0 means unknown. With
+	// automatic binarisation a page below LowDPI is not binarised when
+	// evenly lit, and is enlarged to TargetDPI (Catmull-Rom cubic) before
+	// Sauvola's method when unevenly lit; a page whose enlargement would
+	// exceed 20 million pixels is treated as if at 300 dpi.
+	DPI float64
 }
 
 // Step records one preparation step.
 type Step struct {
-	Name     string        // "gray", "noise", "denoise", "deskew", "binarize", "cleanup", "blank"
+	Name     string        // "gray", "noise", "denoise", "scale", "measure", "deskew", "binarize", "cleanup", "blank"
 	Applied  bool          // false when the step measured and decided not to act, or was off
 	Duration time.Duration // wall time of the step, measurement included
 	Detail   string        // what was measured and decided, for people
@@ -62,11 +69,14 @@ type Prepared struct {
 	Noise        float64     // estimated noise before denoising, standard deviation in grey levels
 	Background   float64     // background variation: spread of the local paper level across the page, grey levels (0-255)
 	Blank        bool        // no ink worth recognising was found; Image is then all white
+	Scale        float64     // factor Image was enlarged by before deskewing (low-resolution, unevenly lit pages); 1 when it was not
+	DPI          float64     // resolution of Image, dots per inch: PrepOptions.DPI × Scale; 0 when unknown
 	Steps        []Step      // what ran, in order
 
 	// ToOriginal maps a box in Image's pixels back to the original image's
-	// pixels (undoing the rotation), clipped to the original image. A
-	// rotated box maps to the smallest upright box holding it.
+	// pixels (undoing the rotation and the enlargement), clipped to the
+	// original image. A rotated or shrunk box maps to the smallest upright
+	// box holding it.
 	ToOriginal func(b Box) Box
 }
 
@@ -81,7 +91,9 @@ const (
 
 	// MinSkew is the smallest skew, in degrees, that Auto deskewing
 	// corrects: below it rotation's resampling costs more than it gains
-	// (a 0.05° skew moves the end of a 2,480-pixel line by 2 pixels).
+	// (a 0.05° skew moves the end of a 2,480-pixel line by 2 pixels). On
+	// pages narrower than 1,146 pixels the bar is higher: the skew must
+	// move the far end of a line across the page by at least one pixel.
 	MinSkew = 0.05
 
 	// unevenFraction: Auto binarisation uses Sauvola when the background
@@ -95,7 +107,8 @@ const (
 var ErrNoPixels = errors.New("ocr: image has no pixels")
 
 // Prepare turns a decoded page into the image the engine reads:
-// greyscale; noise estimate, and a blur when the noise is high; skew
+// greyscale; noise estimate, and a blur when the noise is high;
+// the treatment of low-resolution pages (automatic binarisation only); skew
 // estimate and rotation with white corners; binarisation by Otsu's method or
 // Sauvola's local method; removal of speckle and border ink; and blank-page
 // detection. src is not modified. Every step is timed and recorded in
@@ -121,8 +134,9 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 	}
 	maxSkew = min(maxSkew, 45)
 
-	p := &Prepared{}
+	p := &Prepared{Scale: 1, DPI: max(o.DPI, 0)}
 	W, H := src.Bounds().Dx(), src.Bounds().Dy()
+	srcW, srcH := W, H
 	t := time.Now()
 	step := func(name string, applied bool, detail string, args ...any) {
 		now := time.Now()
@@ -159,9 +173,10 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 	if blank {
 		p.Blank = true
 	}
+	step("measure", true, "paper level %d, background variation %.0f, %d ink pixels at half size", bg.paper, bg.variation, bg.ink)
 
-	switch method {
-	case "", "auto":
+	auto := method == "" || method == "auto"
+	if auto {
 		if bg.variation > unevenFraction*float64(bg.paper-bg.otsu) {
 			method = "sauvola"
 		} else {
@@ -169,24 +184,48 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 		}
 	}
 
+	// Low-resolution pages (see LowDPI): an evenly lit page is handed
+	// over in grey, an unevenly lit one is enlarged before Sauvola's
+	// method; both measured never worse than the plain engine, where
+	// thresholding at the page's own resolution was.
+	sc := upscaleFactor(W, H, o.DPI)
+	switch {
+	case !auto || sc == 1 || blank:
+		step("scale", false, "%s", scaleDetail(o.DPI, auto, blank))
+	case method == "otsu":
+		method = "none"
+		step("scale", false, "%.0f dpi below %.0f, evenly lit: not enlarged, not binarised", o.DPI, LowDPI)
+	default:
+		g = upscale(g, sc)
+		W, H = g.Rect.Dx(), g.Rect.Dy()
+		p.Scale, p.DPI = sc, TargetDPI
+		g2 = half(g)
+		step("scale", true, "%.0f dpi below %.0f, unevenly lit: enlarged ×%.2f to %d×%d", o.DPI, LowDPI, sc, W, H)
+	}
+
 	rot := rotation{}
 	rotated := false
 	if o.Deskew != Off && !blank {
-		var it integral
+		// On an evenly lit page one level (Otsu's, of the half-size
+		// page) separates ink from paper, at both sizes, and the final
+		// stage of the search uses the full-size ink. Otherwise the
+		// half-size page is binarised by Sauvola's method and the
+		// search stays at half size.
 		b2 := image.NewGray(g2.Rect)
-		sauvola(b2, g2, sauvolaWindow(g2.Rect.Dx(), g2.Rect.Dy()), &it)
-		// The final stage of the search uses the full-size ink when one
-		// level separates it from the paper (the page is evenly lit).
 		t := -1
-		if method != "sauvola" {
+		if method == "sauvola" {
+			var it integral
+			sauvola(b2, g2, sauvolaWindow(g2.Rect.Dx(), g2.Rect.Dy()), &it)
+		} else {
 			t = bg.otsu
+			threshold(b2, g2, t)
 		}
 		deg, ok := findSkew(b2, g, t, maxSkew)
 		switch {
 		case !ok:
 			step("deskew", false, "no clear skew found")
-		case math.Abs(deg) < MinSkew && o.Deskew == Auto:
-			step("deskew", false, "skew %.2f° below %.2f°", deg, MinSkew)
+		case math.Abs(deg) < minSkew(W) && o.Deskew == Auto:
+			step("deskew", false, "skew %.2f° below %.2f°", deg, minSkew(W))
 		default:
 			g = rotate(g, -deg)
 			rot = newRotation(-deg, W, H)
@@ -235,12 +274,31 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 	}
 
 	p.Image = g
+	toScaled := func(b Box) Box { return clipBox(b, W, H) }
 	if rotated {
-		p.ToOriginal = func(b Box) Box { return rot.boxToSrc(b) }
+		toScaled = rot.boxToSrc
+	}
+	if s := p.Scale; s > 1 {
+		p.ToOriginal = func(b Box) Box { return clipBox(scaleBoxDown(toScaled(b), s), srcW, srcH) }
 	} else {
-		p.ToOriginal = func(b Box) Box { return clipBox(b, W, H) }
+		p.ToOriginal = toScaled
 	}
 	return p, nil
+}
+
+// scaleDetail says why a page was not treated as a low-resolution page.
+func scaleDetail(dpi float64, auto, blank bool) string {
+	switch {
+	case dpi <= 0:
+		return "resolution unknown"
+	case dpi >= LowDPI:
+		return fmt.Sprintf("%.0f dpi: resolution high enough", dpi)
+	case !auto:
+		return fmt.Sprintf("%.0f dpi, binarisation requested: left as it is", dpi)
+	case blank:
+		return fmt.Sprintf("%.0f dpi, blank page", dpi)
+	}
+	return fmt.Sprintf("%.0f dpi, but the enlarged page would exceed %d pixels: resolution tag doubtful, left as it is", dpi, maxUpscaledPixels)
 }
 
 // boxToSrc maps a box of the rotated image to the smallest upright box of
@@ -321,10 +379,10 @@ func measureBackground(g *image.Gray) background {
 			}
 			// A pixel counts when the pixel right of it or below it is
 			// dark too: noise rarely darkens two neighbours together.
-			for y := max(ty, my); y < min(y1, h-my); y++ {
+			for y := max(ty, my); y < min(y1, h-my, h-1); y++ {
 				row := g.Pix[y*g.Stride : y*g.Stride+w]
 				next := g.Pix[(y+1)*g.Stride : (y+1)*g.Stride+w]
-				for x := max(tx, mx); x < min(x1, w-mx); x++ {
+				for x := max(tx, mx); x < min(x1, w-mx, w-1); x++ {
 					if row[x] < lim && (row[x+1] < lim || next[x] < lim) {
 						res.ink++
 					}
@@ -371,4 +429,11 @@ func denoisePasses(noise float64) int {
 		return 2
 	}
 	return 1
+}
+
+// minSkew is the smallest skew Auto deskewing corrects on a page w pixels
+// wide: MinSkew, or the angle whose tangent is 1/w (one pixel across the
+// page) if larger.
+func minSkew(w int) float64 {
+	return math.Max(MinSkew, math.Atan(1/float64(max(w, 1)))*180/math.Pi)
 }

@@ -5,7 +5,6 @@ import (
 	"context"
 	"fmt"
 	"image"
-	"math/rand/v2"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -13,6 +12,10 @@ import (
 	"testing"
 	"time"
 	"unicode"
+
+	"github.com/disintegration/imaging"
+
+	"recto/ocr/synth"
 )
 
 // TestEngineComparison is a measurement, not a check: it runs the
@@ -131,13 +134,46 @@ func cer(tb testing.TB, hyp, ref string) float64 {
 	return float64(prev[len(b)]) / float64(max(1, len(b)))
 }
 
-// addSpeckle darkens a fraction of the pixels, chosen at random, to near
-// black (dust, toner specks: impulse noise).
-func addSpeckle(g *image.Gray, fraction float64, seed uint64) {
-	r := rand.New(rand.NewPCG(seed, 2))
-	for i := range g.Pix {
-		if r.Float64() < fraction {
-			g.Pix[i] = uint8(r.IntN(60))
+// TestEngineSynthKinds is the same measurement on ocr/synth's named
+// degradations (120 × 100 mm pages at 300 dpi, Go Regular 11 pt), with one
+// more variant for the low-resolution page: the page enlarged to 300 dpi
+// (bilinear, imaging.Resize) before preparation, to see whether upscaling
+// would earn a place.
+//
+//	RECTO_PREP_ENGINE=1 go test ./ocr -run EngineSynthKinds -v
+func TestEngineSynthKinds(t *testing.T) {
+	if os.Getenv("RECTO_PREP_ENGINE") != "1" {
+		t.Skip("set RECTO_PREP_ENGINE=1 to run the engine comparison")
+	}
+	if _, err := exec.LookPath("tesseract"); err != nil {
+		t.Skip("tesseract command not installed")
+	}
+	dir := t.TempDir()
+	for _, k := range synth.Kinds() {
+		if k.Blank {
+			continue
 		}
+		page, _, err := synth.Render(pageText, synth.Layout{WidthMM: 120, HeightMM: 100, MarginMM: 12})
+		if err != nil {
+			t.Fatal(err)
+		}
+		d := k.D
+		d.Seed = 3
+		page = synth.Degrade(page, d)
+		truth := page.Truth
+		raw := cer(t, tesseract(t, dir, page.Image), truth)
+		p := mustPrepare(t, page.Image, PrepOptions{})
+		auto := cer(t, tesseract(t, dir, p.Image), truth)
+		base := mustPrepare(t, page.Image, plain)
+		line := fmt.Sprintf("%-9s %3.0f dpi: engine alone %6.2f%% | plain Otsu %6.2f%% | auto %6.2f%%",
+			k.Name, page.DPI, 100*raw, 100*cer(t, tesseract(t, dir, base.Image), truth), 100*auto)
+		if page.DPI < 200 {
+			f := 300 / page.DPI
+			b := page.Image.Bounds()
+			big := toGray(imaging.Resize(page.Image, int(float64(b.Dx())*f), int(float64(b.Dy())*f), imaging.Linear))
+			q := mustPrepare(t, big, PrepOptions{})
+			line += fmt.Sprintf(" | upscaled, auto %6.2f%%", 100*cer(t, tesseract(t, dir, q.Image), truth))
+		}
+		t.Log(line)
 	}
 }

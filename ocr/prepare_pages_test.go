@@ -114,3 +114,14 @@ func clamp8(v float64) uint8 {
 	}
 	return uint8(math.Round(v))
 }
+
+// addSpeckle darkens a fraction of the pixels, chosen at random, to near
+// black (dust, toner specks: impulse noise).
+func addSpeckle(g *image.Gray, fraction float64, seed uint64) {
+	r := rand.New(rand.NewPCG(seed, 2))
+	for i := range g.Pix {
+		if r.Float64() < fraction {
+			g.Pix[i] = uint8(r.IntN(60))
+		}
+	}
+}

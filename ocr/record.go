@@ -31,6 +31,10 @@ type Record struct {
 	Words          []Word  `json:"words"`           // in reading order
 
 	TimingsMS map[string]float64 `json:"timings_ms"` // milliseconds per step, e.g. "deskew", "engine"
+
+	// Warnings are things about the source the user should know that did
+	// not stop recognition, e.g. the skipped pages of a multi-page TIFF.
+	Warnings []string `json:"warnings,omitempty"`
 }
 
 // Word is one recognised word.

@@ -97,6 +97,8 @@ type aligner struct {
 	f0, f1      []int32
 	b0, b1      []int32
 	ra, rb      []rune // reversed inputs for the backward search
+	rda, rdb    []byte // the same, byte-encoded (denseCoder)
+	dense       denseCoder
 }
 
 func (al *aligner) align(a, b []rune, dst []Op) []Op {
@@ -147,10 +149,12 @@ func (al *aligner) alignCore(a, b []rune, d int, dst []Op) []Op {
 	}
 	limit := al.limit
 	if limit == 0 {
-		limit = storedMax
 		if (n+1)*(m+1) <= smallCells {
-			limit = n + m // a small table: the stored rounds always fit
+			// A small table: the stored rounds (d <= n+m) always finish.
+			ops, _ := al.stored(a, b, n+m, dst)
+			return ops
 		}
+		limit = storedMax
 	}
 	bitCost := ((n + 63) / 64) * m
 	wavefronts := true // whether d² is thought to be within bitCost
@@ -261,6 +265,8 @@ func (al *aligner) bitSplit(a, b []rune) (i, j, df, db int) {
 // stored runs the wavefronts keeping each round, up to limit rounds, and
 // traces back through them. It reports false (appending nothing) when the
 // distance exceeds limit.
+//
+// Complexity: O(n + m + D²) time and O(D²) memory for distance D ≤ limit.
 func (al *aligner) stored(a, b []rune, limit int, dst []Op) ([]Op, bool) {
 	n, m := len(a), len(b)
 	al.waves = al.waves[:0]
@@ -361,10 +367,24 @@ func reverseOps(ops []Op) {
 // end, and sf+sb cannot undercut the distance. With rounds taken in turn
 // that first meeting happens when sf+sb equals the distance. It gives up
 // (ok false) once the rounds have cost about budget steps (sf²+sb²).
+//
+// Complexity: O(n + m + D²) time in the usual case, O(n + m) memory.
 func (al *aligner) split(a, b []rune, budget int) (i, j, df, db int, ok bool) {
-	n, m := len(a), len(b)
+	if len(a)+len(b) >= denseMin {
+		if da, db, ok := al.dense.encode(a, b); ok {
+			al.rda = reversed(al.rda, da)
+			al.rdb = reversed(al.rdb, db)
+			return splitRounds(al, da, db, al.rda, al.rdb, budget)
+		}
+	}
 	al.ra = reversed(al.ra, a)
 	al.rb = reversed(al.rb, b)
+	return splitRounds(al, a, b, al.ra, al.rb, budget)
+}
+
+// splitRounds is split on a, b and their reversals ra, rb.
+func splitRounds[T symbol](al *aligner, a, b, ra, rb []T, budget int) (i, j, df, db int, ok bool) {
+	n, m := len(a), len(b)
 	// Rounds stop once sf²+sb² > budget, so sf, sb <= smax and the
 	// wavefronts need only the diagonals -min(n, smax)-1 .. min(m, smax)+1
 	// (the same for the backward ones, whose strings have the same lengths).
@@ -378,7 +398,7 @@ func (al *aligner) split(a, b []rune, budget int) (i, j, df, db int, ok bool) {
 	fprev, fcur := al.f0, al.f1
 	bprev, bcur := al.b0, al.b1
 	fprev[off] = int32(slide(a, b, 0, 0))
-	bprev[off] = int32(slide(al.ra, al.rb, 0, 0))
+	bprev[off] = int32(slide(ra, rb, 0, 0))
 	sf, sb := 0, 0
 	// meet looks for a diagonal k (forward numbering) where the forward
 	// row reaches the backward row n - fr_b[m-n-k].
@@ -405,7 +425,7 @@ func (al *aligner) split(a, b []rune, budget int) (i, j, df, db int, ok bool) {
 			fprev, fcur = fcur, fprev
 		} else {
 			sb++
-			nextRound(al.ra, al.rb, bprev, bcur, off, max(-sb, -n), min(sb, m))
+			nextRound(ra, rb, bprev, bcur, off, max(-sb, -n), min(sb, m))
 			bprev, bcur = bcur, bprev
 		}
 		if k, ok := meet(); ok {
@@ -415,7 +435,7 @@ func (al *aligner) split(a, b []rune, budget int) (i, j, df, db int, ok bool) {
 	}
 }
 
-func reversed(dst, src []rune) []rune {
+func reversed[T symbol](dst, src []T) []T {
 	dst = append(dst[:0], src...)
 	for i, j := 0, len(dst)-1; i < j; i, j = i+1, j-1 {
 		dst[i], dst[j] = dst[j], dst[i]

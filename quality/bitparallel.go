@@ -1,5 +1,7 @@
 package quality
 
+import "slices"
+
 // bitState is the working memory of the bit-vector method.
 type bitState struct {
 	pv, mv []uint64       // vertical deltas +1 / -1 of the current column
@@ -163,7 +165,10 @@ type bagCounter struct {
 }
 
 // bound returns the bag distance of a and b in O(len(a)+len(b)) time.
-func (c *bagCounter) bound(a, b []rune) int {
+func (c *bagCounter) bound(a, b []rune) int { return bagBound(c, a, b) }
+
+// bagBound is bagCounter.bound for either kind of symbol.
+func bagBound[T symbol](c *bagCounter, a, b []T) int {
 	clear(c.ascii[:])
 	if c.other == nil {
 		c.other = make(map[rune]int32)
@@ -173,14 +178,14 @@ func (c *bagCounter) bound(a, b []rune) int {
 		if r >= 0 && r < 128 {
 			c.ascii[r]++
 		} else {
-			c.other[r]++
+			c.other[rune(r)]++
 		}
 	}
 	for _, r := range b {
 		if r >= 0 && r < 128 {
 			c.ascii[r]--
 		} else {
-			c.other[r]--
+			c.other[rune(r)]--
 		}
 	}
 	pos, neg := 0, 0
@@ -199,4 +204,66 @@ func (c *bagCounter) bound(a, b []rune) int {
 		}
 	}
 	return max(pos, neg)
+}
+
+// denseCoder re-encodes two texts of at most 256 distinct symbols as one
+// byte per symbol (codes in order of first appearance); equal symbols get
+// equal bytes, so distances and split points are unchanged.
+type denseCoder struct {
+	ascii  [128]int16 // code of an ASCII symbol, or -1
+	other  map[rune]uint8
+	da, db []byte
+}
+
+// encode returns the byte forms of a and b, valid until the next call, or
+// false when they use more than 256 distinct symbols. O(len(a)+len(b)).
+func (c *denseCoder) encode(a, b []rune) ([]byte, []byte, bool) {
+	for i := range c.ascii {
+		c.ascii[i] = -1
+	}
+	if c.other == nil {
+		c.other = make(map[rune]uint8)
+	}
+	clear(c.other)
+	next := 0
+	code := func(r rune) (byte, bool) {
+		if r >= 0 && r < 128 {
+			if v := c.ascii[r]; v >= 0 {
+				return byte(v), true
+			}
+		} else if v, ok := c.other[r]; ok {
+			return v, true
+		}
+		if next == 256 {
+			return 0, false
+		}
+		v := byte(next)
+		next++
+		if r >= 0 && r < 128 {
+			c.ascii[r] = int16(v)
+		} else {
+			c.other[r] = v
+		}
+		return v, true
+	}
+	var ok bool
+	c.da, c.db = slices.Grow(c.da[:0], len(a)), slices.Grow(c.db[:0], len(b))
+	if c.da, ok = appendCodes(c.da, a, code); !ok {
+		return nil, nil, false
+	}
+	if c.db, ok = appendCodes(c.db, b, code); !ok {
+		return nil, nil, false
+	}
+	return c.da, c.db, true
+}
+
+func appendCodes(dst []byte, s []rune, code func(rune) (byte, bool)) ([]byte, bool) {
+	for _, r := range s {
+		v, ok := code(r)
+		if !ok {
+			return dst, false
+		}
+		dst = append(dst, v)
+	}
+	return dst, true
 }

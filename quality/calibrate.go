@@ -36,7 +36,29 @@ type FitOptions struct {
 	Lambdas []float64 // candidate penalties on standardised terms; nil means a grid from 0.01 to 100
 	Offset  float64   // target is log(CER + Offset); 0 means 0.01
 	Source  string    // recorded in FitInfo
+
+	// RecordTerms and TextTerms name the terms (see Model) of the two
+	// regressions; nil means the default sets.
+	RecordTerms, TextTerms []string
+
+	// Rescan is the declared rescan threshold on measured CER (0 means
+	// DefaultRescan) and Recall the declared target recall of pages above
+	// it (0 means 0.95). Fit chooses each regression's RescanFactor so
+	// that, on out-of-fold predictions for the fitting pages, the recall
+	// reaches Recall + RecallMargin (at most 1).
+	Rescan, Recall float64
 }
+
+// RecallMargin is added to the declared target recall when Fit chooses the
+// rescan cut on out-of-fold predictions, so that the target still holds on
+// new pages when the cross-validated recall was a little optimistic (our
+// own choice, declared before the cut was judged on held-out pages).
+const RecallMargin = 0.03
+
+// MinRescanFactor is the lowest RescanFactor Fit will choose: a cut below
+// half the threshold would send too many pages that only need correcting
+// to the scanner (our own choice).
+const MinRescanFactor = 0.5
 
 // ErrTooFewPages is returned by Fit when there are fewer usable pages than
 // it needs (MinFitPages with a record, or as plain text).
@@ -63,8 +85,14 @@ func Fit(samples []Sample, o FitOptions) (*Model, error) {
 	if o.Offset == 0 {
 		o.Offset = 0.01
 	}
+	if o.Rescan == 0 {
+		o.Rescan = DefaultRescan
+	}
+	if o.Recall == 0 {
+		o.Recall = 0.95
+	}
 	var recX, txtX []Features
-	var recY, txtY []float64
+	var recY, txtY, recCER, txtCER []float64
 	for i := range samples {
 		s := &samples[i]
 		if s.EmptyTruth {
@@ -74,25 +102,79 @@ func Fit(samples []Sample, o FitOptions) (*Model, error) {
 		if s.Record.FromRecord && !s.Record.Blank && s.Record.Tokens > 0 {
 			recX = append(recX, s.Record)
 			recY = append(recY, y)
+			recCER = append(recCER, s.CER)
 		}
 		if !s.Text.Blank && s.Text.Tokens > 0 {
 			txtX = append(txtX, s.Text)
 			txtY = append(txtY, y)
+			txtCER = append(txtCER, s.CER)
 		}
 	}
 	if len(recX) < MinFitPages || len(txtX) < MinFitPages {
 		return nil, fmt.Errorf("%w: %d with page records, %d as text; need %d of each", ErrTooFewPages, len(recX), len(txtX), MinFitPages)
 	}
 	m := &Model{Version: ModelVersion, Offset: o.Offset}
-	m.Record = fitLinear(recX, recY, recordTerms, o)
-	m.Text = fitLinear(txtX, txtY, textTerms, o)
-	m.Fit = FitInfo{Source: o.Source, Pages: len(recX), TextPages: len(txtX), Seed: o.Seed, TrainSpread: stddev(recY)}
+	rt, tt := o.RecordTerms, o.TextTerms
+	if rt == nil {
+		rt = recordTerms
+	}
+	if tt == nil {
+		tt = textTerms
+	}
+	for _, name := range append(append([]string(nil), rt...), tt...) {
+		if termFuncs[name] == nil {
+			return nil, fmt.Errorf("quality: unknown model term %q", name)
+		}
+	}
+	goal := math.Min(1, o.Recall+RecallMargin)
+	var oof []float64
+	m.Record, oof = fitLinear(recX, recY, rt, o)
+	m.Record.RescanFactor = rescanFactor(oof, recCER, m.Offset, o.Rescan, goal)
+	m.Text, oof = fitLinear(txtX, txtY, tt, o)
+	m.Text.RescanFactor = rescanFactor(oof, txtCER, m.Offset, o.Rescan, goal)
+	m.Fit = FitInfo{Source: o.Source, Pages: len(recX), TextPages: len(txtX), Seed: o.Seed, TrainSpread: stddev(recY),
+		Rescan: o.Rescan, RecallGoal: goal}
 	return m, nil
+}
+
+// rescanFactor returns the largest factor f in [MinRescanFactor, 1], in
+// steps of 0.01, such that flagging pages whose out-of-fold estimate
+// smear·exp(oof) − offset exceeds f·rescan catches at least the share goal
+// of the pages whose measured CER exceeds rescan (MinRescanFactor when no
+// factor does; 1 when no fitting page is above rescan).
+func rescanFactor(oof, cer []float64, offset, rescan, goal float64) float64 {
+	var bad []float64
+	for i, c := range cer {
+		if c > rescan {
+			bad = append(bad, math.Exp(oof[i])-offset)
+		}
+	}
+	if len(bad) == 0 {
+		return 1
+	}
+	for k := 100; k >= int(100*MinRescanFactor); k-- {
+		f := float64(k) / 100
+		caught := 0
+		for _, p := range bad {
+			if p > f*rescan {
+				caught++
+			}
+		}
+		if float64(caught) >= goal*float64(len(bad))-1e-9 {
+			return f
+		}
+	}
+	return MinRescanFactor
 }
 
 // fitLinear standardises the terms and fits a ridge regression, choosing
 // the penalty with the lowest cross-validated squared error.
-func fitLinear(fs []Features, y []float64, names []string, o FitOptions) Linear {
+//
+// It also returns, for every page, the out-of-fold prediction of log(CER +
+// Offset) made with the chosen penalty by a model that did not see the
+// page, retransformed with that model's own smearing factor (so that
+// exp(oof) − Offset is the estimate PredictCER would have given).
+func fitLinear(fs []Features, y []float64, names []string, o FitOptions) (Linear, []float64) {
 	n, p := len(fs), len(names)
 	X := make([][]float64, n)
 	for i := range fs {
@@ -132,17 +214,39 @@ func fitLinear(fs []Features, y []float64, names []string, o FitOptions) Linear 
 			best, bestErr = lam, sse
 		}
 	}
+	oof := make([]float64, n)
+	for k := 0; k < o.Folds; k++ {
+		var tx [][]float64
+		var ty []float64
+		for i := range X {
+			if fold[i] != k {
+				tx = append(tx, X[i])
+				ty = append(ty, y[i])
+			}
+		}
+		l := ridge(tx, ty, names, best)
+		l.Smear = smearing(l, tx, ty)
+		for i := range X {
+			if fold[i] == k {
+				oof[i] = l.predictRow(X[i]) + math.Log(l.Smear)
+			}
+		}
+	}
 	l := ridge(X, y, names, best)
-	// Duan's smearing factor: the mean of exp(residual) over the fitting
-	// pages turns a prediction of log(CER + Offset) into an estimate of the
-	// mean CER instead of its median (Duan, "Smearing estimate: a
-	// nonparametric retransformation method", JASA 78, 1983).
+	l.Smear = smearing(l, X, y)
+	return l, oof
+}
+
+// smearing returns Duan's smearing factor, the mean of exp(residual) over
+// the fitting pages: it turns a prediction of log(CER + Offset) into an
+// estimate of the mean CER instead of its median (Duan, "Smearing
+// estimate: a nonparametric retransformation method", JASA 78, 1983).
+func smearing(l Linear, X [][]float64, y []float64) float64 {
 	var smear float64
 	for i := range X {
 		smear += math.Exp(y[i] - l.predictRow(X[i]))
 	}
-	l.Smear = smear / float64(n)
-	return l
+	return smear / float64(len(X))
 }
 
 // ridge fits y ≈ a + Σ b_j·(x_j − mean_j)/sd_j minimising squared error plus

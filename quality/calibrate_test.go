@@ -125,3 +125,72 @@ func TestTargetsCheck(t *testing.T) {
 		t.Errorf("NaN precision should not meet its target: %v", lines)
 	}
 }
+
+// rescanFactor picks the largest factor (steps of 0.01) whose cut catches
+// the goal share of the pages above the threshold; values worked by hand.
+func TestRescanFactor(t *testing.T) {
+	const off = 0.01
+	oof := func(est ...float64) []float64 {
+		var o []float64
+		for _, e := range est {
+			o = append(o, math.Log(e+off))
+		}
+		return o
+	}
+	// Four pages above 10 %, estimated 20 %, 15 %, 8.55 % and 6 %; one clean.
+	est := oof(0.2, 0.15, 0.0855, 0.06, 0.001)
+	cer := []float64{0.3, 0.2, 0.12, 0.11, 0.002}
+	tests := []struct {
+		name string
+		goal float64
+		want float64
+	}{
+		{"three of four: the cut must lie under 8.55 %", 0.75, 0.85},
+		{"half: the cut may stay at the threshold", 0.5, 1},
+		{"all four: 6 % is above 0.59 x 10 %", 1, 0.59},
+	}
+	for _, tt := range tests {
+		t.Run(tt.name, func(t *testing.T) {
+			if got := rescanFactor(est, cer, off, 0.1, tt.goal); math.Abs(got-tt.want) > 1e-9 {
+				t.Errorf("rescanFactor = %v, want %v", got, tt.want)
+			}
+		})
+	}
+	// A page estimated 1 % cannot be caught above half the threshold.
+	if got := rescanFactor(oof(0.01, 0.3), []float64{0.5, 0.5}, off, 0.1, 1); got != MinRescanFactor {
+		t.Errorf("unreachable goal: %v, want MinRescanFactor", got)
+	}
+	if got := rescanFactor(oof(0.01), []float64{0.05}, off, 0.1, 1); got != 1 {
+		t.Errorf("no page above the threshold: %v, want 1", got)
+	}
+}
+
+// Fit on pages whose CER follows one feature: the factors lie in range,
+// the declared recall goal is recorded, and unknown terms are refused.
+func TestFitRescanFactorAndTerms(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 5))
+	var s []Sample
+	for i := 0; i < 120; i++ {
+		c := rng.Float64()
+		cer := math.Min(1, 0.002*math.Exp(6*c)*(0.7+0.6*rng.Float64()))
+		f := Features{FromRecord: true, Tokens: 100, LexWords: 80, LexHit: 1 - 0.8*c, MeanConf: 1 - 0.7*c, Letters: 0.9}
+		tf := f
+		tf.FromRecord, tf.MeanConf = false, 0
+		s = append(s, Sample{ID: string(rune('a'+i%26)) + string(rune('a'+i/26)), Record: f, Text: tf, CER: cer})
+	}
+	m, err := Fit(s, FitOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, l := range []Linear{m.Record, m.Text} {
+		if l.RescanFactor < MinRescanFactor || l.RescanFactor > 1 {
+			t.Errorf("rescan factor %v outside [%v, 1]", l.RescanFactor, MinRescanFactor)
+		}
+	}
+	if m.Fit.Rescan != DefaultRescan || math.Abs(m.Fit.RecallGoal-0.98) > 1e-12 {
+		t.Errorf("FitInfo: rescan %v, recall goal %v; want 0.10, 0.98", m.Fit.Rescan, m.Fit.RecallGoal)
+	}
+	if _, err := Fit(s, FitOptions{TextTerms: []string{"astrology"}}); err == nil {
+		t.Error("Fit with an unknown term: want an error")
+	}
+}

@@ -3,6 +3,7 @@ package quality
 import (
 	"strings"
 	"unicode"
+	"unicode/utf8"
 
 	"recto/lexicon"
 	"recto/ocr"
@@ -27,10 +28,24 @@ type Features struct {
 	MeanConf float64 `json:"mean_conf"` // mean word confidence, in [0, 1]
 	LowConf  float64 `json:"low_conf"`  // share of words with confidence < LowConfidence
 
+	// Shape of the confidence distribution (page records only): shares of
+	// words under 0.3 and under 0.9, and the mean confidence weighted by
+	// each word's characters (code points), so a long word counts more
+	// than a stray mark.
+	ConfUnder30 float64 `json:"conf_under_30"`
+	ConfUnder90 float64 `json:"conf_under_90"`
+	CharConf    float64 `json:"char_conf"`
+
 	LexWords int     `json:"lex_words"` // words of letters (2+ letters) checked against the lexicon
 	LexHit   float64 `json:"lex_hit"`   // share of LexWords found in the lexicon (exact key or accent-blind)
 	Garbage  float64 `json:"garbage"`   // share of tokens breaking a garbage rule (see GarbageRules)
 	Short    float64 `json:"short"`     // share of tokens of a single character
+
+	LexHitChars  float64 `json:"lex_hit_chars"` // share of the letters of LexWords that lie in words found in the lexicon
+	Stray        float64 `json:"stray"`         // share of tokens with neither a letter nor a digit ("~", "“.", "-..")
+	Suspect      float64 `json:"suspect"`       // share of characters in suspect tokens: a lexicon miss, garbage, or no letter or digit
+	SuspectDoubt float64 `json:"suspect_doubt"` // Σ characters·(1 − confidence) over suspect words, over all characters (records only)
+	EdgeJunk     float64 `json:"edge_junk"`     // share of lines whose first or last token has no letter
 
 	Letters float64 `json:"letters"` // share of characters that are letters
 	Digits  float64 `json:"digits"`  // share of characters that are digits
@@ -54,34 +69,48 @@ type Features struct {
 // embedded English lexicon (lexicon.Default).
 func PageFeatures(rec *ocr.Record, lex *lexicon.Lexicon) Features {
 	f := Features{FromRecord: true}
-	toks := make([]string, 0, len(rec.Words))
-	var confSum float64
-	var low int
+	var lines [][]string
+	var confs [][]float64 // confidence of each token, shaped like lines
+	var confSum, charConfSum, charSum float64
+	var nw, low, under30, under90 int
 	var boxArea float64
-	for _, w := range rec.Words {
-		for _, t := range strings.Fields(w.Text) {
-			toks = append(toks, t)
+	for i, w := range rec.Words {
+		toks := strings.Fields(w.Text)
+		if i == 0 || w.Line != rec.Words[i-1].Line || w.Block != rec.Words[i-1].Block {
+			lines = append(lines, nil)
+			confs = append(confs, nil)
 		}
-		if strings.TrimSpace(w.Text) == "" {
+		lines[len(lines)-1] = append(lines[len(lines)-1], toks...)
+		for range toks {
+			confs[len(confs)-1] = append(confs[len(confs)-1], w.Conf)
+		}
+		if len(toks) == 0 {
 			continue
 		}
+		nw++
 		confSum += w.Conf
+		n := float64(utf8.RuneCountInString(w.Text))
+		charConfSum += n * w.Conf
+		charSum += n
 		if w.Conf < LowConfidence {
 			low++
 		}
-		boxArea += float64(w.Box.W) * float64(w.Box.H)
-	}
-	nw := 0
-	for _, w := range rec.Words {
-		if strings.TrimSpace(w.Text) != "" {
-			nw++
+		if w.Conf < 0.3 {
+			under30++
 		}
+		if w.Conf < 0.9 {
+			under90++
+		}
+		boxArea += float64(w.Box.W) * float64(w.Box.H)
 	}
 	if nw > 0 {
 		f.MeanConf = confSum / float64(nw)
 		f.LowConf = float64(low) / float64(nw)
+		f.ConfUnder30 = float64(under30) / float64(nw)
+		f.ConfUnder90 = float64(under90) / float64(nw)
+		f.CharConf = charConfSum / charSum
 	}
-	textStats(&f, toks, joinHyphens(rec), lex)
+	textStats(&f, lines, confs, joinHyphens(rec), lex)
 	if area := float64(rec.Width) * float64(rec.Height); area > 0 {
 		f.Coverage = min(boxArea/area, 1)
 		if rec.DPI > 0 {
@@ -97,8 +126,13 @@ func PageFeatures(rec *ocr.Record, lex *lexicon.Lexicon) Features {
 // only the .txt exists: no confidences, boxes or page size.
 func TextFeatures(text string, lex *lexicon.Lexicon) Features {
 	var f Features
-	toks := strings.Fields(text)
-	textStats(&f, toks, lexWords(strings.ReplaceAll(text, "-\n", "")), lex)
+	var lines [][]string
+	for _, l := range strings.Split(text, "\n") {
+		if toks := strings.Fields(l); len(toks) > 0 {
+			lines = append(lines, toks)
+		}
+	}
+	textStats(&f, lines, nil, lexWords(strings.ReplaceAll(text, "-\n", "")), lex)
 	f.Blank = f.Chars == 0
 	return f
 }
@@ -153,61 +187,126 @@ func lexWords(text string) []string {
 	return out
 }
 
-// textStats fills the token, lexicon, garbage and character-class fields.
-func textStats(f *Features, toks, words []string, lex *lexicon.Lexicon) {
+// textStats fills the token, lexicon, garbage, suspect, line and
+// character-class fields from the tokens of each line and the words for
+// lexicon lookup; confs, when not nil, holds each token's confidence in the
+// shape of lines (a page record's) and gives SuspectDoubt.
+func textStats(f *Features, lines [][]string, confs [][]float64, words []string, lex *lexicon.Lexicon) {
 	if lex == nil {
 		lex = lexicon.Default()
 	}
-	f.Tokens = len(toks)
-	var garbage, short, letters, digits, punct, other, upper int
-	for _, t := range toks {
-		if IsGarbage(t) {
-			garbage++
+	var suspectChars int
+	var doubt float64
+	var garbage, short, stray, letters, digits, punct, other, upper, edge, nlines int
+	for _, toks := range lines {
+		if len(toks) == 0 {
+			continue
 		}
-		n := 0
-		for _, r := range t {
-			n++
-			switch {
-			case unicode.IsLetter(r):
-				letters++
-				if unicode.IsUpper(r) {
-					upper++
-				}
-			case unicode.IsDigit(r):
-				digits++
-			case unicode.IsPunct(r):
-				punct++
-			default:
-				other++
+		nlines++
+		if !hasLetter(toks[0]) || !hasLetter(toks[len(toks)-1]) {
+			edge++
+		}
+	}
+	if nlines > 0 {
+		f.EdgeJunk = float64(edge) / float64(nlines)
+	}
+	for li, toks := range lines {
+		for ti, t := range toks {
+			f.Tokens++
+			if IsGarbage(t) {
+				garbage++
 			}
-		}
-		f.Chars += n
-		if n == 1 {
-			short++
+			if !strings.ContainsFunc(t, func(r rune) bool { return unicode.IsLetter(r) || unicode.IsDigit(r) }) {
+				stray++
+			}
+			if suspect(t, lex) {
+				n := utf8.RuneCountInString(t)
+				suspectChars += n
+				if confs != nil {
+					doubt += float64(n) * (1 - confs[li][ti])
+				}
+			}
+			n := 0
+			for _, r := range t {
+				n++
+				switch {
+				case unicode.IsLetter(r):
+					letters++
+					if unicode.IsUpper(r) {
+						upper++
+					}
+				case unicode.IsDigit(r):
+					digits++
+				case unicode.IsPunct(r):
+					punct++
+				default:
+					other++
+				}
+			}
+			f.Chars += n
+			if n == 1 {
+				short++
+			}
 		}
 	}
 	if f.Tokens > 0 {
 		f.Garbage = float64(garbage) / float64(f.Tokens)
 		f.Short = float64(short) / float64(f.Tokens)
+		f.Stray = float64(stray) / float64(f.Tokens)
 	}
 	if f.Chars > 0 {
 		c := float64(f.Chars)
+		f.Suspect = float64(suspectChars) / c
+		f.SuspectDoubt = doubt / c
 		f.Letters, f.Digits, f.Punct, f.Symbols = float64(letters)/c, float64(digits)/c, float64(punct)/c, float64(other)/c
 	}
 	if letters > 0 {
 		f.Upper = float64(upper) / float64(letters)
 	}
-	hit := 0
+	hit, hitChars, allChars := 0, 0, 0
 	for _, w := range words {
-		if len([]rune(w)) < 2 {
+		n := utf8.RuneCountInString(w)
+		if n < 2 {
 			continue
 		}
 		f.LexWords++
+		allChars += n
 		if lex.Has(w) || lex.HasFold(w) {
 			hit++
+			hitChars += n
 		}
 	}
 	if f.LexWords > 0 {
 		f.LexHit = float64(hit) / float64(f.LexWords)
+		f.LexHitChars = float64(hitChars) / float64(allChars)
 	}
 }
+
+// suspect reports whether a token is probably misread: it breaks a garbage
+// rule, has neither letter nor digit, or holds a word of 2+ letters that
+// the lexicon lacks (hyphenation across lines is not joined here).
+func suspect(tok string, lex *lexicon.Lexicon) bool {
+	if IsGarbage(tok) || !strings.ContainsFunc(tok, func(r rune) bool { return unicode.IsLetter(r) || unicode.IsDigit(r) }) {
+		return true
+	}
+	t := strings.TrimFunc(tok, func(r rune) bool { return !unicode.IsLetter(r) && !unicode.IsDigit(r) })
+	for _, r := range t {
+		if !unicode.IsLetter(r) && !unicode.IsMark(r) && r != '\'' && r != '’' && r != '-' {
+			return false // digits or other marks inside: the garbage rules judge it
+		}
+	}
+	for part := range strings.SplitSeq(t, "-") {
+		if utf8.RuneCountInString(part) < 2 {
+			continue
+		}
+		if strings.ContainsRune(part, '’') {
+			part = strings.ReplaceAll(part, "’", "'")
+		}
+		if !lex.Has(part) && !lex.HasFold(part) {
+			return true
+		}
+	}
+	return false
+}
+
+func hasLetter(tok string) bool { return strings.ContainsFunc(tok, unicode.IsLetter) }

@@ -8,7 +8,8 @@ import (
 // vendored sample in testdata/triage: 40 held-out pages of the project's
 // synthetic corpus (rendered by tools/corpus from public-domain running
 // text, recognised by Tesseract 5.3.0 through recto ocr, never used for
-// fitting), spread evenly over measured CER from 0 to 100 %. The targets
+// fitting), spread evenly over measured CER from 0 to 140 % (CER exceeds
+// 100 % when the engine reads more noise than the page has text). The targets
 // are those of the project: Spearman ≥ 0.9; recall of pages above 10 % CER
 // ≥ 0.95 with precision ≥ 0.85; clean pages (CER < 1 %) accepted ≥ 95 %.
 func TestEmbeddedModelOnHeldOutSample(t *testing.T) {

@@ -35,6 +35,12 @@ type Linear struct {
 	Smear     float64 `json:"smear"`  // retransformation factor (Duan's smearing estimate); 0 is read as 1
 	Lambda    float64 `json:"lambda"` // ridge penalty used, on standardised terms
 	Terms     []Term  `json:"terms"`
+
+	// RescanFactor scales the rescan threshold: a page is sent for
+	// rescanning when its estimate exceeds RescanFactor·Thresholds.Rescan.
+	// Fit chooses it in [MinRescanFactor, 1] so that few pages above the
+	// threshold slip through (see FitOptions.Recall); 0 is read as 1.
+	RescanFactor float64 `json:"rescan_factor,omitempty"`
 }
 
 // Term is one input of a Linear model.
@@ -55,6 +61,8 @@ type FitInfo struct {
 	HeldOut     int     `json:"held_out"`     // pages held out
 	Command     string  `json:"command"`      // command that reproduces the fit
 	TrainSpread float64 `json:"train_spread"` // standard deviation of log(CER+Offset) over the fitting pages
+	Rescan      float64 `json:"rescan"`       // rescan threshold on measured CER the rescan factors were chosen for
+	RecallGoal  float64 `json:"recall_goal"`  // out-of-fold recall the rescan factors were chosen to reach
 }
 
 // termFuncs defines every term a model may use, by name.
@@ -77,12 +85,30 @@ var termFuncs = map[string]func(f *Features) float64{
 	"coverage":      func(f *Features) float64 { return f.Coverage },
 	"log_density":   func(f *Features) float64 { return math.Log1p(f.Density) },
 	"noise":         func(f *Features) float64 { return f.Noise },
+	"conf_under_30": func(f *Features) float64 { return f.ConfUnder30 },
+	"conf_under_90": func(f *Features) float64 { return f.ConfUnder90 },
+	"char_doubt":    func(f *Features) float64 { return 1 - f.CharConf },
+	"lex_miss_chars": func(f *Features) float64 {
+		if f.LexWords == 0 {
+			return 1
+		}
+		return 1 - f.LexHitChars
+	},
+	"stray":              func(f *Features) float64 { return f.Stray },
+	"sqrt_stray":         func(f *Features) float64 { return math.Sqrt(f.Stray) },
+	"edge_junk":          func(f *Features) float64 { return f.EdgeJunk },
+	"suspect":            func(f *Features) float64 { return f.Suspect },
+	"sqrt_suspect":       func(f *Features) float64 { return math.Sqrt(f.Suspect) },
+	"suspect_doubt":      func(f *Features) float64 { return f.SuspectDoubt },
+	"sqrt_suspect_doubt": func(f *Features) float64 { return math.Sqrt(f.SuspectDoubt) },
 }
 
 // recordTerms and textTerms are the terms Fit uses.
 var (
-	textTerms   = []string{"lex_miss", "sqrt_lex_miss", "garbage", "sqrt_garbage", "short", "non_letter", "punct", "symbols", "digits", "upper", "log_tokens"}
-	recordTerms = append([]string{"mean_conf", "low_conf", "sqrt_low_conf", "conf_x_miss", "coverage", "log_density", "noise"}, textTerms...)
+	textTerms = []string{"lex_miss", "sqrt_lex_miss", "lex_miss_chars", "garbage", "sqrt_garbage", "sqrt_stray", "edge_junk",
+		"suspect", "short", "non_letter", "punct", "symbols", "digits", "upper", "log_tokens"}
+	recordTerms = append([]string{"mean_conf", "low_conf", "sqrt_low_conf", "conf_under_30", "conf_under_90", "char_doubt",
+		"sqrt_suspect_doubt", "conf_x_miss", "coverage", "log_density", "noise"}, textTerms...)
 )
 
 func lexMiss(f *Features) float64 {
@@ -142,11 +168,14 @@ func parseModel(data []byte, name string) (*Model, error) {
 		if len(l.Terms) == 0 {
 			return nil, fmt.Errorf("quality: %q: %w: a regression without terms", name, ErrModel)
 		}
+		if !(l.RescanFactor >= 0 && l.RescanFactor <= 1) {
+			return nil, fmt.Errorf("quality: %q: %w: rescan factor %v outside [0, 1]", name, ErrModel, l.RescanFactor)
+		}
 		for _, t := range l.Terms {
 			if termFuncs[t.Name] == nil {
 				return nil, fmt.Errorf("quality: %q: %w: unknown term %q", name, ErrModel, t.Name)
 			}
-			if !(t.Scale > 0) || math.IsNaN(t.Coef) || math.IsInf(t.Coef, 0) {
+			if !(t.Scale > 0) || math.IsNaN(t.Coef) || math.IsInf(t.Coef, 0) || math.IsNaN(t.Mean) || math.IsInf(t.Mean, 0) {
 				return nil, fmt.Errorf("quality: %q: %w: term %q has scale %v, coefficient %v", name, ErrModel, t.Name, t.Scale, t.Coef)
 			}
 		}
@@ -202,6 +231,15 @@ func (m *Model) PredictCER(f Features) float64 {
 		smear = 1
 	}
 	return clamp01(smear*math.Exp(y) - m.Offset)
+}
+
+// rescanCut returns the estimate above which f's page is sent for
+// rescanning under the threshold rescan.
+func (m *Model) rescanCut(f *Features, rescan float64) float64 {
+	if k := m.linear(f).RescanFactor; k > 0 {
+		return k * rescan
+	}
+	return rescan
 }
 
 // Contribution is one term's share of a prediction, in units of

@@ -49,6 +49,7 @@ func TestLoadModelErrors(t *testing.T) {
 		{"not JSON", write("a.json", "rescan everything"), "invalid quality model"},
 		{"wrong version", write("b.json", `{"version": 9}`), "version 9"},
 		{"unknown term", write("c.json", strings.Replace(string(good), `"garbage"`, `"astrology"`, 1)), `unknown term "astrology"`},
+		{"rescan factor", write("d.json", strings.Replace(string(good), `"rescan_factor": `, `"rescan_factor": 1`, 1)), "rescan factor"},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {

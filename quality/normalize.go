@@ -12,7 +12,8 @@ import (
 // NormOptions chooses how text is normalised before it is scored. The zero
 // value is the default normalisation, which every option extends:
 //
-//   - a leading UTF-8 byte order mark (U+FEFF) is dropped;
+//   - the byte order mark U+FEFF is dropped, at the start of the text and
+//     anywhere else (where it is a leftover of joined files, invisible);
 //   - the text is put in Unicode Normalization Form C (NFC), so precomposed
 //     and combining spellings of the same letter compare equal;
 //   - every run of white space (unicode.IsSpace, which includes CR, LF, tab
@@ -42,7 +43,7 @@ type NormOptions struct {
 // typographyMap is the PlainTypography table (common practice in
 // transcription guidelines; the code points are from the Unicode charts).
 var typographyMap = map[rune]string{
-	'\u2018': "'", '\u2019': "'", '\u201A': "'", '\u201B': "'", '\u2032': "'", '\u02BC': "'",
+	'\u2018': "'", '\u2019': "'", '\u201A': "'", '\u201B': "'", '\u2032': "'", '\u02BC': "'", // U+02BC: modifier letter apostrophe
 	'\u201C': `"`, '\u201D': `"`, '\u201E': `"`, '\u201F': `"`, '\u2033': `"`,
 	'\u2010': "-", '\u2011': "-", '\u2012': "-", '\u2013': "-", '\u2014': "-", '\u2015': "-", '\u2212': "-",
 	'\u2026': "...",
@@ -71,8 +72,15 @@ func onOff(on bool, yes, no string) string {
 // UTF-8 bytes become U+FFFD; callers that must reject them check
 // utf8.ValidString first. Normalize runs in time linear in len(s).
 func Normalize(s string, o NormOptions) string {
-	s = strings.TrimPrefix(s, "\uFEFF")
+	if strings.Contains(s, "\uFEFF") {
+		s = strings.ReplaceAll(s, "\uFEFF", "")
+	}
 	s = norm.NFC.String(s)
+	// Fold first: folding can yield marks the other options remove
+	// ("ŉ" folds to U+02BC + "n").
+	if o.FoldCase {
+		s = foldCase(s)
+	}
 	if o.PlainTypography || o.IgnorePunct {
 		var b strings.Builder
 		b.Grow(len(s))
@@ -97,9 +105,6 @@ func Normalize(s string, o NormOptions) string {
 			b.WriteRune(r)
 		}
 		s = b.String()
-	}
-	if o.FoldCase {
-		s = foldCase(s)
 	}
 	if o.FoldCase || o.IgnorePunct || o.PlainTypography {
 		// The options may leave text out of NFC: folding decomposes U+0130

@@ -36,6 +36,10 @@ func TestNormalize(t *testing.T) {
 		{"typography", "‘ſo’ “fine”—ﬁnal… ﬂ ﬀ ﬃ ﬄ ﬅ ﬆ", NormOptions{PlainTypography: true}, `'so' "fine"-final... fl ff ffi ffl st st`},
 		{"typography with punct off", "ﬁnal—“ſo”", all, "finalso"},
 		{"all", "  The  ‘Œuvre’\r\n", all, "the œuvre"},
+		// U+0149 folds to U+02BC + "n" (CaseFolding.txt); the apostrophe is
+		// then made plain and dropped as punctuation.
+		{"fold before punct", "ŉ", all, "n"},
+		{"BOM inside", "page one\uFEFF page two", NormOptions{}, "page one page two"},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {

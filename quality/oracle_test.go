@@ -181,3 +181,40 @@ func TestBagBound(t *testing.T) {
 		t.Errorf("bound(abc, xbcd) = %d, want 2", got)
 	}
 }
+
+// TestDensePath runs Distance and the alignment split on byte-encoded
+// texts (normally only for long ones) against the table, and checks the
+// fallback when a pair has more than 256 distinct symbols.
+func TestDensePath(t *testing.T) {
+	saved := denseMin
+	denseMin = 0
+	t.Cleanup(func() { denseMin = saved })
+	rng := rand.New(rand.NewPCG(14, 15))
+	wide := make([]rune, 300)
+	for i := range wide {
+		wide[i] = rune(0x4E00 + i) // 300 distinct CJK ideographs
+	}
+	alphabets := [][]rune{[]rune("ab"), []rune("abcde é𝔄"), wide}
+	var s Scratch
+	for it := range 900 {
+		alpha := alphabets[it%3]
+		a, b := randomPair(rng, alpha, rng.IntN(120), []float64{0.05, 0.3, 1}[it%3])
+		if it%3 == 2 {
+			a = append(a, wide...) // force more than 256 symbols
+		}
+		want := tableDistance(a, b)
+		if got := s.Distance(a, b); got != want {
+			t.Fatalf("Distance(%q, %q) = %d, want %d", string(a), string(b), got, want)
+		}
+		al := aligner{limit: 1}
+		checkOps(t, a, b, al.align(a, b, nil), want)
+	}
+	var c denseCoder
+	if _, _, ok := c.encode(wide, nil); ok {
+		t.Error("300 distinct symbols encoded as bytes")
+	}
+	da, db, ok := c.encode([]rune("aé𝔄"), []rune("𝔄a"))
+	if !ok || string(da) != "\x00\x01\x02" || string(db) != "\x02\x00" {
+		t.Errorf("encode = %q, %q, %v", da, db, ok)
+	}
+}

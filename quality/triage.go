@@ -79,12 +79,20 @@ type Verdict struct {
 
 // Triage predicts a page's CER with m (nil means DefaultModel) and decides
 // what to do with the page. Blank pages and pictures get their own
-// decisions and are never sent for rescanning.
+// decisions and are never sent for rescanning; a page record marked blank
+// on a noisy scan (noise of PictureMaxNoise or more) is not taken for
+// blank but sent for rescanning, as its text may have been lost.
 func Triage(f Features, m *Model, t Thresholds) Verdict {
 	if m == nil {
 		m = DefaultModel()
 	}
 	t = t.withDefaults()
+	if f.Blank && f.FromRecord && f.Noise >= PictureMaxNoise {
+		// The preparation found no ink, but on a scan this noisy text can
+		// drown in the noise: a blank page cannot be told from a lost one.
+		return Verdict{PredictedCER: 1, Decision: DecisionRescan,
+			Reasons: []string{fmt.Sprintf("no ink found, but the scan is too noisy to call the page blank (noise %.0f grey levels): its text may be lost", f.Noise)}}
+	}
 	if f.Blank {
 		r := []string{"page is blank"}
 		if !f.FromRecord {
@@ -111,8 +119,9 @@ func Triage(f Features, m *Model, t Thresholds) Verdict {
 			Reasons: []string{fmt.Sprintf("ink found but no text recognised (scan noise %.0f grey levels)", f.Noise)}}
 	}
 	v := Verdict{PredictedCER: m.PredictCER(f)}
+	cut := m.rescanCut(&f, t.Rescan)
 	switch {
-	case v.PredictedCER > t.Rescan:
+	case v.PredictedCER > cut:
 		v.Decision = DecisionRescan
 	case v.PredictedCER > t.Correct:
 		v.Decision = DecisionCorrect
@@ -120,6 +129,10 @@ func Triage(f Features, m *Model, t Thresholds) Verdict {
 		v.Decision = DecisionAccept
 	}
 	v.Reasons = reasons(f, m, v.Decision != DecisionAccept)
+	if v.Decision == DecisionRescan && v.PredictedCER <= t.Rescan {
+		v.Reasons = append(v.Reasons, fmt.Sprintf("estimate within the model's margin below the %s rescan threshold (rescan above %.1f%%)",
+			pct(t.Rescan), 100*cut))
+	}
 	return v
 }
 
@@ -146,16 +159,18 @@ func reasons(f Features, m *Model, worse bool) []string {
 	var rs []reason
 	if f.FromRecord {
 		rs = append(rs, reason{fmt.Sprintf("%s of words under confidence %d", pct(f.LowConf), int(LowConfidence*100)),
-			group("low_conf", "sqrt_low_conf", "mean_conf", "conf_x_miss")})
+			group("low_conf", "sqrt_low_conf", "mean_conf", "conf_x_miss", "conf_under_30", "conf_under_90", "char_doubt", "sqrt_suspect_doubt")})
 	}
 	if f.LexWords > 0 {
-		rs = append(rs, reason{fmt.Sprintf("%s of words in the lexicon", pct(f.LexHit)), group("lex_miss", "sqrt_lex_miss")})
+		rs = append(rs, reason{fmt.Sprintf("%s of words in the lexicon", pct(f.LexHit)), group("lex_miss", "sqrt_lex_miss", "lex_miss_chars", "suspect")})
 	} else {
-		rs = append(rs, reason{"no words of letters to check against the lexicon", group("lex_miss", "sqrt_lex_miss")})
+		rs = append(rs, reason{"no words of letters to check against the lexicon", group("lex_miss", "sqrt_lex_miss", "lex_miss_chars", "suspect")})
 	}
 	rs = append(rs, reason{fmt.Sprintf("%s of words look like OCR garbage", pct(f.Garbage)), group("garbage", "sqrt_garbage")})
 	rs = append(rs, reason{fmt.Sprintf("%s of characters are not letters", pct(1-f.Letters)),
 		group("non_letter", "punct", "symbols", "digits")})
+	rs = append(rs, reason{fmt.Sprintf("%s of lines start or end with a stray mark (%s of words have no letter or digit)", pct(f.EdgeJunk), pct(f.Stray)),
+		group("stray", "sqrt_stray", "edge_junk")})
 	if f.Short > 0.15 {
 		rs = append(rs, reason{fmt.Sprintf("%s of words are single characters", pct(f.Short)), group("short")})
 	}

@@ -32,6 +32,8 @@ func TestTriageDecisions(t *testing.T) {
 		{"picture: clean scan, almost no text", Features{FromRecord: true, Tokens: 6, LexWords: 2, LexHit: 0.5, Noise: 6}, 0.9, Thresholds{}, DecisionPicture},
 		{"noisy scan, almost no text", Features{FromRecord: true, Tokens: 6, LexWords: 2, LexHit: 0.5, Noise: 30}, 0.9, Thresholds{}, DecisionRescan},
 		{"ink, nothing recognised", Features{FromRecord: true, Noise: 30}, 0.001, Thresholds{}, DecisionRescan},
+		{"marked blank on a noisy scan", Features{FromRecord: true, Blank: true, Noise: 34}, 0.001, Thresholds{}, DecisionRescan},
+		{"marked blank on a clean scan", Features{FromRecord: true, Blank: true, Noise: 5.7}, 0.9, Thresholds{}, DecisionBlank},
 		{"text only, empty", Features{Blank: true}, 0.9, Thresholds{}, DecisionBlank},
 		{"nearly blank: a page number", Features{FromRecord: true, Tokens: 1, Chars: 2, Noise: 6}, 0.9, Thresholds{}, DecisionBlank},
 	}
@@ -45,6 +47,27 @@ func TestTriageDecisions(t *testing.T) {
 				t.Error("no reasons given")
 			}
 		})
+	}
+}
+
+// A model whose rescan factor is 0.7 sends a page estimated at 8 % for
+// rescanning under the 10 % threshold and says why; at 6 % it does not.
+func TestTriageRescanFactor(t *testing.T) {
+	page := Features{FromRecord: true, Tokens: 300, LexWords: 250, LexHit: 0.9, Letters: 0.9, MeanConf: 0.9, LowConf: 0.05}
+	for _, tt := range []struct {
+		cer  float64
+		want string
+	}{{0.08, DecisionRescan}, {0.06, DecisionCorrect}, {0.12, DecisionRescan}} {
+		m := constModel(tt.cer)
+		m.Record.RescanFactor = 0.7
+		v := Triage(page, m, Thresholds{})
+		if v.Decision != tt.want {
+			t.Errorf("estimate %.2f: %s, want %s", tt.cer, v.Decision, tt.want)
+		}
+		margin := strings.Contains(strings.Join(v.Reasons, "; "), "margin")
+		if margin != (tt.cer == 0.08) {
+			t.Errorf("estimate %.2f: reasons %q", tt.cer, v.Reasons)
+		}
 	}
 }
 

@@ -109,6 +109,8 @@ func newCorrectTrainCommand(g *GlobalOptions) *cobra.Command {
 --truth is paired with <name>.txt under --ocr, the two are aligned
 character by character, and each run of differences of up to three
 characters a side is counted, alone and with a neighbouring character.
+The classic confusions of letter shapes (rn/m, cl/d, li/h, vv/w, 0/o, 1/l,
+5/s, e/c...) get a small prior weight even if your pages never show them.
 The model file (versioned, gzip-compressed JSON) is used with
 'recto correct --model'.
 ` + exitStatusHelp,
@@ -518,7 +520,7 @@ func runCorrectTrain(ctx context.Context, o CorrectTrainOptions, g GlobalOptions
 	if len(pairs) == 0 {
 		return fmt.Errorf("correct train: no page of %q has an OCR twin under %q", o.Truth, o.OCR)
 	}
-	m := correct.Train(pairs, correct.TrainOptions{MinCount: o.MinCount})
+	m := correct.Train(pairs, correct.TrainOptions{MinCount: o.MinCount, Prior: correct.Classic})
 	if err := m.Save(o.Out); err != nil {
 		return err
 	}

@@ -231,6 +231,9 @@ func runOCR(ctx context.Context, o OCROptions, g GlobalOptions, args []string) e
 			failures = append(failures, r)
 			prog.fail(r.Err)
 		} else {
+			for _, w := range r.Record.Warnings {
+				prog.warn(r.Path, w)
+			}
 			prog.done()
 		}
 	}
@@ -399,6 +402,13 @@ func (p *progress) fail(err error) {
 	p.clearLine()
 	fmt.Fprintf(p.w, "recto: %v\n", err)
 	p.tick()
+}
+
+// warn reports something about a page that did not stop it; shown even
+// under --quiet, like failures.
+func (p *progress) warn(path, msg string) {
+	p.clearLine()
+	fmt.Fprintf(p.w, "recto: warning: %q: %s\n", path, msg)
 }
 
 func (p *progress) done() {

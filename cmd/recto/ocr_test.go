@@ -284,3 +284,27 @@ func TestOCRInterrupted(t *testing.T) {
 		t.Errorf("failures list not written on interruption: %v", err)
 	}
 }
+
+// TestOCRMultiPageWarning: a multi-page TIFF is recognised from its first
+// page, and the skipped pages are reported on stderr and in the record.
+func TestOCRMultiPageWarning(t *testing.T) {
+	fakeEngine(t, "eng")
+	src, err := os.ReadFile("../../testdata/prep/multipage.tif")
+	if err != nil {
+		t.Skip(err)
+	}
+	in := t.TempDir()
+	os.WriteFile(filepath.Join(in, "vol1.tif"), src, 0o644)
+	out := t.TempDir()
+	_, stderr, err := runRecto(t, "ocr", in, "--out", out, "-q")
+	if err != nil {
+		t.Fatalf("%v\n%s", err, stderr)
+	}
+	if !strings.Contains(stderr, "warning") || !strings.Contains(stderr, "vol1.tif") || !strings.Contains(stderr, "multi-page") {
+		t.Errorf("no warning naming the file on stderr:\n%s", stderr)
+	}
+	rec, err := ocr.ReadRecord(filepath.Join(out, "vol1.json"))
+	if err != nil || len(rec.Warnings) != 1 {
+		t.Errorf("record warnings %v, %v", rec, err)
+	}
+}

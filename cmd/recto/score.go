@@ -43,8 +43,8 @@ PAIRS
   out of the other's search.
 
 NORMALISATION
-  Before scoring, both texts are normalised. Always: a leading UTF-8 byte
-  order mark is dropped; the text is put in Unicode NFC; every run of white
+  Before scoring, both texts are normalised. Always: the UTF-8 byte order
+  mark (U+FEFF) is dropped; the text is put in Unicode NFC; every run of white
   space, line breaks included (CRLF is fine), becomes one space; leading and
   trailing space is trimmed. Options, each off by default:
     --fold-case          Unicode case folding ("Straße" = "STRASSE")

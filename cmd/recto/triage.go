@@ -46,6 +46,13 @@ and decide what to do with it:
   blank     no text and no ink
   picture   ink but almost no text (an illustration): not sent for rescanning
 
+Estimates near --rescan are uncertain, so the model carries a safety margin
+chosen when it was fitted: a page is also sent for rescanning when its
+estimate lies within that margin below --rescan (the embedded model, with a
+page record: above 0.71 x --rescan, i.e. 7.1% for 10%), and its reasons say
+so. A page found blank
+on a very noisy scan is sent for rescanning too: its text may be lost.
+
 OCRDIR is a folder written by 'recto ocr': every <name>.json page record is
 read (word confidences, boxes); a page with only <name>.txt is judged from
 its text, with less evidence. Pages are named as in 'recto score': the

@@ -65,8 +65,8 @@ func Level(t float64, seed uint64) Degradation {
 	if t == 0 {
 		return d
 	}
-	// Effect strength u as a function of t: the engine's error rate rises
-	// between u = 0.42 and about 0.75, so that stretch takes most of the t
+	// Effect strength u as a function of t: recto's error rate rises
+	// between u = 0.42 and about 0.85, so that stretch takes most of the t
 	// range; u = 1.6 at t = 1 makes every seed unreadable (measured,
 	// docs/dev-synth.md). Effects past their range are clamped by Degrade.
 	var u float64
@@ -74,9 +74,9 @@ func Level(t float64, seed uint64) Degradation {
 	case t <= 0.3:
 		u = 1.4 * t
 	case t <= 0.9:
-		u = 0.42 + 0.5*(t-0.3)
+		u = 0.42 + 0.43/0.6*(t-0.3)
 	default:
-		u = 0.72 + 8.8*(t-0.9)
+		u = 0.85 + 7.5*(t-0.9)
 	}
 	r := rand.New(rand.NewPCG(seed, 0x1e7e1))
 	const effects = 9

@@ -71,7 +71,9 @@ func run(args []string, stdout, stderr io.Writer) error {
 	m.Fit.HeldOut = len(held)
 	m.Fit.Command = fmt.Sprintf("go run ./tools/fitquality -corpus CORPUS -out quality/model/default.json -seed %d", *seed)
 	fmt.Fprintf(stdout, "fitted on %d pages (%d as text), judged on %d held-out pages\n", m.Fit.Pages, m.Fit.TextPages, len(held))
-	fmt.Fprintf(stdout, "ridge penalty: record %.3g, text %.3g\n\n", m.Record.Lambda, m.Text.Lambda)
+	fmt.Fprintf(stdout, "ridge penalty: record %.3g, text %.3g\n", m.Record.Lambda, m.Text.Lambda)
+	fmt.Fprintf(stdout, "rescan cut (chosen on out-of-fold predictions for the fit pages, recall goal %.2f): estimate above %.1f%% with a page record, %.1f%% as text\n\n",
+		m.Fit.RecallGoal, 100*m.Record.RescanFactor*m.Fit.Rescan, 100*m.Text.RescanFactor*m.Fit.Rescan)
 
 	th := quality.Thresholds{Correct: *correct}
 	report(stdout, "embedded model, page records", m, held, false, th)
@@ -109,6 +111,28 @@ func report(w io.Writer, name string, m *quality.Model, held []quality.Sample, t
 	}
 	for _, l := range lines {
 		fmt.Fprintf(w, "  %s\n", l)
+	}
+	// Pages above the threshold that were not flagged, and how many of
+	// them have no recognised text at all (from text alone such a page
+	// cannot be told from a blank one).
+	var missed, empty []string
+	for _, x := range s {
+		if x.EmptyTruth || x.CER <= e.RescanAbove {
+			continue
+		}
+		f := x.Record
+		if !f.FromRecord {
+			f = x.Text
+		}
+		if v := quality.Triage(f, m, th); v.Decision != quality.DecisionRescan {
+			missed = append(missed, fmt.Sprintf("%s (CER %.3f, estimate %.3f, %s)", x.ID, x.CER, v.PredictedCER, v.Decision))
+			if f.Tokens == 0 {
+				empty = append(empty, x.ID)
+			}
+		}
+	}
+	if len(missed) > 0 {
+		fmt.Fprintf(w, "  missed: %s; of these %d with no recognised text\n", strings.Join(missed, ", "), len(empty))
 	}
 	fmt.Fprintf(w, "  all targets met: %v\n\n", met)
 }
@@ -177,6 +201,11 @@ func vendor(corpus, dir string, held []quality.Sample, n int, w io.Writer) error
 	for _, sub := range []string{"ocr", "truth"} {
 		if err := os.MkdirAll(filepath.Join(dir, sub), 0o755); err != nil {
 			return err
+		}
+		// Pages of an older sample would stay behind and be judged with
+		// the new ones: refuse rather than delete anything.
+		if old, _ := filepath.Glob(filepath.Join(dir, sub, "*.*")); len(old) > 0 {
+			return fmt.Errorf("%q already holds %d files: remove the old sample first", filepath.Join(dir, sub), len(old))
 		}
 	}
 	count := 0

@@ -38,7 +38,13 @@ func main() {
 	rate := flag.Float64("rate", 0.08, "-plant: share of words given a confusion")
 	verbose := flag.Bool("v", false, "list every change on clean pages")
 	flag.StringVar(&dumpDir, "dump", "", "-eval: write each corrected page here as <id>.txt")
+	flag.BoolVar(&normOpts.PlainTypography, "plain", false, "-eval: compare with quality's PlainTypography normalisation (curly quotes, dashes as plain)")
 	cpuprofile := flag.String("cpuprofile", "", "write a CPU profile of the evaluation here")
+	split := flag.String("split", "heldout", "-eval: pages to measure: \"heldout\", or \"dev\" (the development fifth of fit, left out of training)")
+	truthDir := flag.String("truth", "", "-eval: measure the pages with ground truth under this directory instead of -corpus (OCR under -ocr)")
+	ocrDir := flag.String("ocr", "", "-eval with -truth: directory of the OCR records (.json) or text, same relative paths")
+	final := flag.Bool("final", false, "train on all of fit, development pages included (once the constants are set on dev)")
+	guard := flag.Bool("guard", false, "-eval: also correct the full source texts of the -corpus heldout pages as clean plain text (use with -lexicon fair, which leaves them out)")
 	flag.Parse()
 	if *cpuprofile != "" {
 		f, err := os.Create(*cpuprofile)
@@ -49,9 +55,14 @@ func main() {
 
 	switch {
 	case *corpus != "" && !*eval:
-		pairs, err := corpusPairs(*corpus, "fit")
+		split := "fit"
+		if *final {
+			split = "fit+dev"
+		}
+		pairs, err := corpusPairs(*corpus, split)
 		check(err)
-		m := correct.Train(pairs, correct.TrainOptions{})
+		fmt.Fprintf(os.Stderr, "training on %d pages (%s)\n", len(pairs), split)
+		m := correct.Train(pairs, correct.TrainOptions{Prior: correct.Classic})
 		report(m)
 		if *out != "" {
 			check(m.Save(*out))
@@ -74,9 +85,17 @@ func main() {
 		lex, err := loadLexicon(*lexFlag, *corpus, *dataDir)
 		check(err)
 		c := correct.New(lex, m, correct.Config{Margin: *margin})
-		if *corpus != "" {
-			check(evalCorpus(c, *corpus, *verbose))
-		} else {
+		switch {
+		case *truthDir != "":
+			check(evalDirs(c, *truthDir, *ocrDir, nil, *verbose))
+		case *corpus != "":
+			check(evalCorpus(c, *corpus, *split, *verbose))
+			if *guard {
+				names, err := heldoutSources(*corpus, *dataDir)
+				check(err)
+				check(guardText(c, names, *verbose))
+			}
+		default:
 			pairs, err := plantedPairs(*plant, *rate, 1, 2)
 			check(err)
 			evalPairs(c, pairs)
@@ -152,7 +171,13 @@ func wrap(s string, width int) string {
 	return b.String()
 }
 
+// corpusPairs returns the pages of a split; "fit" leaves out the
+// development pages, "fit+dev" is all of fit.
 func corpusPairs(dir, split string) ([]correct.Pair, error) {
+	withDev := split == "fit+dev"
+	if withDev {
+		split = "fit"
+	}
 	names, err := filepath.Glob(filepath.Join(dir, "truth", split, "*.txt"))
 	if err != nil || len(names) == 0 {
 		return nil, fmt.Errorf("no ground truth in %q", filepath.Join(dir, "truth", split))
@@ -160,6 +185,9 @@ func corpusPairs(dir, split string) ([]correct.Pair, error) {
 	sort.Strings(names)
 	var pairs []correct.Pair
 	for _, n := range names {
+		if split == "fit" && !withDev && isDev(strings.TrimSuffix(filepath.Base(n), ".txt")) {
+			continue
+		}
 		ref, err := os.ReadFile(n)
 		if err != nil {
 			return nil, err
@@ -218,6 +246,30 @@ func loadLexicon(which, corpus, data string) (*lexicon.Lexicon, error) {
 	lex := b.Lexicon()
 	fmt.Fprintf(os.Stderr, "fair lexicon: %d words, %d source texts of heldout pages left out\n", lex.Len(), skipped)
 	return lex, nil
+}
+
+// heldoutSources returns the source texts of the corpus's heldout pages.
+func heldoutSources(corpus, data string) ([]string, error) {
+	rows, err := manifest(corpus)
+	if err != nil {
+		return nil, err
+	}
+	seen := map[string]bool{}
+	var names []string
+	for _, r := range rows {
+		src := r["source"]
+		if r["split"] != "heldout" || seen[src] {
+			continue
+		}
+		seen[src] = true
+		set, name, ok := strings.Cut(src, "/")
+		if !ok {
+			continue
+		}
+		names = append(names, filepath.Join(data, set, "package", "data", name+".txt"))
+	}
+	sort.Strings(names)
+	return names, nil
 }
 
 // manifest reads DIR/MANIFEST.tsv: a header line, then tab-separated rows.

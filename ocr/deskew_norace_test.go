@@ -1,0 +1,5 @@
+//go:build !race
+
+package ocr
+
+const raceDetector = false

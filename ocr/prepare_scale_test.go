@@ -1,0 +1,217 @@
+package ocr
+
+import (
+	"context"
+	"fmt"
+	"image"
+	"math"
+	"testing"
+
+	"github.com/disintegration/imaging"
+)
+
+// TestUpscaleMatchesImaging compares the enlargement with imaging.Resize
+// and its CatmullRom filter (disintegration/imaging v1.6.2, an outside
+// implementation of the same cubic, Keys 1981 with a = -0.5).
+func TestUpscaleMatchesImaging(t *testing.T) {
+	src := drawPage(t, 400, 160, 120, pageText, 235, 30)
+	for _, s := range []float64{1.5, 2, 2.5, 3} {
+		got := upscale(src, s)
+		want := toGray(imaging.Resize(src, got.Rect.Dx(), got.Rect.Dy(), imaging.CatmullRom))
+		if got.Rect != want.Rect {
+			t.Fatalf("×%g: size %v, imaging %v", s, got.Rect, want.Rect)
+		}
+		var sum, worst float64
+		for i := range got.Pix {
+			d := math.Abs(float64(got.Pix[i]) - float64(want.Pix[i]))
+			sum += d
+			worst = math.Max(worst, d)
+		}
+		mean := sum / float64(len(got.Pix))
+		t.Logf("×%g: mean |difference| %.3f, largest %.0f grey levels", s, mean, worst)
+		if mean > 0.1 || worst > 1 {
+			t.Errorf("×%g: mean |difference| %.3f (want ≤ 0.1), largest %.0f (want ≤ 1)", s, mean, worst)
+		}
+	}
+}
+
+func TestUpscaleFactor(t *testing.T) {
+	for _, c := range []struct {
+		name string
+		w, h int
+		dpi  float64
+		want float64
+	}{
+		{"unknown", 1000, 1400, 0, 1},
+		{"120 dpi A4", 992, 1403, 120, 2.5},
+		{"100 dpi A4", 827, 1169, 100, 3},
+		{"199 dpi", 1645, 2327, 199, 300.0 / 199},
+		{"200 dpi", 1653, 2339, 200, 1},
+		{"300 dpi", 2480, 3508, 300, 1},
+		// A 300-dpi A4 scan tagged 72 dpi would grow to 145 million pixels.
+		{"doubtful 72 dpi tag", 2480, 3508, 72, 1},
+	} {
+		if got := upscaleFactor(c.w, c.h, c.dpi); math.Abs(got-c.want) > 1e-9 {
+			t.Errorf("%s: factor %g, want %g", c.name, got, c.want)
+		}
+	}
+}
+
+// TestPrepareLowResolution checks the treatment of low-resolution pages
+// and that ToOriginal undoes the rotation and the enlargement: every ink
+// pixel of the prepared page must map back onto ink of the original page.
+func TestPrepareLowResolution(t *testing.T) {
+	const dpi = 120
+	page := drawPage(t, 700, 420, dpi, pageText, 235, 30)
+	for _, c := range []struct {
+		deg    float64
+		uneven bool
+	}{{0, false}, {3, false}, {0, true}, {3, true}} {
+		name := fmt.Sprintf("%g°, uneven %v", c.deg, c.uneven)
+		ref := page // the page before the light was dimmed: where the ink is
+		if c.deg != 0 {
+			ref = skewed(page, c.deg)
+		}
+		src := ref
+		if c.uneven {
+			src = toGray(ref)
+			unevenLight(src, 0.3)
+		}
+		p := mustPrepare(t, src, PrepOptions{DPI: dpi})
+		wantScale, wantDPI, wantBin := 1.0, 120.0, "none"
+		if c.uneven {
+			wantScale, wantDPI, wantBin = 2.5, 300, "sauvola"
+		}
+		if p.Scale != wantScale || p.DPI != wantDPI || p.Binarization != wantBin {
+			t.Fatalf("%s: scale %g, dpi %g, binarisation %s; want %g, %g, %s", name, p.Scale, p.DPI, p.Binarization, wantScale, wantDPI, wantBin)
+		}
+		if c.deg != 0 && math.Abs(p.Skew-c.deg) > 0.2 {
+			t.Errorf("%s: skew found %.2f°", name, p.Skew)
+		}
+		if c.deg == 0 && c.uneven && (p.Image.Rect.Dx() != 1750 || p.Image.Rect.Dy() != 1050) {
+			t.Errorf("%s: prepared size %v, want 1750×1050", name, p.Image.Rect)
+		}
+		sb := src.Bounds()
+		if b := p.ToOriginal(Box{X: -10, Y: -10, W: 1e5, H: 1e5}); b != (Box{W: sb.Dx(), H: sb.Dy()}) {
+			t.Errorf("%s: whole page maps to %+v", name, b)
+		}
+		og := toGray(ref)
+		ink, off := 0, 0
+		for y := 0; y < p.Image.Rect.Dy(); y++ {
+			for x := 0; x < p.Image.Rect.Dx(); x++ {
+				if p.Image.Pix[y*p.Image.Stride+x] >= 100 {
+					continue
+				}
+				b := p.ToOriginal(Box{X: x, Y: y, W: 1, H: 1})
+				if b.W < 1 || b.H < 1 || b.W > 3 || b.H > 3 {
+					t.Fatalf("%s: pixel (%d, %d) maps to %+v", name, x, y, b)
+				}
+				if b.X < 4 || b.Y < 4 || b.X+b.W > sb.Dx()-4 || b.Y+b.H > sb.Dy()-4 {
+					continue // the edge of a turned, dimmed page: Sauvola marks the step from paper to the white fill
+				}
+				ink++
+				if !darkNear(og, b, 1, 160) {
+					off++
+				}
+			}
+		}
+		t.Logf("%s: %d ink pixels, %d mapped away from ink", name, ink, off)
+		if ink == 0 || off > ink/100 {
+			t.Errorf("%s: %d of %d ink pixels map to no ink of the original", name, off, ink)
+		}
+	}
+
+	// Explicit binarisation, unknown or high resolution: left as it is.
+	for _, o := range []PrepOptions{{DPI: dpi, Binarize: "otsu"}, {DPI: dpi, Binarize: "sauvola"}, {}, {DPI: 300}} {
+		p := mustPrepare(t, page, o)
+		if p.Scale != 1 || (p.Skew == 0 && p.Image.Rect != page.Rect) || p.DPI != o.DPI || p.Binarization == "none" {
+			t.Errorf("%+v: scale %g, dpi %g, size %v, binarisation %s", o, p.Scale, p.DPI, p.Image.Rect, p.Binarization)
+		}
+	}
+	// A doubtful tag: a 300-dpi-sized page tagged 72 dpi is binarised as usual.
+	big := drawPage(t, 2480, 1754, 300, pageText, 235, 30)
+	if p := mustPrepare(t, big, PrepOptions{DPI: 72}); p.Scale != 1 || p.Binarization != "otsu" {
+		t.Errorf("A4 page tagged 72 dpi: scale %g, binarisation %s; want 1, otsu", p.Scale, p.Binarization)
+	}
+}
+
+// darkNear reports whether g has a pixel below level within d pixels of b.
+func darkNear(g *image.Gray, b Box, d int, level uint8) bool {
+	for y := max(0, b.Y-d); y < min(g.Rect.Dy(), b.Y+b.H+d); y++ {
+		for x := max(0, b.X-d); x < min(g.Rect.Dx(), b.X+b.W+d); x++ {
+			if g.Pix[y*g.Stride+x] < level {
+				return true
+			}
+		}
+	}
+	return false
+}
+
+// dpiEngine records the resolution and size of the page it is given and
+// returns one word covering a fixed box of it.
+type dpiEngine struct {
+	dpi  int
+	size image.Rectangle
+	box  Box
+}
+
+func (e *dpiEngine) Recognize(_ context.Context, img *image.Gray, dpi int) ([]Word, error) {
+	e.dpi, e.size = dpi, img.Rect
+	return []Word{{Text: "x", Conf: 1, Box: e.box}}, nil
+}
+
+func (e *dpiEngine) Close() error { return nil }
+
+// TestProcessLowResolution checks the contract between Process and
+// Prepare: the page's resolution reaches preparation, the engine is told
+// the prepared page's resolution, and word boxes come back in the
+// original's pixels.
+func TestProcessLowResolution(t *testing.T) {
+	page := drawPage(t, 700, 420, 120, pageText, 235, 30)
+	uneven := toGray(page)
+	unevenLight(uneven, 0.3)
+	for _, c := range []struct {
+		name    string
+		img     *image.Gray
+		dpi     float64
+		opts    Options
+		wantDPI int
+		scale   int // the prepared page's size over the original's, ×2 (whole numbers only)
+	}{
+		{"120 dpi, even", page, 120, Options{}, 120, 2},
+		{"120 dpi, uneven", uneven, 120, Options{}, 300, 5},
+		{"untagged, uneven", uneven, 0, Options{}, 300, 2}, // DefaultDPI: not enlarged
+		{"untagged, uneven, -dpi 120", uneven, 0, Options{DPI: 120}, 300, 5},
+		{"120 dpi, uneven, binarisation otsu", uneven, 120, Options{Prep: PrepOptions{Binarize: "otsu"}}, 120, 2},
+	} {
+		e := &dpiEngine{box: Box{X: 250, Y: 100, W: 50, H: 25}}
+		rec, _, err := Process(context.Background(), e, c.img, c.dpi, c.opts)
+		if err != nil {
+			t.Fatalf("%s: %v", c.name, err)
+		}
+		// A slight skew found on the page grows the canvas by a few pixels.
+		if e.dpi != c.wantDPI || !near(e.size.Dx()*2, c.img.Rect.Dx()*c.scale, 8) || !near(e.size.Dy()*2, c.img.Rect.Dy()*c.scale, 8) {
+			t.Errorf("%s: engine got %d dpi, %v; want %d dpi, size ×%g", c.name, e.dpi, e.size, c.wantDPI, float64(c.scale)/2)
+		}
+		want := e.box
+		if c.scale == 5 {
+			want = Box{X: 100, Y: 40, W: 20, H: 10}
+		}
+		if len(rec.Words) != 1 || !nearBox(rec.Words[0].Box, want, 2) {
+			t.Errorf("%s: words %+v, want one at %+v", c.name, rec.Words, want)
+		}
+		wantRec := c.dpi
+		if wantRec <= 0 {
+			wantRec = c.opts.dpi()
+		}
+		if rec.DPI != wantRec {
+			t.Errorf("%s: record dpi %g, want the page's %g", c.name, rec.DPI, wantRec)
+		}
+	}
+}
+
+func near(a, b, d int) bool { return a-b <= d && b-a <= d }
+
+func nearBox(a, b Box, d int) bool {
+	return near(a.X, b.X, d) && near(a.Y, b.Y, d) && near(a.X+a.W, b.X+b.W, d) && near(a.Y+a.H, b.Y+b.H, d)
+}

@@ -78,11 +78,12 @@ type compStats struct {
 
 // cleanupResult says what cleanup removed.
 type cleanupResult struct {
-	maxSpeck              int // largest component removed as speckle, pixels
-	specks, speckPixels   int // components and pixels removed as speckle
-	borders, borderPixels int // components and pixels removed as border
-	inkPixels             int // ink pixels left
-	components            int // components left
+	maxSpeck              int  // largest component removed as speckle, pixels
+	specks, speckPixels   int  // components and pixels removed as speckle
+	borders, borderPixels int  // components and pixels removed as border
+	inkPixels             int  // ink pixels left
+	components            int  // components left, specks kept aside
+	specksKept            bool // speckle was counted but left in place (too little of it: see clean)
 }
 
 // cleanup removes, in place, speckle and border ink from a binary image.
@@ -99,6 +100,15 @@ type cleanupResult struct {
 //
 // runs is scratch space; the possibly grown slice is returned for reuse.
 func cleanup(b *image.Gray, runs []run) (cleanupResult, []run) {
+	return clean(b, runs, 0)
+}
+
+// clean is cleanup, except that speckle is removed only when it makes up at
+// least a fraction dust of the ink (speckle and other components, border
+// ink aside); 0 removes it always. A page with less speckle than that keeps
+// it (res.specks and res.speckPixels still count it, res.specksKept says it
+// was kept).
+func clean(b *image.Gray, runs []run, dust float64) (cleanupResult, []run) {
 	w, h := b.Rect.Dx(), b.Rect.Dy()
 	runs = components(b, runs)
 	// A component's root is its first run (the lowest index), so stats
@@ -147,6 +157,15 @@ func cleanup(b *image.Gray, runs []run) (cleanupResult, []run) {
 		default:
 			res.components++
 			res.inkPixels += s.area
+		}
+	}
+	if dust > 0 && float64(res.speckPixels) < dust*float64(res.speckPixels+res.inkPixels) && res.specks > 0 {
+		res.specksKept = true
+		any = res.borders > 0
+		for _, root := range roots {
+			if s := &stats[root]; s.area <= res.maxSpeck {
+				remove[root] = false
+			}
 		}
 	}
 	if any {

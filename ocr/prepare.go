@@ -37,9 +37,12 @@ type PrepOptions struct {
 	Deskew  Mode // Auto: rotate when a clear skew of at least MinSkew degrees is found
 	Cleanup Mode // Auto and On: remove speckle and border ink after binarisation
 
-	// Binarize is "" or "auto" (Otsu unless the measured background
-	// variation calls for Sauvola's local method), "otsu", "sauvola" or
-	// "none" (the deskewed greyscale page is handed over as is).
+	// Binarize is "" or "auto", "otsu", "sauvola" or "none" (the deskewed
+	// greyscale page is handed over as is). Auto uses Sauvola's local
+	// method when the measured background variation calls for it, Otsu's
+	// method when the page needed denoising, and otherwise hands the
+	// deskewed page over in grey (the engine thresholds it itself), with
+	// dust whitened when clean-up finds enough of it.
 	Binarize string
 
 	MaxSkew float64 // largest skew searched either way, degrees; 0 means 15
@@ -54,7 +57,7 @@ type PrepOptions struct {
 
 // Step records one preparation step.
 type Step struct {
-	Name     string        // "gray", "noise", "denoise", "scale", "measure", "deskew", "binarize", "cleanup", "blank"
+	Name     string        // "gray", "noise", "denoise", "measure", "scale", "deskew", "binarize", "cleanup", "grey", "blank"
 	Applied  bool          // false when the step measured and decided not to act, or was off
 	Duration time.Duration // wall time of the step, measurement included
 	Detail   string        // what was measured and decided, for people
@@ -110,8 +113,9 @@ var ErrNoPixels = errors.New("ocr: image has no pixels")
 // greyscale; noise estimate, and a blur when the noise is high;
 // the treatment of low-resolution pages (automatic binarisation only); skew
 // estimate and rotation with white corners; binarisation by Otsu's method or
-// Sauvola's local method; removal of speckle and border ink; and blank-page
-// detection. src is not modified. Every step is timed and recorded in
+// Sauvola's local method; removal of speckle and border ink; the grey
+// hand-over of evenly lit, low-noise pages (automatic binarisation only); and
+// blank-page detection. src is not modified. Every step is timed and recorded in
 // Prepared.Steps.
 func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 	if src == nil || src.Bounds().Empty() {
@@ -239,6 +243,15 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 		step("deskew", false, "off")
 	}
 
+	// An evenly lit page that needed no denoising is handed to the engine
+	// in grey (see greyWhenClean): it is binarised by Otsu's method only to
+	// find the speckle and border ink that clean-up whitens in the grey page.
+	var grey *image.Gray
+	if auto && method == "otsu" && !denoise && !blank && greyWhenClean {
+		grey = image.NewGray(g.Rect)
+		copy(grey.Pix, g.Pix)
+	}
+
 	switch method {
 	case "otsu":
 		p.Threshold = otsu(histogram(g))
@@ -257,11 +270,37 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 	}
 
 	if p.Binarization != "none" && o.Cleanup != Off && !blank {
-		res, _ := cleanup(g, nil)
-		step("cleanup", res.specks+res.borders > 0, "removed %d specks (%d px, ≤ %d px each) and %d border regions (%d px)",
-			res.specks, res.speckPixels, res.maxSpeck, res.borders, res.borderPixels)
+		dust := 0.0
+		if grey != nil {
+			dust = dustFraction
+		}
+		res, _ := clean(g, nil, dust)
+		switch {
+		case res.specksKept:
+			step("cleanup", res.borders > 0, "kept %d specks (%d px, ≤ %d px each: under %.0f%% of %d ink px, not dust); removed %d border regions (%d px)",
+				res.specks, res.speckPixels, res.maxSpeck, 100*dust, res.speckPixels+res.inkPixels, res.borders, res.borderPixels)
+		default:
+			step("cleanup", res.specks+res.borders > 0, "removed %d specks (%d px, ≤ %d px each) and %d border regions (%d px)",
+				res.specks, res.speckPixels, res.maxSpeck, res.borders, res.borderPixels)
+		}
 	} else {
 		step("cleanup", false, "skipped")
+	}
+
+	if grey != nil {
+		// Whiten in the grey page what clean-up removed: pixels Otsu made
+		// ink that are paper after clean-up.
+		n := 0
+		for i, v := range g.Pix {
+			if v == 255 && grey.Pix[i] <= uint8(p.Threshold) {
+				grey.Pix[i] = 255
+				n++
+			}
+		}
+		g = grey
+		step("grey", true, "evenly lit, noise %.1f below %.0f: handed over in grey (Otsu threshold %d used only for clean-up, %d px whitened)",
+			p.Noise, DenoiseThreshold, p.Threshold, n)
+		p.Binarization, p.Threshold = "none", 0
 	}
 
 	if blank {
@@ -326,6 +365,19 @@ func clipBox(b Box, w, h int) Box {
 	x1, y1 := min(max(b.X+b.W, 0), w), min(max(b.Y+b.H, 0), h)
 	return Box{X: x0, Y: y0, W: max(0, x1-x0), H: max(0, y1-y0)}
 }
+
+// greyWhenClean switches the grey hand-over of evenly lit, low-noise pages
+// in automatic mode (see Prepare). Tesseract thresholds a grey page with
+// Otsu's method itself, so a global Otsu threshold of ours earns nothing
+// there, and on worn type it was measured to lose characters.
+var greyWhenClean = true
+
+// dustFraction: on a page handed over in grey, clean-up whitens speckle
+// only when speckle makes up at least this fraction of the ink pixels
+// (dust). Worn type breaks into a few fragments of speckle size (about 0.1 %
+// of the ink on ocr/synth's "worn" pages), and whitening them cost
+// characters; dust of 0.5 % of the pixels makes several percent of the ink.
+const dustFraction = 0.01
 
 // minInk is the number of ink pixels at half size (about 4 times as many at
 // full size: a quarter of a 12-point letter at 300 dpi) below which a page

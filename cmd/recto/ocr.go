@@ -59,7 +59,7 @@ func (o *OCROptions) AddFlags(c *cobra.Command) {
 	f.StringVar(&o.Deskew, "deskew", "auto", "straighten skewed pages: `auto`, on or off")
 	f.StringVar(&o.Denoise, "denoise", "auto", "remove speckle noise: `auto`, on or off")
 	f.StringVar(&o.Cleanup, "cleanup", "auto", "clear borders and specks after binarisation: `auto`, on or off")
-	f.StringVar(&o.Binarize, "binarize", "auto", "binarisation `method`: auto, otsu, sauvola or none")
+	f.StringVar(&o.Binarize, "binarize", "auto", "binarisation `method`: auto (Sauvola where light is uneven, Otsu on denoised pages, grey otherwise), otsu, sauvola or none")
 	f.Float64Var(&o.MaxSkew, "max-skew", 0, "largest skew searched, in `degrees` (0: the preparation default)")
 	c.MarkFlagRequired("out")
 }

@@ -159,6 +159,9 @@ type scratch struct {
 	arena []byte
 	vbuf  []byte
 	qbuf  []byte
+	pre   []uint64 // polyHash of each prefix of a word being expanded
+	suf   []uint64 // polyHash of each suffix
+	pow   []uint64 // powers of polyBase
 }
 
 // edit replaces tokens [i, i+n) by words.
@@ -609,37 +612,61 @@ func (c *Corrector) expansions(s *scratch, q string, known bool, floor, minStep 
 	}
 	found := s.found[:0]
 	s.arena, s.front = s.arena[:0], s.front[:0]
+	// level makes the variants of w by undoing one confusion. Each
+	// variant's hash is composed from w's prefix and suffix hashes and the
+	// confusion's own, so a variant's bytes are built only when it may be
+	// a word or must be kept for the second level.
 	level := func(w []byte, acc float64, first bool) {
-		for k := 0; k < len(w); k++ {
+		n := len(w)
+		s.pre = slices.Grow(s.pre[:0], n+1)[:n+1]
+		s.suf = slices.Grow(s.suf[:0], n+1)[:n+1]
+		s.pow = slices.Grow(s.pow[:0], n+1)[:n+1]
+		s.pre[0], s.suf[n], s.pow[0] = 0, 0, 1
+		for k := 0; k < n; k++ {
+			s.pre[k+1] = s.pre[k]*polyBase + uint64(w[k])
+			s.pow[k+1] = s.pow[k] * polyBase
+		}
+		for k := n - 1; k >= 0; k-- {
+			s.suf[k] = uint64(w[k])*s.pow[n-1-k] + s.suf[k+1]
+		}
+		for k := 0; k < n; k++ {
 			if w[k]&0xc0 == 0x80 {
 				continue // inside a multi-byte rune
 			}
-			for _, x := range c.m.expFirst[w[k]] {
+			for i := range c.m.expFirst[w[k]] {
+				x := &c.m.expFirst[w[k]][i]
 				if acc+x.logp <= floor || x.logp < minStep {
 					break // sorted, most likely first
 				}
 				if !hasPrefix(w[k:], x.to) {
 					continue
 				}
-				v := append(append(append(s.vbuf[:0], w[:k]...), x.from...), w[k+len(x.to):]...)
-				s.vbuf = v
-				h := hashBytes(v)
+				if s.seenV.full() {
+					// Every later variant would be refused: stop.
+					return
+				}
+				rest := n - k - len(x.to)
+				ph := (s.pre[k]*x.fromPow+x.fromH)*s.pow[rest] + s.suf[k+len(x.to)]
+				h := polyFinish(ph, k+len(x.from)+rest)
 				if !s.seenV.add(h) {
 					continue
 				}
-				if !c.ix.mayHave(h) {
-					if first {
-						s.front = append(s.front, frontier{off: len(s.arena), n: len(v), logp: acc + x.logp})
-						s.arena = append(s.arena, v...)
-					}
+				may := c.ix.mayHave(h)
+				if !may && !first {
 					continue
 				}
-				if id, ok := c.ix.id[string(v)]; ok {
-					found = append(found, c.ix.words[id])
-					if known {
-						s.logp[c.ix.words[id]] = acc + x.logp
+				v := append(append(append(s.vbuf[:0], w[:k]...), x.from...), w[k+len(x.to):]...)
+				s.vbuf = v
+				if may {
+					if id, ok := c.ix.id[string(v)]; ok {
+						found = append(found, c.ix.words[id])
+						if known {
+							s.logp[c.ix.words[id]] = acc + x.logp
+						}
+						continue
 					}
-				} else if first {
+				}
+				if first {
 					s.front = append(s.front, frontier{off: len(s.arena), n: len(v), logp: acc + x.logp})
 					s.arena = append(s.arena, v...)
 				}
@@ -652,7 +679,12 @@ func (c *Corrector) expansions(s *scratch, q string, known bool, floor, minStep 
 		// Second confusions only from the likeliest first ones.
 		slices.SortStableFunc(s.front, func(a, b frontier) int { return cmp.Compare(b.logp, a.logp) })
 		for i, f := range s.front {
-			if len(found) >= maxExpansions || i == maxFrontier {
+			if len(found) >= maxExpansions || i == maxFrontier || s.seenV.full() {
+				break
+			}
+			if f.logp+c.m.expMax <= floor {
+				// Sorted: no confusion lifts this or any later variant
+				// above the floor.
 				break
 			}
 			level(s.arena[f.off:f.off+f.n], f.logp, false)
@@ -731,6 +763,9 @@ func (v *variantSet) reset() {
 	}
 }
 
+// full reports whether add refuses every hash not yet recorded.
+func (v *variantSet) full() bool { return v.n >= 2*maxExpansions }
+
 // add records h and reports whether it was new and there was room.
 func (v *variantSet) add(h uint64) bool {
 	h |= 1
@@ -750,23 +785,43 @@ func (v *variantSet) add(h uint64) bool {
 	}
 }
 
-func hashString(s string) uint64 {
-	h := uint64(fnvOffset)
+// polyBase is the base of polyHash, odd so that powers never vanish mod
+// 2^64.
+const polyBase = 0x100000001b3
+
+// polyHash is the polynomial hash sum b[i]·polyBase^(len-1-i) mod 2^64,
+// which composes: polyHash(a+b) = polyHash(a)·polyBase^len(b) +
+// polyHash(b).
+func polyHash(s string) uint64 {
+	var h uint64
 	for i := 0; i < len(s); i++ {
-		h ^= uint64(s[i])
-		h *= fnvPrime
+		h = h*polyBase + uint64(s[i])
 	}
 	return h
 }
 
-func hashBytes(b []byte) uint64 {
-	h := uint64(fnvOffset)
-	for _, c := range b {
-		h ^= uint64(c)
-		h *= fnvPrime
+// polyPow returns polyBase^n mod 2^64.
+func polyPow(n int) uint64 {
+	p := uint64(1)
+	for range n {
+		p *= polyBase
 	}
-	return h
+	return p
 }
+
+// polyFinish mixes a polynomial hash with the string's length (the
+// splitmix64 finaliser, Steele, Lea and Flood 2014) so that every bit of
+// the result depends on every byte: the Bloom filter and the seen-variant
+// table index by low and middle bits.
+func polyFinish(h uint64, n int) uint64 {
+	z := h + uint64(n)*0x9e3779b97f4a7c15
+	z = (z ^ z>>30) * 0xbf58476d1ce4e5b9
+	z = (z ^ z>>27) * 0x94d049bb133111eb
+	return z ^ z>>31
+}
+
+// wordHash is the hash the Bloom filter and the seen-variant table use.
+func wordHash(s string) uint64 { return polyFinish(polyHash(s), len(s)) }
 
 // bestSplit finds the likeliest split of q into two lexicon words.
 func (c *Corrector) bestSplit(s *scratch, q, prev, next string) (string, string, float64, bool) {

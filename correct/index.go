@@ -23,14 +23,14 @@ type deleteIndex struct {
 	counts []int64           // unigram counts, by id
 	keys   []uint64          // sorted deletion hashes
 	ids    []uint32          // ids[i] is the word filed under keys[i]
-	bloom  []uint64          // Bloom filter of the words' hashBytes, 2 probes
+	bloom  []uint64          // Bloom filter of the words' wordHash, 2 probes
 }
 
 // bloomBits is the size of deleteIndex.bloom in bits (256 KiB): about 20
 // bits a word for the embedded lexicon, so about 1 % false positives.
 const bloomBits = 1 << 21
 
-// mayHave reports whether the word with hashBytes h may be in the index;
+// mayHave reports whether the word with wordHash h may be in the index;
 // false means it is not. Most variants made by undoing confusions are not
 // words, and the filter answers for them without touching the word map.
 func (ix *deleteIndex) mayHave(h uint64) bool {
@@ -96,7 +96,7 @@ func buildIndex(lex *lexicon.Lexicon) *deleteIndex {
 		id := uint32(len(ix.words))
 		ix.words = append(ix.words, w)
 		ix.id[w] = id
-		h := hashString(w)
+		h := wordHash(w)
 		a, b := h&(bloomBits-1), (h>>32)&(bloomBits-1)
 		ix.bloom[a>>6] |= 1 << (a & 63)
 		ix.bloom[b>>6] |= 1 << (b & 63)

@@ -159,6 +159,7 @@ type scratch struct {
 	arena []byte
 	vbuf  []byte
 	qbuf  []byte
+	top   []frontier
 	pre   []uint64 // polyHash of each prefix of a word being expanded
 	suf   []uint64 // polyHash of each suffix
 	pow   []uint64 // powers of polyBase
@@ -676,9 +677,26 @@ func (c *Corrector) expansions(s *scratch, q string, known bool, floor, minStep 
 	s.qbuf = append(s.qbuf[:0], q...)
 	level(s.qbuf, 0, true)
 	if !known {
-		// Second confusions only from the likeliest first ones.
-		slices.SortStableFunc(s.front, func(a, b frontier) int { return cmp.Compare(b.logp, a.logp) })
-		for i, f := range s.front {
+		// Second confusions only from the likeliest first ones: the first
+		// maxFrontier of a stable sort by falling logp, picked by insertion
+		// (a later variant goes after those at least as likely).
+		top := s.top[:0]
+		for _, f := range s.front {
+			pos := len(top)
+			for pos > 0 && top[pos-1].logp < f.logp {
+				pos--
+			}
+			if pos == maxFrontier {
+				continue
+			}
+			if len(top) < maxFrontier {
+				top = append(top, frontier{})
+			}
+			copy(top[pos+1:], top[pos:])
+			top[pos] = f
+		}
+		s.top = top
+		for i, f := range top {
 			if len(found) >= maxExpansions || i == maxFrontier || s.seenV.full() {
 				break
 			}

@@ -24,6 +24,12 @@ type deleteIndex struct {
 	keys   []uint64          // sorted deletion hashes
 	ids    []uint32          // ids[i] is the word filed under keys[i]
 	bloom  []uint64          // Bloom filter of the words' wordHash, 2 probes
+	// start[b] is the first i with keys[i]>>shift >= b: the keys in
+	// bucket b are keys[start[b]:start[b+1]], a few on average, so a
+	// lookup touches the table and one short run instead of binary
+	// searching millions of keys.
+	start []uint32
+	shift uint
 }
 
 // bloomBits is the size of deleteIndex.bloom in bits (256 KiB): about 20
@@ -125,6 +131,21 @@ func buildIndex(lex *lexicon.Lexicon) *deleteIndex {
 	for i, p := range pairs {
 		ix.keys[i], ix.ids[i] = p.h, p.id
 	}
+	bits := uint(1)
+	for bits < 24 && len(ix.keys)>>bits > 8 {
+		bits++
+	}
+	ix.shift = 64 - bits
+	ix.start = make([]uint32, 1<<bits+1)
+	b := 0
+	for i, k := range ix.keys {
+		for ; b <= int(k>>ix.shift); b++ {
+			ix.start[b] = uint32(i)
+		}
+	}
+	for ; b < len(ix.start); b++ {
+		ix.start[b] = uint32(len(ix.keys))
+	}
 	return ix
 }
 
@@ -179,8 +200,10 @@ func (ix *deleteIndex) lookup(rs []rune, depth int, hs []uint64, ids []uint32, s
 	hs = deletionHashes(rs, depth, hs[:0])
 	clear(seen)
 	for _, h := range hs {
-		i, _ := slices.BinarySearch(ix.keys, h)
-		for ; i < len(ix.keys) && ix.keys[i] == h; i++ {
+		b := h >> ix.shift
+		lo, hi := int(ix.start[b]), int(ix.start[b+1])
+		i, _ := slices.BinarySearch(ix.keys[lo:hi], h)
+		for i += lo; i < len(ix.keys) && ix.keys[i] == h; i++ {
 			id := ix.ids[i]
 			if _, ok := seen[id]; ok {
 				continue

@@ -388,7 +388,7 @@ func (c *Corrector) bigram(a, b string) float64 {
 // logUni returns log P(w) with add-one-half smoothing over lexicon and
 // collection counts.
 func (c *Corrector) logUni(w string) float64 {
-	return math.Log((c.count(w) + 0.5) / c.total)
+	return math.Log((c.count(w) + 0.5) / c.total) // as in contextScorer.score
 }
 
 // logCond is the stupid-backoff score of w after p (Brants, Popat, Xu,
@@ -402,9 +402,63 @@ func (c *Corrector) logCond(p, w string) float64 {
 				return math.Log(nb / np)
 			}
 		}
-		return math.Log(backoff) + c.logUni(w)
+		return logBackoff + c.logUni(w)
 	}
 	return c.logUni(w)
+}
+
+// logBackoff is log(backoff).
+var logBackoff = math.Log(backoff)
+
+// contextScorer scores many candidates between the same neighbours: what
+// depends on the neighbours alone (the left word's count, the backed-off
+// score of the right word) is looked up once, and each candidate's count
+// at most once. score(w) equals logContext(prev, w, next) bit for bit.
+type contextScorer struct {
+	c          *Corrector
+	prev, next string
+	prevN      float64 // count(prev)
+	nextBack   float64 // log(backoff) + logUni(next)
+}
+
+func (c *Corrector) contextFor(prev, next string) contextScorer {
+	x := contextScorer{c: c, prev: prev, next: next}
+	if prev != "" {
+		x.prevN = c.count(prev)
+	}
+	if next != "" {
+		x.nextBack = logBackoff + c.logUni(next)
+	}
+	return x
+}
+
+func (x *contextScorer) score(w string) float64 {
+	c := x.c
+	cw, have := 0.0, false
+	var v float64
+	if x.prev != "" {
+		if nb := c.bigram(x.prev, w); nb > 0 && x.prevN >= nb {
+			v = math.Log(nb / x.prevN)
+		} else {
+			cw, have = c.count(w), true
+			v = logBackoff + math.Log((cw+0.5)/c.total)
+		}
+	} else {
+		cw, have = c.count(w), true
+		v = math.Log((cw + 0.5) / c.total)
+	}
+	if x.next != "" {
+		if nb := c.bigram(w, x.next); nb > 0 {
+			if !have {
+				cw = c.count(w)
+			}
+			if cw >= nb {
+				return v + math.Log(nb/cw)
+			}
+		}
+		v += x.nextBack
+	}
+	return v
 }
 
 // logContext scores w between prev and next.
@@ -485,6 +539,7 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		return edit{}, false
 	}
 	best, bestScore := "", math.Inf(-1)
+	ctx := c.contextFor(prev, next)
 	// scoreAll scores words likeliest-in-context first: once a word's
 	// context score plus the best channel score any candidate can have
 	// falls below the best so far, none of the rest can win.
@@ -492,7 +547,7 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		s.lm = s.lm[:0]
 		for _, w := range words {
 			if w != q {
-				s.lm = append(s.lm, neighbour{word: w, logp: c.logContext(prev, w, next)})
+				s.lm = append(s.lm, neighbour{word: w, logp: ctx.score(w)})
 			}
 		}
 		slices.SortFunc(s.lm, func(a, b neighbour) int {
@@ -519,7 +574,7 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		// still win cost a context score.
 		for _, x := range c.realWordNeighbours(s, q) {
 			if x.word != q && x.logp > keep+margin && x.ch > keep+margin {
-				if v := x.ch + c.logContext(prev, x.word, next); v > bestScore || (v == bestScore && x.word < best) {
+				if v := x.ch + ctx.score(x.word); v > bestScore || (v == bestScore && x.word < best) {
 					best, bestScore = x.word, v
 				}
 			}

@@ -378,7 +378,10 @@ func (c *Corrector) count(w string) float64 {
 }
 
 func (c *Corrector) bigram(a, b string) float64 {
-	n := float64(c.lex.Bigram(a, b))
+	var n float64
+	if c.ix.pairs.mayHave(lexicon.Key(a), lexicon.Key(b)) {
+		n = float64(c.lex.Bigram(a, b))
+	}
 	if c.coll != nil {
 		n += float64(c.coll.Bigram(a, b))
 	}

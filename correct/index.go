@@ -30,6 +30,7 @@ type deleteIndex struct {
 	// searching millions of keys.
 	start []uint32
 	shift uint
+	pairs *pairFilter // the lexicon's word pairs
 }
 
 // bloomBits is the size of deleteIndex.bloom in bits (256 KiB): about 20
@@ -91,7 +92,7 @@ type hashID struct {
 }
 
 func buildIndex(lex *lexicon.Lexicon) *deleteIndex {
-	ix := &deleteIndex{id: make(map[string]uint32), bloom: make([]uint64, bloomBits/64)}
+	ix := &deleteIndex{id: make(map[string]uint32), bloom: make([]uint64, bloomBits/64), pairs: buildPairFilter(lex)}
 	var pairs []hashID
 	var rs []rune
 	var hs []uint64

@@ -7,6 +7,7 @@ import (
 	"strings"
 	"sync"
 	"sync/atomic"
+	"unicode/utf8"
 
 	"recto/lexicon"
 	"recto/ocr"
@@ -908,9 +909,20 @@ func (c *Corrector) bestSplit(s *scratch, q, prev, next string) (string, string,
 	best := math.Inf(-1)
 	var b1, b2 string
 	base := s.obs.identity(c.m) + c.m.spaceDel
+	// For valid UTF-8 the halves are substrings of q (no copies).
+	valid := utf8.ValidString(q)
+	off := 0
 	for k := 1; k < len(rs); k++ {
-		w1, w2 := string(rs[:k]), string(rs[k:])
-		if !splitPart(w1) || !splitPart(w2) || !c.lex.Has(w1) || !c.lex.Has(w2) || c.lex.Count(w1) == 0 || c.lex.Count(w2) == 0 {
+		var w1, w2 string
+		if valid {
+			off += utf8.RuneLen(rs[k-1])
+			w1, w2 = q[:off], q[off:]
+		} else {
+			w1, w2 = string(rs[:k]), string(rs[k:])
+		}
+		// A word with a count other than 0 is in the lexicon: Count alone
+		// answers both "listed" and "counted".
+		if !splitPart(w1) || !splitPart(w2) || c.lex.Count(w1) == 0 || c.lex.Count(w2) == 0 {
 			continue
 		}
 		v := base + c.logCond(prev, w1) + c.logCond(w1, w2)

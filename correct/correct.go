@@ -7,6 +7,7 @@ import (
 	"strings"
 	"sync"
 	"sync/atomic"
+	"unicode/utf8"
 
 	"recto/lexicon"
 	"recto/ocr"
@@ -159,6 +160,10 @@ type scratch struct {
 	arena []byte
 	vbuf  []byte
 	qbuf  []byte
+	top   []frontier
+	pre   []uint64 // polyHash of each prefix of a word being expanded
+	suf   []uint64 // polyHash of each suffix
+	pow   []uint64 // powers of polyBase
 }
 
 // edit replaces tokens [i, i+n) by words.
@@ -374,7 +379,10 @@ func (c *Corrector) count(w string) float64 {
 }
 
 func (c *Corrector) bigram(a, b string) float64 {
-	n := float64(c.lex.Bigram(a, b))
+	var n float64
+	if c.ix.pairs.mayHave(lexicon.Key(a), lexicon.Key(b)) {
+		n = float64(c.lex.Bigram(a, b))
+	}
 	if c.coll != nil {
 		n += float64(c.coll.Bigram(a, b))
 	}
@@ -384,7 +392,7 @@ func (c *Corrector) bigram(a, b string) float64 {
 // logUni returns log P(w) with add-one-half smoothing over lexicon and
 // collection counts.
 func (c *Corrector) logUni(w string) float64 {
-	return math.Log((c.count(w) + 0.5) / c.total)
+	return math.Log((c.count(w) + 0.5) / c.total) // as in contextScorer.score
 }
 
 // logCond is the stupid-backoff score of w after p (Brants, Popat, Xu,
@@ -398,9 +406,63 @@ func (c *Corrector) logCond(p, w string) float64 {
 				return math.Log(nb / np)
 			}
 		}
-		return math.Log(backoff) + c.logUni(w)
+		return logBackoff + c.logUni(w)
 	}
 	return c.logUni(w)
+}
+
+// logBackoff is log(backoff).
+var logBackoff = math.Log(backoff)
+
+// contextScorer scores many candidates between the same neighbours: what
+// depends on the neighbours alone (the left word's count, the backed-off
+// score of the right word) is looked up once, and each candidate's count
+// at most once. score(w) equals logContext(prev, w, next) bit for bit.
+type contextScorer struct {
+	c          *Corrector
+	prev, next string
+	prevN      float64 // count(prev)
+	nextBack   float64 // log(backoff) + logUni(next)
+}
+
+func (c *Corrector) contextFor(prev, next string) contextScorer {
+	x := contextScorer{c: c, prev: prev, next: next}
+	if prev != "" {
+		x.prevN = c.count(prev)
+	}
+	if next != "" {
+		x.nextBack = logBackoff + c.logUni(next)
+	}
+	return x
+}
+
+func (x *contextScorer) score(w string) float64 {
+	c := x.c
+	cw, have := 0.0, false
+	var v float64
+	if x.prev != "" {
+		if nb := c.bigram(x.prev, w); nb > 0 && x.prevN >= nb {
+			v = math.Log(nb / x.prevN)
+		} else {
+			cw, have = c.count(w), true
+			v = logBackoff + math.Log((cw+0.5)/c.total)
+		}
+	} else {
+		cw, have = c.count(w), true
+		v = math.Log((cw + 0.5) / c.total)
+	}
+	if x.next != "" {
+		if nb := c.bigram(w, x.next); nb > 0 {
+			if !have {
+				cw = c.count(w)
+			}
+			if cw >= nb {
+				return v + math.Log(nb/cw)
+			}
+		}
+		v += x.nextBack
+	}
+	return v
 }
 
 // logContext scores w between prev and next.
@@ -481,6 +543,7 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		return edit{}, false
 	}
 	best, bestScore := "", math.Inf(-1)
+	ctx := c.contextFor(prev, next)
 	// scoreAll scores words likeliest-in-context first: once a word's
 	// context score plus the best channel score any candidate can have
 	// falls below the best so far, none of the rest can win.
@@ -488,7 +551,7 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		s.lm = s.lm[:0]
 		for _, w := range words {
 			if w != q {
-				s.lm = append(s.lm, neighbour{word: w, logp: c.logContext(prev, w, next)})
+				s.lm = append(s.lm, neighbour{word: w, logp: ctx.score(w)})
 			}
 		}
 		slices.SortFunc(s.lm, func(a, b neighbour) int {
@@ -515,7 +578,7 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		// still win cost a context score.
 		for _, x := range c.realWordNeighbours(s, q) {
 			if x.word != q && x.logp > keep+margin && x.ch > keep+margin {
-				if v := x.ch + c.logContext(prev, x.word, next); v > bestScore || (v == bestScore && x.word < best) {
+				if v := x.ch + ctx.score(x.word); v > bestScore || (v == bestScore && x.word < best) {
 					best, bestScore = x.word, v
 				}
 			}
@@ -609,37 +672,61 @@ func (c *Corrector) expansions(s *scratch, q string, known bool, floor, minStep 
 	}
 	found := s.found[:0]
 	s.arena, s.front = s.arena[:0], s.front[:0]
+	// level makes the variants of w by undoing one confusion. Each
+	// variant's hash is composed from w's prefix and suffix hashes and the
+	// confusion's own, so a variant's bytes are built only when it may be
+	// a word or must be kept for the second level.
 	level := func(w []byte, acc float64, first bool) {
-		for k := 0; k < len(w); k++ {
+		n := len(w)
+		s.pre = slices.Grow(s.pre[:0], n+1)[:n+1]
+		s.suf = slices.Grow(s.suf[:0], n+1)[:n+1]
+		s.pow = slices.Grow(s.pow[:0], n+1)[:n+1]
+		s.pre[0], s.suf[n], s.pow[0] = 0, 0, 1
+		for k := 0; k < n; k++ {
+			s.pre[k+1] = s.pre[k]*polyBase + uint64(w[k])
+			s.pow[k+1] = s.pow[k] * polyBase
+		}
+		for k := n - 1; k >= 0; k-- {
+			s.suf[k] = uint64(w[k])*s.pow[n-1-k] + s.suf[k+1]
+		}
+		for k := 0; k < n; k++ {
 			if w[k]&0xc0 == 0x80 {
 				continue // inside a multi-byte rune
 			}
-			for _, x := range c.m.expFirst[w[k]] {
+			for i := range c.m.expFirst[w[k]] {
+				x := &c.m.expFirst[w[k]][i]
 				if acc+x.logp <= floor || x.logp < minStep {
 					break // sorted, most likely first
 				}
 				if !hasPrefix(w[k:], x.to) {
 					continue
 				}
-				v := append(append(append(s.vbuf[:0], w[:k]...), x.from...), w[k+len(x.to):]...)
-				s.vbuf = v
-				h := hashBytes(v)
+				if s.seenV.full() {
+					// Every later variant would be refused: stop.
+					return
+				}
+				rest := n - k - len(x.to)
+				ph := (s.pre[k]*x.fromPow+x.fromH)*s.pow[rest] + s.suf[k+len(x.to)]
+				h := polyFinish(ph, k+len(x.from)+rest)
 				if !s.seenV.add(h) {
 					continue
 				}
-				if !c.ix.mayHave(h) {
-					if first {
-						s.front = append(s.front, frontier{off: len(s.arena), n: len(v), logp: acc + x.logp})
-						s.arena = append(s.arena, v...)
-					}
+				may := c.ix.mayHave(h)
+				if !may && !first {
 					continue
 				}
-				if id, ok := c.ix.id[string(v)]; ok {
-					found = append(found, c.ix.words[id])
-					if known {
-						s.logp[c.ix.words[id]] = acc + x.logp
+				v := append(append(append(s.vbuf[:0], w[:k]...), x.from...), w[k+len(x.to):]...)
+				s.vbuf = v
+				if may {
+					if id, ok := c.ix.id[string(v)]; ok {
+						found = append(found, c.ix.words[id])
+						if known {
+							s.logp[c.ix.words[id]] = acc + x.logp
+						}
+						continue
 					}
-				} else if first {
+				}
+				if first {
 					s.front = append(s.front, frontier{off: len(s.arena), n: len(v), logp: acc + x.logp})
 					s.arena = append(s.arena, v...)
 				}
@@ -649,10 +736,32 @@ func (c *Corrector) expansions(s *scratch, q string, known bool, floor, minStep 
 	s.qbuf = append(s.qbuf[:0], q...)
 	level(s.qbuf, 0, true)
 	if !known {
-		// Second confusions only from the likeliest first ones.
-		slices.SortStableFunc(s.front, func(a, b frontier) int { return cmp.Compare(b.logp, a.logp) })
-		for i, f := range s.front {
-			if len(found) >= maxExpansions || i == maxFrontier {
+		// Second confusions only from the likeliest first ones: the first
+		// maxFrontier of a stable sort by falling logp, picked by insertion
+		// (a later variant goes after those at least as likely).
+		top := s.top[:0]
+		for _, f := range s.front {
+			pos := len(top)
+			for pos > 0 && top[pos-1].logp < f.logp {
+				pos--
+			}
+			if pos == maxFrontier {
+				continue
+			}
+			if len(top) < maxFrontier {
+				top = append(top, frontier{})
+			}
+			copy(top[pos+1:], top[pos:])
+			top[pos] = f
+		}
+		s.top = top
+		for i, f := range top {
+			if len(found) >= maxExpansions || i == maxFrontier || s.seenV.full() {
+				break
+			}
+			if f.logp+c.m.expMax <= floor {
+				// Sorted: no confusion lifts this or any later variant
+				// above the floor.
 				break
 			}
 			level(s.arena[f.off:f.off+f.n], f.logp, false)
@@ -731,6 +840,9 @@ func (v *variantSet) reset() {
 	}
 }
 
+// full reports whether add refuses every hash not yet recorded.
+func (v *variantSet) full() bool { return v.n >= 2*maxExpansions }
+
 // add records h and reports whether it was new and there was room.
 func (v *variantSet) add(h uint64) bool {
 	h |= 1
@@ -750,23 +862,43 @@ func (v *variantSet) add(h uint64) bool {
 	}
 }
 
-func hashString(s string) uint64 {
-	h := uint64(fnvOffset)
+// polyBase is the base of polyHash, odd so that powers never vanish mod
+// 2^64.
+const polyBase = 0x100000001b3
+
+// polyHash is the polynomial hash sum b[i]·polyBase^(len-1-i) mod 2^64,
+// which composes: polyHash(a+b) = polyHash(a)·polyBase^len(b) +
+// polyHash(b).
+func polyHash(s string) uint64 {
+	var h uint64
 	for i := 0; i < len(s); i++ {
-		h ^= uint64(s[i])
-		h *= fnvPrime
+		h = h*polyBase + uint64(s[i])
 	}
 	return h
 }
 
-func hashBytes(b []byte) uint64 {
-	h := uint64(fnvOffset)
-	for _, c := range b {
-		h ^= uint64(c)
-		h *= fnvPrime
+// polyPow returns polyBase^n mod 2^64.
+func polyPow(n int) uint64 {
+	p := uint64(1)
+	for range n {
+		p *= polyBase
 	}
-	return h
+	return p
 }
+
+// polyFinish mixes a polynomial hash with the string's length (the
+// splitmix64 finaliser, Steele, Lea and Flood 2014) so that every bit of
+// the result depends on every byte: the Bloom filter and the seen-variant
+// table index by low and middle bits.
+func polyFinish(h uint64, n int) uint64 {
+	z := h + uint64(n)*0x9e3779b97f4a7c15
+	z = (z ^ z>>30) * 0xbf58476d1ce4e5b9
+	z = (z ^ z>>27) * 0x94d049bb133111eb
+	return z ^ z>>31
+}
+
+// wordHash is the hash the Bloom filter and the seen-variant table use.
+func wordHash(s string) uint64 { return polyFinish(polyHash(s), len(s)) }
 
 // bestSplit finds the likeliest split of q into two lexicon words.
 func (c *Corrector) bestSplit(s *scratch, q, prev, next string) (string, string, float64, bool) {
@@ -777,9 +909,20 @@ func (c *Corrector) bestSplit(s *scratch, q, prev, next string) (string, string,
 	best := math.Inf(-1)
 	var b1, b2 string
 	base := s.obs.identity(c.m) + c.m.spaceDel
+	// For valid UTF-8 the halves are substrings of q (no copies).
+	valid := utf8.ValidString(q)
+	off := 0
 	for k := 1; k < len(rs); k++ {
-		w1, w2 := string(rs[:k]), string(rs[k:])
-		if !splitPart(w1) || !splitPart(w2) || !c.lex.Has(w1) || !c.lex.Has(w2) || c.lex.Count(w1) == 0 || c.lex.Count(w2) == 0 {
+		var w1, w2 string
+		if valid {
+			off += utf8.RuneLen(rs[k-1])
+			w1, w2 = q[:off], q[off:]
+		} else {
+			w1, w2 = string(rs[:k]), string(rs[k:])
+		}
+		// A word with a count other than 0 is in the lexicon: Count alone
+		// answers both "listed" and "counted".
+		if !splitPart(w1) || !splitPart(w2) || c.lex.Count(w1) == 0 || c.lex.Count(w2) == 0 {
 			continue
 		}
 		v := base + c.logCond(prev, w1) + c.logCond(w1, w2)

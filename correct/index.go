@@ -23,14 +23,21 @@ type deleteIndex struct {
 	counts []int64           // unigram counts, by id
 	keys   []uint64          // sorted deletion hashes
 	ids    []uint32          // ids[i] is the word filed under keys[i]
-	bloom  []uint64          // Bloom filter of the words' hashBytes, 2 probes
+	bloom  []uint64          // Bloom filter of the words' wordHash, 2 probes
+	// start[b] is the first i with keys[i]>>shift >= b: the keys in
+	// bucket b are keys[start[b]:start[b+1]], a few on average, so a
+	// lookup touches the table and one short run instead of binary
+	// searching millions of keys.
+	start []uint32
+	shift uint
+	pairs *pairFilter // the lexicon's word pairs
 }
 
 // bloomBits is the size of deleteIndex.bloom in bits (256 KiB): about 20
 // bits a word for the embedded lexicon, so about 1 % false positives.
 const bloomBits = 1 << 21
 
-// mayHave reports whether the word with hashBytes h may be in the index;
+// mayHave reports whether the word with wordHash h may be in the index;
 // false means it is not. Most variants made by undoing confusions are not
 // words, and the filter answers for them without touching the word map.
 func (ix *deleteIndex) mayHave(h uint64) bool {
@@ -85,7 +92,7 @@ type hashID struct {
 }
 
 func buildIndex(lex *lexicon.Lexicon) *deleteIndex {
-	ix := &deleteIndex{id: make(map[string]uint32), bloom: make([]uint64, bloomBits/64)}
+	ix := &deleteIndex{id: make(map[string]uint32), bloom: make([]uint64, bloomBits/64), pairs: buildPairFilter(lex)}
 	var pairs []hashID
 	var rs []rune
 	var hs []uint64
@@ -96,7 +103,7 @@ func buildIndex(lex *lexicon.Lexicon) *deleteIndex {
 		id := uint32(len(ix.words))
 		ix.words = append(ix.words, w)
 		ix.id[w] = id
-		h := hashString(w)
+		h := wordHash(w)
 		a, b := h&(bloomBits-1), (h>>32)&(bloomBits-1)
 		ix.bloom[a>>6] |= 1 << (a & 63)
 		ix.bloom[b>>6] |= 1 << (b & 63)
@@ -124,6 +131,21 @@ func buildIndex(lex *lexicon.Lexicon) *deleteIndex {
 	ix.ids = make([]uint32, len(pairs))
 	for i, p := range pairs {
 		ix.keys[i], ix.ids[i] = p.h, p.id
+	}
+	bits := uint(1)
+	for bits < 24 && len(ix.keys)>>bits > 8 {
+		bits++
+	}
+	ix.shift = 64 - bits
+	ix.start = make([]uint32, 1<<bits+1)
+	b := 0
+	for i, k := range ix.keys {
+		for ; b <= int(k>>ix.shift); b++ {
+			ix.start[b] = uint32(i)
+		}
+	}
+	for ; b < len(ix.start); b++ {
+		ix.start[b] = uint32(len(ix.keys))
 	}
 	return ix
 }
@@ -179,8 +201,10 @@ func (ix *deleteIndex) lookup(rs []rune, depth int, hs []uint64, ids []uint32, s
 	hs = deletionHashes(rs, depth, hs[:0])
 	clear(seen)
 	for _, h := range hs {
-		i, _ := slices.BinarySearch(ix.keys, h)
-		for ; i < len(ix.keys) && ix.keys[i] == h; i++ {
+		b := h >> ix.shift
+		lo, hi := int(ix.start[b]), int(ix.start[b+1])
+		i, _ := slices.BinarySearch(ix.keys[lo:hi], h)
+		for i += lo; i < len(ix.keys) && ix.keys[i] == h; i++ {
 			id := ix.ids[i]
 			if _, ok := seen[id]; ok {
 				continue

@@ -63,6 +63,7 @@ type Model struct {
 	spaceIns float64            // log P(a space is added inside a word), per character
 	expand   []expansion        // rewrites To→From for candidate expansion, most likely first
 	expFirst [256][]expansion   // expand by first byte of To
+	expMax   float64            // largest logp in expand (-Inf if none)
 	maxLogp  float64            // the likeliest confusion or unseen edit, log probability
 	maxEdit  float64            // the likeliest deletion or unseen edit, log probability
 }
@@ -78,6 +79,8 @@ type crule struct {
 type expansion struct {
 	to, from string
 	logp     float64
+	fromH    uint64 // polyHash of from
+	fromPow  uint64 // polyBase^len(from)
 }
 
 // modelFile is the on-disk form of a Model.
@@ -348,8 +351,12 @@ func (m *Model) compile() {
 		kept = append(kept, x)
 	}
 	m.expand = kept
-	for _, x := range m.expand {
-		m.expFirst[x.to[0]] = append(m.expFirst[x.to[0]], x)
+	m.expMax = math.Inf(-1)
+	for i := range m.expand {
+		x := &m.expand[i]
+		x.fromH, x.fromPow = polyHash(x.from), polyPow(len(x.from))
+		m.expMax = max(m.expMax, x.logp)
+		m.expFirst[x.to[0]] = append(m.expFirst[x.to[0]], *x)
 	}
 }
 

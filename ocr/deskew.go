@@ -120,11 +120,11 @@ func dither(i int) int32 {
 }
 
 // findSkew searches ±maxDeg for the skew of a page in three stages of the
-// projection-profile score: every 0.25° on at most 30,000 ink points of the
+// projection-profile score: every 0.25° on at most 15,000 ink points of the
 // binary half-size page b2; every 0.05° within ±0.3° of the best on at most
 // 100,000 of them; and every 0.02° within ±0.1° of that on the ink of the
 // full-size page g (pixels at or below level t within the 2×2 blocks of
-// b2's ink, at most about 200,000 of them, evenly spread), or on b2's ink
+// b2's ink, at most about 120,000 of them, evenly spread), or on b2's ink
 // again when
 // t < 0 (pages whose light varies, where no global level finds the ink).
 // Each of the last two stages fits a parabola through the best score and
@@ -138,7 +138,7 @@ func findSkew(b2, g *image.Gray, t int, maxDeg float64) (deg float64, ok bool) {
 		return 0, false
 	}
 	s := &skewScorer{w: w2, h: h2}
-	s.xs, s.ys = subsample(xs, 30000), subsample(ys, 30000)
+	s.xs, s.ys = subsample(xs, 15000), subsample(ys, 15000)
 	var total float64
 	var count int
 	best, bestScore := 0.0, -1.0
@@ -159,9 +159,9 @@ func findSkew(b2, g *image.Gray, t int, maxDeg float64) (deg float64, ok bool) {
 	best = s.search(best, 0.3, 0.05, maxDeg)
 	if t >= 0 {
 		// The full-size ink lies in the 2×2 blocks of the half-size
-		// ink: look only there, keeping at most about 200,000 points.
+		// ink: look only there, keeping at most about 120,000 points.
 		w, h := g.Rect.Dx(), g.Rect.Dy()
-		step := 4*len(xs)/200000 + 1
+		step := 4*len(xs)/120000 + 1
 		fx, fy := make([]int32, 0, 4*len(xs)/step+4), make([]int32, 0, 4*len(xs)/step+4)
 		k := 0
 		for i, x := range xs {

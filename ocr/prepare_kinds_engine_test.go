@@ -134,17 +134,6 @@ func TestWornNotWorse(t *testing.T) {
 	}
 	for _, seed := range seeds {
 		p := synth.Degrade(clean, synth.Degradation{Wear: 0.2, Contrast: 0.15, Blur: 0.8, Seed: seed})
-		var cer [2]float64
-		for i, plain := range []bool{false, true} {
-			rec, _, err := ocr.Process(context.Background(), e, p.Image, p.DPI, ocr.Options{NoPrepare: plain})
-			if err != nil {
-				t.Fatal(err)
-			}
-			cer[i], _ = quality.Compare(p.Truth, rec.Text(), quality.NormOptions{}).CER()
-		}
-		t.Logf("seed %d: recto CER %.4f, plain engine %.4f", seed, cer[0], cer[1])
-		if cer[0] > cer[1] {
-			t.Errorf("seed %d: recto CER %.4f is worse than the plain engine's %.4f", seed, cer[0], cer[1])
-		}
+		notWorse(t, e, p, fmt.Sprintf("seed %d", seed))
 	}
 }

@@ -207,17 +207,25 @@ func TestLowResolutionNotWorse(t *testing.T) {
 	}
 	for _, dpi := range dpis {
 		p := synth.Degrade(clean, synth.Degradation{Scale: dpi / 300, Blur: 0.8, Seed: 7})
-		var cer [2]float64
-		for i, plain := range []bool{false, true} {
-			rec, _, err := ocr.Process(context.Background(), e, p.Image, p.DPI, ocr.Options{NoPrepare: plain})
-			if err != nil {
-				t.Fatal(err)
-			}
-			cer[i], _ = quality.Compare(p.Truth, rec.Text(), quality.NormOptions{}).CER()
+		notWorse(t, e, p, fmt.Sprintf("%g dpi", dpi))
+	}
+}
+
+// notWorse recognises page p after automatic preparation and as the plain
+// greyscale page, and fails the test when preparation reads it worse (CER
+// by quality.Compare against p's truth).
+func notWorse(t *testing.T, e ocr.Engine, p *synth.Page, label string) {
+	t.Helper()
+	var cer [2]float64
+	for i, plain := range []bool{false, true} {
+		rec, _, err := ocr.Process(context.Background(), e, p.Image, p.DPI, ocr.Options{NoPrepare: plain})
+		if err != nil {
+			t.Fatal(err)
 		}
-		t.Logf("%g dpi: recto CER %.4f, plain engine %.4f", dpi, cer[0], cer[1])
-		if cer[0] > cer[1] {
-			t.Errorf("%g dpi: recto CER %.4f is worse than the plain engine's %.4f", dpi, cer[0], cer[1])
-		}
+		cer[i], _ = quality.Compare(p.Truth, rec.Text(), quality.NormOptions{}).CER()
+	}
+	t.Logf("%s: recto CER %.4f, plain engine %.4f", label, cer[0], cer[1])
+	if cer[0] > cer[1] {
+		t.Errorf("%s: recto CER %.4f is worse than the plain engine's %.4f", label, cer[0], cer[1])
 	}
 }

@@ -119,15 +119,7 @@ func TestPreparationKindsTreatments(t *testing.T) {
 // 0.0738 against the plain engine's 0.0662 and 0.0534. It skips when the
 // engine is unavailable.
 func TestWornNotWorse(t *testing.T) {
-	e, err := tesseract.New(tesseract.Config{})
-	if err != nil {
-		t.Skipf("engine check skipped: %v", err)
-	}
-	defer e.Close()
-	clean, rest, err := synth.Render(lowresPara, synth.Layout{WidthMM: 150, HeightMM: 62, MarginMM: 8})
-	if err != nil || rest != "" {
-		t.Fatalf("render: %v, left over %q", err, rest)
-	}
+	e, clean := smallPageEngine(t)
 	seeds := []uint64{7, 11}
 	if testing.Short() {
 		seeds = seeds[:1]

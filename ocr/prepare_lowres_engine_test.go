@@ -192,15 +192,7 @@ func TestLowResolutionTreatments(t *testing.T) {
 // character to Otsu's threshold (CER 0.0025 against 0). It skips when the
 // engine is unavailable.
 func TestLowResolutionNotWorse(t *testing.T) {
-	e, err := tesseract.New(tesseract.Config{})
-	if err != nil {
-		t.Skipf("engine check skipped: %v", err)
-	}
-	defer e.Close()
-	clean, rest, err := synth.Render(lowresPara, synth.Layout{WidthMM: 150, HeightMM: 62, MarginMM: 8})
-	if err != nil || rest != "" {
-		t.Fatalf("render: %v, left over %q", err, rest)
-	}
+	e, clean := smallPageEngine(t)
 	dpis := []float64{100, 120}
 	if testing.Short() {
 		dpis = dpis[:1]
@@ -209,6 +201,23 @@ func TestLowResolutionNotWorse(t *testing.T) {
 		p := synth.Degrade(clean, synth.Degradation{Scale: dpi / 300, Blur: 0.8, Seed: 7})
 		notWorse(t, e, p, fmt.Sprintf("%g dpi", dpi))
 	}
+}
+
+// smallPageEngine returns a Tesseract engine (closed when the test ends) and
+// the clean small test page (lowresPara on 150×62 mm at 300 dpi); it skips
+// the test when the engine is unavailable.
+func smallPageEngine(t *testing.T) (ocr.Engine, *synth.Page) {
+	t.Helper()
+	e, err := tesseract.New(tesseract.Config{})
+	if err != nil {
+		t.Skipf("engine check skipped: %v", err)
+	}
+	t.Cleanup(func() { e.Close() })
+	clean, rest, err := synth.Render(lowresPara, synth.Layout{WidthMM: 150, HeightMM: 62, MarginMM: 8})
+	if err != nil || rest != "" {
+		t.Fatalf("render: %v, left over %q", err, rest)
+	}
+	return e, clean
 }
 
 // notWorse recognises page p after automatic preparation and as the plain

@@ -33,6 +33,16 @@ type Config struct {
 	// KeepSpacing turns off splitting run-together words and joining
 	// split ones.
 	KeepSpacing bool
+	// KeepMarks leaves stray marks (tokens with no letter or digit that
+	// the model takes for specks read as punctuation) in the text.
+	KeepMarks bool
+	// MapGlyphs rewrites punctuation glyphs the model has learned the
+	// engine misreads consistently (a straight quotation mark read as a
+	// curly one) to the glyph the model's ground truth has there. It is a
+	// transcription convention as much as a correction, so it is off by
+	// default: use it with a model trained on the collection's own ground
+	// truth.
+	MapGlyphs bool
 	// Collection optionally adds unigram and bigram counts from the
 	// collection's own text to the lexicon's for the context model.
 	Collection *lexicon.Lexicon
@@ -111,8 +121,17 @@ const (
 	clearWin = 4.0
 	// maxFrontier bounds the one-confusion variants expanded again.
 	maxFrontier = 12
-	// maxExpansions bounds candidates made through confusions per token.
-	maxExpansions = 64
+	// runningConf is the confidence under which a dash, "&" or reference
+	// mark read on its own may be taken for a stray.
+	runningConf = 0.5
+	// pageMinWords is the least number of words a page needs for its
+	// share of unknown words to set the page prior; pageRef is the share
+	// at which the prior is neutral (0.03, 0.05 and 0.1 did equally well
+	// on the development pages) and pageFloor the least share counted (a
+	// page with no unknown word at all gets log(pageRef/pageFloor) ≈ 2.3).
+	pageMinWords = 20
+	pageRef      = 0.05
+	pageFloor    = 0.005
 	// backoff is the stupid-backoff factor (Brants et al. 2007).
 	backoff = 0.4
 )
@@ -153,6 +172,7 @@ type scratch struct {
 	seen  map[uint32]struct{}
 	seenV variantSet
 	lm    []neighbour // candidates with their context scores
+	page  float64     // added to every margin on this page (pagePrior)
 	cands []string
 	logp  map[string]float64 // expansions of a known word: the confusion's log probability
 	found []string
@@ -188,8 +208,19 @@ func (c *Corrector) CorrectText(text string) (string, []Change) {
 	pos := 0
 	for _, e := range eds {
 		first, last := toks[e.i], toks[e.i+e.n-1]
-		end := last.end
+		start, end := first.start, last.end
 		repl := strings.Join(e.words, " ")
+		if len(e.words) == 0 {
+			// A deleted stray takes one side's white space with it: the
+			// space after it on its line, else the space before it.
+			if !last.lineEnd && e.i+e.n < len(toks) {
+				end = toks[e.i+e.n].start
+			} else {
+				for start > pos && (text[start-1] == ' ' || text[start-1] == '\t') {
+					start--
+				}
+			}
+		}
 		if e.n == 2 && first.lineEnd {
 			// A hyphenated word joined across a line end: the line break
 			// moves after the joined word.
@@ -198,7 +229,7 @@ func (c *Corrector) CorrectText(text string) (string, []Change) {
 				repl += "\n"
 			}
 		}
-		b.WriteString(text[pos:first.start])
+		b.WriteString(text[pos:start])
 		b.WriteString(repl)
 		pos = end
 		changes = append(changes, Change{Line: first.line, Column: first.col,
@@ -246,6 +277,8 @@ func (c *Corrector) CorrectRecord(rec *ocr.Record) (*ocr.Record, []Change) {
 		}
 		w := out.Words[first.word]
 		switch {
+		case len(e.words) == 0:
+			// A stray deleted: the word goes; changes.jsonl keeps it.
 		case e.n == 1 && len(e.words) == 1:
 			w.Alt = append(w.Alt, w.Text)
 			w.Text = e.words[0]
@@ -318,6 +351,7 @@ func (c *Corrector) run(toks []token) []edit {
 	s := c.pool.Get().(*scratch)
 	defer c.pool.Put(s)
 	var eds []edit
+	s.page = c.pagePrior(toks)
 	prev := "" // lower-case left context; "" at a sentence or clause break
 	for i := 0; i < len(toks); i++ {
 		t := &toks[i]
@@ -325,7 +359,23 @@ func (c *Corrector) run(toks []token) []edit {
 		if i+1 < len(toks) {
 			nt = &toks[i+1]
 		}
+		if t.core == "" {
+			if e, ok := c.mark(s, toks, i); ok {
+				// A stray deleted: the words on either side are
+				// neighbours again, so prev stays.
+				e.i = i
+				eds = append(eds, e)
+				continue
+			}
+			if e, ok := c.glyphs(t); ok {
+				e.i = i
+				eds = append(eds, e)
+			}
+			prev = ""
+			continue
+		}
 		if e, ok := c.tryJoin(s, toks, i, prev); ok {
+			c.mapEdit(&e)
 			eds = append(eds, e)
 			prev = c.contextAfter(lookupForm(e.words[0]), toks[i+1].trail)
 			i++
@@ -338,14 +388,67 @@ func (c *Corrector) run(toks []token) []edit {
 		e, ok := c.word(s, t, prev, next)
 		if ok {
 			e.i = i
+			c.mapEdit(&e)
 			eds = append(eds, e)
 			_, core, _ := splitToken(e.words[len(e.words)-1])
 			prev = c.contextAfter(lookupForm(core), t.trail)
 			continue
 		}
+		if e, ok := c.glyphs(t); ok {
+			e.i = i
+			eds = append(eds, e)
+		}
 		prev = c.contextAfter(lookupForm(t.core), t.trail)
 	}
 	return eds
+}
+
+// mark decides whether to delete a token with no letter or digit as a
+// stray: the model's log odds that the engine read such a token where the
+// page has none must clear the margin for the token's confidence.
+func (c *Corrector) mark(s *scratch, toks []token, i int) (edit, bool) {
+	t := &toks[i]
+	if c.cfg.KeepMarks || !isMark(t.lead) {
+		return edit{}, false
+	}
+	if i > 0 && toks[i-1].lead == t.lead && toks[i-1].core == "" || i+1 < len(toks) && toks[i+1].lead == t.lead && toks[i+1].core == "" {
+		// A row of the same mark (". . .", leaders, a rule) is set so.
+		return edit{}, false
+	}
+	if runningMark(t.lead) && (t.conf < 0 || t.conf >= runningConf) {
+		// A dash or an ampersand, unless the engine hardly saw it, may
+		// well be printed there.
+		return edit{}, false
+	}
+	odds, ok := c.m.markOddsOf(t.lead)
+	if !ok || odds <= c.marginFor(t.conf)+s.page {
+		return edit{}, false
+	}
+	return edit{n: 1, score: odds}, true
+}
+
+// glyphs rewrites the punctuation glyphs of a token that the model maps.
+func (c *Corrector) glyphs(t *token) (edit, bool) {
+	if !c.cfg.MapGlyphs {
+		return edit{}, false
+	}
+	w, odds, ok := c.m.mapGlyphs(t.lead+t.core+t.trail, c.margin)
+	if !ok {
+		return edit{}, false
+	}
+	return edit{n: 1, words: []string{w}, score: odds}, true
+}
+
+// mapEdit rewrites the glyphs of an edit's words that the model maps.
+func (c *Corrector) mapEdit(e *edit) {
+	if !c.cfg.MapGlyphs {
+		return
+	}
+	for k, w := range e.words {
+		if m, _, ok := c.m.mapGlyphs(w, c.margin); ok {
+			e.words[k] = m
+		}
+	}
 }
 
 // contextAfter returns the left context a word leaves for the next one.
@@ -492,6 +595,36 @@ func (c *Corrector) known(w string) bool {
 	return false
 }
 
+// pagePrior returns what a page adds to every margin: the log of how much
+// less often than on a typical training page a word is misread there,
+// judged by the share of its words the lexicon lacks. On a page where
+// nearly every word is known, an unknown word is more likely a rare word
+// than an error, and the prior odds of an error fall with the page's error
+// rate (the error model's probabilities are averages over the training
+// pages).
+func (c *Corrector) pagePrior(toks []token) float64 {
+	n, oov := 0, 0
+	for i := range toks {
+		t := &toks[i]
+		if runeLen(t.core) < 2 {
+			continue
+		}
+		q := lookupForm(t.core)
+		if !plainWord(q) {
+			continue
+		}
+		n++
+		if !c.known(q) {
+			oov++
+		}
+	}
+	if n < pageMinWords {
+		return 0
+	}
+	share := math.Max(float64(oov)/float64(n), pageFloor)
+	return math.Max(0, math.Log(pageRef/share))
+}
+
 // marginFor returns the margin a token must clear, from its confidence.
 func (c *Corrector) marginFor(conf float64) float64 {
 	if conf < 0 {
@@ -509,12 +642,14 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 	q := lookupForm(t.core)
 	known := c.known(q)
 	raw := t.lead + t.core + t.trail
-	if protected(raw, t.core, known) || strings.HasPrefix(t.trail, "'") || strings.HasPrefix(t.trail, "’") {
-		// A trailing apostrophe marks an elision ("tellin'") or a plural
-		// possessive: the word is as the printer set it.
+	if protected(raw, t.core, known) || strings.HasPrefix(t.trail, "'") || strings.HasPrefix(t.trail, "’") ||
+		strings.HasSuffix(t.lead, "'") || strings.HasSuffix(t.lead, "’") {
+		// An apostrophe against the word marks an elision ("tellin'",
+		// "'em", "'gainst") or a plural possessive: the word is as the
+		// printer set it.
 		return edit{}, false
 	}
-	margin := c.marginFor(t.conf)
+	margin := c.marginFor(t.conf) + s.page
 	pattern := casePattern(t.core)
 	upper := startsUpper(t.core)
 	if known {
@@ -781,6 +916,9 @@ type neighbour struct {
 	ch   float64
 }
 
+// maxExpansions bounds candidates made through confusions per token.
+const maxExpansions = 64
+
 // maxCached bounds the words whose neighbours are remembered.
 const maxCached = 200_000
 
@@ -903,7 +1041,7 @@ func wordHash(s string) uint64 { return polyFinish(polyHash(s), len(s)) }
 // bestSplit finds the likeliest split of q into two lexicon words.
 func (c *Corrector) bestSplit(s *scratch, q, prev, next string) (string, string, float64, bool) {
 	rs := []rune(q)
-	if len(rs) < 4 {
+	if len(rs) < 3 {
 		return "", "", 0, false
 	}
 	best := math.Inf(-1)
@@ -1004,7 +1142,7 @@ func (c *Corrector) tryJoin(s *scratch, toks []token, i int, prev string) (edit,
 	if u.conf >= 0 && (conf < 0 || u.conf < conf) {
 		conf = u.conf
 	}
-	if v-keep <= c.marginFor(conf) {
+	if v-keep <= c.marginFor(conf)+s.page {
 		return edit{}, false
 	}
 	return edit{i: i, n: 2, words: []string{t.lead + applyCase(joined, pattern, upper) + u.trail}, score: v - keep}, true

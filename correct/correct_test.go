@@ -93,7 +93,7 @@ func TestLoadModelErrors(t *testing.T) {
 		w.Close()
 		return b.Bytes()
 	}
-	full := gz(`{"format":"recto-correct-model","version":1,"chars":10,"context":{"a":5},"rules":[{"from":"a","to":"o","n":1}]}`)
+	full := gz(`{"format":"recto-correct-model","version":2,"chars":10,"context":{"a":5},"rules":[{"from":"a","to":"o","n":1}],"marks":{".":{"n":3,"kept":1}},"glyphs":[{"read":"“","truth":"\"","n":4}]}`)
 	tests := []struct {
 		name    string
 		data    []byte
@@ -104,9 +104,13 @@ func TestLoadModelErrors(t *testing.T) {
 		{"truncated", full[:len(full)/2], "truncated or corrupt", ErrNotModel},
 		{"not JSON", gz("{"), "bad JSON", ErrNotModel},
 		{"other format", gz(`{"format":"recto-lexicon","version":1}`), "format", ErrNotModel},
-		{"newer version", gz(`{"format":"recto-correct-model","version":2,"chars":10}`), "version 2, this build reads version 1", ErrModelVersion},
-		{"inconsistent counts", gz(`{"format":"recto-correct-model","version":1,"chars":10,"context":{"a":1},"rules":[{"from":"a","to":"o","n":5}]}`), "seen 5 times", ErrNotModel},
-		{"empty rule", gz(`{"format":"recto-correct-model","version":1,"chars":10,"rules":[{"from":"","to":"","n":5}]}`), "invalid", ErrNotModel},
+		{"newer version", gz(`{"format":"recto-correct-model","version":3,"chars":10}`), "version 3, this build reads version 2", ErrModelVersion},
+		{"older version", gz(`{"format":"recto-correct-model","version":1,"chars":10}`), "version 1, this build reads version 2", ErrModelVersion},
+		{"inconsistent counts", gz(`{"format":"recto-correct-model","version":2,"chars":10,"context":{"a":1},"rules":[{"from":"a","to":"o","n":5}]}`), "seen 5 times", ErrNotModel},
+		{"empty rule", gz(`{"format":"recto-correct-model","version":2,"chars":10,"rules":[{"from":"","to":"","n":5}]}`), "invalid", ErrNotModel},
+		{"mark kept more often than seen", gz(`{"format":"recto-correct-model","version":2,"chars":10,"marks":{".":{"n":1,"kept":2}}}`), "mark", ErrNotModel},
+		{"mark with a letter", gz(`{"format":"recto-correct-model","version":2,"chars":10,"marks":{"a.":{"n":1,"kept":0}}}`), "mark", ErrNotModel},
+		{"glyph that is a letter", gz(`{"format":"recto-correct-model","version":2,"chars":10,"glyphs":[{"read":"a","truth":"\"","n":4}]}`), "glyph", ErrNotModel},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {

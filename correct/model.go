@@ -17,7 +17,7 @@ import (
 
 // ModelVersion is the version of the model file format written by this build.
 // LoadModel refuses any other version.
-const ModelVersion = 1
+const ModelVersion = 2
 
 // modelFormat names the file format inside the (gzip-compressed) JSON.
 const modelFormat = "recto-correct-model"
@@ -66,6 +66,13 @@ type Model struct {
 	expMax   float64            // largest logp in expand (-Inf if none)
 	maxLogp  float64            // the likeliest confusion or unseen edit, log probability
 	maxEdit  float64            // the likeliest deletion or unseen edit, log probability
+
+	// token-level counts (see marks.go) and what compileTokens makes of them
+	marks    map[string]MarkStat
+	glyphs   []GlyphStat
+	markOdds map[string]float64 // log odds that a mark read alone is a stray
+	markPool float64            // the same for marks seen too rarely to have their own; -Inf if none
+	glyphMap map[rune]glyphSub
 }
 
 // crule is a compiled rule: From as runes and its log probability.
@@ -85,13 +92,15 @@ type expansion struct {
 
 // modelFile is the on-disk form of a Model.
 type modelFile struct {
-	Format  string           `json:"format"`
-	Version int              `json:"version"`
-	Pairs   int              `json:"pairs"`
-	Words   int64            `json:"words"`
-	Chars   int64            `json:"chars"`
-	Context map[string]int64 `json:"context"`
-	Rules   []Rule           `json:"rules"`
+	Format  string              `json:"format"`
+	Version int                 `json:"version"`
+	Pairs   int                 `json:"pairs"`
+	Words   int64               `json:"words"`
+	Chars   int64               `json:"chars"`
+	Context map[string]int64    `json:"context"`
+	Rules   []Rule              `json:"rules"`
+	Marks   map[string]MarkStat `json:"marks"`
+	Glyphs  []GlyphStat         `json:"glyphs"`
 }
 
 //go:embed default.model
@@ -161,7 +170,31 @@ func readModel(r io.Reader) (*Model, error) {
 			return nil, fmt.Errorf("%w (rule %q→%q seen %d times but %q only %d times)", ErrNotModel, r.From, r.To, r.N, r.From, mf.Context[r.From])
 		}
 	}
-	return newModel(mf.Rules, mf.Context, mf.Chars, mf.Words, mf.Pairs), nil
+	for tok, st := range mf.Marks {
+		if !isMark(tok) || !utf8.ValidString(tok) || st.N <= 0 || st.Kept < 0 || st.Kept > st.N {
+			return nil, fmt.Errorf("%w (mark %q seen %d times, kept %d: invalid)", ErrNotModel, tok, st.N, st.Kept)
+		}
+	}
+	for i, g := range mf.Glyphs {
+		r, n := utf8.DecodeRuneInString(g.Read)
+		t, tn := utf8.DecodeRuneInString(g.Truth)
+		if g.N <= 0 || n == 0 || n != len(g.Read) || !isGlyph(r) || tn != len(g.Truth) || t == utf8.RuneError && g.Truth != "" {
+			return nil, fmt.Errorf("%w (glyph %d %q against %q: invalid)", ErrNotModel, i, g.Read, g.Truth)
+		}
+	}
+	m := newModel(mf.Rules, mf.Context, mf.Chars, mf.Words, mf.Pairs)
+	m.withTokens(mf.Marks, mf.Glyphs)
+	return m, nil
+}
+
+// withTokens sets the token-level counts and compiles them.
+func (m *Model) withTokens(marks map[string]MarkStat, glyphs []GlyphStat) {
+	m.marks = make(map[string]MarkStat, len(marks))
+	for k, v := range marks {
+		m.marks[k] = v
+	}
+	m.glyphs = append([]GlyphStat(nil), glyphs...)
+	m.compileTokens()
 }
 
 // Save writes the model to path (gzip-compressed JSON, versioned).
@@ -181,7 +214,8 @@ func (m *Model) write(w io.Writer) error {
 	for k, v := range m.context {
 		ctx[k] = v
 	}
-	mf := modelFile{Format: modelFormat, Version: ModelVersion, Pairs: m.pairs, Words: m.words, Chars: m.chars, Context: ctx, Rules: m.rules}
+	mf := modelFile{Format: modelFormat, Version: ModelVersion, Pairs: m.pairs, Words: m.words, Chars: m.chars, Context: ctx, Rules: m.rules,
+		Marks: m.marks, Glyphs: m.glyphs}
 	data, err := json.Marshal(mf)
 	if err != nil {
 		return err
@@ -250,6 +284,7 @@ func newModel(rules []Rule, context map[string]int64, chars, words int64, pairs 
 	}
 	m := &Model{rules: rs, context: ctx, chars: chars, words: words, pairs: pairs}
 	m.compile()
+	m.compileTokens()
 	return m
 }
 

@@ -65,7 +65,9 @@ func Train(pairs []Pair, o TrainOptions) *Model {
 	var refs [][]rune
 	var words int64
 	var sc quality.Scratch
-	var ops []quality.Op
+	var ops, wops []quality.Op
+	marks := make(map[string]*MarkStat)
+	glyphs := make(map[[2]rune]int64)
 	add := func(from, to string) {
 		if from == to || utf8.RuneCountInString(from) > maxRule || utf8.RuneCountInString(to) > maxRule {
 			return
@@ -77,7 +79,9 @@ func Train(pairs []Pair, o TrainOptions) *Model {
 		words += int64(len(strings.Fields(string(ref))))
 		refs = append(refs, ref)
 		ops = sc.Align(ref, hyp, ops[:0])
+		learnGlyphs(ops, glyphs)
 		learnOps(ops, add)
+		wops = learnMarks(&sc, p.Ref, p.Hyp, marks, wops)
 	}
 	// Count every From in the reference text.
 	need := make(map[string]int64)
@@ -141,7 +145,13 @@ func Train(pairs []Pair, o TrainOptions) *Model {
 			ctx[s] = n
 		}
 	}
-	return newModel(rules, ctx, max(chars, 1), words, len(pairs))
+	m := newModel(rules, ctx, max(chars, 1), words, len(pairs))
+	ms := make(map[string]MarkStat, len(marks))
+	for k, v := range marks {
+		ms[k] = *v
+	}
+	m.withTokens(ms, glyphStats(glyphs))
+	return m
 }
 
 // trainForm is the form texts are compared in: NFC, lower case, white space

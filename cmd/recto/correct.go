@@ -32,6 +32,8 @@ type CorrectOptions struct {
 	Margin     float64 // natural-log odds a correction must win by; 0 = default
 	Jobs       int     // pages corrected in parallel; 0 means GOMAXPROCS
 	Collection bool    // add the input pages' own word counts to the context model
+	KeepMarks  bool    // leave stray marks in
+	MapGlyphs  bool    // rewrite punctuation glyphs as the model's ground truth has them
 }
 
 // CorrectTrainOptions are the options of `recto correct train`.
@@ -61,8 +63,21 @@ score (how much likelier the correction is, as a natural-log ratio).
 
 A word is changed only when the best candidate beats the word as read by
 --margin. Numbers, dates, roman numerals, URLs and confident capitalised
-words the lexicon lacks (likely names) are left alone. Words hyphenated at
-a line end are joined when the joined word is in the lexicon.
+words the lexicon lacks (likely names) are left alone, and so are words
+with an apostrophe against them ('em, tellin'). Words hyphenated at a line
+end are joined when the joined word is in the lexicon. On a page where the
+lexicon knows nearly every word, every margin is raised: an unknown word
+there is more likely rare than misread.
+
+Stray marks -- a token with no letter or digit (. : ' | ;) that the model
+has learned is almost always a speck read as punctuation -- are deleted
+with the space beside them (change "after" is empty); rows of one mark
+(". . .") stay, and dashes, "&" and reference marks stay unless the engine
+read them with a confidence under 0.5. --keep-marks keeps them all.
+--map-glyphs also rewrites punctuation the model learned the engine
+misreads consistently (a straight quotation mark read as a curly one) as
+the model's ground truth has it: a transcription convention, so use it
+with a model trained on your own ground truth.
 
 The files under IN are never modified: --out must be another folder.
 --dry-run prints the changes (JSON lines) on stdout and writes nothing.
@@ -96,6 +111,8 @@ The files under IN are never modified: --out must be another folder.
 	f.Float64Var(&o.Margin, "margin", 0, fmt.Sprintf("log-odds `margin` a correction must win by (0 = %g; higher is more cautious)", correct.DefaultMargin))
 	f.IntVarP(&o.Jobs, "jobs", "j", 0, "pages corrected in parallel (`n`; default: number of CPUs)")
 	f.BoolVar(&o.Collection, "collection", false, "also count the input pages' known words and word pairs for the context")
+	f.BoolVar(&o.KeepMarks, "keep-marks", false, "leave stray marks (tokens with no letter or digit) in the text")
+	f.BoolVar(&o.MapGlyphs, "map-glyphs", false, "rewrite punctuation glyphs as the model's ground truth has them (curly/straight quotes)")
 	cmd.AddCommand(newCorrectTrainCommand(g))
 	return cmd
 }
@@ -111,6 +128,11 @@ character by character, and each run of differences of up to three
 characters a side is counted, alone and with a neighbouring character.
 The classic confusions of letter shapes (rn/m, cl/d, li/h, vv/w, 0/o, 1/l,
 5/s, e/c...) get a small prior weight even if your pages never show them.
+The pages are also aligned word by word to count, for each mark the engine
+read on its own between words (. : | ...), how often the ground truth had
+it there (for deleting strays), and character by character to count which
+character of the ground truth stands against each punctuation glyph read
+(for --map-glyphs).
 The model file (versioned, gzip-compressed JSON) is used with
 'recto correct --model'.
 ` + exitStatusHelp,
@@ -195,7 +217,7 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 			return err
 		}
 	}
-	cfg := correct.Config{Margin: o.Margin}
+	cfg := correct.Config{Margin: o.Margin, KeepMarks: o.KeepMarks, MapGlyphs: o.MapGlyphs}
 	if o.Collection {
 		cfg.Collection = collectionCounts(in, pages, lex)
 	}

@@ -45,6 +45,7 @@ func main() {
 	ocrDir := flag.String("ocr", "", "-eval with -truth: directory of the OCR records (.json) or text, same relative paths")
 	final := flag.Bool("final", false, "train on all of fit, development pages included (once the constants are set on dev)")
 	guard := flag.Bool("guard", false, "-eval: also correct the full source texts of the -corpus heldout pages as clean plain text (use with -lexicon fair, which leaves them out)")
+	keepGlyphs := flag.Bool("map-glyphs", false, "-eval: map punctuation glyphs as the model learned (Config.MapGlyphs)")
 	flag.Parse()
 	if *cpuprofile != "" {
 		f, err := os.Create(*cpuprofile)
@@ -84,7 +85,7 @@ func main() {
 		}
 		lex, err := loadLexicon(*lexFlag, *corpus, *dataDir)
 		check(err)
-		c := correct.New(lex, m, correct.Config{Margin: *margin})
+		c := correct.New(lex, m, correct.Config{Margin: *margin, MapGlyphs: *keepGlyphs})
 		switch {
 		case *truthDir != "":
 			check(evalDirs(c, *truthDir, *ocrDir, nil, *verbose))

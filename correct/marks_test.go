@@ -188,3 +188,25 @@ func TestElisionsKept(t *testing.T) {
 		}
 	}
 }
+
+// TestMisreadOrdinals: an ordinal with "I" or "l" read for the digit 1 is
+// no word and is left alone ("May Ist, 1820" once became "May Last").
+// Suffixes as in English ordinals (common practice: 1st, 2nd, 3rd, 11th,
+// 21st).
+func TestMisreadOrdinals(t *testing.T) {
+	for _, tt := range []struct {
+		core string
+		want bool
+	}{
+		{"Ist", true}, {"lst", true}, {"2Ist", true}, {"l2th", true}, {"IIth", true}, {"I3th", true},
+		{"Ith", false}, {"Ind", false}, {"IIst", false}, {"list", false}, {"Isth", false}, {"1st", false}, {"st", false},
+	} {
+		if got := misreadOrdinal(tt.core); got != tt.want {
+			t.Errorf("misreadOrdinal(%q) = %v, want %v", tt.core, got, tt.want)
+		}
+	}
+	c := testCorrector(Config{})
+	if out, _ := c.CorrectText("the act of May Ist, 1820, exacted"); out != "the act of May Ist, 1820, exacted" {
+		t.Errorf("changed to %q", out)
+	}
+}

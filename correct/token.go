@@ -177,13 +177,53 @@ func protected(raw, core string, known bool) bool {
 	if letters == 0 || digits > letters || (digits > 0 && letters < 2 && utf8.RuneCountInString(core) > 2) {
 		return true // numbers, dates, times, codes like A4
 	}
-	if digits > 0 && ordinalRe.MatchString(core) {
+	if digits > 0 && ordinalRe.MatchString(core) || misreadOrdinal(core) {
 		return true
 	}
 	if !known && romanRe.MatchString(core) && (casePattern(core) == caseUpper || len(core) <= 4) {
 		return true
 	}
 	return false
+}
+
+// misreadOrdinal reports whether core is an ordinal number with "I" or "l"
+// read for the digit 1 ("Ist", "2Ist", "l2th"): read with 1 for each, the
+// digits must end as the suffix requires (1st, 2nd, 3rd, else th; 11th to
+// 13th). Such a token is left alone: no word is meant there.
+func misreadOrdinal(core string) bool {
+	if len(core) < 3 {
+		return false
+	}
+	suf := strings.ToLower(core[len(core)-2:])
+	num := core[:len(core)-2]
+	if suf != "st" && suf != "nd" && suf != "rd" && suf != "th" || !strings.ContainsAny(num, "Il") {
+		return false
+	}
+	digits := []byte(num)
+	for i, b := range digits {
+		switch {
+		case b == 'I' || b == 'l':
+			digits[i] = '1'
+		case b < '0' || b > '9':
+			return false
+		}
+	}
+	last, tens := digits[len(digits)-1], byte('0')
+	if len(digits) > 1 {
+		tens = digits[len(digits)-2]
+	}
+	want := "th"
+	if tens != '1' {
+		switch last {
+		case '1':
+			want = "st"
+		case '2':
+			want = "nd"
+		case '3':
+			want = "rd"
+		}
+	}
+	return suf == want
 }
 
 // lookupForm is the lower-case form a core is looked up and scored in:

@@ -45,6 +45,7 @@ func main() {
 	ocrDir := flag.String("ocr", "", "-eval with -truth: directory of the OCR records (.json) or text, same relative paths")
 	final := flag.Bool("final", false, "train on all of fit, development pages included (once the constants are set on dev)")
 	guard := flag.Bool("guard", false, "-eval: also correct the full source texts of the -corpus heldout pages as clean plain text (use with -lexicon fair, which leaves them out)")
+	minCount := flag.Int("min-count", 0, "training: drop confusions of three or more characters seen fewer times (0 = the default, 2)")
 	keepGlyphs := flag.Bool("map-glyphs", false, "-eval: map punctuation glyphs as the model learned (Config.MapGlyphs)")
 	flag.Parse()
 	if *cpuprofile != "" {
@@ -63,7 +64,7 @@ func main() {
 		pairs, err := corpusPairs(*corpus, split)
 		check(err)
 		fmt.Fprintf(os.Stderr, "training on %d pages (%s)\n", len(pairs), split)
-		m := correct.Train(pairs, correct.TrainOptions{Prior: correct.Classic})
+		m := correct.Train(pairs, correct.TrainOptions{Prior: correct.Classic, MinCount: *minCount})
 		report(m)
 		if *out != "" {
 			check(m.Save(*out))

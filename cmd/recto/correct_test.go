@@ -121,6 +121,37 @@ func TestCorrectDryRun(t *testing.T) {
 	}
 }
 
+// TestCorrectStrayMarks: a stray mark read between words is deleted and
+// listed with an empty "after"; --keep-marks keeps it; --map-glyphs is
+// accepted (what it maps depends on the model; marks_test.go checks the
+// mapping itself).
+func TestCorrectStrayMarks(t *testing.T) {
+	in := filepath.Join(t.TempDir(), "in")
+	if err := os.MkdirAll(in, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(in, "p.txt"), []byte("the whale : rose from the sea\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	stdout, _, err := runRecto(t, "correct", in, "--dry-run", "-q")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(stdout, `"before":":","after":""`) {
+		t.Errorf("dry run %q does not delete the stray", stdout)
+	}
+	stdout, _, err = runRecto(t, "correct", in, "--dry-run", "-q", "--keep-marks")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if stdout != "" {
+		t.Errorf("--keep-marks still changed: %q", stdout)
+	}
+	if _, _, err := runRecto(t, "correct", in, "--dry-run", "-q", "--map-glyphs"); err != nil {
+		t.Errorf("--map-glyphs: %v", err)
+	}
+}
+
 func TestCorrectUsageAndBadInput(t *testing.T) {
 	in := correctFixture(t)
 	var ue *usageError

@@ -211,15 +211,7 @@ func (c *Corrector) CorrectText(text string) (string, []Change) {
 		start, end := first.start, last.end
 		repl := strings.Join(e.words, " ")
 		if len(e.words) == 0 {
-			// A deleted stray takes one side's white space with it: the
-			// space after it on its line, else the space before it.
-			if !last.lineEnd && e.i+e.n < len(toks) {
-				end = toks[e.i+e.n].start
-			} else {
-				for start > pos && (text[start-1] == ' ' || text[start-1] == '\t') {
-					start--
-				}
-			}
+			start, end = strayExtent(text, pos, start, end, !last.lineEnd && e.i+e.n < len(toks))
 		}
 		if e.n == 2 && first.lineEnd {
 			// A hyphenated word joined across a line end: the line break
@@ -237,6 +229,30 @@ func (c *Corrector) CorrectText(text string) (string, []Change) {
 	}
 	b.WriteString(text[pos:])
 	return b.String(), changes
+}
+
+// strayExtent widens the bytes [start, end) of a deleted stray to take
+// white space with it, not reaching before pos: a stray alone on its line
+// takes the whole line with its line break (no empty line is left, which
+// could read as a paragraph break); otherwise the space after it when a
+// word follows on its line (more), else the space before it.
+func strayExtent(text string, pos, start, end int, more bool) (int, int) {
+	isBlank := func(b byte) bool { return b == ' ' || b == '\t' || b == '\r' }
+	ls := start
+	for ls > pos && isBlank(text[ls-1]) {
+		ls--
+	}
+	le := end
+	for le < len(text) && isBlank(text[le]) {
+		le++
+	}
+	if (ls == 0 || ls > pos && text[ls-1] == '\n') && le < len(text) && text[le] == '\n' {
+		return ls, le + 1 // alone on its line
+	}
+	if more {
+		return start, le
+	}
+	return ls, end
 }
 
 func round3(v float64) float64 { return math.Round(v*1000) / 1000 }

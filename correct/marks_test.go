@@ -105,6 +105,19 @@ func TestStrayMarksDeleted(t *testing.T) {
 		changes[1].Before != ";" || changes[1].Line != 2 || changes[1].Column != 10 {
 		t.Errorf("changes %+v; want \":\" at 1:11 and \";\" at 2:10, each to nothing", changes)
 	}
+	// White space goes with the stray: a stray alone on its line takes
+	// the line (no empty line is left to read as a paragraph break).
+	for _, tt := range []struct{ in, want string }{
+		{": the whale", "the whale"},
+		{"the whale :", "the whale"},
+		{"the whale\n  :  \r\nrose", "the whale\nrose"},
+		{"the whale .\n: rose", "the whale\nrose"},
+		{"the\t:\twhale", "the\twhale"},
+	} {
+		if out, _ := c.CorrectText(tt.in); out != tt.want {
+			t.Errorf("CorrectText(%q) = %q, want %q", tt.in, out, tt.want)
+		}
+	}
 	if out, _ := New(lexicon.Default(), m, Config{KeepMarks: true}).CorrectText(in); out != in {
 		t.Errorf("KeepMarks changed the text to %q", out)
 	}

@@ -549,8 +549,55 @@ func runCorrectTrain(ctx context.Context, o CorrectTrainOptions, g GlobalOptions
 	if !g.Quiet {
 		fmt.Fprintf(g.stderr, "correct train: %d pairs (%d without OCR twin), %d reference characters, %d confusions\n",
 			len(pairs), missing, m.Chars(), len(m.Rules()))
+		fmt.Fprintf(g.stderr, "correct train: %s\n", trainSummary(m))
 	}
 	return nil
+}
+
+// trainSummary says which marks the model takes for strays (seen at least
+// ten times, almost never in the ground truth) and what --map-glyphs would
+// rewrite.
+func trainSummary(m *correct.Model) string {
+	type mark struct {
+		tok string
+		n   int64
+	}
+	var strays []mark
+	for tok, st := range m.Marks() {
+		if st.N >= 10 && st.Kept*20 < st.N {
+			strays = append(strays, mark{tok, st.N})
+		}
+	}
+	sort.Slice(strays, func(i, j int) bool {
+		if strays[i].n != strays[j].n {
+			return strays[i].n > strays[j].n
+		}
+		return strays[i].tok < strays[j].tok
+	})
+	var b strings.Builder
+	fmt.Fprintf(&b, "%d stray marks learned", len(strays))
+	for i, s := range strays {
+		if i == 8 {
+			b.WriteString(" ...")
+			break
+		}
+		fmt.Fprintf(&b, " %q×%d", s.tok, s.n)
+	}
+	glyphs := m.GlyphMap(0)
+	if len(glyphs) == 0 {
+		b.WriteString("; no glyph map (--map-glyphs would change nothing)")
+		return b.String()
+	}
+	keys := make([]string, 0, len(glyphs))
+	for k := range glyphs {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	b.WriteString("; --map-glyphs would rewrite")
+	for _, k := range keys {
+		fmt.Fprintf(&b, " %q→%q", k, glyphs[k])
+	}
+	return b.String()
 }
 
 func readUTF8(path string) (string, error) {

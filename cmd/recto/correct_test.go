@@ -201,6 +201,8 @@ func TestCorrectTrainCommand(t *testing.T) {
 		{"the modern whale", "the rnodern whale"},
 		{"some more men came", "sorne rnore rnen carne"},
 		{"a dim day", "a clim clay"},
+		{strings.Repeat("the whale rose ", 6), strings.Repeat("the : whale rose ", 6)},
+		{strings.Repeat("and the sea fell ", 6), strings.Repeat("and the : sea fell ", 6)},
 	} {
 		name := string(rune('a'+i)) + ".txt"
 		os.WriteFile(filepath.Join(truth, name), []byte(pair[0]), 0o644)
@@ -214,6 +216,9 @@ func TestCorrectTrainCommand(t *testing.T) {
 	}
 	if !strings.Contains(stderr, "lonely.txt") {
 		t.Errorf("stderr %q does not name the page without a twin", stderr)
+	}
+	if !strings.Contains(stderr, `1 stray marks learned ":"×12`) || !strings.Contains(stderr, "no glyph map") {
+		t.Errorf("stderr %q does not summarise the 12 planted strays and the empty glyph map", stderr)
 	}
 	in := filepath.Join(dir, "in")
 	os.MkdirAll(in, 0o755)

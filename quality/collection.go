@@ -8,11 +8,11 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
-	"runtime"
 	"slices"
 	"strings"
-	"sync"
 	"unicode/utf8"
+
+	"recto/ocr/par"
 )
 
 // MaxFileSize is the largest text file ScoreDirs reads (256 MiB); larger
@@ -161,66 +161,47 @@ func ScoreDirs(ctx context.Context, truth, ocr string, cfg DirConfig) (*Report, 
 		conf   map[Confusion]int
 	}
 	results := make([]result, len(refs))
-	workers := cfg.Workers
-	if workers <= 0 {
-		workers = runtime.GOMAXPROCS(0)
+	// Scratch memory per goroutine.
+	type worker struct {
+		s   Scratch
+		ops []Op
 	}
-	workers = min(workers, len(refs))
-	next := make(chan int)
-	var wg sync.WaitGroup
-	for range workers {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			var s Scratch
-			var ops []Op
-			for i := range next {
-				rel := refs[i]
-				res := &results[i]
-				title, page := TitlePage(rel, rootName)
-				res.page = PageScore{Title: title, Page: page, Status: StatusOK}
-				refPath := filepath.Join(truth, filepath.FromSlash(rel))
-				ref, fe := readText(refPath)
-				if fe != nil {
-					fe.Role = "reference"
-					res.errs = append(res.errs, fe)
-					continue
-				}
-				hypPath := filepath.Join(ocr, filepath.FromSlash(rel))
-				hyp, fe := readText(hypPath)
-				switch {
-				case fe != nil && errors.Is(fe.Err, fs.ErrNotExist):
-					res.page.Status = StatusMissing
-					hyp = ""
-				case fe != nil:
-					fe.Role = "hypothesis"
-					res.errs = append(res.errs, fe)
-					res.page.Status = StatusUnreadable
-					hyp = ""
-				}
-				res.page.Counts = s.Compare(ref, hyp, cfg.Norm)
-				res.scored = true
-				if cfg.Confusions > 0 && res.page.Status == StatusOK {
-					ops = s.Align([]rune(Normalize(ref, cfg.Norm)), []rune(Normalize(hyp, cfg.Norm)), ops[:0])
-					res.conf = make(map[Confusion]int)
-					for _, c := range Group(ops) {
-						res.conf[c]++
-					}
-				}
+	ws := make([]worker, par.Workers(cfg.Workers, len(refs)))
+	scoreOne := func(wk *worker, i int) {
+		rel := refs[i]
+		res := &results[i]
+		title, page := TitlePage(rel, rootName)
+		res.page = PageScore{Title: title, Page: page, Status: StatusOK}
+		refPath := filepath.Join(truth, filepath.FromSlash(rel))
+		ref, fe := readText(refPath)
+		if fe != nil {
+			fe.Role = "reference"
+			res.errs = append(res.errs, fe)
+			return
+		}
+		hypPath := filepath.Join(ocr, filepath.FromSlash(rel))
+		hyp, fe := readText(hypPath)
+		switch {
+		case fe != nil && errors.Is(fe.Err, fs.ErrNotExist):
+			res.page.Status = StatusMissing
+			hyp = ""
+		case fe != nil:
+			fe.Role = "hypothesis"
+			res.errs = append(res.errs, fe)
+			res.page.Status = StatusUnreadable
+			hyp = ""
+		}
+		res.page.Counts = wk.s.Compare(ref, hyp, cfg.Norm)
+		res.scored = true
+		if cfg.Confusions > 0 && res.page.Status == StatusOK {
+			wk.ops = wk.s.Align([]rune(Normalize(ref, cfg.Norm)), []rune(Normalize(hyp, cfg.Norm)), wk.ops[:0])
+			res.conf = make(map[Confusion]int)
+			for _, c := range Group(wk.ops) {
+				res.conf[c]++
 			}
-		}()
-	}
-feed:
-	for i := range refs {
-		select {
-		case next <- i:
-		case <-ctx.Done():
-			break feed
 		}
 	}
-	close(next)
-	wg.Wait()
-	if err := ctx.Err(); err != nil {
+	if err := par.Each(ctx, len(refs), len(ws), func(w, i int) { scoreOne(&ws[w], i) }); err != nil {
 		return nil, err
 	}
 

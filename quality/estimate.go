@@ -1,20 +1,20 @@
 package quality
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"io/fs"
 	"os"
 	"path"
 	"path/filepath"
-	"runtime"
 	"sort"
 	"strings"
-	"sync"
 	"unicode/utf8"
 
 	"recto/lexicon"
 	"recto/ocr"
+	"recto/ocr/par"
 )
 
 // OCRPage is one page found in a folder written by `recto ocr`: its page
@@ -184,28 +184,15 @@ func LoadSamples(ocrDir, truthDir string, lex *lexicon.Lexicon) (samples []Sampl
 		err error
 	}
 	res := make([]result, len(pages))
-	var wg sync.WaitGroup
-	next := make(chan int)
-	for w := 0; w < runtime.GOMAXPROCS(0); w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := range next {
-				p := pages[i]
-				tp := p.TruthPath(truthDir)
-				if _, err := os.Stat(tp); err != nil {
-					res[i].err = fmt.Errorf("quality: page %q has no ground truth %q", p.Rel, tp)
-					continue
-				}
-				res[i].s, res[i].err = p.Sample(tp, lex)
-			}
-		}()
-	}
-	for i := range pages {
-		next <- i
-	}
-	close(next)
-	wg.Wait()
+	_ = par.Each(context.Background(), len(pages), 0, func(_, i int) {
+		p := pages[i]
+		tp := p.TruthPath(truthDir)
+		if _, err := os.Stat(tp); err != nil {
+			res[i].err = fmt.Errorf("quality: page %q has no ground truth %q", p.Rel, tp)
+			return
+		}
+		res[i].s, res[i].err = p.Sample(tp, lex)
+	})
 	for _, r := range res {
 		if r.err != nil {
 			problems = append(problems, r.err)

@@ -9,7 +9,6 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
-	"runtime"
 	"sort"
 	"strings"
 	"sync"
@@ -21,6 +20,7 @@ import (
 	"recto/lexicon"
 	"recto/ocr"
 	"recto/ocr/alto"
+	"recto/ocr/par"
 )
 
 // CorrectOptions are the options of `recto correct`.
@@ -223,35 +223,11 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 	}
 	c := correct.New(lex, m, cfg)
 
-	jobs := o.Jobs
-	if jobs <= 0 {
-		jobs = runtime.GOMAXPROCS(0)
-	}
-	jobs = min(jobs, len(pages))
 	results := make([]correctResult, len(pages))
-	idx := make(chan int)
-	var wg sync.WaitGroup
 	var mu sync.Mutex // serialises messages on stderr
-	for range jobs {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := range idx {
-				results[i] = correctOne(c, in, o, pages[i], g, &mu)
-			}
-		}()
-	}
-feed:
-	for i := range pages {
-		select {
-		case idx <- i:
-		case <-ctx.Done():
-			break feed
-		}
-	}
-	close(idx)
-	wg.Wait()
-	if err := ctx.Err(); err != nil {
+	if err := par.Each(ctx, len(pages), o.Jobs, func(_, i int) {
+		results[i] = correctOne(c, in, o, pages[i], g, &mu)
+	}); err != nil {
 		return err
 	}
 

@@ -8,16 +8,15 @@ import (
 	"io"
 	"os"
 	"path/filepath"
-	"runtime"
 	"sort"
 	"strconv"
 	"strings"
-	"sync"
 	"text/tabwriter"
 
 	"github.com/spf13/cobra"
 
 	"recto/lexicon"
+	"recto/ocr/par"
 	"recto/quality"
 )
 
@@ -155,33 +154,9 @@ func runTriage(ctx context.Context, o TriageOptions, g GlobalOptions, dir string
 	}
 
 	results := make([]triagePage, len(pages))
-	jobs := o.Jobs
-	if jobs == 0 {
-		jobs = runtime.GOMAXPROCS(0)
-	}
-	idx := make(chan int)
-	var wg sync.WaitGroup
-	for w := 0; w < min(jobs, len(pages)); w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := range idx {
-				results[i] = triageOne(pages[i], root, lex, m, th)
-			}
-		}()
-	}
-	func() {
-		defer close(idx)
-		for i := range pages {
-			select {
-			case idx <- i:
-			case <-ctx.Done():
-				return
-			}
-		}
-	}()
-	wg.Wait()
-	if err := ctx.Err(); err != nil {
+	if err := par.Each(ctx, len(pages), o.Jobs, func(_, i int) {
+		results[i] = triageOne(pages[i], root, lex, m, th)
+	}); err != nil {
 		return err
 	}
 

@@ -54,12 +54,11 @@ const (
 )
 
 // runningMarks are marks set between spaces in ordinary English print
-// (dashes, the ampersand, ellipses, reference marks): without training
+// (the ampersand, ellipses, reference marks; dashes: see runningMark): without training
 // evidence of their own they are never taken for strays, and with it only
 // when the engine was unsure of them (see Corrector.mark).
 var runningMarks = map[string]bool{
-	"&": true, "—": true, "–": true, "―": true, "--": true, "---": true, "…": true, "...": true,
-	"§": true, "¶": true, "†": true, "‡": true, "*": true, "/": true, "-": true,
+	"&": true, "…": true, "...": true, "§": true, "¶": true, "†": true, "‡": true, "*": true, "/": true,
 }
 
 // runningMark reports whether tok is one of runningMarks or a run of dashes.

@@ -194,14 +194,7 @@ func fitLinear(fs []Features, y []float64, names []string, o FitOptions) (Linear
 	for _, lam := range o.Lambdas {
 		var sse float64
 		for k := 0; k < o.Folds; k++ {
-			var tx [][]float64
-			var ty []float64
-			for i := range X {
-				if fold[i] != k {
-					tx = append(tx, X[i])
-					ty = append(ty, y[i])
-				}
-			}
+			tx, ty := outOfFold(X, y, fold, k)
 			l := ridge(tx, ty, names, lam)
 			for i := range X {
 				if fold[i] == k {
@@ -216,14 +209,7 @@ func fitLinear(fs []Features, y []float64, names []string, o FitOptions) (Linear
 	}
 	oof := make([]float64, n)
 	for k := 0; k < o.Folds; k++ {
-		var tx [][]float64
-		var ty []float64
-		for i := range X {
-			if fold[i] != k {
-				tx = append(tx, X[i])
-				ty = append(ty, y[i])
-			}
-		}
+		tx, ty := outOfFold(X, y, fold, k)
 		l := ridge(tx, ty, names, best)
 		l.Smear = smearing(l, tx, ty)
 		for i := range X {
@@ -570,4 +556,18 @@ func (t Targets) Check(e Evaluation) (met bool, lines []string) {
 	line("precision of rescan", e.Precision, t.Precision)
 	line("clean pages accepted", e.CleanAccepted, t.CleanAccept)
 	return met, lines
+}
+
+// outOfFold returns the rows of X and y not in fold k: the training rows
+// when fold k is held out.
+func outOfFold(X [][]float64, y []float64, fold []int, k int) ([][]float64, []float64) {
+	var tx [][]float64
+	var ty []float64
+	for i := range X {
+		if fold[i] != k {
+			tx = append(tx, X[i])
+			ty = append(ty, y[i])
+		}
+	}
+	return tx, ty
 }

@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"image"
+	"image/gif"
 	"image/jpeg"
 	"image/png"
 	"io"
@@ -14,6 +15,7 @@ import (
 
 	"golang.org/x/image/bmp"
 	"golang.org/x/image/tiff"
+	"golang.org/x/image/webp"
 )
 
 // DefaultMaxPixels is the largest image, in pixels, that DecodeFile accepts
@@ -25,14 +27,14 @@ var (
 	// ErrEmptyFile is returned for a file of zero bytes.
 	ErrEmptyFile = errors.New("empty file")
 	// ErrNotImage is returned when the file does not start like any
-	// supported image format (TIFF, PNG, JPEG, BMP).
-	ErrNotImage = errors.New("not an image in a supported format (TIFF, PNG, JPEG, BMP)")
+	// supported image format.
+	ErrNotImage = errors.New("not an image in a supported format (TIFF, PNG, JPEG, BMP, GIF, WebP, JPEG 2000, PNM, PDF)")
 	// ErrMalformed is returned when the file claims a supported format but
 	// is truncated or corrupt.
 	ErrMalformed = errors.New("malformed image")
 	// ErrUnsupported is returned when the file is a valid image of a
-	// variant this build cannot decode (for example 4-bit TIFF, JPEG
-	// arithmetic coding, old-style TIFF JPEG compression).
+	// variant this build cannot decode (for example 4-bit TIFF or JPEG
+	// 2000 in a pure-Go build, JPEG arithmetic coding).
 	ErrUnsupported = errors.New("unsupported image variant")
 	// ErrTooLarge is returned, before any pixel is decoded, when the header
 	// declares more pixels than DecodeOptions.MaxPixels.
@@ -42,18 +44,23 @@ var (
 // DecodeError reports why a page image could not be decoded.
 type DecodeError struct {
 	File string // path as given by the caller
+	Page int    // page number in a multi-page file, from 1; 0 for a single image
 	Kind error  // one of ErrEmptyFile, ErrNotImage, ErrMalformed, ErrUnsupported, ErrTooLarge, or nil for an I/O error
 	Err  error  // the underlying cause, may be nil
 }
 
 func (e *DecodeError) Error() string {
+	where := fmt.Sprintf("%q", e.File)
+	if e.Page > 0 {
+		where += fmt.Sprintf(" page %d", e.Page)
+	}
 	switch {
 	case e.Kind == nil:
-		return fmt.Sprintf("ocr: %q: %v", e.File, e.Err)
+		return fmt.Sprintf("ocr: %s: %v", where, e.Err)
 	case e.Err == nil:
-		return fmt.Sprintf("ocr: %q: %v", e.File, e.Kind)
+		return fmt.Sprintf("ocr: %s: %v", where, e.Kind)
 	default:
-		return fmt.Sprintf("ocr: %q: %v: %v", e.File, e.Kind, e.Err)
+		return fmt.Sprintf("ocr: %s: %v: %v", where, e.Kind, e.Err)
 	}
 }
 
@@ -78,12 +85,15 @@ type DecodeOptions struct {
 type Decoded struct {
 	Image  image.Image
 	DPI    float64 // horizontal resolution, dots per inch; 0 when the file has no resolution tag
-	Format string  // "tiff", "png", "jpeg" or "bmp"
+	Format string  // "tiff", "png", "jpeg", "bmp", "gif", "webp", "jp2", "pnm" or "pdf"
 
-	// Pages is the number of images in the file: more than 1 only for a
-	// multi-page TIFF, of which only the first page is decoded (and a
-	// warning is added).
+	// Pages is the number of pages in the file: more than 1 only for a
+	// multi-page TIFF or a PDF, of which DecodeFile decodes the first page
+	// only (and adds a warning); OpenPages reads every page.
 	Pages int
+
+	// Page is the number of this page in its file, from 1.
+	Page int
 
 	// Warnings are things the caller may want to tell the user, such as
 	// pages that were skipped. They never mean the image is unusable.
@@ -91,15 +101,20 @@ type Decoded struct {
 }
 
 // DecodeFile reads and decodes a page image: TIFF (uncompressed, LZW,
-// Deflate, PackBits, CCITT G3/G4), PNG, JPEG (baseline and progressive) or
-// BMP; greyscale, RGB, palette and 1-bit images. The resolution comes from
-// the TIFF XResolution/ResolutionUnit tags, the PNG pHYs chunk or the JPEG
-// JFIF header when present (EXIF resolution in JPEG is not read).
+// Deflate, PackBits, CCITT G3/G4, strips or tiles), PNG, JPEG (baseline
+// and progressive), BMP, GIF and WebP in every build; greyscale, RGB,
+// palette and 1-bit images. With an extra decoder registered (the engine
+// build registers Leptonica's, package recto/ocr/lept) it also reads what
+// those decoders refuse: 2- and 4-bit grey TIFF, CCITT G3 with End-of-Line
+// codes, JPEG inside TIFF, JPEG 2000 (.jp2, .j2k) and PNM. The resolution
+// comes from the TIFF XResolution/ResolutionUnit tags, the PNG pHYs chunk,
+// the JPEG JFIF header or its EXIF resolution, the BMP header and the JPEG
+// 2000 resolution box, when present.
 //
 // The dimensions are read from the header first and images larger than
 // o.MaxPixels are refused before any pixel memory is allocated. Of a
-// multi-page TIFF only the first page is decoded and Decoded.Warnings says
-// so.
+// multi-page TIFF or a PDF only the first page is decoded and
+// Decoded.Warnings says so; OpenPages reads every page.
 //
 // Every error is a *DecodeError naming the file; nil is returned with it.
 func DecodeFile(path string, o DecodeOptions) (*Decoded, error) {
@@ -119,11 +134,19 @@ func DecodeFile(path string, o DecodeOptions) (*Decoded, error) {
 	if fi.IsDir() {
 		return nil, &DecodeError{File: path, Err: errors.New("is a directory")}
 	}
+	var head [8]byte
+	if n, _ := io.ReadFull(f, head[:]); n >= 5 && string(head[:5]) == "%PDF-" {
+		f.Close()
+		return decodeFirstPDFPage(path, o)
+	}
+	if _, err := f.Seek(0, io.SeekStart); err != nil {
+		return nil, &DecodeError{File: path, Err: err}
+	}
 	// No real page needs more than 8 bytes a pixel in the file; refuse
 	// absurd files before reading them into memory.
 	if limit := int64(maxPixels)*8 + 1<<20; fi.Size() > limit {
 		return nil, &DecodeError{File: path, Kind: ErrTooLarge,
-			Err: fmt.Errorf("file is %d bytes, more than %d bytes for %d pixels", fi.Size(), limit, maxPixels)}
+			Err: fmt.Errorf("file is %d bytes, more than %d bytes for %d pixels (a multi-page TIFF is read page by page with OpenPages)", fi.Size(), limit, maxPixels)}
 	}
 	data, err := io.ReadAll(f)
 	if err != nil {
@@ -141,6 +164,41 @@ func DecodeFile(path string, o DecodeOptions) (*Decoded, error) {
 	return d, nil
 }
 
+// ExtraDecoder decodes image variants that the pure-Go decoders refuse.
+// Package recto/ocr/lept registers Leptonica's readers with
+// RegisterExtraDecoder when it is built with cgo; pure-Go builds have none.
+// The caller has checked the pixel count on the file's header before
+// calling either method.
+type ExtraDecoder interface {
+	// Name names the library, e.g. "Leptonica 1.82.0".
+	Name() string
+	// Decode decodes the single-image file held in data (for a TIFF, its
+	// first page). The image is *image.Gray, *image.RGBA or *image.NRGBA.
+	Decode(data []byte) (image.Image, error)
+	// DecodeTIFFPage decodes page (from 0) of the TIFF file at path,
+	// reading that page only.
+	DecodeTIFFPage(path string, page int) (image.Image, error)
+}
+
+var extraDecoder ExtraDecoder
+
+// RegisterExtraDecoder makes DecodeFile and OpenPages fall back on d for
+// variants the pure-Go decoders refuse. Call it from an init function,
+// before any decoding; the last registration wins.
+func RegisterExtraDecoder(d ExtraDecoder) { extraDecoder = d }
+
+// ExtraDecoderName returns the name of the registered extra decoder, or ""
+// when there is none (a pure-Go build).
+func ExtraDecoderName() string {
+	if extraDecoder == nil {
+		return ""
+	}
+	return extraDecoder.Name()
+}
+
+// errNoGoDecoder marks formats that only an extra decoder reads.
+var errNoGoDecoder = errors.New("no pure-Go decoder")
+
 // decodeBytes decodes an image held in memory; errors are *DecodeError
 // without the file name.
 func decodeBytes(data []byte, maxPixels int) (*Decoded, error) {
@@ -152,65 +210,166 @@ func decodeBytes(data []byte, maxPixels int) (*Decoded, error) {
 		return nil, &DecodeError{Kind: ErrNotImage}
 	}
 	var (
-		cfg image.Config
-		err error
+		cfg  image.Config
+		err  error
+		ifds []tiffIFD
 	)
 	switch format {
 	case "tiff":
-		cfg, err = tiff.DecodeConfig(bytes.NewReader(data))
+		ifds, err = readTIFFIFDs(bytes.NewReader(data), int64(len(data)))
+		if err == nil {
+			cfg.Width, cfg.Height = ifds[0].width, ifds[0].height
+		}
 	case "png":
 		cfg, err = png.DecodeConfig(bytes.NewReader(data))
 	case "jpeg":
 		cfg, err = jpeg.DecodeConfig(bytes.NewReader(data))
 	case "bmp":
 		cfg, err = bmp.DecodeConfig(bytes.NewReader(data))
+	case "gif":
+		cfg, err = gif.DecodeConfig(bytes.NewReader(data))
+	case "webp":
+		cfg, err = webp.DecodeConfig(bytes.NewReader(data))
+	case "pnm":
+		cfg, err = pnmConfig(data)
+	case "jp2":
+		cfg, err = jp2Config(data)
 	}
 	if err != nil {
 		return nil, classify(format, err)
 	}
-	if cfg.Width <= 0 || cfg.Height <= 0 {
-		return nil, &DecodeError{Kind: ErrMalformed, Err: fmt.Errorf("%s: zero-size image %d×%d", format, cfg.Width, cfg.Height)}
-	}
-	if int64(cfg.Width)*int64(cfg.Height) > int64(maxPixels) {
-		return nil, &DecodeError{Kind: ErrTooLarge,
-			Err: fmt.Errorf("%d×%d pixels is more than the limit of %d", cfg.Width, cfg.Height, maxPixels)}
+	if err := checkSize(format, cfg.Width, cfg.Height, maxPixels); err != nil {
+		return nil, err
 	}
 	var img image.Image
 	switch format {
 	case "tiff":
-		img, err = tiff.Decode(bytes.NewReader(data))
+		if c := ifds[0].compression; c == 6 || c == 7 {
+			// x/image/tiff reads no JPEG-in-TIFF.
+			err = tiff.UnsupportedError(fmt.Sprintf("compression value %d", c))
+		} else {
+			img, err = tiff.Decode(bytes.NewReader(data))
+		}
 	case "png":
 		img, err = png.Decode(bytes.NewReader(data))
 	case "jpeg":
 		img, err = jpeg.Decode(bytes.NewReader(data))
 	case "bmp":
 		img, err = bmp.Decode(bytes.NewReader(data))
+	case "gif":
+		img, err = gif.Decode(bytes.NewReader(data))
+	case "webp":
+		img, err = webp.Decode(bytes.NewReader(data))
+	default:
+		err = errNoGoDecoder
 	}
 	if err != nil {
-		if format == "tiff" && strings.HasPrefix(err.Error(), "ccitt:") && tiffInfo(data).compression == 3 {
-			// golang.org/x/image/ccitt (v0.48) reads Group 3 data
-			// without End-of-Line codes only; libtiff and fax
-			// software write EOLs, often byte-aligned (T4Options
-			// bit 2), which it rejects as "missing End-of-Line".
-			return nil, &DecodeError{Kind: ErrUnsupported,
-				Err: fmt.Errorf("tiff: CCITT Group 3 with End-of-Line codes (%v)", err)}
+		var first *tiffIFD
+		if ifds != nil {
+			first = &ifds[0]
 		}
-		return nil, classify(format, err)
+		derr := goError(format, first, err)
+		if !errors.Is(derr, ErrUnsupported) {
+			return nil, derr
+		}
+		if extraDecoder == nil {
+			return nil, derr
+		}
+		img, err = extraDecoder.Decode(data)
+		if err != nil {
+			return nil, &DecodeError{Kind: ErrMalformed, Err: fmt.Errorf("%s: %s: %w", format, extraDecoder.Name(), err)}
+		}
+		if b := img.Bounds(); b.Dx() != cfg.Width || b.Dy() != cfg.Height {
+			return nil, &DecodeError{Kind: ErrMalformed, Err: fmt.Errorf("%s: %s decoded %d×%d pixels, the header says %d×%d",
+				format, extraDecoder.Name(), b.Dx(), b.Dy(), cfg.Width, cfg.Height)}
+		}
 	}
-	d := &Decoded{Image: img, Format: format, Pages: 1}
+	d := &Decoded{Image: img, Format: format, Pages: 1, Page: 1}
 	switch format {
 	case "tiff":
-		info := tiffInfo(data)
-		d.DPI, d.Pages = info.dpi, info.pages
+		d.DPI, d.Pages = ifds[0].dpi, len(ifds)
 		if d.Pages > 1 {
-			d.Warnings = append(d.Warnings, fmt.Sprintf("multi-page TIFF with %d pages: only the first page is used", d.Pages))
+			d.Warnings = append(d.Warnings, fmt.Sprintf("multi-page TIFF with %d pages: only the first page is used (OpenPages reads them all)", d.Pages))
 		}
 	case "png":
 		d.DPI = pngDPI(data)
 	case "jpeg":
 		d.DPI = jfifDPI(data)
+		if d.DPI == 0 {
+			d.DPI = exifDPI(data)
+		}
+	case "bmp":
+		d.DPI = bmpDPI(data)
+	case "jp2":
+		d.DPI = jp2DPI(data)
 	}
 	return d, nil
+}
+
+// checkSize refuses zero-size images and images over the pixel limit.
+func checkSize(format string, w, h, maxPixels int) error {
+	if w <= 0 || h <= 0 {
+		return &DecodeError{Kind: ErrMalformed, Err: fmt.Errorf("%s: zero-size image %d×%d", format, w, h)}
+	}
+	if int64(w)*int64(h) > int64(maxPixels) {
+		return &DecodeError{Kind: ErrTooLarge,
+			Err: fmt.Errorf("%d×%d pixels is more than the limit of %d", w, h, maxPixels)}
+	}
+	return nil
+}
+
+// goError turns a pure-Go decoder's error into a *DecodeError; an
+// unsupported variant is named, with what reads it.
+func goError(format string, ifd *tiffIFD, err error) error {
+	if format == "tiff" && ifd != nil && ifd.compression == 3 && strings.HasPrefix(err.Error(), "ccitt:") {
+		// golang.org/x/image/ccitt (v0.48) reads Group 3 data
+		// without End-of-Line codes only; libtiff and fax
+		// software write EOLs, often byte-aligned (T4Options
+		// bit 2), which it rejects as "missing End-of-Line".
+		err = fmt.Errorf("tiff: CCITT Group 3 with End-of-Line codes (%v)", err)
+		return unsupported(err)
+	}
+	if errors.Is(err, errNoGoDecoder) {
+		return unsupported(fmt.Errorf("%s", variantName(format, ifd)))
+	}
+	derr := classify(format, err)
+	if errors.Is(derr, ErrUnsupported) {
+		return unsupported(fmt.Errorf("%s (%v)", variantName(format, ifd), err))
+	}
+	return derr
+}
+
+// unsupported wraps err as ErrUnsupported and, in a build without an extra
+// decoder, says which build reads it.
+func unsupported(err error) error {
+	if extraDecoder == nil {
+		err = fmt.Errorf("%w; this build has no Leptonica decoder: the engine build (cgo) reads 2- and 4-bit grey TIFF, CCITT G3 with End-of-Line codes, JPEG in TIFF, JPEG 2000 and PNM", err)
+	}
+	return &DecodeError{Kind: ErrUnsupported, Err: err}
+}
+
+// variantName describes the kind of image for an unsupported-variant error.
+func variantName(format string, ifd *tiffIFD) string {
+	switch format {
+	case "jp2":
+		return "JPEG 2000"
+	case "pnm":
+		return "PNM (Netpbm)"
+	case "tiff":
+		if ifd == nil {
+			return "TIFF"
+		}
+		switch {
+		case ifd.compression == 6:
+			return "TIFF with old-style JPEG compression"
+		case ifd.compression == 7:
+			return "TIFF with JPEG compression"
+		case ifd.bps != 1 && ifd.bps != 8 && ifd.bps != 16:
+			return fmt.Sprintf("%d-bit TIFF", ifd.bps)
+		}
+		return fmt.Sprintf("TIFF (compression %d, %d bits, %d samples)", ifd.compression, ifd.bps, ifd.spp)
+	}
+	return format
 }
 
 // sniff names the format from the file's first bytes, or returns "".
@@ -224,6 +383,14 @@ func sniff(data []byte) string {
 		return "jpeg"
 	case bytes.HasPrefix(data, []byte("BM")) && len(data) >= 14:
 		return "bmp"
+	case bytes.HasPrefix(data, []byte("GIF87a")), bytes.HasPrefix(data, []byte("GIF89a")):
+		return "gif"
+	case len(data) >= 12 && string(data[:4]) == "RIFF" && string(data[8:12]) == "WEBP":
+		return "webp"
+	case bytes.HasPrefix(data, []byte("\x00\x00\x00\x0cjP  \r\n\x87\n")), bytes.HasPrefix(data, []byte("\xff\x4f\xff\x51")):
+		return "jp2"
+	case len(data) >= 3 && data[0] == 'P' && data[1] >= '1' && data[1] <= '6' && isPNMSpace(data[2]):
+		return "pnm"
 	}
 	return ""
 }
@@ -307,83 +474,4 @@ func jfifDPI(data []byte) float64 {
 		p = p[2+n:]
 	}
 	return 0
-}
-
-// tiffIFD is what tiffInfo reads from a TIFF file.
-type tiffIFD struct {
-	dpi         float64 // from XResolution and ResolutionUnit; 0 if absent or unit-less
-	pages       int     // IFDs in the chain, at least 1
-	compression int     // Compression tag of the first IFD (1 if absent)
-	t4Options   int     // T4Options tag of the first IFD
-}
-
-// tiffInfo reads XResolution, ResolutionUnit, Compression and T4Options
-// from the first IFD and counts the IFDs (pages), following TIFF 6.0 (Adobe
-// 1992), sections 2, 8 and 11. Damaged or looping IFD chains stop the
-// count; the decoder has already accepted (or judged) the first page.
-func tiffInfo(data []byte) tiffIFD {
-	info := tiffIFD{compression: 1}
-	if len(data) < 8 {
-		return tiffIFD{pages: 1}
-	}
-	var bo binary.ByteOrder = binary.LittleEndian
-	if data[0] == 'M' {
-		bo = binary.BigEndian
-	}
-	off := uint64(bo.Uint32(data[4:8]))
-	seen := map[uint64]bool{}
-	for off != 0 && off+2 <= uint64(len(data)) && !seen[off] && info.pages < 100000 {
-		seen[off] = true
-		n := uint64(bo.Uint16(data[off : off+2]))
-		end := off + 2 + 12*n
-		if end+4 > uint64(len(data)) {
-			info.pages++
-			break
-		}
-		if info.pages == 0 {
-			var xres float64
-			unit := uint16(2) // inch is the default
-			for i := uint64(0); i < n; i++ {
-				e := data[off+2+12*i : off+2+12*i+12]
-				tag, typ := bo.Uint16(e[0:2]), bo.Uint16(e[2:4])
-				short := func() int {
-					if typ == 3 {
-						return int(bo.Uint16(e[8:10]))
-					}
-					return int(bo.Uint32(e[8:12]))
-				}
-				switch tag {
-				case 259: // Compression
-					info.compression = short()
-				case 282: // XResolution, RATIONAL
-					if typ != 5 {
-						continue
-					}
-					vo := uint64(bo.Uint32(e[8:12]))
-					if vo+8 <= uint64(len(data)) {
-						num, den := bo.Uint32(data[vo:vo+4]), bo.Uint32(data[vo+4:vo+8])
-						if den != 0 {
-							xres = float64(num) / float64(den)
-						}
-					}
-				case 292: // T4Options
-					info.t4Options = short()
-				case 296: // ResolutionUnit
-					unit = uint16(short())
-				}
-			}
-			switch unit {
-			case 2:
-				info.dpi = xres
-			case 3:
-				info.dpi = xres * 2.54
-			}
-		}
-		info.pages++
-		off = uint64(bo.Uint32(data[end : end+4]))
-	}
-	if info.pages == 0 {
-		info.pages = 1
-	}
-	return info
 }

@@ -1,6 +1,9 @@
 package quality
 
-import "strings"
+import (
+	"slices"
+	"strings"
+)
 
 // Flexible character accuracy (Clausner, Pletschacher and Antonacopoulos
 // 2020, "Flexible character accuracy measure for reading-order-independent
@@ -119,7 +122,31 @@ func (f *flexState) errors(ref, hyp [][]rune) int {
 		f.hy = append(f.hy, flexSeg{r: h, alive: true})
 	}
 	for _, g := range ref {
-		f.addGT(g)
+		f.gt = append(f.gt, flexSeg{})
+		seg := &f.gt[len(f.gt)-1]
+		seg.r, seg.alive = g, true
+		seg.d = slices.Grow(seg.d[:0], len(hyp))[:len(hyp)]
+	}
+	// Each piece's match vectors are built once for all the pieces it is
+	// the pattern of (the shorter one; g on ties).
+	for gi := range f.gt {
+		g := f.gt[gi].r
+		f.bv.buildPeq(g, (len(g)+63)/64)
+		for hi, h := range hyp {
+			if len(g) <= len(h) {
+				b, _ := f.bv.scanBuilt(len(g), h, false)
+				f.gt[gi].d[hi] = int32(b)
+			}
+		}
+	}
+	for hi, h := range hyp {
+		f.bv.buildPeq(h, (len(h)+63)/64)
+		for gi := range f.gt {
+			if g := f.gt[gi].r; len(h) < len(g) {
+				b, _ := f.bv.scanBuilt(len(h), g, false)
+				f.gt[gi].d[hi] = int32(b)
+			}
+		}
 	}
 	errs := 0
 	for {
@@ -203,10 +230,21 @@ func (f *flexState) addGT(g []rune) {
 	}
 	seg := &f.gt[n]
 	seg.r, seg.alive, seg.d = g, true, seg.d[:0]
+	built := false
 	for _, h := range f.hy {
 		d := int32(-1)
-		if h.alive {
+		switch {
+		case !h.alive:
+		case len(g) <= len(h.r):
+			if !built { // g is the pattern: its match vectors serve every such h
+				f.bv.buildPeq(g, (len(g)+63)/64)
+				built = true
+			}
+			b, _ := f.bv.scanBuilt(len(g), h.r, false)
+			d = int32(b)
+		default:
 			d = f.distOf(g, h.r)
+			built = false
 		}
 		seg.d = append(seg.d, d)
 	}
@@ -219,11 +257,22 @@ func (f *flexState) addHyp(h []rune) {
 		return
 	}
 	f.hy = append(f.hy, flexSeg{r: h, alive: true})
+	built := false
 	for i := range f.gt {
 		g := &f.gt[i]
 		d := int32(-1)
-		if g.alive {
+		switch {
+		case !g.alive:
+		case len(h) < len(g.r):
+			if !built { // h is the pattern: its match vectors serve every such g
+				f.bv.buildPeq(h, (len(h)+63)/64)
+				built = true
+			}
+			b, _ := f.bv.scanBuilt(len(h), g.r, false)
+			d = int32(b)
+		default:
 			d = f.distOf(g.r, h)
+			built = false
 		}
 		g.d = append(g.d, d)
 	}
@@ -239,12 +288,17 @@ func (f *flexState) addHyp(h []rune) {
 //
 // Complexity: O(⌈n/64⌉·m) time for n = len(pat) and m = len(text).
 func (s *bitState) scan(pat, text []rune, anchored bool) (best, at int) {
-	n := len(pat)
-	if n == 0 {
+	if len(pat) == 0 {
 		return 0, 0
 	}
+	s.buildPeq(pat, (len(pat)+63)/64)
+	return s.scanBuilt(len(pat), text, anchored)
+}
+
+// scanBuilt is scan with the match vectors of a pattern of n code points
+// already built (buildPeq), so that one pattern scans many texts.
+func (s *bitState) scanBuilt(n int, text []rune, anchored bool) (best, at int) {
 	nb := (n + 63) / 64
-	s.buildPeq(pat, nb)
 	if cap(s.pv) < nb {
 		s.pv, s.mv = make([]uint64, nb), make([]uint64, nb)
 	}

@@ -7,6 +7,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"recto/cmd/internal/run"
+	"recto/correct"
 	"recto/ocr"
 )
 
@@ -28,7 +29,7 @@ func addRunFlags(cmd *cobra.Command, o *run.Options) {
 	f.Float64Var(&o.Correct, "correct", 0, "correct a page when its predicted `CER` is above this (default 0.02)")
 	f.StringVar(&o.Model, "model", "", "triage model `file` (default: built in)")
 	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` for triage and correction (default: built in)")
-	f.Float64Var(&o.Margin, "margin", 0, "correct a word only when the candidate is e^`m` times likelier (default 5)")
+	f.Float64Var(&o.Margin, "margin", 0, fmt.Sprintf("correct a word only when the candidate is e^`m` times likelier (default %g)", correct.DefaultMargin))
 	f.StringVar(&o.Shard, "shard", "", "process only share `i/n` of the pages (default: from JOB_COMPLETION_INDEX or SLURM_ARRAY_TASK_ID, else all)")
 	f.IntVar(&o.ShardCount, "shard-count", 0, "number of shards when the index comes from JOB_COMPLETION_INDEX (default: $RECTO_SHARDS)")
 }

@@ -17,6 +17,7 @@ import (
 
 	"recto/cmd/internal/run/ledger"
 	"recto/cmd/internal/run/runtest"
+	"recto/correct"
 )
 
 // asRectoEnv makes the test binary act as recto with the test engine on
@@ -204,6 +205,52 @@ func TestRunUsageErrors(t *testing.T) {
 		var ue *usageError
 		if !errors.As(err, &ue) {
 			t.Errorf("%q: err = %v, want a usage error", args, err)
+		}
+	}
+}
+
+// TestRunHelpMarginDefault: the help of `recto run` gives the margin the
+// code uses when --margin is 0.
+func TestRunHelpMarginDefault(t *testing.T) {
+	f := newRootCommand()
+	c, _, err := f.Find([]string{"run"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := fmt.Sprintf("(default %g)", correct.DefaultMargin)
+	if u := c.Flags().Lookup("margin").Usage; !strings.Contains(u, want) {
+		t.Errorf("--margin help %q does not give the default %s", u, want)
+	}
+}
+
+// TestUnknownCommandExit2: an unknown command is a usage error (exit status 2).
+func TestUnknownCommandExit2(t *testing.T) {
+	_, _, err := runRecto(t, "bogus-command")
+	if err == nil {
+		t.Fatal("an unknown command succeeded")
+	}
+	if st := exitCode(context.Background(), err); st != exitUsage {
+		t.Errorf("exit status %d for %v, want %d", st, err, exitUsage)
+	}
+}
+
+// TestBinaryHasNoTestCode: the shipped binary links neither the testing
+// package nor the test engine (issue 15: no back door to a fake engine).
+func TestBinaryHasNoTestCode(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds the binary")
+	}
+	bin := filepath.Join(t.TempDir(), "recto")
+	if out, err := exec.Command("go", "build", "-o", bin, ".").CombinedOutput(); err != nil {
+		t.Fatalf("go build: %v\n%s", err, out)
+	}
+	out, err := exec.Command("go", "tool", "nm", bin).Output()
+	if err != nil {
+		t.Fatalf("go tool nm: %v", err)
+	}
+	for _, pkg := range []string{" testing.", "recto/ocr/ocrtest.", "recto/cmd/internal/run/runtest."} {
+		if strings.Contains(string(out), pkg) {
+			t.Errorf("the binary links %q", strings.TrimSpace(pkg))
 		}
 	}
 }

@@ -338,7 +338,7 @@ func recordTokens(rec *ocr.Record) []token {
 		if i > 0 {
 			prev := rec.Words[i-1]
 			switch {
-			case w.Block != prev.Block:
+			case w.Block != prev.Block || w.Par != prev.Par:
 				line += 2
 				col = 1
 				toks[len(toks)-1].lineEnd = true

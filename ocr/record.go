@@ -42,7 +42,8 @@ type Word struct {
 	Text  string  `json:"text"`
 	Conf  float64 `json:"conf"`  // engine confidence in [0, 1], not percent
 	Box   Box     `json:"box"`   // original image pixels
-	Block int     `json:"block"` // block index on the page, reading order, from 0
+	Block int     `json:"block"` // engine block (e.g. a column) on the page, reading order, from 0
+	Par   int     `json:"par"`   // paragraph index on the page (not within the block), from 0
 	Line  int     `json:"line"`  // line index on the page (not within the block), from 0
 
 	// Alt holds other readings of the word, most likely first; correction
@@ -60,14 +61,15 @@ type Box struct {
 }
 
 // Text returns the page text rebuilt from the words: words of a line joined
-// by single spaces, lines by "\n", blocks separated by a blank line.
+// by single spaces, lines by "\n", paragraphs and blocks separated by a
+// blank line, as the tesseract command writes its text.
 func (r *Record) Text() string {
 	var b []byte
 	for i, w := range r.Words {
 		if i > 0 {
 			prev := r.Words[i-1]
 			switch {
-			case w.Block != prev.Block:
+			case w.Block != prev.Block || w.Par != prev.Par:
 				b = append(b, '\n', '\n')
 			case w.Line != prev.Line:
 				b = append(b, '\n')

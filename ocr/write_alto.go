@@ -15,8 +15,9 @@ const (
 )
 
 // WriteALTO writes rec as an ALTO v4 document (schema version 4.2): one
-// Page holding a PrintSpace, TextBlocks, TextLines and Strings in reading
-// order, with HPOS/VPOS/WIDTH/HEIGHT in pixels of the original image
+// Page holding a PrintSpace with one TextBlock per engine block
+// (Word.Block, e.g. a column), one TextLine per line and one String per
+// word, in the engine's reading order, with HPOS/VPOS/WIDTH/HEIGHT in pixels of the original image
 // (MeasurementUnit "pixel"), WC the word confidence in [0, 1], and each of
 // Word.Alt as an ALTERNATIVE element. Package ocr/alto is the documented
 // entry point; this function exists because WriteOutputs needs it and

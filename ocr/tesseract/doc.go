@@ -25,8 +25,22 @@ import (
 // Tesseract's default page segmentation and data directory.
 type Config struct {
 	Lang    string // language(s), "+"-separated, e.g. "eng+deu"; "" means "eng"
-	PSM     int    // page segmentation mode 1-13; 0 means Tesseract's default (3, fully automatic)
+	PSM     int    // page segmentation mode 1-13; 0 means 3 (fully automatic, the tesseract command's default)
 	DataDir string // tessdata directory; "" means TESSDATA_PREFIX or the installed default
+}
+
+// DefaultPSM is the page segmentation mode used when Config.PSM is 0:
+// fully automatic page segmentation without orientation detection, the
+// default of the tesseract command (Tesseract's publictypes.h, PSM_AUTO).
+// The library's own default is 6 (one uniform block), which runs the
+// columns of a multi-column page together.
+const DefaultPSM = 3
+
+func (c Config) psm() int {
+	if c.PSM == 0 {
+		return DefaultPSM
+	}
+	return c.PSM
 }
 
 func (c Config) langs() []string {

@@ -3,8 +3,16 @@
 package tesseract
 
 /*
+#cgo LDFLAGS: -ltesseract
 #include <dlfcn.h>
 #include <stddef.h>
+#include <tesseract/capi.h>
+
+// recto_psm returns the page segmentation mode the engine behind h will
+// use (h is gosseract's TessBaseAPI handle, a tesseract::TessBaseAPI*).
+static int recto_psm(void *h) {
+	return (int)TessBaseAPIGetPageSegMode((const TessBaseAPI *)h);
+}
 
 // recto_omp_serial turns off OpenMP parallel regions in the libgomp that
 // Tesseract loaded, if any: with max-active-levels 0 every parallel region
@@ -27,11 +35,13 @@ import (
 	"image"
 	"os"
 	"path/filepath"
+	"reflect"
 	"runtime"
 	"sort"
 	"strconv"
 	"strings"
 	"sync"
+	"unsafe"
 
 	"github.com/otiai10/gosseract/v2"
 
@@ -61,6 +71,7 @@ type engine struct {
 	client *gosseract.Client
 	buf    []byte // PGM scratch, reused across pages
 	dpi    int    // resolution last handed to the client
+	psm    int    // page segmentation mode asked for
 }
 
 // New returns an Engine with its own Tesseract client. It fails at once,
@@ -87,13 +98,16 @@ func New(cfg Config) (ocr.Engine, error) {
 		}
 	}
 	c.SetLanguage(langs...)
-	if cfg.PSM != 0 {
-		c.SetPageSegMode(gosseract.PageSegMode(cfg.PSM))
-	}
+	// The mode is set as a variable, which gosseract hands to Tesseract
+	// after initialising it. gosseract's SetPageSegMode acts at once, on an
+	// engine that Init later replaces, so the mode was lost and the
+	// library's own default (6, a single block) was used instead of 3.
+	psm := cfg.psm()
+	c.SetVariable("tessedit_pageseg_mode", strconv.Itoa(psm))
 	// Tesseract's diagnostics ("Empty page!!", resolution guesses) would
 	// otherwise reach our stderr.
 	c.SetVariable(gosseract.DEBUG_FILE, os.DevNull)
-	return &engine{client: c}, nil
+	return &engine{client: c, psm: psm}, nil
 }
 
 // Recognize implements ocr.Engine in one recognition pass.
@@ -131,7 +145,28 @@ func (e *engine) Recognize(ctx context.Context, img *image.Gray, dpi int) ([]ocr
 	if err != nil {
 		return nil, fmt.Errorf("tesseract: %w", err)
 	}
+	if got := e.pageSegMode(); got != e.psm {
+		// A guard, not expected to fire: the mode reached the engine or the
+		// reading is not the one the user asked for.
+		return nil, fmt.Errorf("tesseract: page segmentation mode %d was asked for, the engine used %d", e.psm, got)
+	}
 	return wordsFromBoxes(boxes, r.Min), nil
+}
+
+// pageSegMode asks the engine itself which page segmentation mode it
+// uses. gosseract does not export its handle, so it is read from the
+// client's unexported field; that field is a plain pointer to Tesseract's
+// TessBaseAPI (gosseract v2.4.1, client.go).
+func (e *engine) pageSegMode() int {
+	f := reflect.ValueOf(e.client).Elem().FieldByName("api")
+	if !f.IsValid() || f.Kind() != reflect.UnsafePointer {
+		return -1 // a gosseract that changed its layout: the guard fails loudly
+	}
+	h := *(*unsafe.Pointer)(unsafe.Pointer(f.UnsafeAddr()))
+	if h == nil {
+		return -1
+	}
+	return int(C.recto_psm(h))
 }
 
 // Close implements ocr.Engine.
@@ -146,11 +181,12 @@ func (e *engine) Close() error {
 
 // wordsFromBoxes turns gosseract's word boxes (block, paragraph and line
 // numbers from 1, restarting per block and paragraph) into ocr.Words with
-// Block (one per Tesseract paragraph) and Line numbered from 0 across the
-// page; off shifts boxes back to img's bounds. Empty words are dropped.
+// Block (one per Tesseract block), Par (one per Tesseract paragraph) and
+// Line numbered from 0 across the page, in the engine's reading order; off
+// shifts boxes back to img's bounds. Empty words are dropped.
 func wordsFromBoxes(boxes []gosseract.BoundingBox, off image.Point) []ocr.Word {
 	words := make([]ocr.Word, 0, len(boxes))
-	block, line := -1, -1
+	block, par, line := -1, -1, -1
 	prevBlock, prevPar, prevLine := 0, 0, 0
 	for _, b := range boxes {
 		text := strings.TrimSpace(b.Word)
@@ -158,11 +194,12 @@ func wordsFromBoxes(boxes []gosseract.BoundingBox, off image.Point) []ocr.Word {
 			continue
 		}
 		switch {
-		case b.BlockNum != prevBlock || b.ParNum != prevPar:
-			// A Tesseract paragraph is one of our blocks: the text then
-			// keeps the blank line between paragraphs, and ALTO gets a
-			// TextBlock per paragraph.
+		case b.BlockNum != prevBlock:
 			block++
+			par++
+			line++
+		case b.ParNum != prevPar:
+			par++
 			line++
 		case b.LineNum != prevLine:
 			line++
@@ -175,6 +212,7 @@ func wordsFromBoxes(boxes []gosseract.BoundingBox, off image.Point) []ocr.Word {
 			Conf:  conf,
 			Box:   ocr.Box{X: b.Box.Min.X + off.X, Y: b.Box.Min.Y + off.Y, W: b.Box.Dx(), H: b.Box.Dy()},
 			Block: block,
+			Par:   par,
 			Line:  line,
 		})
 	}

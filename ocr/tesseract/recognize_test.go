@@ -42,15 +42,17 @@ func TestWordsFromBoxes(t *testing.T) {
 		bb(0, 10, 1, 1, 2, "paid", 50),
 		bb(0, 30, 1, 2, 1, "Next", 80), // new paragraph: line numbers restart
 		bb(9, 30, 1, 2, 1, " ", 0),     // empty word dropped
-		bb(0, 50, 2, 1, 1, "Col", 101), // confidence clamped
+		bb(0, 50, 2, 1, 1, "Col", 101), // new block; confidence clamped
+		bb(0, 60, 2, 1, 2, "two", 70),
 	}
 	got := wordsFromBoxes(in, image.Pt(100, 200))
 	want := []ocr.Word{
-		{Text: "Harbour", Conf: 0.96, Box: ocr.Box{X: 100, Y: 200, W: 10, H: 5}, Block: 0, Line: 0},
-		{Text: "dues", Conf: 0.90, Box: ocr.Box{X: 120, Y: 200, W: 10, H: 5}, Block: 0, Line: 0},
-		{Text: "paid", Conf: 0.50, Box: ocr.Box{X: 100, Y: 210, W: 10, H: 5}, Block: 0, Line: 1},
-		{Text: "Next", Conf: 0.80, Box: ocr.Box{X: 100, Y: 230, W: 10, H: 5}, Block: 1, Line: 2},
-		{Text: "Col", Conf: 1, Box: ocr.Box{X: 100, Y: 250, W: 10, H: 5}, Block: 2, Line: 3},
+		{Text: "Harbour", Conf: 0.96, Box: ocr.Box{X: 100, Y: 200, W: 10, H: 5}, Block: 0, Par: 0, Line: 0},
+		{Text: "dues", Conf: 0.90, Box: ocr.Box{X: 120, Y: 200, W: 10, H: 5}, Block: 0, Par: 0, Line: 0},
+		{Text: "paid", Conf: 0.50, Box: ocr.Box{X: 100, Y: 210, W: 10, H: 5}, Block: 0, Par: 0, Line: 1},
+		{Text: "Next", Conf: 0.80, Box: ocr.Box{X: 100, Y: 230, W: 10, H: 5}, Block: 0, Par: 1, Line: 2},
+		{Text: "Col", Conf: 1, Box: ocr.Box{X: 100, Y: 250, W: 10, H: 5}, Block: 1, Par: 2, Line: 3},
+		{Text: "two", Conf: 0.70, Box: ocr.Box{X: 100, Y: 260, W: 10, H: 5}, Block: 1, Par: 2, Line: 4},
 	}
 	if fmt.Sprint(got) != fmt.Sprint(want) {
 		t.Errorf("wordsFromBoxes:\n got %v\nwant %v", got, want)

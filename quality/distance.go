@@ -46,6 +46,7 @@ type Scratch struct {
 	bv     bitState
 	bag    bagCounter
 	dense  denseCoder
+	flex   flexState
 }
 
 // Distance returns the Levenshtein distance between a and b, counted in

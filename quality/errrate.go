@@ -11,11 +11,17 @@ type Counts struct {
 	CharErrors int // character edits (Levenshtein distance over code points)
 	Words      int // reference words (runs between spaces), after normalisation
 	WordErrors int // word edits (Levenshtein distance over words)
+	FlexErrors int // errors of the flexible character accuracy, over Chars (see flex.go)
+	BagErrors  int // reference words missing from the hypothesis plus extra words, as multisets (see bag.go)
 }
 
 // Add returns the sum of c and d.
 func (c Counts) Add(d Counts) Counts {
-	return Counts{c.Chars + d.Chars, c.CharErrors + d.CharErrors, c.Words + d.Words, c.WordErrors + d.WordErrors}
+	return Counts{
+		Chars: c.Chars + d.Chars, CharErrors: c.CharErrors + d.CharErrors,
+		Words: c.Words + d.Words, WordErrors: c.WordErrors + d.WordErrors,
+		FlexErrors: c.FlexErrors + d.FlexErrors, BagErrors: c.BagErrors + d.BagErrors,
+	}
 }
 
 // CER returns the character error rate CharErrors/Chars, and false when
@@ -37,8 +43,10 @@ func (c Counts) WER() (float64, bool) {
 }
 
 // Compare normalises ref and hyp with o and counts the character and word
-// edits that turn ref into hyp. Its cost is that of Normalize on both and of
-// two Distance calls, one over code points and one over word ids.
+// edits that turn ref into hyp, the errors of the flexible character
+// accuracy (flex.go) and the bag-of-words errors (bag.go). Its cost is that
+// of Normalize on both (twice: whole and line by line), two Distance calls,
+// one over code points and one over word ids, and the flexible matching.
 func Compare(ref, hyp string, o NormOptions) Counts {
 	var s Scratch
 	return s.Compare(ref, hyp, o)
@@ -46,11 +54,17 @@ func Compare(ref, hyp string, o NormOptions) Counts {
 
 // Compare is Compare with reusable scratch.
 func (s *Scratch) Compare(ref, hyp string, o NormOptions) Counts {
+	refRaw, hypRaw := ref, hyp
 	ref, hyp = Normalize(ref, o), Normalize(hyp, o)
 	r, h := []rune(ref), []rune(hyp)
 	c := Counts{Chars: len(r), CharErrors: s.Distance(r, h)}
 	rw, hw := WordIDs(ref, hyp)
 	c.Words, c.WordErrors = len(rw), s.Distance(rw, hw)
+	c.BagErrors = bagErrors(rw, hw)
+	c.FlexErrors = c.CharErrors
+	if c.CharErrors > 0 {
+		c.FlexErrors = min(c.CharErrors, s.flex.errors(flexLines(refRaw, o), flexLines(hypRaw, o)))
+	}
 	return c
 }
 

@@ -9,51 +9,41 @@ import (
 	"os/exec"
 	"path/filepath"
 	"runtime"
-	"sync"
+	"strconv"
+	"strings"
 	"syscall"
 	"testing"
 	"time"
 
-	"recto/ocr/ledger"
+	"recto/cmd/internal/run/ledger"
+	"recto/cmd/internal/run/runtest"
+	"recto/correct"
 )
 
-var (
-	buildOnce sync.Once
-	buildDir  string
-	buildBin  string
-	buildErr  error
-)
+// asRectoEnv makes the test binary act as recto with the test engine on
+// the collection it names (its value): the process tests run this binary,
+// so the shipped one needs no way to switch engines.
+const asRectoEnv = "RECTO_TEST_AS_RECTO"
 
-// TestMain removes the binary the process tests share.
+// TestMain runs recto itself when asked to by a process test.
 func TestMain(m *testing.M) {
-	code := m.Run()
-	if buildDir != "" {
-		os.RemoveAll(buildDir)
+	if coll := os.Getenv(asRectoEnv); coll != "" {
+		delay, _ := strconv.Atoi(os.Getenv("RECTO_TEST_DELAY_MS"))
+		testEngine = runtest.Engine(coll, time.Duration(delay)*time.Millisecond)
+		os.Args = append([]string{"recto"}, strings.Split(os.Getenv("RECTO_TEST_ARGS"), "\x1f")...)
+		main()
+		return
 	}
-	os.Exit(code)
+	os.Exit(m.Run())
 }
 
-// buildRecto compiles the command once for the tests that run it as a
-// process.
-func buildRecto(t *testing.T) string {
-	t.Helper()
-	buildOnce.Do(func() {
-		if buildDir, buildErr = os.MkdirTemp("", "recto-test-bin-"); buildErr != nil {
-			return
-		}
-		buildBin = filepath.Join(buildDir, "recto")
-		if runtime.GOOS == "windows" {
-			buildBin += ".exe"
-		}
-		out, err := exec.Command("go", "build", "-o", buildBin, ".").CombinedOutput()
-		if err != nil {
-			buildErr = fmt.Errorf("go build: %v\n%s", err, out)
-		}
-	})
-	if buildErr != nil {
-		t.Fatal(buildErr)
-	}
-	return buildBin
+// recto returns a command that runs this test binary as recto with the
+// test engine on coll, each page taking delay.
+func recto(coll string, delay time.Duration, args ...string) *exec.Cmd {
+	c := exec.Command(os.Args[0])
+	c.Env = append(os.Environ(), asRectoEnv+"="+coll, fmt.Sprintf("RECTO_TEST_DELAY_MS=%d", delay.Milliseconds()),
+		"RECTO_TEST_ARGS="+strings.Join(args, "\x1f"))
+	return c
 }
 
 // TestKillAndResume kills a run with SIGKILL at random moments, resumes
@@ -63,16 +53,12 @@ func TestKillAndResume(t *testing.T) {
 	if runtime.GOOS == "windows" {
 		t.Skip("SIGKILL test needs a Unix system")
 	}
-	bin := buildRecto(t)
-	coll, truth := testCollection(t, 3, 12, true)
+	coll, truth := runtest.Collection(t, 3, 12, true)
 	base := t.TempDir()
-	env := append(os.Environ(), "RECTO_FAKE_ENGINE=1", "RECTO_FAKE_DELAY_MS=25")
 	run := func(out string) *exec.Cmd {
 		// No page is corrected (building the corrector takes seconds per
 		// process); the shard tests cover correction.
-		c := exec.Command(bin, "run", coll, "--out", out, "--truth", truth, "--jobs", "2", "--quiet", "--correct", "0.99", "--rescan", "1")
-		c.Env = env
-		return c
+		return recto(coll, 25*time.Millisecond, "run", coll, "--out", out, "--truth", truth, "--jobs", "2", "--quiet", "--correct", "0.99", "--rescan", "1")
 	}
 	clean := filepath.Join(base, "clean")
 	t0 := time.Now()
@@ -80,7 +66,7 @@ func TestKillAndResume(t *testing.T) {
 		t.Fatalf("uninterrupted run: %v, want exit status 3", err)
 	}
 	whole := time.Since(t0) // kill moments are spread over a whole run
-	total := len(ledgerRows(t, clean))
+	total := len(runtest.LedgerRows(t, clean))
 
 	seed := time.Now().UnixNano()
 	t.Logf("kill seed %d", seed)
@@ -121,7 +107,7 @@ func TestKillAndResume(t *testing.T) {
 			continue
 		}
 		if _, err := os.Stat(filepath.Join(killed, ledger.FileName)); err == nil {
-			if n := len(ledgerRows(t, killed)); n > 0 && n < total {
+			if n := len(runtest.LedgerRows(t, killed)); n > 0 && n < total {
 				midway++
 			}
 		}
@@ -133,7 +119,7 @@ func TestKillAndResume(t *testing.T) {
 	if midway == 0 {
 		t.Fatal("no kill landed part-way through a run: the test proved nothing")
 	}
-	sameRun(t, clean, killed)
+	runtest.SameRun(t, clean, killed)
 }
 
 // countRows returns the rows in the ledger of dir, 0 when there is none yet.
@@ -165,12 +151,10 @@ func TestInterruptExits130(t *testing.T) {
 	if runtime.GOOS == "windows" {
 		t.Skip("needs Unix signals")
 	}
-	bin := buildRecto(t)
-	coll, _ := testCollection(t, 2, 20, false)
+	coll, _ := runtest.Collection(t, 2, 20, false)
 	out := filepath.Join(t.TempDir(), "out")
-	env := append(os.Environ(), "RECTO_FAKE_ENGINE=1", "RECTO_FAKE_DELAY_MS=30")
-	c := exec.Command(bin, "run", coll, "--out", out, "--jobs", "2", "--quiet", "--correct", "0.99", "--rescan", "1")
-	c.Env = env
+	args := []string{"run", coll, "--out", out, "--jobs", "2", "--quiet", "--correct", "0.99", "--rescan", "1"}
+	c := recto(coll, 30*time.Millisecond, args...)
 	if err := c.Start(); err != nil {
 		t.Fatal(err)
 	}
@@ -188,7 +172,7 @@ func TestInterruptExits130(t *testing.T) {
 	if st := exitStatus(c.Wait()); st != exitInterrupted {
 		t.Fatalf("exit status %d after SIGINT, want %d", st, exitInterrupted)
 	}
-	rows := ledgerRows(t, out)
+	rows := runtest.LedgerRows(t, out)
 	if len(rows) == 0 || len(rows) >= 40 {
 		t.Fatalf("%d pages committed before the interrupt, want some but not all 40", len(rows))
 	}
@@ -197,12 +181,76 @@ func TestInterruptExits130(t *testing.T) {
 			t.Errorf("%s recorded as %s (%s): an interrupted page must not be recorded", r.Rel, r.State, r.Error)
 		}
 	}
-	c = exec.Command(bin, "run", coll, "--out", out, "--jobs", "2", "--quiet", "--correct", "0.99", "--rescan", "1")
-	c.Env = env
+	c = recto(coll, 30*time.Millisecond, args...)
 	if err := c.Run(); err != nil {
 		t.Fatalf("resumed run: %v", err)
 	}
-	if n := len(ledgerRows(t, out)); n != 40 {
+	if n := len(runtest.LedgerRows(t, out)); n != 40 {
 		t.Errorf("%d pages after resuming, want 40", n)
+	}
+}
+
+// TestRunUsageErrors: bad flag values of `recto run` are usage errors.
+func TestRunUsageErrors(t *testing.T) {
+	coll, _ := runtest.Collection(t, 1, 1, false)
+	for _, args := range [][]string{
+		{"run", coll},
+		{"run", coll, "--out", "x", "--shard", "3/3"},
+		{"run", coll, "--out", "x", "--rescan", "1.5"},
+		{"run", coll, "--out", "x", "--correct", "0.5", "--rescan", "0.2"},
+		{"run", coll, "--out", "x", "--jobs", "-1"},
+		{"run", "--out", "x"},
+	} {
+		_, _, err := runRecto(t, args...)
+		var ue *usageError
+		if !errors.As(err, &ue) {
+			t.Errorf("%q: err = %v, want a usage error", args, err)
+		}
+	}
+}
+
+// TestRunHelpMarginDefault: the help of `recto run` gives the margin the
+// code uses when --margin is 0.
+func TestRunHelpMarginDefault(t *testing.T) {
+	f := newRootCommand()
+	c, _, err := f.Find([]string{"run"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := fmt.Sprintf("(default %g)", correct.DefaultMargin)
+	if u := c.Flags().Lookup("margin").Usage; !strings.Contains(u, want) {
+		t.Errorf("--margin help %q does not give the default %s", u, want)
+	}
+}
+
+// TestUnknownCommandExit2: an unknown command is a usage error (exit status 2).
+func TestUnknownCommandExit2(t *testing.T) {
+	_, _, err := runRecto(t, "bogus-command")
+	if err == nil {
+		t.Fatal("an unknown command succeeded")
+	}
+	if st := exitCode(context.Background(), err); st != exitUsage {
+		t.Errorf("exit status %d for %v, want %d", st, err, exitUsage)
+	}
+}
+
+// TestBinaryHasNoTestCode: the shipped binary links neither the testing
+// package nor the test engine (issue 15: no back door to a fake engine).
+func TestBinaryHasNoTestCode(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds the binary")
+	}
+	bin := filepath.Join(t.TempDir(), "recto")
+	if out, err := exec.Command("go", "build", "-o", bin, ".").CombinedOutput(); err != nil {
+		t.Fatalf("go build: %v\n%s", err, out)
+	}
+	out, err := exec.Command("go", "tool", "nm", bin).Output()
+	if err != nil {
+		t.Fatalf("go tool nm: %v", err)
+	}
+	for _, pkg := range []string{" testing.", "recto/ocr/ocrtest.", "recto/cmd/internal/run/runtest."} {
+		if strings.Contains(string(out), pkg) {
+			t.Errorf("the binary links %q", strings.TrimSpace(pkg))
+		}
 	}
 }

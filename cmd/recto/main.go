@@ -9,6 +9,7 @@ import (
 	"fmt"
 	"os"
 	"os/signal"
+	"strings"
 	"syscall"
 )
 
@@ -32,7 +33,8 @@ func exitCode(ctx context.Context, err error) int {
 	case ctx.Err() != nil || errors.Is(err, context.Canceled):
 		fmt.Fprintln(os.Stderr, "recto: interrupted")
 		return exitInterrupted
-	case errors.As(err, &ue):
+	case errors.As(err, &ue) || strings.HasPrefix(err.Error(), "unknown command "):
+		// cobra reports an unknown command with a plain error: a usage error too.
 		fmt.Fprintf(os.Stderr, "recto: %v\nRun 'recto --help' for usage.\n", err)
 		return exitUsage
 	case errors.As(err, &pe):

@@ -220,7 +220,7 @@ func runOCR(ctx context.Context, o OCROptions, g GlobalOptions, args []string) e
 	if err != nil {
 		var ml *tesseract.MissingLanguageError
 		if errors.As(err, &ml) {
-			return &usageError{err}
+			return &usageError{Err: err}
 		}
 		return fmt.Errorf("ocr: %w", err)
 	}

@@ -2,29 +2,25 @@ package main
 
 import (
 	"errors"
-	"fmt"
 	"io"
 	"os"
 
 	"github.com/spf13/cobra"
+
+	"recto/cmd/internal/cli"
 )
 
-// Exit statuses; documented in the root command's help.
+// Exit statuses and the errors that choose them live in cmd/internal/cli;
+// these names keep the commands short.
 const (
-	exitOK          = 0
-	exitFailure     = 1
-	exitUsage       = 2
-	exitPartial     = 3
-	exitInterrupted = 130
+	exitOK          = cli.ExitOK
+	exitFailure     = cli.ExitFailure
+	exitUsage       = cli.ExitUsage
+	exitPartial     = cli.ExitPartial
+	exitInterrupted = cli.ExitInterrupted
 )
 
-const exitStatusHelp = `
-EXIT STATUS
-  0    everything was processed
-  1    failure: nothing useful was produced
-  2    usage error: bad flag, argument or option value
-  3    partial: some pages were missing or unreadable (others were processed)
-  130  interrupted (SIGINT or SIGTERM)`
+const exitStatusHelp = cli.ExitStatusHelp
 
 // GlobalOptions are the flags every command shares.
 type GlobalOptions struct {
@@ -34,28 +30,12 @@ type GlobalOptions struct {
 	stderr io.Writer
 }
 
-// usageError marks a bad invocation (exit status 2).
-type usageError struct{ err error }
+type (
+	usageError   = cli.UsageError   // a bad invocation (exit status 2)
+	partialError = cli.PartialError // some inputs failed (exit status 3)
+)
 
-func (e *usageError) Error() string { return e.err.Error() }
-func (e *usageError) Unwrap() error { return e.err }
-
-// usagef returns a usageError with a formatted message.
-func usagef(format string, args ...any) error {
-	return &usageError{fmt.Errorf(format, args...)}
-}
-
-// partialError marks a run in which some inputs failed while the others
-// were processed (exit status 3).
-type partialError struct {
-	Failed int    // inputs that failed
-	Total  int    // inputs seen
-	What   string // plural noun, e.g. "pages"
-}
-
-func (e *partialError) Error() string {
-	return fmt.Sprintf("%d of %d %s failed (see the messages above)", e.Failed, e.Total, e.What)
-}
+var usagef = cli.Usagef
 
 // errNotImplemented is returned by commands whose capability has not landed.
 var errNotImplemented = errors.New("not implemented yet")
@@ -79,7 +59,7 @@ corrects common OCR confusions, and measures CER and WER against ground truth.
 		},
 	}
 	root.PersistentFlags().BoolVarP(&g.Quiet, "quiet", "q", false, "no progress messages on stderr")
-	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error { return &usageError{err} })
+	root.SetFlagErrorFunc(func(c *cobra.Command, err error) error { return &usageError{Err: err} })
 
 	root.AddCommand(
 		newVersionCommand(g),
@@ -105,7 +85,7 @@ func wrapArgErrors(c *cobra.Command) {
 		args := c.Args
 		c.Args = func(cmd *cobra.Command, a []string) error {
 			if err := args(cmd, a); err != nil {
-				return &usageError{err}
+				return &usageError{Err: err}
 			}
 			return nil
 		}

@@ -195,12 +195,18 @@ type jsonCounts struct {
 	Words      int      `json:"words"`
 	WordErrors int      `json:"word_errors"`
 	WER        *float64 `json:"wer"`
+	FlexErrors int      `json:"flex_errors"`
+	FlexCER    *float64 `json:"flex_cer"`
+	BagErrors  int      `json:"bag_errors"`
+	BagWER     *float64 `json:"bag_wer"`
 }
 
 func toJSONCounts(c quality.Counts) jsonCounts {
 	return jsonCounts{
 		Chars: c.Chars, CharErrors: c.CharErrors, CER: rate(c.CER()),
 		Words: c.Words, WordErrors: c.WordErrors, WER: rate(c.WER()),
+		FlexErrors: c.FlexErrors, FlexCER: rate(c.FlexCER()),
+		BagErrors: c.BagErrors, BagWER: rate(c.BagWER()),
 	}
 }
 
@@ -308,14 +314,17 @@ func formatRate(v float64, ok bool) string {
 func writeScoreCSV(w io.Writer, rep *quality.Report) error {
 	cw := csv.NewWriter(w)
 	norm := rep.Norm.String()
-	cw.Write([]string{"title", "page", "status", "chars", "char_errors", "cer", "words", "word_errors", "wer", "normalization"})
+	cw.Write([]string{"title", "page", "status", "chars", "char_errors", "cer", "words", "word_errors", "wer", "flex_errors", "flex_cer", "bag_errors", "bag_wer", "normalization"})
 	for _, p := range rep.Pages {
 		cer, cok := p.CER()
 		wer, wok := p.WER()
+		flex, fok := p.FlexCER()
+		bag, bok := p.BagWER()
 		cw.Write([]string{
 			p.Title, p.Page, p.Status,
 			strconv.Itoa(p.Chars), strconv.Itoa(p.CharErrors), formatRate(cer, cok),
-			strconv.Itoa(p.Words), strconv.Itoa(p.WordErrors), formatRate(wer, wok), norm,
+			strconv.Itoa(p.Words), strconv.Itoa(p.WordErrors), formatRate(wer, wok),
+			strconv.Itoa(p.FlexErrors), formatRate(flex, fok), strconv.Itoa(p.BagErrors), formatRate(bag, bok), norm,
 		})
 	}
 	cw.Flush()
@@ -346,10 +355,11 @@ func writeScoreTable(w io.Writer, rep *quality.Report) error {
 
 	var tb strings.Builder
 	tw := tabwriter.NewWriter(&tb, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintf(tw, "%s\tstatus\tchars\tchar errors\tCER\twords\tword errors\tWER\t\n", name("page"))
+	fmt.Fprintf(tw, "%s\tstatus\tchars\tchar errors\tCER\twords\tword errors\tWER\tflex CER\tbag WER\t\n", name("page"))
 	for _, p := range rep.Pages {
-		fmt.Fprintf(tw, "%s\t%s\t%d\t%d\t%s\t%d\t%d\t%s\t\n", name(p.Page), p.Status,
-			p.Chars, p.CharErrors, percent(p.CER()), p.Words, p.WordErrors, percent(p.WER()))
+		fmt.Fprintf(tw, "%s\t%s\t%d\t%d\t%s\t%d\t%d\t%s\t%s\t%s\t\n", name(p.Page), p.Status,
+			p.Chars, p.CharErrors, percent(p.CER()), p.Words, p.WordErrors, percent(p.WER()),
+			percent(p.FlexCER()), percent(p.BagWER()))
 	}
 	tw.Flush()
 	b.WriteString(dropIndent(tb.String()))
@@ -357,19 +367,20 @@ func writeScoreTable(w io.Writer, rep *quality.Report) error {
 
 	tb.Reset()
 	tw = tabwriter.NewWriter(&tb, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintf(tw, "%s\tpages\tchars\tchar errors\tCER\tmean page CER\t95%% interval\twords\tword errors\tWER\t\n", name("title"))
+	fmt.Fprintf(tw, "%s\tpages\tchars\tchar errors\tCER\tmean page CER\t95%% interval\twords\tword errors\tWER\tflex CER\tbag WER\t\n", name("title"))
 	for _, t := range rep.Titles {
 		interval := "-"
 		if t.IntervalOK {
 			interval = percent(t.Low, true) + " – " + percent(t.High, true)
 		}
-		fmt.Fprintf(tw, "%s\t%d\t%d\t%d\t%s\t%s\t%s\t%d\t%d\t%s\t\n", name(t.Title), t.Pages,
+		fmt.Fprintf(tw, "%s\t%d\t%d\t%d\t%s\t%s\t%s\t%d\t%d\t%s\t%s\t%s\t\n", name(t.Title), t.Pages,
 			t.Chars, t.CharErrors, percent(t.CER()), percent(t.MeanCER, t.MeanOK), interval,
-			t.Words, t.WordErrors, percent(t.WER()))
+			t.Words, t.WordErrors, percent(t.WER()), percent(t.FlexCER()), percent(t.BagWER()))
 	}
-	fmt.Fprintf(tw, "%s\t%d\t%d\t%d\t%s\t\t\t%d\t%d\t%s\t\n", name("total"), len(rep.Pages),
+	fmt.Fprintf(tw, "%s\t%d\t%d\t%d\t%s\t\t\t%d\t%d\t%s\t%s\t%s\t\n", name("total"), len(rep.Pages),
 		rep.Total.Chars, rep.Total.CharErrors, percent(rep.Total.CER()),
-		rep.Total.Words, rep.Total.WordErrors, percent(rep.Total.WER()))
+		rep.Total.Words, rep.Total.WordErrors, percent(rep.Total.WER()),
+		percent(rep.Total.FlexCER()), percent(rep.Total.BagWER()))
 	tw.Flush()
 	b.WriteString(dropIndent(tb.String()))
 	fmt.Fprintf(&b, "\nTitles and total are micro-averaged; the interval is a %d-resample percentile bootstrap over pages.\n", quality.DefaultResamples)

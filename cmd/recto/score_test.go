@@ -202,7 +202,7 @@ func TestScoreUnreadable(t *testing.T) {
 	if locked && !strings.Contains(stderr, `locked.txt": permission denied`) {
 		t.Errorf("stderr does not name the locked file:\n%s", stderr)
 	}
-	if !strings.Contains(stdout, "a,a/good,ok,9,0,0,2,0,0,\"NFC") {
+	if !strings.Contains(stdout, "a,a/good,ok,9,0,0,2,0,0,0,0,0,0,\"NFC") {
 		t.Errorf("the good page was not scored:\n%s", stdout)
 	}
 }

@@ -1,13 +1,16 @@
-package main
+package run
 
 import (
 	"bytes"
+	"context"
 	"image"
 	"image/png"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"recto/cmd/internal/run/runtest"
 )
 
 func TestDemoPagesDeterministic(t *testing.T) {
@@ -40,7 +43,7 @@ func TestDemoPagesDeterministic(t *testing.T) {
 func TestDemoRefusesForeignFolder(t *testing.T) {
 	dir := t.TempDir()
 	mustWrite(t, filepath.Join(dir, "thesis.txt"), []byte("precious"))
-	_, _, err := runRecto(t, "demo", "--out", dir)
+	_, err := Demo(context.Background(), DemoOptions{Out: dir})
 	if err == nil || !strings.Contains(err.Error(), "not made by 'recto demo'") {
 		t.Fatalf("err = %v, want a refusal", err)
 	}
@@ -53,7 +56,6 @@ func TestDemoRefusesForeignFolder(t *testing.T) {
 }
 
 func TestDemoEndToEndFakeEngine(t *testing.T) {
-	t.Setenv("RECTO_FAKE_ENGINE", "1")
 	// Small pages keep the test fast: it checks the demo's plumbing, the
 	// rendering is checked above.
 	render := renderDemoPage
@@ -65,13 +67,15 @@ func TestDemoEndToEndFakeEngine(t *testing.T) {
 	}
 	t.Cleanup(func() { renderDemoPage = render })
 	dir := filepath.Join(t.TempDir(), "demo")
-	stdout, stderr, err := runRecto(t, "demo", "--out", dir)
+	var stderr bytes.Buffer
+	o := DemoOptions{Out: dir, Stderr: &stderr, NewEngine: runtest.Engine(dir, 0), NoPrepare: true}
+	sum, err := Demo(context.Background(), o)
 	if err != nil {
-		t.Fatal(err, stderr)
+		t.Fatal(err, stderr.String())
 	}
 	want := filepath.Join(dir, "run", reportDir, "report.html")
-	if strings.TrimSpace(stdout) != want {
-		t.Errorf("stdout = %q, want the report path %q", stdout, want)
+	if sum.Report != want {
+		t.Errorf("report = %q, want %q", sum.Report, want)
 	}
 	rows := ledgerRows(t, filepath.Join(dir, "run"))
 	truth := 0
@@ -84,8 +88,9 @@ func TestDemoEndToEndFakeEngine(t *testing.T) {
 		t.Errorf("%d rows, %d with truth; want 25 and 12", len(rows), truth)
 	}
 	// A second demo reuses the folder and finds every page done.
-	_, stderr, err = runRecto(t, "demo", "--out", dir)
-	if err != nil || !strings.Contains(stderr, "(25 already done)") {
-		t.Errorf("second demo: %v\n%s", err, stderr)
+	stderr.Reset()
+	sum, err = Demo(context.Background(), o)
+	if err != nil || sum.Skipped != 25 || !strings.Contains(stderr.String(), "(25 already done)") {
+		t.Errorf("second demo: %v, %d skipped\n%s", err, sum.Skipped, stderr.String())
 	}
 }

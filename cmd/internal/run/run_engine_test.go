@@ -1,6 +1,7 @@
-package main
+package run
 
 import (
+	"context"
 	"os"
 	"path/filepath"
 	"testing"
@@ -23,11 +24,11 @@ func TestRunRealEngineShardsMerged(t *testing.T) {
 		t.Skipf("engine unavailable: %v", err)
 	}
 	eng.Close()
-	img, err := os.ReadFile(filepath.Join("..", "..", "testdata", "engine", "phototest.tif"))
+	img, err := os.ReadFile(filepath.Join("..", "..", "..", "testdata", "engine", "phototest.tif"))
 	if err != nil {
 		t.Fatal(err)
 	}
-	txt, err := os.ReadFile(filepath.Join("..", "..", "testdata", "engine", "phototest.txt"))
+	txt, err := os.ReadFile(filepath.Join("..", "..", "..", "testdata", "engine", "phototest.txt"))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -38,17 +39,17 @@ func TestRunRealEngineShardsMerged(t *testing.T) {
 		mustWrite(t, filepath.Join(truth, rel+".txt"), txt)
 	}
 	single := filepath.Join(dir, "single")
-	if _, se, err := runRecto(t, "run", coll, "--out", single, "--truth", truth, "--jobs", "2"); err != nil {
-		t.Fatal(err, se)
+	if _, err := Run(context.Background(), Options{Collection: coll, Out: single, Truth: truth, Jobs: 2}); err != nil {
+		t.Fatal(err)
 	}
 	sharded := filepath.Join(dir, "sharded")
 	for _, s := range []string{"0/3", "1/3", "2/3"} {
-		if _, se, err := runRecto(t, "run", coll, "--out", sharded, "--truth", truth, "--shard", s); err != nil {
-			t.Fatal(err, se)
+		if _, err := Run(context.Background(), Options{Collection: coll, Out: sharded, Truth: truth, Shard: s}); err != nil {
+			t.Fatal(err)
 		}
 	}
-	if _, se, err := runRecto(t, "merge", sharded); err != nil {
-		t.Fatal(err, se)
+	if _, err := Merge(context.Background(), MergeOptions{Dirs: []string{sharded}}); err != nil {
+		t.Fatal(err)
 	}
 	sameRun(t, single, sharded)
 	for _, r := range ledgerRows(t, single) {

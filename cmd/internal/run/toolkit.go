@@ -1,24 +1,17 @@
-package main
+package run
 
 import (
-	"bufio"
 	"context"
 	"fmt"
-	"hash/fnv"
 	"image"
-	"os"
-	"strconv"
-	"strings"
 	"sync"
-	"time"
 
+	"recto/cmd/internal/run/report"
 	"recto/correct"
 	"recto/lexicon"
 	"recto/ocr"
-	"recto/ocr/ocrtest"
 	"recto/ocr/tesseract"
 	"recto/quality"
-	"recto/quality/report"
 )
 
 // toolkit holds the steps of a run, built once from the options and
@@ -46,16 +39,10 @@ func cerInterval(errs, chars []int) (float64, float64, bool) {
 	return quality.BootstrapCER(pages, 0, 0)
 }
 
-// fakeEngineEnv switches `recto run` and `recto demo` to the test engine.
-// Test-only: it lets the process tests (kill and resume) run in seconds
-// without Tesseract. The engine "recognises" the words of <image>.fake.txt
-// beside each image, or none.
-const fakeEngineEnv = "RECTO_FAKE_ENGINE"
-
-func newToolkit(o RunOptions) (*toolkit, error) {
+func newToolkit(o Options) (*toolkit, error) {
 	th := quality.Thresholds{Rescan: o.Rescan, Correct: o.Correct}
 	if err := th.Validate(); err != nil {
-		return nil, &usageError{fmt.Errorf("run: %w", err)}
+		return nil, &usageError{Err: fmt.Errorf("run: %w", err)}
 	}
 	model := quality.DefaultModel()
 	lex := lexicon.Default()
@@ -78,11 +65,11 @@ func newToolkit(o RunOptions) (*toolkit, error) {
 	if err != nil {
 		return nil, fmt.Errorf("run: --lexicon: %w", err)
 	}
-	fake := os.Getenv(fakeEngineEnv) == "1"
-	opts := ocr.Options{DPI: o.DPI, NoPrepare: fake}
+	custom := o.NewEngine != nil
+	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare}
 	cfg := tesseract.Config{Lang: o.Lang, PSM: o.PSM}
 	settings := map[string]any{"lang": o.Lang, "psm": o.PSM, "dpi": o.DPI, "rescan": o.Rescan, "correct": o.Correct,
-		"model": modelSum, "lexicon": lexSum, "margin": o.Margin, "fake_engine": fake, "record": ocr.RecordVersion}
+		"model": modelSum, "lexicon": lexSum, "margin": o.Margin, "fake_engine": custom, "record": ocr.RecordVersion}
 	tk := &toolkit{
 		write:    func(dir, rel string, r *ocr.Record, g *image.Gray) error { return ocr.WriteOutputs(dir, rel, r, g) },
 		interval: cerInterval,
@@ -100,14 +87,17 @@ func newToolkit(o RunOptions) (*toolkit, error) {
 		return c, len(changes)
 	}
 	tk.fingerprint, tk.settingsJSON = fingerprint(settings)
-	if fake {
-		delay, _ := strconv.Atoi(os.Getenv("RECTO_FAKE_DELAY_MS"))
+	if custom {
 		tk.newRecogniser = func() (recogniser, error) {
-			return &engineRecogniser{eng: &ocrtest.Engine{Delay: time.Duration(delay) * time.Millisecond}, opts: opts, fake: true}, nil
+			e, err := o.NewEngine()
+			if err != nil {
+				return nil, err
+			}
+			return &engineRecogniser{eng: e, opts: opts}, nil
 		}
 	} else {
 		// Fail early, before the walk, when the engine or a language is missing.
-		eng, err := newEngine(cfg)
+		eng, err := tesseract.New(cfg)
 		if err != nil {
 			return nil, fmt.Errorf("run: %w", err)
 		}
@@ -121,7 +111,7 @@ func newToolkit(o RunOptions) (*toolkit, error) {
 			if e != nil { // the engine made for the check serves the first worker
 				return &engineRecogniser{eng: e, opts: opts}, nil
 			}
-			e, err := newEngine(cfg)
+			e, err := tesseract.New(cfg)
 			if err != nil {
 				return nil, err
 			}
@@ -165,34 +155,10 @@ func correctorFor(lex *lexicon.Lexicon, margin float64) *correct.Corrector {
 type engineRecogniser struct {
 	eng  ocr.Engine
 	opts ocr.Options
-	fake bool // eng is an *ocrtest.Engine fed from <image>.fake.txt
 }
 
 func (e *engineRecogniser) Recognise(ctx context.Context, path string) (*ocr.Record, *image.Gray, error) {
-	if e.fake {
-		e.eng.(*ocrtest.Engine).Words = fakeWords(path + ".fake.txt")
-	}
 	return ocr.ProcessFile(ctx, e.eng, path, e.opts)
 }
 
 func (e *engineRecogniser) Close() error { return e.eng.Close() }
-
-// fakeWords reads the test engine's words: one line of the file per text
-// line, confidence a hash of the word in [0.6, 1).
-func fakeWords(name string) []ocr.Word {
-	f, err := os.Open(name)
-	if err != nil {
-		return nil
-	}
-	defer f.Close()
-	var words []ocr.Word
-	sc := bufio.NewScanner(f)
-	for line := 0; sc.Scan(); line++ {
-		for _, w := range strings.Fields(sc.Text()) {
-			h := fnv.New32a()
-			h.Write([]byte(w))
-			words = append(words, ocr.Word{Text: w, Conf: 0.6 + 0.4*float64(h.Sum32()%1000)/1000, Line: line})
-		}
-	}
-	return words
-}

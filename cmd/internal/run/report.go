@@ -1,4 +1,4 @@
-package main
+package run
 
 import (
 	"context"
@@ -9,58 +9,42 @@ import (
 	"path/filepath"
 	"unicode/utf8"
 
-	"github.com/spf13/cobra"
-
-	"recto/ocr/ledger"
-	"recto/quality/report"
+	"recto/cmd/internal/run/ledger"
+	"recto/cmd/internal/run/report"
 )
 
-func newReportCommand(g *GlobalOptions) *cobra.Command {
-	return &cobra.Command{
-		Use:   "report DIR",
-		Short: "Rebuild the reports of a run from its ledger",
-		Long: `Report rebuilds DIR/report (titles.csv, titles.json, pages.csv, rescan.csv,
-report.html) from the ledger of the run in DIR, without recognising anything.
-It may run while a run is still writing DIR: it shows the pages committed so far.
-` + exitStatusHelp,
-		Args: cobra.ExactArgs(1),
-		RunE: func(cmd *cobra.Command, args []string) error {
-			return runReport(cmd.Context(), *g, args[0])
-		},
-	}
-}
-
-func runReport(ctx context.Context, g GlobalOptions, dir string) error {
+// Report rebuilds the reports of the run in dir from its ledger and
+// returns the path of report.html.
+func Report(ctx context.Context, dir string) (string, error) {
 	abs, err := filepath.Abs(dir)
 	if err != nil {
-		return err
+		return "", err
 	}
 	lp := filepath.Join(abs, ledger.FileName)
 	if _, err := os.Stat(lp); errors.Is(err, fs.ErrNotExist) {
 		if m, _ := filepath.Glob(filepath.Join(abs, shardsDir, "*", ledger.FileName)); len(m) > 0 {
-			return fmt.Errorf("report: %q holds %d shard ledgers but no merged one: run 'recto merge %s' first", dir, len(m), dir)
+			return "", fmt.Errorf("report: %q holds %d shard ledgers but no merged one: run 'recto merge %s' first", dir, len(m), dir)
 		}
-		return fmt.Errorf("report: %q is not a run folder (no %s)", dir, ledger.FileName)
+		return "", fmt.Errorf("report: %q is not a run folder (no %s)", dir, ledger.FileName)
 	}
 	l, err := ledger.OpenReadOnly(lp)
 	if err != nil {
-		return fmt.Errorf("report: %w", err)
+		return "", fmt.Errorf("report: %w", err)
 	}
 	defer l.Close()
 	rows, err := l.Pages(ctx)
 	if err != nil {
-		return fmt.Errorf("report: %w", err)
+		return "", fmt.Errorf("report: %w", err)
 	}
 	root, err := l.Meta(ctx, "collection")
 	if err != nil {
-		return fmt.Errorf("report: %w", err)
+		return "", fmt.Errorf("report: %w", err)
 	}
 	repDir := filepath.Join(abs, reportDir)
 	if err := buildReports(repDir, abs, root, rows, cerInterval); err != nil {
-		return err
+		return "", err
 	}
-	fmt.Fprintln(g.stdout, filepath.Join(repDir, "report.html"))
-	return nil
+	return filepath.Join(repDir, "report.html"), nil
 }
 
 // buildReports writes the reports of rows into repDir. Links to images and

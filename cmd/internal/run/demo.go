@@ -1,4 +1,4 @@
-package main
+package run
 
 import (
 	"bytes"
@@ -6,22 +6,29 @@ import (
 	"crypto/sha256"
 	"errors"
 	"fmt"
+	"io"
 	"io/fs"
 	"os"
 	"path/filepath"
 	"runtime"
 	"strings"
 
-	"github.com/spf13/cobra"
 	"golang.org/x/sync/errgroup"
 
+	"recto/ocr"
 	"recto/ocr/synth"
 )
 
-// DemoOptions are the settings of `recto demo`.
+// DemoOptions are the settings of `recto demo`; the zero value means the
+// defaults.
 type DemoOptions struct {
 	Out  string // demo folder; "" means ./recto-demo
 	Jobs int    // pages in parallel; 0 means GOMAXPROCS
+
+	Stderr    io.Writer                  // progress and messages; nil means none
+	Quiet     bool                       // only failures on Stderr
+	NewEngine func() (ocr.Engine, error) // as in Options
+	NoPrepare bool                       // as in Options
 }
 
 // demoMarker marks a folder as made by `recto demo`, which may then reuse it.
@@ -70,31 +77,6 @@ var renderDemoPage = func(p demoPage) ([]byte, string, error) {
 	return buf.Bytes(), pg.Truth + "\n", nil
 }
 
-func newDemoCommand(g *GlobalOptions) *cobra.Command {
-	var o DemoOptions
-	cmd := &cobra.Command{
-		Use:   "demo [--out DIR]",
-		Short: "Generate the fictional demo collection and run the whole job on it",
-		Long: `Demo generates a small fictional collection (three invented titles of eight
-pages each), renders it at 300 dpi, degrades the pages at several levels,
-writes ground truth for half the pages of each title, and runs the same job
-as 'recto run' on it. It prints where the report is.
-
-Layout of DIR: collection/ (the page images), truth/ (ground truth) and
-run/ (the run folder: ledger, outputs, run/report/report.html). The output is
-the same on every machine and every time. Running demo again reuses DIR; a
-folder that was not made by demo is never touched.
-` + exitStatusHelp,
-		Args: cobra.NoArgs,
-		RunE: func(cmd *cobra.Command, args []string) error {
-			return runDemo(cmd.Context(), o, *g)
-		},
-	}
-	cmd.Flags().StringVarP(&o.Out, "out", "o", "recto-demo", "demo `folder`")
-	cmd.Flags().IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages in parallel (default: number of CPUs)")
-	return cmd
-}
-
 // claimDemoFolder creates dir, or accepts it when it is empty or was made
 // by demo; any other folder is refused, so that demo never overwrites
 // someone's files.
@@ -115,43 +97,41 @@ func claimDemoFolder(dir string) error {
 	return os.WriteFile(filepath.Join(dir, demoMarker), []byte("made by recto demo; safe to delete with the folder\n"), 0o644)
 }
 
-func runDemo(ctx context.Context, o DemoOptions, g GlobalOptions) error {
+// Demo writes the demo collection under o.Out and runs the job on it. The
+// summary's Report names the report; a partial run returns it with a
+// *cli.PartialError.
+func Demo(ctx context.Context, o DemoOptions) (Summary, error) {
 	dir := o.Out
 	if dir == "" {
 		dir = "recto-demo"
 	}
+	stderr := o.Stderr
+	if stderr == nil {
+		stderr = io.Discard
+	}
 	if err := claimDemoFolder(dir); err != nil {
-		return err
+		return Summary{}, err
 	}
 	coll, truth, runDir := filepath.Join(dir, "collection"), filepath.Join(dir, "truth"), filepath.Join(dir, "run")
 	pages := demoPages()
 	stamp := demoStamp(pages)
 	if old, _ := os.ReadFile(filepath.Join(dir, demoMarker+"-collection")); string(old) == stamp {
-		if !g.Quiet {
-			fmt.Fprintf(g.stderr, "recto: reusing the demo collection in %s\n", coll)
+		if !o.Quiet {
+			fmt.Fprintf(stderr, "recto: reusing the demo collection in %s\n", coll)
 		}
 	} else {
-		if !g.Quiet {
-			fmt.Fprintf(g.stderr, "recto: writing the demo collection (%d pages) to %s\n", len(pages), coll)
+		if !o.Quiet {
+			fmt.Fprintf(stderr, "recto: writing the demo collection (%d pages) to %s\n", len(pages), coll)
 		}
 		if err := writeDemo(ctx, pages, coll, truth, o.Jobs); err != nil {
-			return err
+			return Summary{}, err
 		}
 		if err := writeAtomic(filepath.Join(dir, demoMarker+"-collection"), []byte(stamp)); err != nil {
-			return fmt.Errorf("demo: %w", err)
+			return Summary{}, fmt.Errorf("demo: %w", err)
 		}
 	}
-	ro := RunOptions{Out: runDir, Truth: truth, Jobs: o.Jobs, Lang: "eng"}
-	if err := ro.finalize(); err != nil {
-		return err
-	}
-	err := runRun(ctx, ro, g, []string{coll})
-	var pe *partialError
-	if err != nil && !errors.As(err, &pe) {
-		return err
-	}
-	fmt.Fprintln(g.stdout, filepath.Join(runDir, reportDir, "report.html"))
-	return err
+	return Run(ctx, Options{Collection: coll, Out: runDir, Truth: truth, Jobs: o.Jobs, Lang: "eng",
+		Stderr: o.Stderr, Quiet: o.Quiet, NewEngine: o.NewEngine, NoPrepare: o.NoPrepare})
 }
 
 // demoStamp identifies the generated collection: a rerun with the same

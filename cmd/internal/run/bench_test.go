@@ -1,4 +1,4 @@
-package main
+package run
 
 import (
 	"context"
@@ -10,9 +10,9 @@ import (
 	"sync"
 	"testing"
 
+	"recto/cmd/internal/run/ledger"
 	"recto/lexicon"
 	"recto/ocr"
-	"recto/ocr/ledger"
 )
 
 // benchRecords makes n recognised pages of about 300 words drawn from the
@@ -65,7 +65,7 @@ func benchRecords(n int) ([]*ocr.Record, []string) {
 func BenchmarkAfterRecognition10k(b *testing.B) {
 	const n = 10000
 	recs, truth := benchRecords(n)
-	tk, err := newToolkit(RunOptions{Lang: "eng"})
+	tk, err := newToolkit(Options{Lang: "eng"})
 	if err != nil {
 		b.Skipf("toolkit: %v", err)
 	}
@@ -160,7 +160,7 @@ var correctShare share
 // run, on one core.
 func BenchmarkCorrectPage(b *testing.B) {
 	recs, _ := benchRecords(200)
-	tk, err := newToolkit(RunOptions{Lang: "eng"})
+	tk, err := newToolkit(Options{Lang: "eng"})
 	if err != nil {
 		b.Skipf("toolkit: %v", err)
 	}

@@ -1,49 +1,35 @@
-package main
+package run
 
 import (
 	"bytes"
 	"context"
 	"errors"
 	"fmt"
+	"io"
 	"io/fs"
 	"os"
 	"path/filepath"
 	"sort"
 
-	"github.com/spf13/cobra"
-
-	"recto/ocr/ledger"
+	"recto/cmd/internal/run/ledger"
 )
 
 // MergeOptions are the settings of `recto merge`.
 type MergeOptions struct {
-	Out string // run folder to merge into; "" means the single DIR given
+	Dirs []string // run folders to merge (at least one)
+	Out  string   // run folder to merge into; "" means the single folder in Dirs
+
+	Stderr io.Writer // messages; nil means none
+	Quiet  bool
 }
 
-func newMergeCommand(g *GlobalOptions) *cobra.Command {
-	var o MergeOptions
-	cmd := &cobra.Command{
-		Use:   "merge DIR... [--out DIR]",
-		Short: "Combine the ledgers of sharded runs and build the reports",
-		Long: `Merge combines the ledgers of sharded runs into one ledger and builds its
-reports.
-
-With one DIR, the shard ledgers in DIR/shards/*/ (written by 'recto run
---out DIR --shard i/n') are merged into DIR/ledger.db and the reports go to
-DIR/report. With several DIRs, or with --out, every ledger found in them
-(DIR/ledger.db and DIR/shards/*/ledger.db) is merged into --out, and the
-output files the ledgers list are copied there too.
-
-A page found in several ledgers is taken from the one where it is done; if
-it is done in more than one, the most recent wins. The sources are only read.
-` + exitStatusHelp,
-		Args: cobra.MinimumNArgs(1),
-		RunE: func(cmd *cobra.Command, args []string) error {
-			return runMerge(cmd.Context(), o, *g, args)
-		},
-	}
-	cmd.Flags().StringVarP(&o.Out, "out", "o", "", "run `folder` to merge into (default: the one DIR given)")
-	return cmd
+// MergeSummary counts what a merge did.
+type MergeSummary struct {
+	Ledgers int    // source ledgers merged
+	Taken   int    // rows taken from them
+	Pages   int    // pages in the merged ledger
+	Failed  int    // of which failed
+	Report  string // path of report.html
 }
 
 // shardSource is one ledger to merge and the run folder its outputs are
@@ -73,36 +59,46 @@ func findLedgers(dir string) ([]shardSource, error) {
 	return out, nil
 }
 
-func runMerge(ctx context.Context, o MergeOptions, g GlobalOptions, args []string) error {
+// Merge combines the ledgers found in o.Dirs into o.Out and builds its reports.
+func Merge(ctx context.Context, o MergeOptions) (MergeSummary, error) {
+	var sum MergeSummary
+	args := o.Dirs
+	stderr := o.Stderr
+	if stderr == nil {
+		stderr = io.Discard
+	}
+	if len(args) == 0 {
+		return sum, usagef("merge: name at least one run folder")
+	}
 	out := o.Out
 	if out == "" {
 		if len(args) > 1 {
-			return usagef("merge: with several folders, name the destination with --out")
+			return sum, usagef("merge: with several folders, name the destination with --out")
 		}
 		out = args[0]
 	}
 	dst, err := filepath.Abs(out)
 	if err != nil {
-		return err
+		return sum, err
 	}
 	var srcs []shardSource
 	for _, a := range args {
 		s, err := findLedgers(a)
 		if err != nil {
-			return err
+			return sum, err
 		}
 		if len(s) == 0 {
-			return fmt.Errorf("merge: %q holds no ledger (%s or %s/*/%s)", a, ledger.FileName, shardsDir, ledger.FileName)
+			return sum, fmt.Errorf("merge: %q holds no ledger (%s or %s/*/%s)", a, ledger.FileName, shardsDir, ledger.FileName)
 		}
 		srcs = append(srcs, s...)
 	}
 	dstLedger := filepath.Join(dst, ledger.FileName)
 	if err := checkWritable(dst); err != nil {
-		return err
+		return sum, err
 	}
 	l, err := ledger.Open(dstLedger)
 	if err != nil {
-		return fmt.Errorf("merge: %w", err)
+		return sum, fmt.Errorf("merge: %w", err)
 	}
 	defer l.Close()
 
@@ -115,60 +111,60 @@ func runMerge(ctx context.Context, o MergeOptions, g GlobalOptions, args []strin
 		paths = append(paths, s.ledger)
 		sl, err := ledger.OpenReadOnly(s.ledger)
 		if err != nil {
-			return fmt.Errorf("merge: %w", err)
+			return sum, fmt.Errorf("merge: %w", err)
 		}
 		for k := range meta {
 			v, err := sl.Meta(ctx, k)
 			if err != nil {
 				sl.Close()
-				return fmt.Errorf("merge: %w", err)
+				return sum, fmt.Errorf("merge: %w", err)
 			}
 			meta[k][v] = true
 		}
 		if s.runDir != dst {
 			if err := copyOutputs(ctx, sl, s.runDir, dst); err != nil {
 				sl.Close()
-				return err
+				return sum, err
 			}
 		}
 		sl.Close()
 	}
 	for k, vals := range meta {
-		if len(vals) > 1 && !g.Quiet {
-			fmt.Fprintf(g.stderr, "recto: warning: the ledgers were written with different %s values; the merged report mixes them\n", k)
+		if len(vals) > 1 && !o.Quiet {
+			fmt.Fprintf(stderr, "recto: warning: the ledgers were written with different %s values; the merged report mixes them\n", k)
 		}
 		for v := range vals {
 			if len(vals) == 1 {
 				if err := l.SetMeta(ctx, k, v); err != nil {
-					return fmt.Errorf("merge: %w", err)
+					return sum, fmt.Errorf("merge: %w", err)
 				}
 			}
 		}
 	}
 	n, err := l.Merge(ctx, paths...)
 	if err != nil {
-		return fmt.Errorf("merge: %w", err)
+		return sum, fmt.Errorf("merge: %w", err)
 	}
 	rows, err := l.Pages(ctx)
 	if err != nil {
-		return fmt.Errorf("merge: %w", err)
+		return sum, fmt.Errorf("merge: %w", err)
 	}
 	root, _ := l.Meta(ctx, "collection")
 	repDir := filepath.Join(dst, reportDir)
 	if err := buildReports(repDir, dst, root, rows, cerInterval); err != nil {
-		return err
+		return sum, err
 	}
-	failed := 0
+	sum.Ledgers, sum.Taken, sum.Pages = len(paths), n, len(rows)
 	for _, r := range rows {
 		if r.State != ledger.StateDone {
-			failed++
+			sum.Failed++
 		}
 	}
-	if !g.Quiet {
-		fmt.Fprintf(g.stderr, "recto: merged %d ledgers (%d rows taken); %d pages, %d failed\n", len(paths), n, len(rows), failed)
+	if !o.Quiet {
+		fmt.Fprintf(stderr, "recto: merged %d ledgers (%d rows taken); %d pages, %d failed\n", len(paths), n, len(rows), sum.Failed)
 	}
-	fmt.Fprintln(g.stdout, filepath.Join(repDir, "report.html"))
-	return nil
+	sum.Report = filepath.Join(repDir, "report.html")
+	return sum, nil
 }
 
 // copyOutputs copies the output files listed in a source ledger from its

@@ -1,4 +1,8 @@
-package main
+// Package run is recto's batch job: the collection walk, the steps of one
+// page (recognise, write, triage, correct, score), the ledger that makes a
+// run resumable, shards and their merge, the run reports and the demo. The
+// commands in cmd/recto only parse flags and call Run, Merge, Report and Demo.
+package run
 
 import (
 	"context"
@@ -19,20 +23,21 @@ import (
 	"sync"
 	"time"
 
-	"github.com/spf13/cobra"
-
+	"recto/cmd/internal/cli"
+	"recto/cmd/internal/run/ledger"
+	"recto/cmd/internal/run/shard"
 	"recto/ocr"
-	"recto/ocr/ledger"
-	"recto/ocr/shard"
 	"recto/quality"
 )
 
-// RunOptions are the settings of `recto run` (and of the run inside `recto demo`).
-type RunOptions struct {
-	Out        string  // run folder: ledger, outputs, reports
+// Options are the settings of a run. The zero value of every field means
+// its default.
+type Options struct {
+	Collection string  // folder of page images; titles are its first-level folders (required)
+	Out        string  // run folder: ledger, outputs, reports (required)
 	Truth      string  // ground-truth folder: <rel without extension>.txt; "" for none
 	Jobs       int     // pages in parallel; 0 means GOMAXPROCS
-	Lang       string  // Tesseract language(s), e.g. "eng" or "eng+fra"
+	Lang       string  // Tesseract language(s), e.g. "eng" or "eng+fra"; "" means "eng"
 	PSM        int     // Tesseract page segmentation mode; 0 means the engine default
 	DPI        float64 // resolution to assume when a file records none; 0 means 300
 	Rescan     float64 // predicted CER above which a page is marked rescan; 0 means quality.DefaultRescan
@@ -42,65 +47,34 @@ type RunOptions struct {
 	Margin     float64 // correction margin, natural-log odds; 0 means correct.DefaultMargin
 	Shard      string  // "i/n"; "" means from the environment, else every page
 	ShardCount int     // shard count for a Kubernetes Indexed Job (JOB_COMPLETION_INDEX); 0 means RECTO_SHARDS
+
+	// Getenv reads the batch system's environment for the shard; nil means os.Getenv.
+	Getenv func(string) string
+	// Stderr receives progress and the messages about failed pages; nil
+	// means none. Quiet keeps only the failures.
+	Stderr io.Writer
+	Quiet  bool
+
+	// NewEngine makes one worker's engine (each worker owns one); nil
+	// means Tesseract with Lang and PSM. With NoPrepare the greyscale page
+	// goes to the engine without preparation.
+	NewEngine func() (ocr.Engine, error)
+	NoPrepare bool
 }
 
-// AddFlags registers the options on fs-like cobra flags.
-func (o *RunOptions) AddFlags(cmd *cobra.Command) {
-	f := cmd.Flags()
-	f.StringVarP(&o.Out, "out", "o", "", "run `folder` for the ledger, outputs and reports (required)")
-	f.StringVar(&o.Truth, "truth", "", "ground-truth `folder`: the same relative path with .txt scores a page")
-	f.IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages in parallel (default: number of CPUs)")
-	f.StringVarP(&o.Lang, "lang", "l", "eng", "Tesseract `languages`, e.g. eng or eng+fra")
-	f.IntVar(&o.PSM, "psm", 0, "Tesseract page segmentation `mode` (default: the engine's)")
-	f.Float64Var(&o.DPI, "dpi", 0, "resolution to assume when a file records none (default 300)")
-	f.Float64Var(&o.Rescan, "rescan", 0, "mark a page rescan when its predicted `CER` is above this (default 0.10)")
-	f.Float64Var(&o.Correct, "correct", 0, "correct a page when its predicted `CER` is above this (default 0.02)")
-	f.StringVar(&o.Model, "model", "", "triage model `file` (default: built in)")
-	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` for triage and correction (default: built in)")
-	f.Float64Var(&o.Margin, "margin", 0, "correct a word only when the candidate is e^`m` times likelier (default 5)")
-	f.StringVar(&o.Shard, "shard", "", "process only share `i/n` of the pages (default: from JOB_COMPLETION_INDEX or SLURM_ARRAY_TASK_ID, else all)")
-	f.IntVar(&o.ShardCount, "shard-count", 0, "number of shards when the index comes from JOB_COMPLETION_INDEX (default: $RECTO_SHARDS)")
+// Summary counts what a run did.
+type Summary struct {
+	Images  int    // page images found in the collection
+	Pages   int    // pages of this shard (all of them when not sharded)
+	Skipped int    // pages already done in the ledger with the same input and settings
+	Done    int    // pages done by this run
+	Failed  int    // pages of this shard failed in the ledger after the run
+	Ignored int    // other files in the collection
+	Report  string // path of report.html; "" when no report was written
 }
 
-func newRunCommand(g *GlobalOptions) *cobra.Command {
-	var o RunOptions
-	cmd := &cobra.Command{
-		Use:   "run COLLECTION --out DIR [--truth DIR]",
-		Short: "Run the whole job on a collection: recognise, triage, correct, score, report",
-		Long: `Run recognises every page image under COLLECTION (titles are its first-level
-folders), estimates each page's quality and decides accept, correct, rescan,
-blank or picture, corrects the pages marked correct, scores pages that have
-ground truth (the same relative path with .txt under --truth) before and
-after correction, and writes reports to DIR/report.
-
-A ledger (DIR/ledger.db, SQLite) records every page as soon as it is done.
-Run the same command again to resume: pages already done whose image and
-settings are unchanged are skipped; a changed image is done again. Killing
-the run loses at most the pages in flight. Only one run may use DIR at a
-time.
-
-Outputs: DIR/ocr/<page>.txt, .alto.xml and .json for every page, and
-DIR/corrected/<page>.* for corrected pages; reports: DIR/report/titles.csv,
-titles.json, pages.csv, rescan.csv and report.html.
-
-Scale-out: --shard i/n (or a Kubernetes Indexed Job or Slurm job array; see
-the README) processes a deterministic share of the pages into
-DIR/shards/<i>-of-<n>; 'recto merge DIR' combines the shards.
-` + exitStatusHelp,
-		Args: cobra.ExactArgs(1),
-		PreRunE: func(cmd *cobra.Command, args []string) error {
-			return o.finalize()
-		},
-		RunE: func(cmd *cobra.Command, args []string) error {
-			return runRun(cmd.Context(), o, *g, args)
-		},
-	}
-	o.AddFlags(cmd)
-	return cmd
-}
-
-// finalize validates option values (usage errors, exit status 2).
-func (o *RunOptions) finalize() error {
+// Validate checks option values; its errors are usage errors (exit status 2).
+func (o Options) Validate() error {
 	switch {
 	case o.Out == "":
 		return usagef("run: --out DIR is required")
@@ -126,6 +100,13 @@ func (o *RunOptions) finalize() error {
 	}
 	return nil
 }
+
+type (
+	usageError   = cli.UsageError
+	partialError = cli.PartialError
+)
+
+var usagef = cli.Usagef
 
 // Output folders inside a run folder.
 const (
@@ -222,7 +203,7 @@ func listPages(root, skip string) ([]pageJob, int, error) {
 
 // runState is what the workers share.
 type runState struct {
-	o        RunOptions
+	o        Options
 	tk       *toolkit
 	outDir   string // absolute run folder
 	truthDir string // absolute, or ""
@@ -231,44 +212,63 @@ type runState struct {
 	done     map[string]ledger.Key
 }
 
-// runRun is the whole job; it knows nothing of cobra.
-func runRun(ctx context.Context, o RunOptions, g GlobalOptions, args []string) error {
-	root, err := filepath.Abs(args[0])
+// Run is the whole job on o.Collection. A run in which some pages failed
+// returns a *cli.PartialError with the summary; bad options return a
+// *cli.UsageError.
+func Run(ctx context.Context, o Options) (Summary, error) {
+	var sum Summary
+	if err := o.Validate(); err != nil {
+		return sum, err
+	}
+	if o.Collection == "" {
+		return sum, usagef("run: the COLLECTION folder is required")
+	}
+	if o.Lang == "" {
+		o.Lang = "eng"
+	}
+	if o.Getenv == nil {
+		o.Getenv = os.Getenv
+	}
+	stderr := o.Stderr
+	if stderr == nil {
+		stderr = io.Discard
+	}
+	root, err := filepath.Abs(o.Collection)
 	if err != nil {
-		return err
+		return sum, err
 	}
 	if fi, err := os.Stat(root); err != nil {
-		return fmt.Errorf("run: collection: %w", err)
+		return sum, fmt.Errorf("run: collection: %w", err)
 	} else if !fi.IsDir() {
-		return fmt.Errorf("run: collection %q is not a folder", args[0])
+		return sum, fmt.Errorf("run: collection %q is not a folder", o.Collection)
 	}
 	st := &runState{o: o}
 	if st.outDir, err = filepath.Abs(o.Out); err != nil {
-		return err
+		return sum, err
 	}
 	if st.outDir == root {
-		return usagef("run: --out %q is the collection itself; choose a separate folder", o.Out)
+		return sum, usagef("run: --out %q is the collection itself; choose a separate folder", o.Out)
 	}
 	if o.Truth != "" {
 		if st.truthDir, err = filepath.Abs(o.Truth); err != nil {
-			return err
+			return sum, err
 		}
 		if fi, err := os.Stat(st.truthDir); err != nil || !fi.IsDir() {
-			return fmt.Errorf("run: --truth %q is not a readable folder", o.Truth)
+			return sum, fmt.Errorf("run: --truth %q is not a readable folder", o.Truth)
 		}
 	}
 	if o.Shard != "" {
-		st.sh, _ = shard.Parse(o.Shard) // validated in finalize
-	} else if st.sh, err = shard.FromEnv(os.Getenv, o.ShardCount); err != nil {
-		return &usageError{err}
+		st.sh, _ = shard.Parse(o.Shard) // validated above
+	} else if st.sh, err = shard.FromEnv(o.Getenv, o.ShardCount); err != nil {
+		return sum, &usageError{Err: err}
 	}
 	// Fail before any work when the run folder cannot be written.
 	if err := checkWritable(st.outDir); err != nil {
-		return err
+		return sum, err
 	}
 	st.tk, err = newToolkit(o)
 	if err != nil {
-		return err
+		return sum, err
 	}
 	st.config = st.tk.fingerprint
 	if st.tk.close != nil {
@@ -281,16 +281,16 @@ func runRun(ctx context.Context, o RunOptions, g GlobalOptions, args []string) e
 	}
 	l, err := ledger.Open(ledgerPath)
 	if err != nil {
-		return fmt.Errorf("run: %w", err)
+		return sum, fmt.Errorf("run: %w", err)
 	}
 	defer l.Close()
 	for k, v := range map[string]string{"collection": root, "truth": st.truthDir, "settings": st.tk.settingsJSON, "shard": st.sh.String()} {
 		if err := l.SetMeta(ctx, k, v); err != nil {
-			return fmt.Errorf("run: %w", err)
+			return sum, fmt.Errorf("run: %w", err)
 		}
 	}
 	if st.done, err = l.DoneKeys(ctx); err != nil {
-		return fmt.Errorf("run: %w", err)
+		return sum, fmt.Errorf("run: %w", err)
 	}
 
 	skip := ""
@@ -299,7 +299,7 @@ func runRun(ctx context.Context, o RunOptions, g GlobalOptions, args []string) e
 	}
 	all, ignored, err := listPages(root, skip)
 	if err != nil {
-		return err
+		return sum, err
 	}
 	var pages []pageJob
 	for _, p := range all {
@@ -307,62 +307,65 @@ func runRun(ctx context.Context, o RunOptions, g GlobalOptions, args []string) e
 			pages = append(pages, p)
 		}
 	}
-	if !g.Quiet {
-		msg := fmt.Sprintf("recto: %d page images in %q", len(all), args[0])
+	sum.Images, sum.Pages, sum.Ignored = len(all), len(pages), ignored
+	if !o.Quiet {
+		msg := fmt.Sprintf("recto: %d page images in %q", len(all), o.Collection)
 		if st.sh.Sharded() {
 			msg += fmt.Sprintf(", %d in shard %s", len(pages), st.sh)
 		}
 		if ignored > 0 {
 			msg += fmt.Sprintf(" (%d other files ignored)", ignored)
 		}
-		fmt.Fprintln(g.stderr, msg)
+		fmt.Fprintln(stderr, msg)
 	}
 	if len(all) == 0 {
-		return fmt.Errorf("run: no page images (%s) under %q", extList(), args[0])
+		return sum, fmt.Errorf("run: no page images (%s) under %q", extList(), o.Collection)
 	}
 
-	prog := newRunProgress(g.stderr, g.Quiet, len(pages))
+	prog := newRunProgress(stderr, o.Quiet, len(pages))
 	w := l.NewWriter(func(p ledger.Page) { prog.add(p.State == ledger.StateFailed) })
-	runErr := st.process(ctx, pages, w, prog, g)
+	runErr := st.process(ctx, pages, w, prog)
 	werr := w.Close()
 	prog.finish()
+	sum.Skipped = int(prog.skipped.Load())
+	sum.Done = int(prog.done.Load() - prog.failed.Load())
 	if werr != nil {
-		return fmt.Errorf("run: ledger: %w", werr)
+		return sum, fmt.Errorf("run: ledger: %w", werr)
 	}
 	if runErr != nil {
-		return runErr
+		return sum, runErr
 	}
 	if err := ctx.Err(); err != nil {
-		return err
+		return sum, err
 	}
 
 	// Reports: for a shard, its own pages in its shard folder; the merged
-	// report comes from 'recto merge'.
+	// report comes from Merge.
 	repDir := filepath.Join(filepath.Dir(ledgerPath), reportDir)
 	rows, err := l.Pages(ctx)
 	if err != nil {
-		return fmt.Errorf("run: %w", err)
+		return sum, fmt.Errorf("run: %w", err)
 	}
 	if err := buildReports(repDir, st.outDir, root, rows, st.tk.interval); err != nil {
-		return err
+		return sum, err
 	}
-	if !g.Quiet {
-		fmt.Fprintf(g.stderr, "recto: report in %s\n", filepath.Join(repDir, "report.html"))
+	sum.Report = filepath.Join(repDir, "report.html")
+	if !o.Quiet {
+		fmt.Fprintf(stderr, "recto: report in %s\n", sum.Report)
 	}
-	failed := 0
 	inShard := make(map[string]bool, len(pages))
 	for _, p := range pages {
 		inShard[p.Rel] = true
 	}
 	for _, r := range rows {
 		if inShard[r.Rel] && r.State == ledger.StateFailed {
-			failed++
+			sum.Failed++
 		}
 	}
-	if failed > 0 {
-		return &partialError{Failed: failed, Total: len(pages), What: "pages"}
+	if sum.Failed > 0 {
+		return sum, &partialError{Failed: sum.Failed, Total: len(pages), What: "pages"}
 	}
-	return nil
+	return sum, nil
 }
 
 func extList() string {
@@ -390,7 +393,7 @@ func checkWritable(dir string) error {
 
 // process runs the pages through a pool of workers, each with its own
 // engine, and hands every finished page to the ledger writer.
-func (st *runState) process(ctx context.Context, pages []pageJob, w *ledger.Writer, prog *runProgress, g GlobalOptions) error {
+func (st *runState) process(ctx context.Context, pages []pageJob, w *ledger.Writer, prog *runProgress) error {
 	jobs := st.o.Jobs
 	if jobs == 0 {
 		jobs = runtime.GOMAXPROCS(0)

@@ -1,0 +1,49 @@
+// Package cli holds what every recto program shares at its edge: the exit
+// statuses and the two kinds of error that choose one (a usage error, exit
+// status 2, and a partial failure, exit status 3). Library packages never
+// import it; the run package returns these errors so that the command maps
+// them to statuses in one place.
+package cli
+
+import "fmt"
+
+// Exit statuses; documented in every command's help (ExitStatusHelp).
+const (
+	ExitOK          = 0
+	ExitFailure     = 1
+	ExitUsage       = 2
+	ExitPartial     = 3
+	ExitInterrupted = 130
+)
+
+// ExitStatusHelp is the EXIT STATUS section of the commands' help.
+const ExitStatusHelp = `
+EXIT STATUS
+  0    everything was processed
+  1    failure: nothing useful was produced
+  2    usage error: bad flag, argument or option value
+  3    partial: some pages were missing or unreadable (others were processed)
+  130  interrupted (SIGINT or SIGTERM)`
+
+// UsageError marks a bad invocation (exit status 2).
+type UsageError struct{ Err error }
+
+func (e *UsageError) Error() string { return e.Err.Error() }
+func (e *UsageError) Unwrap() error { return e.Err }
+
+// Usagef returns a UsageError with a formatted message.
+func Usagef(format string, args ...any) error {
+	return &UsageError{fmt.Errorf(format, args...)}
+}
+
+// PartialError marks a job in which some inputs failed while the others
+// were processed (exit status 3).
+type PartialError struct {
+	Failed int    // inputs that failed
+	Total  int    // inputs seen
+	What   string // plural noun, e.g. "pages"
+}
+
+func (e *PartialError) Error() string {
+	return fmt.Sprintf("%d of %d %s failed (see the messages above)", e.Failed, e.Total, e.What)
+}

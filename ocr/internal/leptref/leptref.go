@@ -9,12 +9,24 @@ package leptref
 /*
 #cgo pkg-config: lept
 #include <leptonica/allheaders.h>
+
+// fill copies w×h 8-bit pixels (stride bytes per row) into an 8-bpp pix.
+static void fill(PIX *p, const unsigned char *src, int w, int h, int stride) {
+	l_uint32 *data = pixGetData(p);
+	l_int32 wpl = pixGetWpl(p);
+	for (int y = 0; y < h; y++) {
+		l_uint32 *line = data + y * wpl;
+		const unsigned char *row = src + (size_t)y * stride;
+		for (int x = 0; x < w; x++) SET_DATA_BYTE(line, x, row[x]);
+	}
+}
 */
 import "C"
 
 import (
 	"errors"
 	"image"
+	"unsafe"
 )
 
 // pix copies g into a new 8-bpp Leptonica image; the caller destroys it.
@@ -24,11 +36,9 @@ func pix(g *image.Gray) (*C.PIX, error) {
 	if p == nil {
 		return nil, errors.New("leptref: pixCreate failed")
 	}
-	for y := 0; y < h; y++ {
-		for x := 0; x < w; x++ {
-			v := g.Pix[g.PixOffset(g.Rect.Min.X+x, g.Rect.Min.Y+y)]
-			C.pixSetPixel(p, C.l_int32(x), C.l_int32(y), C.l_uint32(v))
-		}
+	if w > 0 && h > 0 {
+		off := g.PixOffset(g.Rect.Min.X, g.Rect.Min.Y)
+		C.fill(p, (*C.uchar)(unsafe.Pointer(&g.Pix[off])), C.int(w), C.int(h), C.int(g.Stride))
 	}
 	return p, nil
 }
@@ -83,4 +93,32 @@ func Sauvola(g *image.Gray, half int, k float64) (*image.Gray, error) {
 		}
 	}
 	return out, nil
+}
+
+// FindSkew returns Leptonica's skew estimate for g: g is binarised at a
+// fixed threshold (pixels below thresh are ink; Leptonica's pixDeskew uses
+// 130) and measured by pixFindSkew, which sweeps ±7° at 4× reduction and
+// refines by interval halving at 2× reduction. deg is the page's skew,
+// counter-clockwise positive as the page is seen, recto's convention
+// (Leptonica documents its angle as the clockwise rotation that deskews
+// the page: the same number); conf is Leptonica's confidence,
+// the ratio of the best to the worst score (0 when the measurement is not
+// valid; pixDeskew rotates only from 3.0). ok is false when Leptonica
+// reports the measurement invalid (for example no ink).
+func FindSkew(g *image.Gray, thresh int) (deg, conf float64, ok bool, err error) {
+	p, err := pix(g)
+	if err != nil {
+		return 0, 0, false, err
+	}
+	defer C.pixDestroy(&p)
+	b := C.pixConvertTo1(p, C.l_int32(thresh))
+	if b == nil {
+		return 0, 0, false, errors.New("leptref: pixConvertTo1 failed")
+	}
+	defer C.pixDestroy(&b)
+	var a, c C.l_float32
+	if C.pixFindSkew(b, &a, &c) != 0 {
+		return 0, float64(c), false, nil
+	}
+	return float64(a), float64(c), true, nil
 }

@@ -1,8 +1,6 @@
 package correct
 
 import (
-	"bytes"
-
 	"recto/lexicon"
 )
 
@@ -19,33 +17,20 @@ type pairFilter struct {
 	bits []uint64
 }
 
-// buildPairFilter reads the pairs from the lexicon file format (WriteTo:
-// "KEY1<TAB>KEY2<TAB>COUNT" lines, the keys as the lexicon stores them),
-// the one way the lexicon's API lists its pairs.
+// buildPairFilter files every word pair of the lexicon.
 func buildPairFilter(lex *lexicon.Lexicon) *pairFilter {
 	f := &pairFilter{bits: make([]uint64, pairBits/64)}
-	var buf bytes.Buffer
-	if _, err := lex.WriteTo(&buf); err != nil {
-		return nil // cannot happen with a bytes.Buffer; nil means no filter
-	}
-	data := buf.Bytes()
-	for len(data) > 0 {
-		line := data
-		if i := bytes.IndexByte(data, '\n'); i >= 0 {
-			line, data = data[:i], data[i+1:]
-		} else {
-			data = nil
-		}
-		if bytes.Count(line, []byte{'\t'}) != 2 {
-			continue // header, word or comment (a comment that looks like a pair only costs a lookup)
-		}
-		key := line[:bytes.LastIndexByte(line, '\t')]
+	lex.EachBigram(func(k1, k2 string, _ int64) {
 		var h uint64
-		for _, b := range key {
-			h = h*polyBase + uint64(b)
+		for i := 0; i < len(k1); i++ {
+			h = h*polyBase + uint64(k1[i])
 		}
-		f.set(polyFinish(h, len(key)))
-	}
+		h = h*polyBase + '\t'
+		for i := 0; i < len(k2); i++ {
+			h = h*polyBase + uint64(k2[i])
+		}
+		f.set(polyFinish(h, len(k1)+1+len(k2)))
+	})
 	return f
 }
 

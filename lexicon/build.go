@@ -95,6 +95,9 @@ type Builder struct {
 	listed  map[string]struct{} // keys from word lists and dictionaries
 	counts  map[string]int64    // keys counted in running text
 	bigrams map[string]int64    // pair keys counted in running text
+
+	compounds []*compounding // one per Hunspell dictionary that compounds
+	cur       *compounding   // the dictionary being read
 }
 
 // NewBuilder returns an empty Builder with default options.
@@ -197,6 +200,7 @@ func (b *Builder) Lexicon() *Lexicon {
 		minPair = 2
 	}
 	l := New()
+	l.comp = b.compounds
 	for k := range b.listed {
 		l.words[k] = b.counts[k]
 		l.total += b.counts[k]

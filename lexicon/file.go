@@ -27,6 +27,15 @@ import (
 //	WORD<TAB>COUNT                                a word (its Key) and its unigram count
 //	WORD1<TAB>WORD2<TAB>COUNT                     a word pair (Keys) and its bigram count
 //
+// Version 2 adds compounding, for lexicons built from Hunspell
+// dictionaries that compound (compound.go). A line starting with "%" is a
+// directive:
+//
+//	%compound<TAB>MIN<TAB>MAX<TAB>CHECKS         starts the rules of one dictionary: COMPOUNDMIN, COMPOUNDWORDMAX (0: unlimited), and the checks in force as letters (d CHECKCOMPOUNDDUP, t CHECKCOMPOUNDTRIPLE, s SIMPLIFIEDTRIPLE; "-" for none)
+//	%p<TAB>PART<TAB>ROLES                        a compound part (its Key) of the last %compound: ROLES is the sum of 1 (may begin), 2 (middle), 4 (end)
+//
+// Save writes version 1 when the lexicon has no compounding.
+//
 // Blank lines are ignored. COUNT is a non-negative decimal integer (0 for a
 // word that came from a word list and was never seen in running text). Words
 // are stored in key form (see Key); a word that is not in key form is keyed
@@ -35,7 +44,7 @@ import (
 // reproducible.
 const (
 	fileMagic   = "recto-lexicon"
-	fileVersion = 1
+	fileVersion = 2 // the newest version read; Save writes 1 unless compounding needs 2
 )
 
 // Errors wrapped by ParseError.
@@ -133,6 +142,12 @@ func read(r io.Reader, name string) (*Lexicon, error) {
 		if len(line) == 0 || line[0] == '#' {
 			continue
 		}
+		if line[0] == '%' {
+			if err := l.parseDirective(line); err != nil {
+				return nil, &ParseError{File: name, Line: n, Err: err}
+			}
+			continue
+		}
 		if err := l.parseLine(line); err != nil {
 			return nil, &ParseError{File: name, Line: n, Err: err}
 		}
@@ -153,7 +168,7 @@ func parseHeader(line []byte) ([2]int, error) {
 	if len(f) < 2 {
 		return hint, fmt.Errorf("%w: header without version", ErrVersion)
 	}
-	if v, err := strconv.Atoi(string(f[1])); err != nil || v != fileVersion {
+	if v, err := strconv.Atoi(string(f[1])); err != nil || v < 1 || v > fileVersion {
 		return hint, fmt.Errorf("%w %q (this build reads %d)", ErrVersion, f[1], fileVersion)
 	}
 	for i := 0; i < 2 && i+2 < len(f); i++ {
@@ -162,6 +177,33 @@ func parseHeader(line []byte) ([2]int, error) {
 		}
 	}
 	return hint, nil
+}
+
+// parseDirective reads a %compound or %p line (version 2).
+func (l *Lexicon) parseDirective(line string) error {
+	f := strings.Split(line, "\t")
+	switch {
+	case f[0] == "%p" && len(f) == 3:
+		if len(l.comp) == 0 {
+			return fmt.Errorf("%w: compound part before any %%compound line", ErrBadLine)
+		}
+		r, err := strconv.Atoi(f[2])
+		if err != nil || r < 1 || r > 7 || f[1] == "" {
+			return fmt.Errorf("%w: want %%p<TAB>PART<TAB>ROLES (1-7)", ErrBadLine)
+		}
+		l.comp[len(l.comp)-1].parts[keyOf(f[1])] |= uint8(r)
+	case f[0] == "%compound" && len(f) == 4:
+		mn, err1 := strconv.Atoi(f[1])
+		mx, err2 := strconv.Atoi(f[2])
+		if err1 != nil || err2 != nil || mn < 1 || mx < 0 || strings.Trim(f[3], "dts-") != "" {
+			return fmt.Errorf("%w: want %%compound<TAB>MIN<TAB>MAX<TAB>CHECKS", ErrBadLine)
+		}
+		l.comp = append(l.comp, &compounding{min: mn, max: mx, dup: strings.Contains(f[3], "d"),
+			triple: strings.Contains(f[3], "t"), simplified: strings.Contains(f[3], "s"), parts: map[string]uint8{}})
+	default:
+		return fmt.Errorf("%w: unknown directive %q", ErrBadLine, f[0])
+	}
+	return nil
 }
 
 func (l *Lexicon) parseLine(line string) error {
@@ -295,7 +337,31 @@ func (c *countWriter) Write(p []byte) (int, error) {
 }
 
 func (l *Lexicon) write(w *bufio.Writer) error {
-	fmt.Fprintf(w, "%s\t%d\t%d\t%d\n", fileMagic, fileVersion, len(l.words), len(l.bigrams))
+	version := 1
+	if len(l.comp) > 0 {
+		version = 2
+	}
+	fmt.Fprintf(w, "%s\t%d\t%d\t%d\n", fileMagic, version, len(l.words), len(l.bigrams))
+	for _, c := range l.comp {
+		checks := ""
+		for _, x := range []struct {
+			on bool
+			c  string
+		}{{c.dup, "d"}, {c.triple, "t"}, {c.simplified, "s"}} {
+			if x.on {
+				checks += x.c
+			}
+		}
+		if checks == "" {
+			checks = "-"
+		}
+		fmt.Fprintf(w, "%%compound\t%d\t%d\t%s\n", c.min, c.max, checks)
+		for _, k := range sortedKeys(c.parts) {
+			if _, err := fmt.Fprintf(w, "%%p\t%s\t%d\n", k, c.parts[k]); err != nil {
+				return err
+			}
+		}
+	}
 	var buf []byte
 	for _, k := range l.Words() {
 		buf = append(buf[:0], k...)

@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -26,9 +27,15 @@ import (
 //     affixes) for one more suffix or prefix.
 //   - NEEDAFFIX (the stem alone is not a word), FORBIDDENWORD and
 //     ONLYINCOMPOUND (never a word on its own) are honoured.
+//   - Compounding (compound.go): COMPOUNDFLAG, COMPOUNDBEGIN,
+//     COMPOUNDMIDDLE, COMPOUNDEND (or COMPOUNDLAST), COMPOUNDMIN,
+//     COMPOUNDWORDMAX, COMPOUNDPERMITFLAG, COMPOUNDFORBIDFLAG,
+//     ONLYINCOMPOUND, CHECKCOMPOUNDDUP, CHECKCOMPOUNDTRIPLE,
+//     SIMPLIFIEDTRIPLE and CIRCUMFIX.
 //
-// Compounding, REP/MAP/ICONV, morphology and case rules (KEEPCASE etc.) are
-// not used: they do not change the set of word forms a lexicon needs.
+// REP/MAP/ICONV, morphology, COMPOUNDRULE, CHECKCOMPOUNDPATTERN/CASE/REP
+// and case rules (KEEPCASE etc.) are not used (Unsupported lists the ones
+// a file declares): lexicon keys are lower case, so case rules do not apply.
 
 // ErrHunspell wraps errors in Hunspell affix and dictionary files.
 var ErrHunspell = errors.New("hunspell")
@@ -85,6 +92,14 @@ type Affixes struct {
 	needAffix    string
 	forbidden    string
 	onlyCompound string
+
+	// Compounding (see compound.go); "" for a flag the file does not set.
+	compoundFlag, compoundBegin, compoundMiddle, compoundEnd string
+	compoundPermit, compoundForbid, circumfix                string
+	compoundMin                                              int // COMPOUNDMIN; 0 when not set (the default, 3, applies)
+	compoundMax                                              int // COMPOUNDWORDMAX; 0 unlimited
+	checkDup, checkTriple, simplifiedTriple                  bool
+	unsupported                                              []string // directives declared that change acceptance and are not implemented
 }
 
 // LoadAffixes reads a Hunspell .aff file.
@@ -204,6 +219,35 @@ func (a *Affixes) directive(f []string, pending map[string]int) error {
 	case "ONLYINCOMPOUND":
 		if len(f) >= 2 {
 			a.onlyCompound = f[1]
+		}
+	case "COMPOUNDFLAG", "COMPOUNDBEGIN", "COMPOUNDMIDDLE", "COMPOUNDEND", "COMPOUNDLAST",
+		"COMPOUNDPERMITFLAG", "COMPOUNDFORBIDFLAG", "CIRCUMFIX":
+		if len(f) < 2 {
+			return fmt.Errorf("%w: %s without a flag", ErrHunspell, f[0])
+		}
+		p := map[string]*string{"COMPOUNDFLAG": &a.compoundFlag, "COMPOUNDBEGIN": &a.compoundBegin,
+			"COMPOUNDMIDDLE": &a.compoundMiddle, "COMPOUNDEND": &a.compoundEnd, "COMPOUNDLAST": &a.compoundEnd,
+			"COMPOUNDPERMITFLAG": &a.compoundPermit, "COMPOUNDFORBIDFLAG": &a.compoundForbid, "CIRCUMFIX": &a.circumfix}[f[0]]
+		*p = f[1]
+	case "COMPOUNDMIN", "COMPOUNDWORDMAX":
+		n, err := strconv.Atoi(nth(f, 1))
+		if err != nil || n < 1 {
+			return fmt.Errorf("%w: %s needs a positive number", ErrHunspell, f[0])
+		}
+		if f[0] == "COMPOUNDMIN" {
+			a.compoundMin = n
+		} else {
+			a.compoundMax = n
+		}
+	case "CHECKCOMPOUNDDUP":
+		a.checkDup = true
+	case "CHECKCOMPOUNDTRIPLE":
+		a.checkTriple = true
+	case "SIMPLIFIEDTRIPLE":
+		a.simplifiedTriple = true
+	case "COMPOUNDRULE", "CHECKCOMPOUNDPATTERN", "CHECKCOMPOUNDCASE", "CHECKCOMPOUNDREP", "COMPOUNDMORESUFFIXES", "FORCEUCASE", "COMPOUNDSYLLABLE":
+		if !slices.Contains(a.unsupported, f[0]) {
+			a.unsupported = append(a.unsupported, f[0])
 		}
 	case "PFX", "SFX":
 		return a.affixLine(f, pending)
@@ -330,91 +374,6 @@ func (a *Affixes) flagsOrAlias(s string) ([]string, error) {
 	return a.parseFlags(s)
 }
 
-// Expand returns the word forms of a dictionary stem with the given flags:
-// the stem itself (unless flagged NEEDAFFIX, FORBIDDENWORD or
-// ONLYINCOMPOUND), each prefix and suffix whose condition matches, suffixes
-// named by a suffix's continuation flags, and prefix+suffix combinations
-// when both classes allow cross products. Forms are returned in order of
-// generation and may repeat.
-func (a *Affixes) Expand(stem string, flags []string) []string {
-	has := func(fl string) bool {
-		for _, f := range flags {
-			if f == fl {
-				return true
-			}
-		}
-		return false
-	}
-	if (a.forbidden != "" && has(a.forbidden)) || (a.onlyCompound != "" && has(a.onlyCompound)) {
-		return nil
-	}
-	var out []string
-	if a.needAffix == "" || !has(a.needAffix) {
-		out = append(out, stem)
-	}
-	type derived struct {
-		word  string
-		cross bool
-	}
-	var suffixed []derived
-	for _, fl := range flags {
-		cls := a.classes[fl]
-		if cls == nil || cls.prefix {
-			continue
-		}
-		for _, r := range cls.rules {
-			w, ok := applySuffix(stem, r)
-			if !ok {
-				continue
-			}
-			if !containsFlag(r.cont, a.needAffix) {
-				out = append(out, w)
-			}
-			suffixed = append(suffixed, derived{w, cls.cross})
-			for _, cf := range r.cont { // twofold suffixes: one more level
-				c2 := a.classes[cf]
-				if c2 == nil || c2.prefix {
-					continue
-				}
-				for _, r2 := range c2.rules {
-					if w2, ok := applySuffix(w, r2); ok {
-						out = append(out, w2)
-					}
-				}
-			}
-		}
-	}
-	for _, fl := range flags {
-		cls := a.classes[fl]
-		if cls == nil || !cls.prefix {
-			continue
-		}
-		for _, r := range cls.rules {
-			if !matchPrefixCond(stem, r) {
-				continue
-			}
-			w, ok := applyPrefix(stem, r)
-			if !ok {
-				continue
-			}
-			if !containsFlag(r.cont, a.needAffix) {
-				out = append(out, w)
-			}
-			if !cls.cross {
-				continue
-			}
-			for _, s := range suffixed {
-				if s.cross {
-					if w2, ok := applyPrefix(s.word, r); ok {
-						out = append(out, w2)
-					}
-				}
-			}
-		}
-	}
-	return out
-}
-
 func containsFlag(fs []string, f string) bool {
 	if f == "" {
 		return false
@@ -472,12 +431,24 @@ func (b *Builder) AddHunspell(dicPath, affPath string) error {
 	if err != nil {
 		return err
 	}
-	return aff.ReadDic(dicPath, func(form string) { b.AddWord(form) })
+	b.addCompounding(aff)
+	return aff.ReadDicForms(dicPath, func(f Form) { b.addForm(f) })
 }
 
 // ReadDic reads a Hunspell .dic file and calls fn with every word form of
-// every entry. The first line (the approximate entry count) is required.
+// every entry that is a word on its own (see ReadDicForms).
 func (a *Affixes) ReadDic(path string, fn func(form string)) error {
+	return a.ReadDicForms(path, func(f Form) {
+		if f.Alone {
+			fn(f.Word)
+		}
+	})
+}
+
+// ReadDicForms reads a Hunspell .dic file and calls fn with every form of
+// every entry, with where it may stand (ExpandForms). The first line (the
+// approximate entry count) is required.
+func (a *Affixes) ReadDicForms(path string, fn func(Form)) error {
 	f, err := os.Open(path)
 	if err != nil {
 		return fmt.Errorf("lexicon: %w", err)
@@ -505,8 +476,8 @@ func (a *Affixes) ReadDic(path string, fn func(form string)) error {
 		if stem == "" {
 			continue
 		}
-		for _, w := range a.Expand(stem, flags) {
-			fn(w)
+		for _, f := range a.ExpandForms(stem, flags) {
+			fn(f)
 		}
 	}
 	if err := sc.Err(); err != nil {
@@ -563,4 +534,12 @@ func (a *Affixes) dicEntry(line string) (string, []string, error) {
 		return "", nil, err
 	}
 	return stem.String(), fl, nil
+}
+
+// nth returns f[i], or "" when f is shorter.
+func nth(f []string, i int) string {
+	if i < len(f) {
+		return f[i]
+	}
+	return ""
 }

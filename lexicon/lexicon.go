@@ -19,6 +19,7 @@ type Lexicon struct {
 	words   map[string]int64 // Key(word) -> count
 	bigrams map[string]int64 // Key(w1) + pairSep + Key(w2) -> count
 	total   int64            // sum of unigram counts
+	comp    []*compounding   // compound rules and parts, one per dictionary (compound.go)
 
 	foldMu sync.Mutex                          // guards building fold
 	fold   atomic.Pointer[map[string]struct{}] // Fold keys of words; nil until HasFold needs it
@@ -110,10 +111,60 @@ func (l *Lexicon) AddBigram(w1, w2 string, n int64) {
 	l.bigrams[Key(w1)+pairSep+Key(w2)] += n
 }
 
-// Has reports whether the lexicon holds word (compared by Key).
+// Has reports whether the lexicon holds word (compared by Key), or, for a
+// lexicon built from a Hunspell dictionary that compounds, whether word is
+// a compound of its parts under the dictionary's rules (see compound.go).
 func (l *Lexicon) Has(word string) bool {
+	k := Key(word)
+	if _, ok := l.words[k]; ok {
+		return true
+	}
+	for _, c := range l.comp {
+		if c.accepts(k) {
+			return true
+		}
+	}
+	return false
+}
+
+// Listed reports whether the lexicon holds word itself, not as a compound.
+func (l *Lexicon) Listed(word string) bool {
 	_, ok := l.words[Key(word)]
 	return ok
+}
+
+// Compounds reports whether the lexicon accepts compounds.
+func (l *Lexicon) Compounds() bool { return len(l.comp) > 0 }
+
+// EachBigram calls fn with the keys and count of every word pair, in no
+// particular order.
+func (l *Lexicon) EachBigram(fn func(k1, k2 string, n int64)) {
+	for k, n := range l.bigrams {
+		k1, k2, _ := strings.Cut(k, pairSep)
+		fn(k1, k2, n)
+	}
+}
+
+// Merge returns a lexicon holding the words and pairs of all the given
+// lexicons (counts added) and accepting the compounds of each under its own
+// rules. The inputs are not modified; their compound parts are shared.
+func Merge(ls ...*Lexicon) *Lexicon {
+	n := 0
+	for _, x := range ls {
+		n = max(n, len(x.words))
+	}
+	l := &Lexicon{words: make(map[string]int64, n), bigrams: make(map[string]int64)}
+	for _, x := range ls {
+		for k, c := range x.words {
+			l.words[k] += c
+		}
+		for k, c := range x.bigrams {
+			l.bigrams[k] += c
+		}
+		l.total += x.total
+		l.comp = append(l.comp, x.comp...)
+	}
+	return l
 }
 
 // Count returns the unigram count of word, 0 when absent.

@@ -12,6 +12,7 @@ import (
 	"os"
 	"strings"
 	"time"
+	"unicode"
 )
 
 // Process prepares src (unless o.NoPrepare), recognises it with eng and
@@ -83,6 +84,27 @@ func Process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 		toOrig := p.ToOriginal
 		if toOrig == nil {
 			toOrig = func(b Box) Box { return b }
+		}
+		if !o.NoPrepare && readingLooksPoor(words) {
+			// Self-check: preparation may have done harm (a phantom
+			// rotation, type binarised away). Read the page as the engine
+			// alone would and keep the reading the engine itself is surer of.
+			t := time.Now()
+			orig := toGray(src)
+			owords, err := eng.Recognize(ctx, orig, int(math.Round(dpi)))
+			rec.TimingsMS["engine_original"] = ms(time.Since(t))
+			if err != nil {
+				return nil, nil, err
+			}
+			r := &Reading{Kept: "prepared", PreparedScore: confidentLetters(words), OriginalScore: confidentLetters(owords)}
+			if r.OriginalScore > r.PreparedScore {
+				r.Kept = "original"
+				words = owords
+				toOrig = func(b Box) Box { return b }
+				p = &Prepared{Image: orig, Binarization: "none"}
+				rec.Skew, rec.Binarization, rec.Threshold = 0, "none", 0
+			}
+			rec.Reading = r
 		}
 		sum := 0.0
 		for _, w := range words {
@@ -159,4 +181,45 @@ func nameFile(path string, err error) error {
 		return err
 	}
 	return fmt.Errorf("ocr: %q: %w", path, err)
+}
+
+// Self-check thresholds (common practice for the engine's word
+// confidences, chosen here, not fitted): a reading is poor when fewer than
+// half of its words are read with confidence ConfidentWord or more, or
+// when it has no word at all.
+const (
+	ConfidentWord  = 0.8 // word confidence counted as "read confidently"
+	poorReadingMax = 0.5 // share of confident words at or below which the original is read too
+)
+
+// readingLooksPoor reports whether a reading of a page that was not found
+// blank looks failed by the engine's own confidences.
+func readingLooksPoor(words []Word) bool {
+	if len(words) == 0 {
+		return true
+	}
+	n := 0
+	for _, w := range words {
+		if w.Conf >= ConfidentWord {
+			n++
+		}
+	}
+	return float64(n) <= poorReadingMax*float64(len(words))
+}
+
+// confidentLetters counts the letters and digits of the words read with
+// confidence ConfidentWord or more: how much text the engine is sure of.
+func confidentLetters(words []Word) int {
+	n := 0
+	for _, w := range words {
+		if w.Conf < ConfidentWord {
+			continue
+		}
+		for _, r := range w.Text {
+			if unicode.IsLetter(r) || unicode.IsDigit(r) {
+				n++
+			}
+		}
+	}
+	return n
 }

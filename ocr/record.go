@@ -35,6 +35,20 @@ type Record struct {
 	// Warnings are things about the source the user should know that did
 	// not stop recognition, e.g. the skipped pages of a multi-page TIFF.
 	Warnings []string `json:"warnings,omitempty"`
+
+	// Reading says which of two readings was kept when the self-check
+	// found the reading of the prepared page poor and read the original
+	// page too; nil when only the prepared page was read.
+	Reading *Reading `json:"reading,omitempty"`
+}
+
+// Reading records the self-check of one page: both readings' scores (the
+// letters and digits of words read with confidence ConfidentWord or more)
+// and which reading was kept.
+type Reading struct {
+	Kept          string `json:"kept"`           // "prepared" or "original" (no preparation)
+	PreparedScore int    `json:"prepared_score"` // confident letters in the prepared page's reading
+	OriginalScore int    `json:"original_score"` // confident letters in the original page's reading
 }
 
 // Word is one recognised word.

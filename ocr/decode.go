@@ -445,33 +445,43 @@ func pngDPI(data []byte) float64 {
 // jfifDPI reads the density of a JFIF APP0 segment (JPEG File Interchange
 // Format 1.02, Hamilton 1992).
 func jfifDPI(data []byte) float64 {
+	seg := jpegSegment(data, 0xe0, "JFIF\x00")
+	if len(seg) < 12 {
+		return 0
+	}
+	x := float64(binary.BigEndian.Uint16(seg[8:10]))
+	switch seg[7] { // units
+	case 1:
+		return x
+	case 2:
+		return x * 2.54
+	}
+	return 0 // aspect ratio only
+}
+
+// jpegSegment returns the payload of the first marker segment of a JPEG
+// file that has the given marker and starts with prefix, before the start
+// of scan (ITU-T T.81, 1992, annex B); nil when there is none.
+func jpegSegment(data []byte, marker byte, prefix string) []byte {
+	if len(data) < 2 {
+		return nil
+	}
 	p := data[2:]
 	for len(p) >= 4 && p[0] == 0xff {
-		marker := p[1]
-		if marker == 0xd8 || (marker >= 0xd0 && marker <= 0xd7) || marker == 0x01 {
+		m := p[1]
+		if m == 0xd8 || (m >= 0xd0 && m <= 0xd7) || m == 0x01 {
 			p = p[2:]
 			continue
 		}
 		n := int(binary.BigEndian.Uint16(p[2:4]))
-		if n < 2 || n+2 > len(p) {
-			return 0
+		if n < 2 || n+2 > len(p) || m == 0xda { // start of scan: no more headers
+			return nil
 		}
 		seg := p[4 : 2+n]
-		if marker == 0xe0 && len(seg) >= 12 && string(seg[:5]) == "JFIF\x00" {
-			units := seg[7]
-			x := float64(binary.BigEndian.Uint16(seg[8:10]))
-			switch units {
-			case 1:
-				return x
-			case 2:
-				return x * 2.54
-			}
-			return 0 // aspect ratio only
-		}
-		if marker == 0xda { // start of scan: no more headers
-			return 0
+		if m == marker && len(seg) >= len(prefix) && string(seg[:len(prefix)]) == prefix {
+			return seg
 		}
 		p = p[2+n:]
 	}
-	return 0
+	return nil
 }

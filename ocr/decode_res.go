@@ -166,40 +166,27 @@ func bmpDPI(data []byte) float64 {
 // file's EXIF APP1 segment (JEITA CP-3451, Exif 2.3, 2010, sections 4.5 and
 // 4.6.4: a TIFF structure after "Exif\0\0"), 0 when absent.
 func exifDPI(data []byte) float64 {
-	p := data[2:]
-	for len(p) >= 4 && p[0] == 0xff {
-		marker := p[1]
-		if marker == 0xd8 || (marker >= 0xd0 && marker <= 0xd7) || marker == 0x01 {
-			p = p[2:]
-			continue
-		}
-		n := int(binary.BigEndian.Uint16(p[2:4]))
-		if n < 2 || n+2 > len(p) || marker == 0xda {
-			return 0
-		}
-		seg := p[4 : 2+n]
-		if marker == 0xe1 && len(seg) > 14 && string(seg[:6]) == "Exif\x00\x00" {
-			t := seg[6:]
-			if !bytes.HasPrefix(t, []byte("II*\x00")) && !bytes.HasPrefix(t, []byte("MM\x00*")) {
-				return 0
-			}
-			var bo binary.ByteOrder = binary.LittleEndian
-			if t[0] == 'M' {
-				bo = binary.BigEndian
-			}
-			ifd, _, err := readIFD(bytes.NewReader(t), int64(len(t)), bo, int64(bo.Uint32(t[4:8])))
-			if err != nil {
-				return 0
-			}
-			if ifd.dpi == 72 {
-				// 72 dpi is the Exif default (Exif 2.3, 4.6.4 A), which
-				// cameras write whatever the subject: not a scan's
-				// resolution (common practice).
-				return 0
-			}
-			return ifd.dpi
-		}
-		p = p[2+n:]
+	seg := jpegSegment(data, 0xe1, "Exif\x00\x00")
+	if len(seg) <= 14 {
+		return 0
 	}
-	return 0
+	t := seg[6:]
+	if !bytes.HasPrefix(t, []byte("II*\x00")) && !bytes.HasPrefix(t, []byte("MM\x00*")) {
+		return 0
+	}
+	var bo binary.ByteOrder = binary.LittleEndian
+	if t[0] == 'M' {
+		bo = binary.BigEndian
+	}
+	ifd, _, err := readIFD(bytes.NewReader(t), int64(len(t)), bo, int64(bo.Uint32(t[4:8])))
+	if err != nil {
+		return 0
+	}
+	if ifd.dpi == 72 {
+		// 72 dpi is the Exif default (Exif 2.3, 4.6.4 A), which
+		// cameras write whatever the subject: not a scan's
+		// resolution (common practice).
+		return 0
+	}
+	return ifd.dpi
 }

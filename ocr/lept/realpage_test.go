@@ -5,7 +5,6 @@ package lept_test
 import (
 	"context"
 	"os"
-	"os/exec"
 	"path/filepath"
 	"testing"
 
@@ -32,10 +31,6 @@ func TestFourBitScanNotWorse(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	bin, err := exec.LookPath("tesseract")
-	if err != nil {
-		t.Skip("the tesseract command is not installed (Debian: tesseract-ocr)")
-	}
 	eng, err := tesseract.New(tesseract.Config{})
 	if err != nil {
 		t.Skip("engine:", err)
@@ -49,17 +44,12 @@ func TestFourBitScanNotWorse(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	cmd := exec.Command(bin, page, "-")
-	cmd.Env = append(os.Environ(), "OMP_THREAD_LIMIT=1")
-	plain, err := cmd.Output()
-	if err != nil {
-		t.Fatal(err)
-	}
+	plain := ocrtest.PlainEngine(t, page)
 	cer := func(s string) float64 {
 		c, _ := quality.Compare(string(truth), s, quality.NormOptions{}).CER()
 		return c
 	}
-	r, p, b := cer(rec.Text()), cer(string(plain)), cer(rec1.Text())
+	r, p, b := cer(rec.Text()), cer(plain), cer(rec1.Text())
 	t.Logf("8087_054.3G.tif: recto CER %.4f, plain tesseract CER %.4f; bilevel 8087_054.3B.tif: recto CER %.4f", r, p, b)
 	if r > b {
 		t.Errorf("the 4-bit file reads worse (CER %.4f) than the same page as a bilevel file (%.4f)", r, b)

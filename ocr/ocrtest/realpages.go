@@ -2,6 +2,7 @@ package ocrtest
 
 import (
 	"os"
+	"os/exec"
 	"path/filepath"
 	"testing"
 )
@@ -32,4 +33,24 @@ func RealPages(t testing.TB) string {
 	}
 	t.Skip(msg)
 	return ""
+}
+
+// PlainEngine returns the text the `tesseract` command gives for the image
+// at path as a user runs it: its defaults (fully automatic page
+// segmentation, the file's own resolution, no preparation), one thread
+// (OMP_THREAD_LIMIT=1). It is the reference of the side-by-side checks on
+// real pages; a missing command fails the test.
+func PlainEngine(t testing.TB, path string) string {
+	t.Helper()
+	bin, err := exec.LookPath("tesseract")
+	if err != nil {
+		t.Fatal("the tesseract command is missing (Debian: tesseract-ocr): the side-by-side check cannot run")
+	}
+	cmd := exec.Command(bin, path, "-")
+	cmd.Env = append(os.Environ(), "OMP_THREAD_LIMIT=1")
+	out, err := cmd.Output()
+	if err != nil {
+		t.Fatalf("tesseract %s: %v", path, err)
+	}
+	return string(out)
 }

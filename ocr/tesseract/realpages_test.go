@@ -5,7 +5,6 @@ package tesseract
 import (
 	"context"
 	"os"
-	"os/exec"
 	"path/filepath"
 	"testing"
 
@@ -29,10 +28,6 @@ func TestRealPagesNotWorseThanEngine(t *testing.T) {
 		t.Skip("reads four real pages twice or three times")
 	}
 	dir := filepath.Join(ocrtest.RealPages(t), "tesseract")
-	bin, err := exec.LookPath("tesseract")
-	if err != nil {
-		t.Fatal("the tesseract command is missing (Debian: tesseract-ocr): the side-by-side check cannot run")
-	}
 	e := engineOrSkip(t, Config{})
 	defer e.Close()
 	for _, page := range []string{"phototest", "eurotext", "8087_054.3B", "8071_093.3B"} {
@@ -45,17 +40,12 @@ func TestRealPagesNotWorseThanEngine(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		cmd := exec.Command(bin, img, "-")
-		cmd.Env = append(os.Environ(), "OMP_THREAD_LIMIT=1")
-		plain, err := cmd.Output()
-		if err != nil {
-			t.Fatalf("%s: tesseract: %v", page, err)
-		}
+		plain := ocrtest.PlainEngine(t, img)
 		cer := func(s string) float64 {
 			c, _ := quality.Compare(string(truth), s, quality.NormOptions{}).CER()
 			return c
 		}
-		r, p := cer(rec.Text()), cer(string(plain))
+		r, p := cer(rec.Text()), cer(plain)
 		t.Logf("%-12s recto CER %.4f  plain engine %.4f  skew %.2f  binarization %s  reading %+v", page, r, p, rec.Skew, rec.Binarization, rec.Reading)
 		if r > p+0.005 {
 			t.Errorf("%s: recto CER %.4f is more than half a point above the plain engine's %.4f", page, r, p)

@@ -13,13 +13,14 @@ import (
 // page record (Record.Ink) so that triage can tell a failed reading of
 // text from a picture without the image.
 type InkShape struct {
-	Components int     `json:"components"` // ink components considered (not touching the edge, at least 2 pixels)
-	Letters    int     `json:"letters"`    // components of letter size (see measureInk)
-	Lines      int     `json:"text_lines"` // lines of at least minLineMarks letter-sized marks side by side
-	LineMarks  int     `json:"line_marks"` // letter-sized marks on those lines
-	TextInk    float64 `json:"text_ink"`   // share of the ink pixels that lie in those lines, 0-1
-	XHeight    float64 `json:"x_height"`   // commonest height of the marks on the lines, pixels; 0 when none
-	LinePitch  float64 `json:"line_pitch"` // median distance between the bottoms of neighbouring lines, pixels; 0 with fewer than two lines
+	Components int     `json:"components"`         // ink components considered (not touching the edge, at least 2 pixels)
+	Letters    int     `json:"letters"`            // components of letter size (see measureInk)
+	Lines      int     `json:"text_lines"`         // lines of at least minLineMarks letter-sized marks side by side
+	LineMarks  int     `json:"line_marks"`         // letter-sized marks on those lines
+	TextInk    float64 `json:"text_ink"`           // share of the ink pixels that lie in those lines, 0-1
+	XHeight    float64 `json:"x_height"`           // commonest height of the marks on the lines, pixels; 0 when none
+	LinePitch  float64 `json:"line_pitch"`         // median distance between the bottoms of neighbouring lines, pixels; 0 with fewer than two lines
+	Denoised   bool    `json:"denoised,omitempty"` // measured on the denoised page (the noisy page's ink did not look like text): the x-height is not trusted for the resolution
 }
 
 // Text-shape limits (our own, checked on the real scans of

@@ -63,20 +63,30 @@ func newToolkit(o Options) (*toolkit, error) {
 		// correction changes no word, said once.
 		sel, err := lexicon.ForLang(o.Lang)
 		if err != nil {
-			return nil, fmt.Errorf("run: %w", err)
+			return nil, err
 		}
 		lex, lexFiles = sel.Lexicon, sel.Files
 		if !sel.Complete() && o.Stderr != nil {
-			fmt.Fprintf(o.Stderr, "recto: run: %s\n", sel.MissingNote("triage does not use the lexicon features and correction makes only language-independent fixes (stray marks)"))
+			fmt.Fprintf(o.Stderr, "%s: %s\n", o.Command, sel.MissingNote("triage does not use the lexicon features and correction makes only language-independent fixes (stray marks)"))
 		}
 	}
 	modelSum, err := fileSum(o.Model)
 	if err != nil {
-		return nil, fmt.Errorf("run: --model: %w", err)
+		return nil, fmt.Errorf("--quality-model: %w", err)
+	}
+	cmodel := correct.DefaultModel()
+	if o.CorrectionModel != "" {
+		if cmodel, err = correct.LoadModel(o.CorrectionModel); err != nil {
+			return nil, err
+		}
+	}
+	cmodelSum, err := fileSum(o.CorrectionModel)
+	if err != nil {
+		return nil, fmt.Errorf("--correction-model: %w", err)
 	}
 	lexSum, err := fileSum(o.Lexicon)
 	if err != nil {
-		return nil, fmt.Errorf("run: --lexicon: %w", err)
+		return nil, fmt.Errorf("--lexicon: %w", err)
 	}
 	custom := o.NewEngine != nil
 	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare, Lang: o.Lang}
@@ -85,6 +95,9 @@ func newToolkit(o Options) (*toolkit, error) {
 		"model": modelSum, "lexicon": lexSum, "margin": o.Margin, "fake_engine": custom, "record": ocr.RecordVersion}
 	if o.Lexicon == "" && o.Lang != "eng" { // the lexicons --lang chose (English runs keep their fingerprint)
 		settings["lexicons"] = lexFiles
+	}
+	if o.CorrectionModel != "" || o.KeepMarks || o.MapGlyphs { // absent keys keep older ledgers' fingerprints
+		settings["correction_model"], settings["keep_marks"], settings["map_glyphs"] = cmodelSum, o.KeepMarks, o.MapGlyphs
 	}
 	tk := &toolkit{
 		write:    func(dir, rel string, r *ocr.Record, g *image.Gray) error { return ocr.WriteOutputs(dir, rel, r, g) },
@@ -109,8 +122,9 @@ func newToolkit(o Options) (*toolkit, error) {
 	if clex == nil {
 		clex = noLexicon
 	}
+	ccfg := correct.Config{Margin: o.Margin, KeepMarks: o.KeepMarks, MapGlyphs: o.MapGlyphs}
 	tk.correct = func(r *ocr.Record) (*ocr.Record, int) {
-		c, changes := correctorFor(clex, o.Margin).CorrectRecord(r)
+		c, changes := correctorFor(clex, cmodel, ccfg).CorrectRecord(r)
 		return c, len(changes)
 	}
 	tk.fingerprint, tk.settingsJSON = fingerprint(settings)
@@ -166,8 +180,9 @@ var correctors sync.Map // correctorKey -> *correctorEntry
 var noLexicon = lexicon.New()
 
 type correctorKey struct {
-	lex    *lexicon.Lexicon
-	margin float64
+	lex   *lexicon.Lexicon
+	model *correct.Model
+	cfg   correct.Config
 }
 
 type correctorEntry struct {
@@ -175,10 +190,10 @@ type correctorEntry struct {
 	c    *correct.Corrector
 }
 
-func correctorFor(lex *lexicon.Lexicon, margin float64) *correct.Corrector {
-	v, _ := correctors.LoadOrStore(correctorKey{lex, margin}, &correctorEntry{})
+func correctorFor(lex *lexicon.Lexicon, m *correct.Model, cfg correct.Config) *correct.Corrector {
+	v, _ := correctors.LoadOrStore(correctorKey{lex, m, cfg}, &correctorEntry{})
 	e := v.(*correctorEntry)
-	e.once.Do(func() { e.c = correct.New(lex, nil, correct.Config{Margin: margin}) })
+	e.once.Do(func() { e.c = correct.New(lex, m, cfg) })
 	return e.c
 }
 

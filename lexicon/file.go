@@ -12,8 +12,11 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"unicode"
 	"unicode/utf8"
 	"unsafe"
+
+	"golang.org/x/text/unicode/norm"
 )
 
 // The lexicon file format (version 1).
@@ -265,10 +268,27 @@ func parseCount(s string) (int64, bool) {
 // keyOf returns Key(s), skipping the normalisation for the common case of
 // lower-case ASCII, which is already in key form.
 func keyOf(s string) string {
+	ascii := true
 	for i := 0; i < len(s); i++ {
-		if c := s[i]; c >= utf8.RuneSelf || ('A' <= c && c <= 'Z') {
+		if c := s[i]; c >= utf8.RuneSelf {
+			ascii = false
+		} else if 'A' <= c && c <= 'Z' {
 			return Key(s)
 		}
+	}
+	if ascii {
+		return s
+	}
+	// Words with letters beyond ASCII (æ, ø, å, ß...): a file written by
+	// Save holds keys already, so check before normalising: no upper-case
+	// letter and NFC (the quick check is far cheaper than the conversion).
+	for _, r := range s {
+		if unicode.IsUpper(r) || unicode.IsTitle(r) {
+			return Key(s)
+		}
+	}
+	if !norm.NFC.IsNormalString(s) {
+		return Key(s)
 	}
 	return s
 }
@@ -337,6 +357,7 @@ func (c *countWriter) Write(p []byte) (int, error) {
 }
 
 func (l *Lexicon) write(w *bufio.Writer) error {
+	l = l.flat()
 	version := 1
 	if len(l.comp) > 0 {
 		version = 2

@@ -37,6 +37,7 @@ func Process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 	tag := max(dpi, 0)
 	rec := &Record{
 		Version:   RecordVersion,
+		Lang:      o.Lang,
 		Width:     sb.Dx(),
 		Height:    sb.Dy(),
 		TaggedDPI: tag,

@@ -67,6 +67,12 @@ type Features struct {
 	TextLikeInk bool `json:"text_like_ink"`
 	InkLines    int  `json:"ink_lines"`
 
+	// NoLexicon is true when the page's language had no lexicon and the
+	// features were computed with lexicon.AcceptAll: LexHit, LexHitChars
+	// and the lexicon part of Suspect carry no evidence, and the reasons
+	// say so.
+	NoLexicon bool `json:"no_lexicon,omitempty"`
+
 	// Blank is true when there is nothing to read: the record says the
 	// engine found no ink worth recognising, or (plain text only, where ink
 	// cannot be seen) the text has no characters. A record with ink but no

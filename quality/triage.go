@@ -105,6 +105,9 @@ func Triage(f Features, m *Model, t Thresholds) Verdict {
 		return Verdict{Decision: DecisionBlank, Reasons: r}
 	}
 	words := int(math.Round(f.LexHit * float64(f.LexWords)))
+	if f.NoLexicon {
+		words = f.LexWords // every word of letters counts as a word
+	}
 	few := f.Tokens < PictureMaxTokens && words < PictureMaxWords
 	if f.FromRecord && f.InkMeasured && f.TextLikeInk && few {
 		// The image shows text; the reading did not: a failed reading
@@ -185,7 +188,9 @@ func reasons(f Features, m *Model, worse bool) []string {
 			weight: group("low_conf", "sqrt_low_conf", "mean_conf", "conf_x_miss", "conf_under_30", "conf_under_90", "char_doubt", "sqrt_suspect_doubt")})
 	}
 	lex := group("lex_miss", "sqrt_lex_miss", "lex_miss_chars", "suspect")
-	if f.LexWords > 0 {
+	if f.NoLexicon {
+		rs = append(rs, reason{text: "no lexicon for the language: not used (share of words in the lexicon, unknown words among suspect words)", weight: lex})
+	} else if f.LexWords > 0 {
 		rs = append(rs, reason{text: fmt.Sprintf("%s of words in the lexicon", pct(f.LexHit)), weight: lex})
 	} else {
 		rs = append(rs, reason{text: "no words of letters to check against the lexicon", weight: lex})

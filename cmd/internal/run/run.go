@@ -42,18 +42,25 @@ type Options struct {
 	DPI        float64 // resolution to assume when a file records none; 0 means 300
 	Rescan     float64 // predicted CER above which a page is marked rescan; 0 means quality.DefaultRescan
 	Correct    float64 // predicted CER above which a page is corrected; 0 means quality.DefaultCorrect
-	Model      string  // triage model file; "" means the built-in model
+	Model      string  // quality model file for triage (recto calibrate); "" means the embedded one
 	Lexicon    string  // lexicon file; "" means the built-in lexicon
 	Margin     float64 // correction margin, natural-log odds; 0 means correct.DefaultMargin
-	Shard      string  // "i/n"; "" means from the environment, else every page
-	ShardCount int     // shard count for a Kubernetes Indexed Job (JOB_COMPLETION_INDEX); 0 means RECTO_SHARDS
+
+	CorrectionModel string // error model file (recto correct train); "" means the embedded one
+	KeepMarks       bool   // leave stray marks in (correct.Config.KeepMarks)
+	MapGlyphs       bool   // rewrite punctuation glyphs (correct.Config.MapGlyphs)
+
+	Shard      string // "i/n"; "" means from the environment, else every page
+	ShardCount int    // shard count for a Kubernetes Indexed Job (JOB_COMPLETION_INDEX); 0 means RECTO_SHARDS
 
 	// Getenv reads the batch system's environment for the shard; nil means os.Getenv.
 	Getenv func(string) string
 	// Stderr receives progress and the messages about failed pages; nil
-	// means none. Quiet keeps only the failures.
-	Stderr io.Writer
-	Quiet  bool
+	// means none. Quiet keeps only the failures. Every line starts with
+	// Command and a colon; "" means "recto run".
+	Stderr  io.Writer
+	Quiet   bool
+	Command string
 
 	// NewEngine makes one worker's engine (each worker owns one); nil
 	// means Tesseract with Lang and PSM. With NoPrepare the greyscale page
@@ -120,24 +127,13 @@ const (
 // the formats ocr.DecodeFile reads.
 var imageExts = map[string]bool{".tif": true, ".tiff": true, ".png": true, ".jpg": true, ".jpeg": true, ".bmp": true}
 
-// titlePage names a page: the title is the first folder of rel (as in
-// `recto score`), or rootName for an image directly in the root; the page
-// is the rest of rel.
-func titlePage(rel, rootName string) (title, page string) {
-	title, _ = quality.TitlePage(rel, rootName)
-	if _, rest, ok := strings.Cut(rel, "/"); ok {
-		return title, rest
-	}
-	return title, rel
-}
-
 // pageJob is one page image found under the collection.
 type pageJob struct {
 	Rel   string // slash-separated, relative to the collection root
 	Stem  string // output name: Rel without its extension, or with it when two images share the stem
 	Path  string // absolute path
-	Title string
-	Page  string
+	Title string // first folder of Rel, or the collection's name for an image in its root (as in recto score)
+	Page  string // the page key: Stem, as recto score names a page
 }
 
 // listPages walks root for page images, skipping hidden entries and the
@@ -180,8 +176,8 @@ func listPages(root, skip string) ([]pageJob, int, error) {
 			return err
 		}
 		rel = filepath.ToSlash(rel)
-		title, page := titlePage(rel, rootName)
-		pages = append(pages, pageJob{Rel: rel, Path: p, Title: title, Page: page})
+		title, _ := quality.TitlePage(rel, rootName)
+		pages = append(pages, pageJob{Rel: rel, Path: p, Title: title})
 		return nil
 	})
 	if err != nil {
@@ -197,6 +193,7 @@ func listPages(root, skip string) ([]pageJob, int, error) {
 		if stems[pages[i].Stem] > 1 {
 			pages[i].Stem = p.Rel // p1.png and p1.tif side by side keep apart
 		}
+		pages[i].Page = pages[i].Stem
 	}
 	return pages, ignored, nil
 }
@@ -233,12 +230,17 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 	if stderr == nil {
 		stderr = io.Discard
 	}
+	if o.Command == "" {
+		o.Command = "recto run"
+	}
 	root, err := filepath.Abs(o.Collection)
 	if err != nil {
 		return sum, err
 	}
-	if fi, err := os.Stat(root); err != nil {
-		return sum, fmt.Errorf("run: collection: %w", err)
+	if fi, err := os.Stat(root); errors.Is(err, fs.ErrNotExist) {
+		return sum, fmt.Errorf("COLLECTION %q: no such folder", o.Collection)
+	} else if err != nil {
+		return sum, fmt.Errorf("COLLECTION %q: %v", o.Collection, errors.Unwrap(err))
 	} else if !fi.IsDir() {
 		return sum, fmt.Errorf("run: collection %q is not a folder", o.Collection)
 	}
@@ -309,7 +311,7 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 	}
 	sum.Images, sum.Pages, sum.Ignored = len(all), len(pages), ignored
 	if !o.Quiet {
-		msg := fmt.Sprintf("recto: %d page images in %q", len(all), o.Collection)
+		msg := fmt.Sprintf("%s: %d page images in %q", o.Command, len(all), o.Collection)
 		if st.sh.Sharded() {
 			msg += fmt.Sprintf(", %d in shard %s", len(pages), st.sh)
 		}
@@ -322,7 +324,7 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 		return sum, fmt.Errorf("run: no page images (%s) under %q", extList(), o.Collection)
 	}
 
-	prog := newRunProgress(stderr, o.Quiet, len(pages))
+	prog := newRunProgress(stderr, o.Command, o.Quiet, len(pages))
 	w := l.NewWriter(func(p ledger.Page) { prog.add(p.State == ledger.StateFailed) })
 	runErr := st.process(ctx, pages, w, prog)
 	werr := w.Close()
@@ -351,7 +353,7 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 	}
 	sum.Report = filepath.Join(repDir, "report.html")
 	if !o.Quiet {
-		fmt.Fprintf(stderr, "recto: report in %s\n", sum.Report)
+		fmt.Fprintf(stderr, "%s: report in %s\n", o.Command, sum.Report)
 	}
 	inShard := make(map[string]bool, len(pages))
 	for _, p := range pages {
@@ -435,7 +437,7 @@ func (st *runState) process(ctx context.Context, pages []pageJob, w *ledger.Writ
 					continue
 				}
 				if row.State == ledger.StateFailed {
-					prog.message("recto: " + row.Error)
+					prog.message(st.o.Command + ": " + row.Error)
 				}
 				w.Put(*row)
 			}

@@ -66,7 +66,7 @@ func newToolkit(o Options) (*toolkit, error) {
 		return nil, fmt.Errorf("run: --lexicon: %w", err)
 	}
 	custom := o.NewEngine != nil
-	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare}
+	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare, MaxPixels: o.MaxPixels}
 	cfg := tesseract.Config{Lang: o.Lang, PSM: o.PSM}
 	settings := map[string]any{"lang": o.Lang, "psm": o.PSM, "dpi": o.DPI, "rescan": o.Rescan, "correct": o.Correct,
 		"model": modelSum, "lexicon": lexSum, "margin": o.Margin, "fake_engine": custom, "record": ocr.RecordVersion}

@@ -17,8 +17,11 @@ import (
 	"github.com/mattn/go-isatty"
 	"github.com/spf13/cobra"
 
+	"recto/cmd/internal/cli"
+	"recto/internal/atomicfile"
 	"recto/ocr"
 	"recto/ocr/tesseract"
+	"recto/quality"
 )
 
 // Engine hooks, swapped for a fake in tests (the C library is optional).
@@ -50,7 +53,7 @@ func (o *OCROptions) AddFlags(c *cobra.Command) {
 	f := c.Flags()
 	f.StringVarP(&o.Out, "out", "o", "", "write outputs under `dir` (required)")
 	f.StringVarP(&o.Lang, "lang", "l", "eng", "Tesseract `languages`, e.g. eng or eng+deu")
-	f.IntVarP(&o.Jobs, "jobs", "j", runtime.NumCPU(), "recognise `n` pages in parallel")
+	f.IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages at once (0: one per core)")
 	f.IntVar(&o.PSM, "psm", 0, "Tesseract page segmentation `mode` 1-13 (0: Tesseract's default, 3)")
 	f.Float64Var(&o.DPI, "dpi", ocr.DefaultDPI, "resolution of images without a resolution tag, in `dpi`")
 	f.IntVar(&o.MaxPixels, "max-pixels", ocr.DefaultMaxPixels, "refuse images larger than `n` pixels")
@@ -94,8 +97,11 @@ func (o *OCROptions) options() (ocr.Options, tesseract.Config, error) {
 		return ocr.Options{}, tesseract.Config{}, usagef("--max-skew %g: want 0 to 45 degrees", o.MaxSkew)
 	}
 	prep.MaxSkew = o.MaxSkew
-	if o.Jobs < 1 {
-		return ocr.Options{}, tesseract.Config{}, usagef("--jobs %d: want 1 or more", o.Jobs)
+	if o.Jobs < 0 {
+		return ocr.Options{}, tesseract.Config{}, usagef("--jobs %d: want 0 (one per core) or more", o.Jobs)
+	}
+	if o.Jobs == 0 {
+		o.Jobs = runtime.GOMAXPROCS(0)
 	}
 	if o.PSM < 0 || o.PSM > 13 {
 		return ocr.Options{}, tesseract.Config{}, usagef("--psm %d: want 0 to 13", o.PSM)
@@ -141,7 +147,8 @@ skipped). For each page, under DIR and keeping IN's folder structure:
 
 <name> is the image's name without its extension, or with it when two images
 in one folder share a name (p1.tif and p1.png give p1.tif.txt and p1.png.txt).
-DIR/failures.tsv lists the pages that failed (path, problem), with a header
+DIR/failures.tsv lists the pages that failed (title, page, image, error;
+pages named as in 'recto score'), with a header
 line; it is written on every run. Files under IN are only read. DIR may lie
 inside IN: it is skipped while searching; DIR may not be IN itself.
 
@@ -239,7 +246,11 @@ func runOCR(ctx context.Context, o OCROptions, g GlobalOptions, args []string) e
 	}
 	prog.finish()
 	sort.Slice(failures, func(i, j int) bool { return failures[i].Index < failures[j].Index })
-	if err := writeFailures(filepath.Join(o.Out, "failures.tsv"), failures); err != nil {
+	rootName := filepath.Base(in)
+	if abs, err := filepath.Abs(in); err == nil {
+		rootName = filepath.Base(abs)
+	}
+	if err := writeFailures(filepath.Join(o.Out, "failures.tsv"), rootName, pages, failures); err != nil {
 		return err
 	}
 	if ctx.Err() != nil {
@@ -328,26 +339,23 @@ func findPages(in, out string) ([]page, error) {
 }
 
 // writeFailures writes the failures list: a header line, then one line per
-// failed page, "path<TAB>problem", tabs and line breaks in the message
-// replaced by spaces.
-func writeFailures(path string, failures []ocr.Result) error {
+// failed page, "title<TAB>page<TAB>image<TAB>error" (the page named as in
+// recto score, after its output name; rootName is the title of images in
+// IN itself), tabs and line breaks in the message replaced by spaces.
+func writeFailures(path, rootName string, pages []page, failures []ocr.Result) error {
 	var b strings.Builder
-	b.WriteString("path\tproblem\n")
+	b.WriteString("title\tpage\timage\terror\n")
 	clean := strings.NewReplacer("\t", " ", "\n", " ", "\r", " ")
 	for _, f := range failures {
-		b.WriteString(clean.Replace(f.Path))
-		b.WriteByte('\t')
-		b.WriteString(clean.Replace(f.Err.Error()))
+		title, pg := quality.TitlePage(pages[f.Index].rel, rootName)
+		for _, c := range []string{title, pg, f.Path} {
+			b.WriteString(clean.Replace(c))
+			b.WriteByte('\t')
+		}
+		b.WriteString(clean.Replace(cli.Message("recto ocr", f.Err)))
 		b.WriteByte('\n')
 	}
-	tmp := path + ".tmp"
-	if err := os.WriteFile(tmp, []byte(b.String()), 0o644); err != nil {
-		return fmt.Errorf("ocr: %w", err)
-	}
-	if err := os.Rename(tmp, path); err != nil {
-		return fmt.Errorf("ocr: %w", err)
-	}
-	return nil
+	return atomicfile.Write(path, []byte(b.String()))
 }
 
 func contains(list []string, s string) bool {
@@ -364,6 +372,7 @@ func contains(list []string, s string) bool {
 // otherwise; nothing but failures under --quiet.
 type progress struct {
 	w            io.Writer
+	prefix       string // "recto ocr"
 	quiet, tty   bool
 	total        int
 	ok, failed   atomic.Int64
@@ -372,7 +381,7 @@ type progress struct {
 }
 
 func newProgress(g GlobalOptions, total int) *progress {
-	p := &progress{w: g.stderr, quiet: g.Quiet, total: total, start: time.Now()}
+	p := &progress{w: g.stderr, prefix: g.prefix(), quiet: g.Quiet, total: total, start: time.Now()}
 	p.last = p.start
 	if f, ok := g.stderr.(*os.File); ok {
 		p.tty = isatty.IsTerminal(f.Fd())
@@ -387,7 +396,7 @@ func (p *progress) status() string {
 	if el > 0 {
 		rate = float64(n) / el * 60
 	}
-	return fmt.Sprintf("ocr: %d/%d pages, %d failed, %.1f pages/min", n, p.total, p.failed.Load(), rate)
+	return fmt.Sprintf("%s: %d/%d pages, %d failed, %.1f pages/min", p.prefix, n, p.total, p.failed.Load(), rate)
 }
 
 func (p *progress) clearLine() {
@@ -400,7 +409,7 @@ func (p *progress) clearLine() {
 func (p *progress) fail(err error) {
 	p.failed.Add(1)
 	p.clearLine()
-	fmt.Fprintf(p.w, "recto: %v\n", err)
+	fmt.Fprintf(p.w, "%s: %s\n", p.prefix, cli.Message(p.prefix, err))
 	p.tick()
 }
 
@@ -408,7 +417,7 @@ func (p *progress) fail(err error) {
 // under --quiet, like failures.
 func (p *progress) warn(path, msg string) {
 	p.clearLine()
-	fmt.Fprintf(p.w, "recto: warning: %q: %s\n", path, msg)
+	fmt.Fprintf(p.w, "%s: warning: %q: %s\n", p.prefix, path, msg)
 }
 
 func (p *progress) done() {

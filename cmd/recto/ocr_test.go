@@ -123,7 +123,7 @@ func TestOCRTree(t *testing.T) {
 	}
 	tsv, _ := os.ReadFile(filepath.Join(out, "failures.tsv"))
 	lines := strings.Split(strings.TrimSpace(string(tsv)), "\n")
-	if len(lines) != 3 || lines[0] != "path\tproblem" || !strings.HasPrefix(lines[1], filepath.Join(in, "box1", "empty.tif")+"\t") {
+	if len(lines) != 3 || lines[0] != "title\tpage\timage\terror" || !strings.HasPrefix(lines[1], "box1\tbox1/empty\t"+filepath.Join(in, "box1", "empty.tif")+"\t") {
 		t.Errorf("failures.tsv:\n%s", tsv)
 	}
 	txt, _ := os.ReadFile(filepath.Join(out, "box1", "p0001.txt"))
@@ -202,7 +202,7 @@ func TestOCRUsage(t *testing.T) {
 		{"missing language", []string{"--lang", "eng+deu"}, "tesseract-ocr-deu"},
 		{"bad deskew", []string{"--deskew", "sometimes"}, "--deskew"},
 		{"bad binarize", []string{"--binarize", "niblack"}, "--binarize"},
-		{"zero jobs", []string{"--jobs", "0"}, "--jobs"},
+		{"negative jobs", []string{"--jobs", "-1"}, "--jobs"},
 		{"psm out of range", []string{"--psm", "14"}, "--psm"},
 		{"dpi out of range", []string{"--dpi", "5"}, "--dpi"},
 		{"unknown flag", []string{"--colour"}, "colour"},

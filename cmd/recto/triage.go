@@ -6,7 +6,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"os"
 	"path/filepath"
 	"sort"
 	"strconv"
@@ -15,6 +14,8 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"recto/cmd/internal/run/report"
+	"recto/internal/atomicfile"
 	"recto/lexicon"
 	"recto/ocr/par"
 	"recto/quality"
@@ -22,7 +23,7 @@ import (
 
 // TriageOptions are the options of `recto triage`.
 type TriageOptions struct {
-	Format     string  // "text" or "json"
+	Format     string  // table, json or csv
 	RescanList string  // CSV file to write the pages to rescan to; "" for none
 	Model      string  // model file from `recto calibrate`; "" for the embedded one
 	Lexicon    string  // lexicon file; "" for the embedded English one
@@ -60,21 +61,28 @@ title is the first folder under OCRDIR, the page its path without extension.
 Each page gets plain-language reasons (share of words under confidence 60,
 share of words in the lexicon, share of garbage-looking words...). A
 summary per title follows. --rescan-list writes the pages to rescan as CSV
-(title, page, image, predicted_cer, reasons) for the scanning station.
+(title, page, image, predicted_cer, reasons) for the scanning station, in
+the same format as the rescan.csv of 'recto run'.
+
+OUTPUT (stdout)
+  table  (default) the pages, then the titles
+  json   {"pages", "titles", "failed"}; pages carry title, page, image,
+         predicted_cer, decision, reasons
+  csv    one row per page: title,page,image,decision,predicted_cer,reasons
 
 The estimate comes from a model fitted on recto's synthetic corpus; fit one
 on your own ground-truthed pages with 'recto calibrate' and pass it with
---model.` + exitStatusHelp,
+--quality-model.` + exitStatusHelp,
 		Args: cobra.ExactArgs(1),
 		PreRunE: func(cmd *cobra.Command, args []string) error {
-			if o.Format != "text" && o.Format != "json" {
-				return usagef("triage: --format must be text or json, not %q", o.Format)
+			if err := checkFormat(&o.Format, "table", "json", "csv"); err != nil {
+				return err
 			}
 			if err := (quality.Thresholds{Rescan: o.Rescan, Correct: o.Correct}).Validate(); err != nil {
-				return usagef("triage: %v", err)
+				return usagef("%v", err)
 			}
 			if o.Jobs < 0 {
-				return usagef("triage: --jobs must be positive")
+				return usagef("--jobs %d: want 0 (one per core) or more", o.Jobs)
 			}
 			return nil
 		},
@@ -83,13 +91,14 @@ on your own ground-truthed pages with 'recto calibrate' and pass it with
 		},
 	}
 	f := cmd.Flags()
-	f.StringVar(&o.Format, "format", "text", "output `format`: text or json")
+	f.StringVar(&o.Format, "format", "table", "output `format`: table, json or csv")
 	f.StringVar(&o.RescanList, "rescan-list", "", "write the pages to rescan to this CSV `file`")
-	f.StringVar(&o.Model, "model", "", "quality model `file` from 'recto calibrate' (default: embedded)")
+	f.StringVar(&o.Model, "quality-model", "", "quality model `file` from 'recto calibrate' (default: embedded)")
 	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` (default: embedded English)")
 	f.Float64Var(&o.Rescan, "rescan", quality.DefaultRescan, "rescan above this predicted CER, a `fraction` (0.10 = 10%)")
 	f.Float64Var(&o.Correct, "correct", quality.DefaultCorrect, "correct above this predicted CER, a `fraction` (0.02 = 2%)")
-	f.IntVarP(&o.Jobs, "jobs", "j", 0, "read `n` pages in parallel (0: number of CPUs)")
+	f.IntVarP(&o.Jobs, "jobs", "j", 0, "read `n` pages at once (0: one per core)")
+	oldName(cmd, "model", "quality-model")
 	return cmd
 }
 
@@ -100,7 +109,7 @@ type triagePage struct {
 	PredictedCER float64  `json:"predicted_cer"`
 	Decision     string   `json:"decision"`
 	Reasons      []string `json:"reasons"`
-	Image        string   `json:"image,omitempty"` // page image recorded by recto ocr
+	Image        string   `json:"image"` // page image recorded by recto ocr; "" for a page known by its text only
 	Error        string   `json:"-"`
 }
 
@@ -131,6 +140,9 @@ type triageReport struct {
 }
 
 func runTriage(ctx context.Context, o TriageOptions, g GlobalOptions, dir string) error {
+	if err := checkDir("OCRDIR", dir); err != nil {
+		return err
+	}
 	pages, err := quality.FindOCRPages(dir)
 	if err != nil {
 		return err
@@ -173,7 +185,7 @@ func runTriage(ctx context.Context, o TriageOptions, g GlobalOptions, dir string
 		if r.Error != "" {
 			t.Failed++
 			rep.Failed = append(rep.Failed, triageFailure{r.Title, r.Page, r.Error})
-			fmt.Fprintf(g.stderr, "recto: triage: %s\n", r.Error)
+			g.printf("%s", r.Error)
 			continue
 		}
 		if pages[i].JSON == "" {
@@ -205,7 +217,7 @@ func runTriage(ctx context.Context, o TriageOptions, g GlobalOptions, dir string
 	}
 	sort.Slice(rep.Titles, func(i, j int) bool { return rep.Titles[i].Title < rep.Titles[j].Title })
 	if textOnly > 0 && !g.Quiet {
-		fmt.Fprintf(g.stderr, "recto: triage: %d of %d pages have no .json page record; judged from their .txt alone (no confidences)\n", textOnly, len(pages))
+		g.printf("%d of %d pages have no .json page record; judged from their .txt alone (no confidences)", textOnly, len(pages))
 	}
 
 	if o.RescanList != "" {
@@ -213,18 +225,23 @@ func runTriage(ctx context.Context, o TriageOptions, g GlobalOptions, dir string
 			return err
 		}
 	}
-	if o.Format == "json" {
+	switch o.Format {
+	case "json":
 		enc := json.NewEncoder(g.stdout)
 		enc.SetIndent("", "  ")
 		if err := enc.Encode(rep); err != nil {
 			return err
 		}
-	} else {
+	case "csv":
+		if err := writeTriageCSV(g.stdout, rep); err != nil {
+			return err
+		}
+	default:
 		writeTriageText(g.stdout, rep, th)
 	}
 	switch n := len(rep.Failed); {
 	case n == len(pages):
-		return fmt.Errorf("triage: none of the %d pages in %q could be read", n, dir)
+		return fmt.Errorf("none of the %d pages in %q could be read", n, dir)
 	case n > 0:
 		return &partialError{Failed: n, Total: len(pages), What: "pages"}
 	}
@@ -268,27 +285,31 @@ func writeTriageText(w io.Writer, rep triageReport, th quality.Thresholds) {
 	tw.Flush()
 }
 
-// writeRescanList writes the pages decided rescan as CSV.
-func writeRescanList(path string, pages []triagePage) error {
-	f, err := os.Create(path)
-	if err != nil {
-		return fmt.Errorf("triage: rescan list: %w", err)
-	}
-	cw := csv.NewWriter(f)
-	cw.Write([]string{"title", "page", "image", "predicted_cer", "reasons"})
-	for _, p := range pages {
-		if p.Decision != quality.DecisionRescan {
-			continue
-		}
-		cw.Write([]string{p.Title, p.Page, p.Image, strconv.FormatFloat(p.PredictedCER, 'f', 4, 64), strings.Join(p.Reasons, "; ")})
+// writeTriageCSV writes one row per page.
+func writeTriageCSV(w io.Writer, rep triageReport) error {
+	cw := csv.NewWriter(w)
+	cw.Write([]string{"title", "page", "image", "decision", "predicted_cer", "reasons"})
+	for _, p := range rep.Pages {
+		cw.Write([]string{p.Title, p.Page, p.Image, p.Decision, strconv.FormatFloat(p.PredictedCER, 'f', 4, 64), strings.Join(p.Reasons, "; ")})
 	}
 	cw.Flush()
-	err = cw.Error()
-	if cerr := f.Close(); err == nil {
-		err = cerr
+	return cw.Error()
+}
+
+// writeRescanList writes the pages decided rescan as CSV, with the writer
+// of the run's rescan.csv.
+func writeRescanList(path string, pages []triagePage) error {
+	var rows []report.Page
+	for _, p := range pages {
+		rows = append(rows, report.Page{Title: p.Title, Page: p.Page, Rel: p.Image,
+			Decision: p.Decision, PredictedCER: p.PredictedCER, Reasons: p.Reasons})
+	}
+	data, err := report.RescanCSV(rows)
+	if err == nil {
+		err = atomicfile.Write(path, data)
 	}
 	if err != nil {
-		return fmt.Errorf("triage: writing rescan list %q: %w", path, err)
+		return fmt.Errorf("--rescan-list: %w", err)
 	}
 	return nil
 }

@@ -5,7 +5,10 @@
 // them to statuses in one place.
 package cli
 
-import "fmt"
+import (
+	"fmt"
+	"strings"
+)
 
 // Exit statuses; documented in every command's help (ExitStatusHelp).
 const (
@@ -46,4 +49,48 @@ type PartialError struct {
 
 func (e *PartialError) Error() string {
 	return fmt.Sprintf("%d of %d %s failed (see the messages above)", e.Failed, e.Total, e.What)
+}
+
+// packages are the names of recto's packages whose error prefixes
+// ("quality: ", "lexicon: ") are taken out of messages shown to the user:
+// a message names the command, the flag or the file, not the code.
+var packages = []string{"quality", "lexicon", "correct", "ocr", "alto", "tesseract", "lept", "synth", "par",
+	"run", "ledger", "shard", "report", "merge", "demo"}
+
+// Message returns err's text for the user of command ("recto score"): the
+// command's own name and package prefixes are dropped, so that printed as
+// "recto score: " + Message the line carries one prefix.
+func Message(command string, err error) string {
+	msg := err.Error()
+	words := strings.Fields(command)
+	var own []string // "score", "correct train", "train"
+	for i := 1; i < len(words); i++ {
+		own = append(own, strings.Join(words[i:], " "))
+	}
+	for again := true; again; {
+		again = false
+		for _, p := range append(own, packages...) {
+			if rest, ok := strings.CutPrefix(msg, p+": "); ok {
+				msg, again = rest, true
+			}
+		}
+	}
+	for _, p := range packages {
+		msg = strings.ReplaceAll(msg, ": "+p+": ", ": ")
+	}
+	return msg
+}
+
+// IsCobraUsage reports whether err is one of the plain errors cobra
+// returns for a bad invocation that it does not route through the flag
+// error function: an unknown command, a required flag missing, flags used
+// together that exclude each other.
+func IsCobraUsage(err error) bool {
+	msg := err.Error()
+	for _, p := range []string{"unknown command ", "required flag(s) ", "if any flags in the group ", "at least one of the flags in the group "} {
+		if strings.HasPrefix(msg, p) {
+			return true
+		}
+	}
+	return false
 }

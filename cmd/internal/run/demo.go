@@ -27,6 +27,7 @@ type DemoOptions struct {
 
 	Stderr    io.Writer                  // progress and messages; nil means none
 	Quiet     bool                       // only failures on Stderr
+	Command   string                     // prefix of the lines on Stderr; "" means "recto demo"
 	NewEngine func() (ocr.Engine, error) // as in Options
 	NoPrepare bool                       // as in Options
 }
@@ -109,6 +110,9 @@ func Demo(ctx context.Context, o DemoOptions) (Summary, error) {
 	if stderr == nil {
 		stderr = io.Discard
 	}
+	if o.Command == "" {
+		o.Command = "recto demo"
+	}
 	if err := claimDemoFolder(dir); err != nil {
 		return Summary{}, err
 	}
@@ -117,11 +121,11 @@ func Demo(ctx context.Context, o DemoOptions) (Summary, error) {
 	stamp := demoStamp(pages)
 	if old, _ := os.ReadFile(filepath.Join(dir, demoMarker+"-collection")); string(old) == stamp {
 		if !o.Quiet {
-			fmt.Fprintf(stderr, "recto: reusing the demo collection in %s\n", coll)
+			fmt.Fprintf(stderr, "%s: reusing the demo collection in %s\n", o.Command, coll)
 		}
 	} else {
 		if !o.Quiet {
-			fmt.Fprintf(stderr, "recto: writing the demo collection (%d pages) to %s\n", len(pages), coll)
+			fmt.Fprintf(stderr, "%s: writing the demo collection (%d pages) to %s\n", o.Command, len(pages), coll)
 		}
 		if err := writeDemo(ctx, pages, coll, truth, o.Jobs); err != nil {
 			return Summary{}, err
@@ -131,7 +135,7 @@ func Demo(ctx context.Context, o DemoOptions) (Summary, error) {
 		}
 	}
 	return Run(ctx, Options{Collection: coll, Out: runDir, Truth: truth, Jobs: o.Jobs, Lang: "eng",
-		Stderr: o.Stderr, Quiet: o.Quiet, NewEngine: o.NewEngine, NoPrepare: o.NoPrepare})
+		Stderr: o.Stderr, Quiet: o.Quiet, Command: o.Command, NewEngine: o.NewEngine, NoPrepare: o.NoPrepare})
 }
 
 // demoStamp identifies the generated collection: a rerun with the same

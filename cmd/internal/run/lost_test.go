@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"image"
 	"os"
+	"path"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -187,7 +188,7 @@ func TestSetupFailuresNotRescan(t *testing.T) {
 	fails := readCSV(t, filepath.Join(out, reportDir, "failures.csv"))
 	got := map[string]string{}
 	for _, r := range fails[1:] {
-		got[r[1]] = r[3]
+		got[path.Base(r[2])] = r[3] // title, page, image, problem
 	}
 	if !strings.Contains(got["big.png"], "--max-pixels") || got["gt.png"] == "" || len(got) != 2 {
 		t.Errorf("failures.csv: %v", got)

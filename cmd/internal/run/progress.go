@@ -16,11 +16,12 @@ import (
 // terminal, a plain line every runPlainEvery otherwise, nothing under --quiet.
 // Counters are atomics; one goroutine draws.
 type runProgress struct {
-	w     io.Writer
-	tty   bool
-	quiet bool
-	total int
-	start time.Time
+	w      io.Writer
+	prefix string // "recto run"
+	tty    bool
+	quiet  bool
+	total  int
+	start  time.Time
 
 	done    atomic.Int64 // pages finished by this run (done or failed)
 	failed  atomic.Int64
@@ -36,8 +37,8 @@ const (
 	runPlainEvery = 10 * time.Second
 )
 
-func newRunProgress(w io.Writer, quiet bool, total int) *runProgress {
-	p := &runProgress{w: w, quiet: quiet, total: total, start: time.Now(), stop: make(chan struct{})}
+func newRunProgress(w io.Writer, prefix string, quiet bool, total int) *runProgress {
+	p := &runProgress{w: w, prefix: prefix, quiet: quiet, total: total, start: time.Now(), stop: make(chan struct{})}
 	if f, ok := w.(*os.File); ok && os.Getenv("TERM") != "dumb" {
 		p.tty = isatty.IsTerminal(f.Fd())
 	}
@@ -125,7 +126,7 @@ func (p *runProgress) draw(last bool) {
 	defer p.mu.Unlock()
 	text := p.line(time.Now())
 	if !p.tty {
-		fmt.Fprintf(p.w, "recto: %s\n", text)
+		fmt.Fprintf(p.w, "%s: %s\n", p.prefix, text)
 		return
 	}
 	const width = 30

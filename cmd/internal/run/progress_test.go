@@ -9,7 +9,7 @@ import (
 
 func TestProgressLine(t *testing.T) {
 	var buf bytes.Buffer
-	p := newRunProgress(&buf, true, 100) // quiet: no drawing goroutine
+	p := newRunProgress(&buf, "recto run", true, 100) // quiet: no drawing goroutine
 	p.start = time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)
 	for range 10 {
 		p.skip()
@@ -31,12 +31,12 @@ func TestProgressLine(t *testing.T) {
 
 func TestProgressPlainWhenNotTerminal(t *testing.T) {
 	var buf bytes.Buffer
-	p := newRunProgress(&buf, false, 2) // a buffer is not a terminal
+	p := newRunProgress(&buf, "recto run", false, 2) // a buffer is not a terminal
 	p.add(false)
 	p.add(false)
 	p.finish()
 	out := buf.String()
-	if strings.Contains(out, "\r") || strings.Contains(out, "\033") || !strings.HasPrefix(out, "recto: 2/2 pages") {
+	if strings.Contains(out, "\r") || strings.Contains(out, "\033") || !strings.HasPrefix(out, "recto run: 2/2 pages") {
 		t.Errorf("plain progress = %q", out)
 	}
 }

@@ -43,19 +43,26 @@ type Options struct {
 	DPI        float64 // resolution to assume when a file records none; 0 means 300
 	Rescan     float64 // predicted CER above which a page is marked rescan; 0 means quality.DefaultRescan
 	Correct    float64 // predicted CER above which a page is corrected; 0 means quality.DefaultCorrect
-	Model      string  // triage model file; "" means the built-in model
+	Model      string  // quality model file for triage (recto calibrate); "" means the embedded one
 	Lexicon    string  // lexicon file; "" means the built-in lexicon
 	Margin     float64 // correction margin, natural-log odds; 0 means correct.DefaultMargin
-	MaxPixels  int     // largest image accepted, width×height; 0 means ocr.DefaultMaxPixels
-	Shard      string  // "i/n"; "" means from the environment, else every page
-	ShardCount int     // shard count for a Kubernetes Indexed Job (JOB_COMPLETION_INDEX); 0 means RECTO_SHARDS
+
+	CorrectionModel string // error model file (recto correct train); "" means the embedded one
+	KeepMarks       bool   // leave stray marks in (correct.Config.KeepMarks)
+	MapGlyphs       bool   // rewrite punctuation glyphs (correct.Config.MapGlyphs)
+
+	MaxPixels  int    // largest image accepted, width×height; 0 means ocr.DefaultMaxPixels
+	Shard      string // "i/n"; "" means from the environment, else every page
+	ShardCount int    // shard count for a Kubernetes Indexed Job (JOB_COMPLETION_INDEX); 0 means RECTO_SHARDS
 
 	// Getenv reads the batch system's environment for the shard; nil means os.Getenv.
 	Getenv func(string) string
 	// Stderr receives progress and the messages about failed pages; nil
-	// means none. Quiet keeps only the failures.
-	Stderr io.Writer
-	Quiet  bool
+	// means none. Quiet keeps only the failures. Every line starts with
+	// Command and a colon; "" means "recto run".
+	Stderr  io.Writer
+	Quiet   bool
+	Command string
 
 	// NewEngine makes one worker's engine (each worker owns one); nil
 	// means Tesseract with Lang and PSM. With NoPrepare the greyscale page
@@ -128,24 +135,13 @@ const (
 // the formats ocr.DecodeFile reads.
 var imageExts = map[string]bool{".tif": true, ".tiff": true, ".png": true, ".jpg": true, ".jpeg": true, ".bmp": true}
 
-// titlePage names a page: the title is the first folder of rel (as in
-// `recto score`), or rootName for an image directly in the root; the page
-// is the rest of rel.
-func titlePage(rel, rootName string) (title, page string) {
-	title, _ = quality.TitlePage(rel, rootName)
-	if _, rest, ok := strings.Cut(rel, "/"); ok {
-		return title, rest
-	}
-	return title, rel
-}
-
 // pageJob is one page image found under the collection.
 type pageJob struct {
 	Rel   string // slash-separated, relative to the collection root
 	Stem  string // output name: outputStem(Rel), see names.go
 	Path  string // absolute path
-	Title string
-	Page  string
+	Title string // first folder of Rel, or the collection's name for an image in its root (as in recto score)
+	Page  string // the page key: Stem, as recto score names a page
 }
 
 // listPages walks root for page images, skipping hidden entries and the
@@ -188,16 +184,26 @@ func listPages(root, skip string) ([]pageJob, int, error) {
 			return err
 		}
 		rel = filepath.ToSlash(rel)
-		title, page := titlePage(rel, rootName)
-		pages = append(pages, pageJob{Rel: rel, Path: p, Title: title, Page: page})
+		title, _ := quality.TitlePage(rel, rootName)
+		pages = append(pages, pageJob{Rel: rel, Path: p, Title: title})
 		return nil
 	})
 	if err != nil {
 		return nil, 0, fmt.Errorf("run: collection %q: %w", root, err)
 	}
 	sort.Slice(pages, func(i, j int) bool { return pages[i].Rel < pages[j].Rel })
+	stems := map[string]int{}
+	for _, p := range pages {
+		stems[strings.TrimSuffix(p.Rel, path.Ext(p.Rel))]++
+	}
 	for i, p := range pages {
-		pages[i].Stem = outputStem(p.Rel) // unique for every input path (names.go)
+		pages[i].Stem = outputStem(p.Rel) // output names: unique for every input path (names.go)
+		// The page key, as recto score names a page: the path without its
+		// extension, with it when two images share the stem.
+		pages[i].Page = strings.TrimSuffix(p.Rel, path.Ext(p.Rel))
+		if stems[pages[i].Page] > 1 {
+			pages[i].Page = p.Rel
+		}
 	}
 	return pages, ignored, nil
 }
@@ -237,12 +243,17 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 	if stderr == nil {
 		stderr = io.Discard
 	}
+	if o.Command == "" {
+		o.Command = "recto run"
+	}
 	root, err := filepath.Abs(o.Collection)
 	if err != nil {
 		return sum, err
 	}
-	if fi, err := os.Stat(root); err != nil {
-		return sum, fmt.Errorf("run: collection: %w", err)
+	if fi, err := os.Stat(root); errors.Is(err, fs.ErrNotExist) {
+		return sum, fmt.Errorf("COLLECTION %q: no such folder", o.Collection)
+	} else if err != nil {
+		return sum, fmt.Errorf("COLLECTION %q: %v", o.Collection, errors.Unwrap(err))
 	} else if !fi.IsDir() {
 		return sum, fmt.Errorf("run: collection %q is not a folder", o.Collection)
 	}
@@ -326,7 +337,7 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 		maxPixelsNow = o.MaxPixels
 	}
 	if !o.Quiet {
-		msg := fmt.Sprintf("recto: %d page images in %q", len(all), o.Collection)
+		msg := fmt.Sprintf("%s: %d page images in %q", o.Command, len(all), o.Collection)
 		if st.sh.Sharded() {
 			msg += fmt.Sprintf(", %d in shard %s", len(pages), st.sh)
 		}
@@ -339,7 +350,7 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 		return sum, fmt.Errorf("run: no page images (%s) under %q", extList(), o.Collection)
 	}
 
-	prog := newRunProgress(stderr, o.Quiet, len(pages))
+	prog := newRunProgress(stderr, o.Command, o.Quiet, len(pages))
 	w := l.NewWriter(func(p ledger.Page) { prog.add(p.State == ledger.StateFailed) })
 	runErr := st.process(ctx, pages, w, prog)
 	werr := w.Close()
@@ -368,7 +379,7 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 	}
 	sum.Report = filepath.Join(repDir, "report.html")
 	if !o.Quiet {
-		fmt.Fprintf(stderr, "recto: report in %s\n", sum.Report)
+		fmt.Fprintf(stderr, "%s: report in %s\n", o.Command, sum.Report)
 	}
 	inShard := make(map[string]bool, len(pages))
 	for _, p := range pages {
@@ -463,7 +474,7 @@ func (st *runState) process(ctx context.Context, pages []pageJob, w *ledger.Writ
 					continue
 				}
 				if row.State == ledger.StateFailed {
-					prog.message("recto: " + row.Error)
+					prog.message(st.o.Command + ": " + row.Error)
 				}
 				for _, m := range row.Warnings {
 					prog.message(fmt.Sprintf("recto: warning: %q: %s", p.Path, m))

@@ -59,17 +59,30 @@ func newToolkit(o Options) (*toolkit, error) {
 	}
 	modelSum, err := fileSum(o.Model)
 	if err != nil {
-		return nil, fmt.Errorf("run: --model: %w", err)
+		return nil, fmt.Errorf("--quality-model: %w", err)
+	}
+	cmodel := correct.DefaultModel()
+	if o.CorrectionModel != "" {
+		if cmodel, err = correct.LoadModel(o.CorrectionModel); err != nil {
+			return nil, err
+		}
+	}
+	cmodelSum, err := fileSum(o.CorrectionModel)
+	if err != nil {
+		return nil, fmt.Errorf("--correction-model: %w", err)
 	}
 	lexSum, err := fileSum(o.Lexicon)
 	if err != nil {
-		return nil, fmt.Errorf("run: --lexicon: %w", err)
+		return nil, fmt.Errorf("--lexicon: %w", err)
 	}
 	custom := o.NewEngine != nil
 	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare, MaxPixels: o.MaxPixels}
 	cfg := tesseract.Config{Lang: o.Lang, PSM: o.PSM}
 	settings := map[string]any{"lang": o.Lang, "psm": o.PSM, "dpi": o.DPI, "rescan": o.Rescan, "correct": o.Correct,
 		"model": modelSum, "lexicon": lexSum, "margin": o.Margin, "fake_engine": custom, "record": ocr.RecordVersion}
+	if o.CorrectionModel != "" || o.KeepMarks || o.MapGlyphs { // absent keys keep older ledgers' fingerprints
+		settings["correction_model"], settings["keep_marks"], settings["map_glyphs"] = cmodelSum, o.KeepMarks, o.MapGlyphs
+	}
 	tk := &toolkit{
 		write:    func(dir, rel string, r *ocr.Record, g *image.Gray) error { return ocr.WriteOutputs(dir, rel, r, g) },
 		interval: cerInterval,
@@ -82,8 +95,9 @@ func newToolkit(o Options) (*toolkit, error) {
 			return verdict{PredictedCER: v.PredictedCER, Decision: v.Decision, Reasons: v.Reasons}
 		},
 	}
+	ccfg := correct.Config{Margin: o.Margin, KeepMarks: o.KeepMarks, MapGlyphs: o.MapGlyphs}
 	tk.correct = func(r *ocr.Record) (*ocr.Record, int) {
-		c, changes := correctorFor(lex, o.Margin).CorrectRecord(r)
+		c, changes := correctorFor(lex, cmodel, ccfg).CorrectRecord(r)
 		return c, len(changes)
 	}
 	tk.fingerprint, tk.settingsJSON = fingerprint(settings)
@@ -135,8 +149,9 @@ func newToolkit(o Options) (*toolkit, error) {
 var correctors sync.Map // correctorKey -> *correctorEntry
 
 type correctorKey struct {
-	lex    *lexicon.Lexicon
-	margin float64
+	lex   *lexicon.Lexicon
+	model *correct.Model
+	cfg   correct.Config
 }
 
 type correctorEntry struct {
@@ -144,10 +159,10 @@ type correctorEntry struct {
 	c    *correct.Corrector
 }
 
-func correctorFor(lex *lexicon.Lexicon, margin float64) *correct.Corrector {
-	v, _ := correctors.LoadOrStore(correctorKey{lex, margin}, &correctorEntry{})
+func correctorFor(lex *lexicon.Lexicon, m *correct.Model, cfg correct.Config) *correct.Corrector {
+	v, _ := correctors.LoadOrStore(correctorKey{lex, m, cfg}, &correctorEntry{})
 	e := v.(*correctorEntry)
-	e.once.Do(func() { e.c = correct.New(lex, nil, correct.Config{Margin: margin}) })
+	e.once.Do(func() { e.c = correct.New(lex, m, cfg) })
 	return e.c
 }
 

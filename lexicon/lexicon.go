@@ -28,6 +28,8 @@ type Lexicon struct {
 	// lexicon.
 	layers []*Lexicon
 
+	acceptAll bool // AcceptAll: Has and HasFold accept every word
+
 	foldMu sync.Mutex                          // guards building fold
 	fold   atomic.Pointer[map[string]struct{}] // Fold keys of words; nil until HasFold needs it
 }
@@ -79,6 +81,9 @@ func Fold(word string) string {
 // word ("cafe" finds "café"). The first call builds an index of folded
 // words; it is safe for concurrent use with other reads.
 func (l *Lexicon) HasFold(word string) bool {
+	if l.acceptAll {
+		return true
+	}
 	idx := l.fold.Load()
 	if idx == nil {
 		l.foldMu.Lock()
@@ -123,7 +128,18 @@ func (l *Lexicon) AddBigram(w1, w2 string, n int64) {
 // Has reports whether the lexicon holds word (compared by Key), or, for a
 // lexicon built from a Hunspell dictionary that compounds, whether word is
 // a compound of its parts under the dictionary's rules (see compound.go).
-func (l *Lexicon) Has(word string) bool { return l.hasKey(Key(word)) }
+func (l *Lexicon) Has(word string) bool { return l.acceptAll || l.hasKey(Key(word)) }
+
+// AcceptAll returns a lexicon that holds no words and counts nothing but
+// whose Has and HasFold accept every word: what page features are
+// computed with when the page's language has no lexicon, so that no word
+// counts against a page for being unknown (the lexicon features carry no
+// evidence then; quality.Features.NoLexicon says so). It must not be
+// used for correction (there is nothing to correct towards) and must
+// not be modified.
+func AcceptAll() *Lexicon { return acceptAll }
+
+var acceptAll = &Lexicon{words: map[string]int64{}, bigrams: map[string]int64{}, acceptAll: true}
 
 func (l *Lexicon) hasKey(k string) bool {
 	if _, ok := l.words[k]; ok {

@@ -38,6 +38,7 @@ type Options struct {
 	DPI       float64     // resolution for images without a tag, dots per inch; 0 means DefaultDPI
 	MaxPixels int         // refuse larger images; 0 means DefaultMaxPixels
 	KeepImage bool        // also return the prepared image
+	Lang      string      // the engine's language list, recorded in each Record ("nor", "eng+deu"); "" records none
 }
 
 func (o Options) dpi() float64 {

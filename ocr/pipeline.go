@@ -36,6 +36,7 @@ func Process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 	}
 	rec := &Record{
 		Version:   RecordVersion,
+		Lang:      o.Lang,
 		Width:     sb.Dx(),
 		Height:    sb.Dy(),
 		DPI:       dpi,

@@ -17,6 +17,12 @@ type Record struct {
 	Source  string `json:"source"`  // page image path as given by the user
 	SHA256  string `json:"sha256"`  // hex SHA-256 of the source file's bytes
 
+	// Lang is the engine language list the page was read with ("eng",
+	// "nor", "eng+deu"; Tesseract's codes); triage and correction take
+	// their lexicon from it when not told otherwise. Empty in records
+	// written before it was recorded.
+	Lang string `json:"lang,omitempty"`
+
 	Width  int     `json:"width"`  // original image width, pixels
 	Height int     `json:"height"` // original image height, pixels
 	DPI    float64 `json:"dpi"`    // resolution used: from the file, --dpi, or assumed

@@ -58,6 +58,12 @@ type Features struct {
 
 	Noise float64 `json:"noise"` // the page's estimated noise, grey levels (standard deviation), from the record
 
+	// NoLexicon is true when the page's language had no lexicon and the
+	// features were computed with lexicon.AcceptAll: LexHit, LexHitChars
+	// and the lexicon part of Suspect carry no evidence, and the reasons
+	// say so.
+	NoLexicon bool `json:"no_lexicon,omitempty"`
+
 	// Blank is true when there is nothing to read: the record says the
 	// engine found no ink worth recognising, or (plain text only, where ink
 	// cannot be seen) the text has no characters. A record with ink but no

@@ -104,6 +104,9 @@ func Triage(f Features, m *Model, t Thresholds) Verdict {
 		return Verdict{Decision: DecisionBlank, Reasons: []string{fmt.Sprintf("page is nearly blank: %s recognised on a clean scan", plural(f.Chars, "character"))}}
 	}
 	words := int(math.Round(f.LexHit * float64(f.LexWords)))
+	if f.NoLexicon {
+		words = f.LexWords // every word of letters counts as a word
+	}
 	if f.FromRecord && f.Tokens < PictureMaxTokens && words < PictureMaxWords && f.Noise < PictureMaxNoise {
 		return Verdict{
 			PredictedCER: m.PredictCER(f),
@@ -161,7 +164,9 @@ func reasons(f Features, m *Model, worse bool) []string {
 		rs = append(rs, reason{fmt.Sprintf("%s of words under confidence %d", pct(f.LowConf), int(LowConfidence*100)),
 			group("low_conf", "sqrt_low_conf", "mean_conf", "conf_x_miss", "conf_under_30", "conf_under_90", "char_doubt", "sqrt_suspect_doubt")})
 	}
-	if f.LexWords > 0 {
+	if f.NoLexicon {
+		rs = append(rs, reason{"no lexicon for the language: not used (share of words in the lexicon, unknown words among suspect words)", group("lex_miss", "sqrt_lex_miss", "lex_miss_chars", "suspect")})
+	} else if f.LexWords > 0 {
 		rs = append(rs, reason{fmt.Sprintf("%s of words in the lexicon", pct(f.LexHit)), group("lex_miss", "sqrt_lex_miss", "lex_miss_chars", "suspect")})
 	} else {
 		rs = append(rs, reason{"no words of letters to check against the lexicon", group("lex_miss", "sqrt_lex_miss", "lex_miss_chars", "suspect")})

@@ -30,7 +30,8 @@ type CorrectOptions struct {
 	Out        string  // output directory; must not be IN or inside it
 	DryRun     bool    // list the changes on stdout, write nothing
 	Model      string  // model file from `recto correct train`; "" for the embedded one
-	Lexicon    string  // lexicon file; "" for the embedded English one
+	Lexicon    string  // lexicon file; "" to choose by Lang
+	Lang       string  // engine language list ("nor", "eng+deu"); "" for the page records' own, else eng
 	Margin     float64 // natural-log odds a correction must win by; 0 = default
 	Jobs       int     // pages corrected in parallel; 0 means GOMAXPROCS
 	Collection bool    // add the input pages' own word counts to the context model
@@ -88,6 +89,11 @@ The files under IN are never modified: --out must be another folder.
   recto correct scans/ocr --out scans/corrected
   recto correct scans/ocr --dry-run
   recto correct train --ocr corpus/ocr --truth corpus/truth --out my.model
+` + langHelp + `
+Without a lexicon for the language only language-independent fixes are
+made (stray marks): no word is changed into a word of another language.
+The error model (character confusions) is the same for every Latin-script
+language. Each line of changes.jsonl names the language ("lang").
 ` + exitStatusHelp,
 		Args: cobra.ExactArgs(1),
 		PreRunE: func(cmd *cobra.Command, args []string) error {
@@ -110,7 +116,8 @@ The files under IN are never modified: --out must be another folder.
 	f.StringVarP(&o.Out, "out", "o", "", "write corrected pages and changes.jsonl under `dir`")
 	f.BoolVar(&o.DryRun, "dry-run", false, "list the changes on stdout without writing anything")
 	f.StringVar(&o.Model, "correction-model", "", "error model `file` from 'recto correct train' (default: embedded)")
-	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` (default: embedded English)")
+	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` (default: the one of --lang)")
+	f.StringVarP(&o.Lang, "lang", "l", "", "engine `languages` of the pages, e.g. nor or eng+deu (default: as recorded by recto ocr, else eng)")
 	f.Float64Var(&o.Margin, "margin", 0, fmt.Sprintf("log-odds `margin` a correction must win by (0 = %g; higher is more cautious)", correct.DefaultMargin))
 	f.IntVarP(&o.Jobs, "jobs", "j", 0, "pages corrected in parallel (`n`; default: number of CPUs)")
 	f.BoolVar(&o.Collection, "collection", false, "also count the input pages' known words and word pairs for the context")
@@ -186,6 +193,7 @@ type changeLine struct {
 	Before string  `json:"before"`
 	After  string  `json:"after"`
 	Score  float64 `json:"score"`
+	Lang   string  `json:"lang"` // the language the page was corrected in (--lang)
 }
 
 func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in string) error {
@@ -212,12 +220,21 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 			return err
 		}
 	}
-	lex := lexicon.Default()
-	if o.Lexicon != "" {
-		if lex, err = lexicon.Load(o.Lexicon); err != nil {
-			return err
-		}
+	lc, err := chooseLanguage(o.Lang, o.Lexicon, func() string { return recordedCorrectLang(in, pages) },
+		"correction makes only language-independent fixes (stray marks) and changes no word")
+	if err != nil {
+		return err
 	}
+	if lc.note != "" {
+		g.printf("%s", lc.note)
+	}
+	lex := lc.lex
+	if lex == nil {
+		// No lexicon for the language: an empty one offers no word to
+		// change a word into, and joins no hyphenated halves.
+		lex = lexicon.New()
+	}
+	o.Lang = lc.Lang
 	cfg := correct.Config{Margin: o.Margin, KeepMarks: o.KeepMarks, MapGlyphs: o.MapGlyphs}
 	if o.Collection {
 		cfg.Collection = collectionCounts(in, pages, lex)
@@ -249,7 +266,7 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 		for _, ch := range r.changes {
 			total++
 			title, _ := quality.TitlePage(pages[i].rel, rootName)
-			_ = enc.Encode(changeLine{Title: title, Page: pages[i].rel, Line: ch.Line, Column: ch.Column, Before: ch.Before, After: ch.After, Score: ch.Score})
+			_ = enc.Encode(changeLine{Title: title, Page: pages[i].rel, Line: ch.Line, Column: ch.Column, Before: ch.Before, After: ch.After, Score: ch.Score, Lang: o.Lang})
 		}
 	}
 	if o.DryRun {
@@ -378,6 +395,9 @@ func correctOne(c *correct.Corrector, in string, o CorrectOptions, p correctPage
 			warn("%q: empty page, copied as it is", base+ocr.SuffixRecord)
 		}
 		out, changes := c.CorrectRecord(rec)
+		if out.Lang == "" {
+			out.Lang = o.Lang
+		}
 		if o.DryRun {
 			return correctResult{changes: changes}
 		}
@@ -568,4 +588,19 @@ func readUTF8(path string) (string, error) {
 		return "", fmt.Errorf("correct train: %q: not valid UTF-8 text (at byte %d)", path, firstInvalid(data))
 	}
 	return string(data), nil
+}
+
+// recordedCorrectLang returns the language recorded in the first page
+// record under in ("" when none has one).
+func recordedCorrectLang(in string, pages []correctPage) string {
+	for _, p := range pages {
+		if !p.json {
+			continue
+		}
+		rec, err := ocr.ReadRecord(filepath.Join(in, filepath.FromSlash(p.rel)) + ocr.SuffixRecord)
+		if err == nil && rec.Lang != "" {
+			return rec.Lang
+		}
+	}
+	return ""
 }

@@ -117,6 +117,7 @@ func (o *OCROptions) options() (ocr.Options, tesseract.Config, error) {
 			DPI:       o.DPI,
 			MaxPixels: o.MaxPixels,
 			KeepImage: o.KeepImages,
+			Lang:      o.Lang,
 		}, tesseract.Config{
 			Lang: o.Lang,
 			PSM:  o.PSM,

@@ -17,6 +17,7 @@ import (
 	"recto/cmd/internal/run/report"
 	"recto/internal/atomicfile"
 	"recto/lexicon"
+	"recto/ocr"
 	"recto/ocr/par"
 	"recto/quality"
 )
@@ -26,7 +27,8 @@ type TriageOptions struct {
 	Format     string  // table, json or csv
 	RescanList string  // CSV file to write the pages to rescan to; "" for none
 	Model      string  // model file from `recto calibrate`; "" for the embedded one
-	Lexicon    string  // lexicon file; "" for the embedded English one
+	Lexicon    string  // lexicon file; "" to choose by Lang
+	Lang       string  // engine language list ("nor", "eng+deu"); "" for the page records' own, else eng
 	Rescan     float64 // rescan above this predicted CER (fraction)
 	Correct    float64 // correct above this predicted CER (fraction)
 	Jobs       int     // pages read in parallel; 0 means GOMAXPROCS
@@ -72,7 +74,12 @@ OUTPUT (stdout)
 
 The estimate comes from a model fitted on recto's synthetic corpus; fit one
 on your own ground-truthed pages with 'recto calibrate' and pass it with
---quality-model.` + exitStatusHelp,
+--quality-model.
+` + langHelp + `
+Without a lexicon for the language, the share of words in the lexicon
+and unknown words among the suspect words are not used: the estimate
+rests on confidences, garbage rules and the character mix, and each
+page's reasons say so.` + exitStatusHelp,
 		Args: cobra.ExactArgs(1),
 		PreRunE: func(cmd *cobra.Command, args []string) error {
 			if err := checkFormat(&o.Format, "table", "json", "csv"); err != nil {
@@ -94,7 +101,8 @@ on your own ground-truthed pages with 'recto calibrate' and pass it with
 	f.StringVar(&o.Format, "format", "table", "output `format`: table, json or csv")
 	f.StringVar(&o.RescanList, "rescan-list", "", "write the pages to rescan to this CSV `file`")
 	f.StringVar(&o.Model, "quality-model", "", "quality model `file` from 'recto calibrate' (default: embedded)")
-	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` (default: embedded English)")
+	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` (default: the one of --lang)")
+	f.StringVarP(&o.Lang, "lang", "l", "", "engine `languages` of the pages, e.g. nor or eng+deu (default: as recorded by recto ocr, else eng)")
 	f.Float64Var(&o.Rescan, "rescan", quality.DefaultRescan, "rescan above this predicted CER, a `fraction` (0.10 = 10%)")
 	f.Float64Var(&o.Correct, "correct", quality.DefaultCorrect, "correct above this predicted CER, a `fraction` (0.02 = 2%)")
 	f.IntVarP(&o.Jobs, "jobs", "j", 0, "read `n` pages at once (0: one per core)")
@@ -134,9 +142,10 @@ type triageFailure struct {
 }
 
 type triageReport struct {
-	Pages  []triagePage    `json:"pages"`
-	Titles []triageTitle   `json:"titles"`
-	Failed []triageFailure `json:"failed,omitempty"`
+	Language *langChoice     `json:"language"`
+	Pages    []triagePage    `json:"pages"`
+	Titles   []triageTitle   `json:"titles"`
+	Failed   []triageFailure `json:"failed,omitempty"`
 }
 
 func runTriage(ctx context.Context, o TriageOptions, g GlobalOptions, dir string) error {
@@ -153,12 +162,15 @@ func runTriage(ctx context.Context, o TriageOptions, g GlobalOptions, dir string
 			return err
 		}
 	}
-	lex := lexicon.Default()
-	if o.Lexicon != "" {
-		if lex, err = lexicon.Load(o.Lexicon); err != nil {
-			return err
-		}
+	lc, err := chooseLanguage(o.Lang, o.Lexicon, func() string { return recordedLang(pages) },
+		"triage does not use the lexicon features (share of words in the lexicon, unknown words among suspect words)")
+	if err != nil {
+		return err
 	}
+	if lc.note != "" {
+		g.printf("%s", lc.note)
+	}
+	lex := lc.lex
 	th := quality.Thresholds{Rescan: o.Rescan, Correct: o.Correct}
 	root := filepath.Base(filepath.Clean(dir))
 	if abs, err := filepath.Abs(dir); err == nil {
@@ -172,7 +184,7 @@ func runTriage(ctx context.Context, o TriageOptions, g GlobalOptions, dir string
 		return err
 	}
 
-	rep := triageReport{Pages: []triagePage{}}
+	rep := triageReport{Language: lc, Pages: []triagePage{}}
 	titles := map[string]*triageTitle{}
 	textOnly := 0
 	for i, r := range results {
@@ -258,12 +270,17 @@ func triageOne(p quality.OCRPage, root string, lex *lexicon.Lexicon, m *quality.
 		return r
 	}
 	var f quality.Features
+	fl := lex
+	if fl == nil { // no lexicon for the language: no word counts against the page for being unknown
+		fl = lexicon.AcceptAll()
+	}
 	if rec != nil {
-		f = quality.PageFeatures(rec, lex)
+		f = quality.PageFeatures(rec, fl)
 		r.Image = rec.Source
 	} else {
-		f = quality.TextFeatures(text, lex)
+		f = quality.TextFeatures(text, fl)
 	}
+	f.NoLexicon = lex == nil
 	v := quality.Triage(f, m, th)
 	r.PredictedCER, r.Decision, r.Reasons = v.PredictedCER, v.Decision, v.Reasons
 	return r
@@ -283,6 +300,9 @@ func writeTriageText(w io.Writer, rep triageReport, th quality.Thresholds) {
 		fmt.Fprintf(tw, "%s\t%d\t%d\t%d\t%d\t%d\t%d\t%d\t%.1f%%\t\n", t.Title, t.Pages, t.Accept, t.Correct, t.Rescan, t.Blank, t.Picture, t.Failed, 100*t.MeanPred)
 	}
 	tw.Flush()
+	if rep.Language != nil {
+		fmt.Fprintf(w, "\n%s\n", rep.Language.describe())
+	}
 }
 
 // writeTriageCSV writes one row per page.
@@ -312,4 +332,19 @@ func writeRescanList(path string, pages []triagePage) error {
 		return fmt.Errorf("--rescan-list: %w", err)
 	}
 	return nil
+}
+
+// recordedLang returns the language recorded in the first page record
+// among pages that has one ("" when none does): the language 'recto ocr
+// --lang' read the pages in.
+func recordedLang(pages []quality.OCRPage) string {
+	for _, p := range pages {
+		if p.JSON == "" {
+			continue
+		}
+		if rec, err := ocr.ReadRecord(p.JSON); err == nil && rec.Lang != "" {
+			return rec.Lang
+		}
+	}
+	return ""
 }

@@ -18,6 +18,7 @@ import (
 	"path"
 	"path/filepath"
 	"strings"
+	"sync/atomic"
 	"time"
 
 	"recto/cmd/internal/cli"
@@ -48,6 +49,7 @@ type Options struct {
 	KeepMarks       bool   // leave stray marks in (correct.Config.KeepMarks)
 	MapGlyphs       bool   // rewrite punctuation glyphs (correct.Config.MapGlyphs)
 
+	MaxPixels  int    // largest image accepted, width×height; 0 means ocr.DefaultMaxPixels
 	Shard      string // "i/n"; "" means from the environment, else every page
 	ShardCount int    // shard count for a Kubernetes Indexed Job (JOB_COMPLETION_INDEX); 0 means RECTO_SHARDS
 
@@ -65,6 +67,10 @@ type Options struct {
 	// goes to the engine without preparation.
 	NewEngine func() (ocr.Engine, error)
 	NoPrepare bool
+
+	// NewCollection allows running a collection into a run folder used for
+	// another one; the old collection's pages are then marked gone.
+	NewCollection bool
 }
 
 // Summary counts what a run did.
@@ -95,6 +101,8 @@ func (o Options) Validate() error {
 		return usagef("run: --shard-count %d: must be 1 or more", o.ShardCount)
 	case o.Margin < 0:
 		return usagef("run: --margin %g: must be 0 (default) or more", o.Margin)
+	case o.MaxPixels < 0:
+		return usagef("run: --max-pixels %d: must be 0 (default %d) or more", o.MaxPixels, ocr.DefaultMaxPixels)
 	case o.DPI < 0:
 		return usagef("run: --dpi %g: must be positive", o.DPI)
 	}
@@ -123,8 +131,11 @@ const (
 
 // pageJob is one page of the run.
 type pageJob struct {
-	Image
-	Page string // the page key: Stem, as recto score names a page
+	Rel   string // slash-separated, relative to the collection root
+	Stem  string // output name: outputStem(Rel), see names.go
+	Path  string // absolute path
+	Title string // first folder of Rel, or the collection's name for an image in its root (as in recto score)
+	Page  string // the page key: Rel without extension, as recto score names a page (FindImages' Stem)
 }
 
 // listPages finds the page files under root (FindImages) as the pages of
@@ -136,7 +147,8 @@ func listPages(root, skip string) ([]pageJob, int, error) {
 	}
 	pages := make([]pageJob, len(imgs))
 	for i, im := range imgs {
-		pages[i] = pageJob{Image: im, Page: im.Stem}
+		// Output names are unique for every input path (names.go).
+		pages[i] = pageJob{Rel: im.Rel, Stem: outputStem(im.Rel), Path: im.Path, Title: im.Title, Page: im.Stem}
 	}
 	return pages, ignored, nil
 }
@@ -150,6 +162,9 @@ type runState struct {
 	sh       shard.Shard
 	config   string // settings fingerprint
 	done     map[string]ledger.Key
+	badNames map[string]string   // rel -> why its output names cannot be made (names.go)
+	previous map[string][]string // rel -> outputs of its last ledger row
+	inFlight atomic.Int64        // pages being worked on
 }
 
 // Run is the whole job on o.Collection. A run in which some pages failed
@@ -229,6 +244,9 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 		return sum, fmt.Errorf("run: %w", err)
 	}
 	defer l.Close()
+	if err := checkCollection(ctx, l, root, o.Out, o.NewCollection); err != nil {
+		return sum, err
+	}
 	for k, v := range map[string]string{"collection": root, "truth": st.truthDir, "settings": st.tk.settingsJSON, "shard": st.sh.String()} {
 		if err := l.SetMeta(ctx, k, v); err != nil {
 			return sum, fmt.Errorf("run: %w", err)
@@ -253,6 +271,16 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 		}
 	}
 	sum.Images, sum.Pages, sum.Ignored = len(all), len(pages), ignored
+	if _, err := markGone(ctx, l, pages, stderr, "recto"); err != nil {
+		return sum, err
+	}
+	st.badNames = checkNames(all, foldsCase(st.outDir))
+	if st.previous, err = previousOutputs(ctx, l); err != nil {
+		return sum, err
+	}
+	if o.MaxPixels > 0 {
+		maxPixelsNow = o.MaxPixels
+	}
 	if !o.Quiet {
 		msg := fmt.Sprintf("%s: %d page images in %q", o.Command, len(all), o.Collection)
 		if st.sh.Sharded() {
@@ -302,10 +330,21 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 	for _, p := range pages {
 		inShard[p.Rel] = true
 	}
+	setup := &SetupError{Total: len(pages), Report: filepath.Join(repDir, "failures.csv")}
 	for _, r := range rows {
 		if inShard[r.Rel] && r.State == ledger.StateFailed {
 			sum.Failed++
+			if isSetup(r) {
+				if setup.Setup++; setup.First == "" {
+					setup.First = r.Error
+				}
+			} else {
+				setup.Image++
+			}
 		}
+	}
+	if setup.Setup > 0 {
+		return sum, setup
 	}
 	if sum.Failed > 0 {
 		return sum, &partialError{Failed: sum.Failed, Total: len(pages), What: "pages"}
@@ -359,6 +398,9 @@ func (st *runState) process(ctx context.Context, pages []pageJob, w *ledger.Writ
 			if row.State == ledger.StateFailed {
 				prog.Message(st.o.Command + ": " + row.Error)
 			}
+			for _, m := range row.Warnings {
+				prog.Message(fmt.Sprintf("%s: warning: %q: %s", st.o.Command, pages[i].Path, m))
+			}
 			w.Put(*row)
 		}
 		return nil
@@ -379,29 +421,45 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 	row = &ledger.Page{Rel: p.Rel, Title: p.Title, Page: p.Page, Source: p.Path, Shard: st.sh.String(),
 		State: ledger.StateFailed, Timings: map[string]float64{}}
 	fail := func(format string, a ...any) (*ledger.Page, bool) {
-		row.Error = fmt.Sprintf(format, a...)
+		row.Error, row.Problem = fmt.Sprintf(format, a...), ledger.ProblemSetup
+		// Outputs of an earlier run of this page stay listed, so that no
+		// file in the run folder belongs to no page; they are not linked.
+		row.Outputs = st.stillThere(p.Rel)
 		return row, false
+	}
+	failErr := func(err error) (*ledger.Page, bool) {
+		row, _ = fail("")
+		row.Problem, row.Error = classify(p.Path, err)
+		return row, false
+	}
+	st.inFlight.Add(1)
+	defer st.inFlight.Add(-1)
+	if why, ok := st.badNames[p.Rel]; ok {
+		return fail("%q: %s", p.Path, why)
 	}
 	sum, size, err := hashFile(p.Path)
 	if err != nil {
-		return fail("%q: cannot read: %v", p.Path, errors.Unwrap(err))
+		return fail("%q: cannot read: %v%s", p.Path, errors.Unwrap(err), ioFix(err))
 	}
 	row.SHA256, row.Size = sum, size
 	truth, truthSum, hasTruth, err := st.readTruth(p.Rel)
 	if err != nil {
-		return fail("%v", err)
+		return fail("%v%s", err, ioFix(err))
 	}
 	row.Config = st.config + "+" + truthSum
 	if k, ok := st.done[p.Rel]; ok && k == (ledger.Key{SHA256: row.SHA256, Config: row.Config}) {
 		return nil, true
 	}
 	if size == 0 {
-		return fail("%q: empty file (0 bytes)", p.Path)
+		row, _ = fail("%q: empty file (0 bytes)", p.Path)
+		row.Problem = ledger.ProblemImage
+		return row, false
 	}
 
 	defer func() { // one bad page must never stop the batch
 		if r := recover(); r != nil {
-			row.State, row.Error, row.Outputs = ledger.StateFailed, fmt.Sprintf("%q: internal error: %v", p.Path, r), nil
+			row.State, row.Error, row.Outputs = ledger.StateFailed, fmt.Sprintf("%q: internal error: %v (please report it)", p.Path, r), nil
+			row.Problem = ledger.ProblemSetup
 			skipped = false
 		}
 	}()
@@ -411,12 +469,13 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 		if ctx.Err() != nil {
 			return nil, false
 		}
-		return fail("%v", err)
+		return failErr(err)
 	}
 	row.Timings["recognise"] = ms(time.Since(t0))
+	row.Warnings = r.Warnings
 	t1 := time.Now()
 	if err := st.tk.write(filepath.Join(st.outDir, ocrDir), p.Stem, r, prepared); err != nil {
-		return fail("%q: writing outputs: %v", p.Path, err)
+		return fail("%q: writing outputs: %v%s", p.Path, err, ioFix(err))
 	}
 	row.Outputs = outputNames(ocrDir, p.Stem)
 	row.Timings["write"] = ms(time.Since(t1))
@@ -434,7 +493,7 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 		row.Corrections = n
 		row.Timings["correct"] = ms(time.Since(t3))
 		if err := st.tk.write(filepath.Join(st.outDir, correctedDir), p.Stem, c, nil); err != nil {
-			return fail("%q: writing corrected outputs: %v", p.Path, err)
+			return fail("%q: writing corrected outputs: %v%s", p.Path, err, ioFix(err))
 		}
 		row.Outputs = append(row.Outputs, outputNames(correctedDir, p.Stem)...)
 		final = c
@@ -453,6 +512,7 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 		row.Timings["score"] = ms(time.Since(t4))
 	}
 	row.State, row.Error = ledger.StateDone, ""
+	st.dropStale(p.Rel, row.Outputs)
 	return row, false
 }
 
@@ -502,7 +562,7 @@ func (st *runState) readTruth(rel string) (text, sum string, ok bool, err error)
 		return "", "-", false, nil
 	}
 	if err != nil {
-		return "", "", false, fmt.Errorf("ground truth %q: %v", name, errors.Unwrap(err))
+		return "", "", false, fmt.Errorf("ground truth %q: %w", name, errors.Unwrap(err))
 	}
 	s := sha256.Sum256(data)
 	return string(data), hex.EncodeToString(s[:8]), true, nil

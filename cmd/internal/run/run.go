@@ -352,7 +352,10 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 
 	prog := newRunProgress(stderr, o.Command, o.Quiet, len(pages))
 	w := l.NewWriter(func(p ledger.Page) { prog.add(p.State == ledger.StateFailed) })
+	finished := make(chan struct{})
+	go st.sayStopping(ctx, prog, finished) // stopping.go
 	runErr := st.process(ctx, pages, w, prog)
+	close(finished)
 	werr := w.Close()
 	prog.finish()
 	sum.Skipped = int(prog.skipped.Load())

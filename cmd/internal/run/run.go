@@ -17,18 +17,16 @@ import (
 	"os"
 	"path"
 	"path/filepath"
-	"runtime"
-	"sort"
 	"strings"
-	"sync"
 	"sync/atomic"
 	"time"
 
 	"recto/cmd/internal/cli"
+	"recto/cmd/internal/progress"
 	"recto/cmd/internal/run/ledger"
 	"recto/cmd/internal/run/shard"
 	"recto/ocr"
-	"recto/quality"
+	"recto/ocr/par"
 )
 
 // Options are the settings of a run. The zero value of every field means
@@ -131,79 +129,26 @@ const (
 	shardsDir    = "shards"
 )
 
-// imageExts are the file extensions taken as page images (lower case):
-// the formats ocr.DecodeFile reads.
-var imageExts = map[string]bool{".tif": true, ".tiff": true, ".png": true, ".jpg": true, ".jpeg": true, ".bmp": true}
-
-// pageJob is one page image found under the collection.
+// pageJob is one page of the run.
 type pageJob struct {
 	Rel   string // slash-separated, relative to the collection root
 	Stem  string // output name: outputStem(Rel), see names.go
 	Path  string // absolute path
 	Title string // first folder of Rel, or the collection's name for an image in its root (as in recto score)
-	Page  string // the page key: Stem, as recto score names a page
+	Page  string // the page key: Rel without extension, as recto score names a page (FindImages' Stem)
 }
 
-// listPages walks root for page images, skipping hidden entries and the
-// folder skip (the run folder, when it lies inside the collection). It
-// returns the pages sorted by Rel and the number of other files ignored.
+// listPages finds the page files under root (FindImages) as the pages of
+// the run.
 func listPages(root, skip string) ([]pageJob, int, error) {
-	rootName := filepath.Base(root)
-	var pages []pageJob
-	ignored := 0
-	err := filepath.WalkDir(root, func(p string, d fs.DirEntry, err error) error {
-		if err != nil {
-			if p == root {
-				return err
-			}
-			ignored++ // an unreadable sub-folder must not stop the run
-			if d != nil && d.IsDir() {
-				return fs.SkipDir
-			}
-			return nil
-		}
-		name := d.Name()
-		if p != root && strings.HasPrefix(name, ".") {
-			if d.IsDir() {
-				return fs.SkipDir
-			}
-			return nil
-		}
-		if d.IsDir() {
-			if skip != "" && p == skip {
-				return fs.SkipDir
-			}
-			return nil
-		}
-		if !imageExts[strings.ToLower(filepath.Ext(name))] {
-			ignored++
-			return nil
-		}
-		rel, err := filepath.Rel(root, p)
-		if err != nil {
-			return err
-		}
-		rel = filepath.ToSlash(rel)
-		title, _ := quality.TitlePage(rel, rootName)
-		pages = append(pages, pageJob{Rel: rel, Path: p, Title: title})
-		return nil
-	})
+	imgs, ignored, err := FindImages(root, skip)
 	if err != nil {
-		return nil, 0, fmt.Errorf("run: collection %q: %w", root, err)
+		return nil, 0, fmt.Errorf("collection %w", err)
 	}
-	sort.Slice(pages, func(i, j int) bool { return pages[i].Rel < pages[j].Rel })
-	stems := map[string]int{}
-	for _, p := range pages {
-		stems[strings.TrimSuffix(p.Rel, path.Ext(p.Rel))]++
-	}
-	for i, p := range pages {
-		pages[i].Stem = outputStem(p.Rel) // output names: unique for every input path (names.go)
-		// The page key, as recto score names a page: the path without its
-		// extension, with it when two images share the stem.
-		pages[i].Page = strings.TrimSuffix(p.Rel, path.Ext(p.Rel))
-		if stems[pages[i].Page] > 1 {
-			pages[i].Page = p.Rel
-		}
+	pages := make([]pageJob, len(imgs))
+	for i, im := range imgs {
+		// Output names are unique for every input path (names.go).
+		pages[i] = pageJob{Rel: im.Rel, Stem: outputStem(im.Rel), Path: im.Path, Title: im.Title, Page: im.Stem}
 	}
 	return pages, ignored, nil
 }
@@ -350,16 +295,16 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 		return sum, fmt.Errorf("run: no page images (%s) under %q", extList(), o.Collection)
 	}
 
-	prog := newRunProgress(stderr, o.Command, o.Quiet, len(pages))
-	w := l.NewWriter(func(p ledger.Page) { prog.add(p.State == ledger.StateFailed) })
+	prog := progress.New(stderr, o.Command, o.Quiet, len(pages))
+	w := l.NewWriter(func(p ledger.Page) { prog.Add(p.State == ledger.StateFailed) })
 	finished := make(chan struct{})
-	go st.sayStopping(ctx, prog, finished) // stopping.go
+	go st.sayStopping(ctx, prog, o.Command, len(pages), finished) // stopping.go
 	runErr := st.process(ctx, pages, w, prog)
 	close(finished)
 	werr := w.Close()
-	prog.finish()
-	sum.Skipped = int(prog.skipped.Load())
-	sum.Done = int(prog.done.Load() - prog.failed.Load())
+	prog.Finish()
+	sum.Skipped = prog.Skipped()
+	sum.Done = prog.Done() - prog.Failed()
 	if werr != nil {
 		return sum, fmt.Errorf("run: ledger: %w", werr)
 	}
@@ -410,15 +355,6 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 	return sum, nil
 }
 
-func extList() string {
-	var e []string
-	for k := range imageExts {
-		e = append(e, k)
-	}
-	sort.Strings(e)
-	return strings.Join(e, " ")
-}
-
 // checkWritable makes dir if needed and proves a file can be created in it.
 func checkWritable(dir string) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
@@ -433,62 +369,46 @@ func checkWritable(dir string) error {
 	return os.Remove(name)
 }
 
-// process runs the pages through a pool of workers, each with its own
-// engine, and hands every finished page to the ledger writer.
-func (st *runState) process(ctx context.Context, pages []pageJob, w *ledger.Writer, prog *runProgress) error {
-	jobs := st.o.Jobs
-	if jobs == 0 {
-		jobs = runtime.GOMAXPROCS(0)
-	}
-	jobs = max(1, min(jobs, len(pages)))
-	ch := make(chan pageJob)
-	go func() {
-		defer close(ch)
-		for _, p := range pages {
-			select {
-			case ch <- p:
-			case <-ctx.Done():
-				return
+// process runs the pages through the worker pool (par.EachErr), one
+// engine per worker slot, made when the slot first takes a page, and hands
+// every finished page to the ledger writer.
+func (st *runState) process(ctx context.Context, pages []pageJob, w *ledger.Writer, prog *progress.Reporter) error {
+	recs := make([]recogniser, par.Workers(st.o.Jobs, len(pages)))
+	defer func() {
+		for _, r := range recs {
+			if r != nil {
+				r.Close()
 			}
 		}
 	}()
-	var wg sync.WaitGroup
-	errs := make(chan error, jobs)
-	for range jobs {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			rec, err := st.tk.newRecogniser()
+	err := par.EachErr(ctx, len(pages), len(recs), func(slot, i int) error {
+		if w.Err() != nil {
+			return nil
+		}
+		if recs[slot] == nil {
+			r, err := st.tk.newRecogniser()
 			if err != nil {
-				errs <- err
-				return
+				return err
 			}
-			defer rec.Close()
-			for p := range ch {
-				if w.Err() != nil {
-					return
-				}
-				row, skipped := st.onePage(ctx, rec, p)
-				if skipped {
-					prog.skip()
-					continue
-				}
-				if row == nil { // interrupted mid-page: not recorded
-					continue
-				}
-				if row.State == ledger.StateFailed {
-					prog.message(st.o.Command + ": " + row.Error)
-				}
-				for _, m := range row.Warnings {
-					prog.message(fmt.Sprintf("recto: warning: %q: %s", p.Path, m))
-				}
-				w.Put(*row)
+			recs[slot] = r
+		}
+		row, skipped := st.onePage(ctx, recs[slot], pages[i])
+		switch {
+		case skipped:
+			prog.Skip()
+		case row == nil: // interrupted mid-page: not recorded
+		default:
+			if row.State == ledger.StateFailed {
+				prog.Message(st.o.Command + ": " + row.Error)
 			}
-		}()
-	}
-	wg.Wait()
-	close(errs)
-	for err := range errs {
+			for _, m := range row.Warnings {
+				prog.Message(fmt.Sprintf("%s: warning: %q: %s", st.o.Command, pages[i].Path, m))
+			}
+			w.Put(*row)
+		}
+		return nil
+	})
+	if err != nil && ctx.Err() == nil {
 		return fmt.Errorf("run: %w", err)
 	}
 	return nil

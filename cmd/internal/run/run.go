@@ -572,22 +572,27 @@ func hashFile(name string) (string, int64, error) {
 	return hex.EncodeToString(h.Sum(nil)), n, nil
 }
 
-// readTruth returns the ground truth of rel, if any, and its SHA-256 ("-"
-// when there is none).
+// readTruth returns the ground truth of rel, if any, and the SHA-256 of its
+// text ("-" when there is none; for a .txt file the hash of the file). It
+// reads through quality.ReadTruth, as recto score and calibrate do: the
+// same formats (.txt, ALTO, PAGE XML), checks, size limit and messages.
 func (st *runState) readTruth(rel string) (text, sum string, ok bool, err error) {
 	if st.truthDir == "" {
 		return "", "-", false, nil
 	}
-	name := filepath.Join(st.truthDir, filepath.FromSlash(strings.TrimSuffix(rel, path.Ext(rel))+".txt"))
-	data, err := os.ReadFile(name)
-	if errors.Is(err, fs.ErrNotExist) {
+	name, err := quality.FindTruth(filepath.Join(st.truthDir, filepath.FromSlash(strings.TrimSuffix(rel, path.Ext(rel)))))
+	if err != nil {
+		return "", "", false, err
+	}
+	if name == "" {
 		return "", "-", false, nil
 	}
+	t, err := quality.ReadTruth(name)
 	if err != nil {
-		return "", "", false, fmt.Errorf("ground truth %q: %v", name, errors.Unwrap(err))
+		return "", "", false, err
 	}
-	s := sha256.Sum256(data)
-	return string(data), hex.EncodeToString(s[:8]), true, nil
+	s := sha256.Sum256([]byte(t.Text))
+	return t.Text, hex.EncodeToString(s[:8]), true, nil
 }
 
 // recogniser is one worker's engine: never shared between goroutines.

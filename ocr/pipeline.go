@@ -178,7 +178,9 @@ func hashFile(path string) (string, error) {
 
 // nameFile makes sure err names path, without naming it twice.
 func nameFile(path string, err error) error {
-	if strings.Contains(err.Error(), path) {
+	// A DecodeError or PathError already names the file, quoted (so with
+	// escapes when the name holds quotes or bytes that are not UTF-8).
+	if msg := err.Error(); strings.Contains(msg, path) || strings.Contains(msg, fmt.Sprintf("%q", path)) {
 		return err
 	}
 	return fmt.Errorf("ocr: %q: %w", path, err)

@@ -35,6 +35,8 @@ func addRunFlags(cmd *cobra.Command, o *run.Options) {
 	f.Float64Var(&o.Margin, "margin", 0, fmt.Sprintf("correct a word only when the candidate is e^`m` times likelier (default %g)", correct.DefaultMargin))
 	f.StringVar(&o.Shard, "shard", "", "process only share `i/n` of the pages (default: from JOB_COMPLETION_INDEX or SLURM_ARRAY_TASK_ID, else all)")
 	f.IntVar(&o.ShardCount, "shard-count", 0, "number of shards when the index comes from JOB_COMPLETION_INDEX (default: $RECTO_SHARDS)")
+	f.IntVar(&o.MaxPixels, "max-pixels", ocr.DefaultMaxPixels, "largest page accepted, width × height `pixels`; larger pages fail as a set-up problem, not a bad scan")
+	f.BoolVar(&o.NewCollection, "new-collection", false, "run this collection into an --out folder used for another one (its pages are kept as gone)")
 	oldName(cmd, "model", "quality-model")
 }
 

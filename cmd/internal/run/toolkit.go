@@ -89,7 +89,7 @@ func newToolkit(o Options) (*toolkit, error) {
 		return nil, fmt.Errorf("--lexicon: %w", err)
 	}
 	custom := o.NewEngine != nil
-	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare, Lang: o.Lang}
+	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare, Lang: o.Lang, MaxPixels: o.MaxPixels}
 	cfg := tesseract.Config{Lang: o.Lang, PSM: o.PSM}
 	settings := map[string]any{"lang": o.Lang, "psm": o.PSM, "dpi": o.DPI, "rescan": o.Rescan, "correct": o.Correct,
 		"model": modelSum, "lexicon": lexSum, "margin": o.Margin, "fake_engine": custom, "record": ocr.RecordVersion}

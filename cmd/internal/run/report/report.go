@@ -44,6 +44,7 @@ type Page struct {
 
 	Failed bool   // the page could not be processed
 	Error  string // why, when Failed
+	Setup  bool   // failed for a set-up or system reason, not the scan's: not on the rescan list
 
 	Decision     string   // one of Decisions; "" when Failed
 	PredictedCER float64  // estimated CER in [0, 1]
@@ -401,7 +402,7 @@ func RescanCSV(pages []Page) ([]byte, error) {
 	rows := [][]string{RescanHead}
 	for _, p := range pages {
 		switch {
-		case p.Failed:
+		case p.Failed && !p.Setup:
 			rows = append(rows, []string{cell(p.Title), cell(p.Page), cell(p.Rel), "", cell("unreadable: " + p.Error)})
 		case p.Decision == "rescan":
 			rows = append(rows, []string{cell(p.Title), cell(p.Page), cell(p.Rel), f4(p.PredictedCER), cell(strings.Join(p.Reasons, "; "))})

@@ -477,18 +477,19 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 	}
 	row.Timings["recognise"] = ms(time.Since(t0))
 	row.Warnings = r.Warnings
-	t1 := time.Now()
-	if err := st.tk.write(filepath.Join(st.outDir, ocrDir), p.Stem, r, prepared); err != nil {
-		return fail("%q: writing outputs: %v%s", p.Path, err, ioFix(err))
-	}
-	row.Outputs = outputNames(ocrDir, p.Stem)
-	row.Timings["write"] = ms(time.Since(t1))
-
+	// Triage before writing: the ALTO carries its estimate (Page@ACCURACY).
 	t2 := time.Now()
 	v := st.tk.triage(r)
 	row.Decision, row.PredictedCER, row.Reasons = v.Decision, v.PredictedCER, v.Reasons
 	row.MeanConf, row.Words = r.MeanConfidence, len(r.Words)
 	row.Timings["triage"] = ms(time.Since(t2))
+
+	t1 := time.Now()
+	if err := st.tk.write(filepath.Join(st.outDir, ocrDir), p.Stem, r, prepared, accuracy(v)); err != nil {
+		return fail("%q: writing outputs: %v%s", p.Path, err, ioFix(err))
+	}
+	row.Outputs = outputNames(ocrDir, p.Stem)
+	row.Timings["write"] = ms(time.Since(t1))
 
 	final := r
 	if v.Decision == "correct" {
@@ -496,7 +497,10 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 		c, n := st.tk.correct(r)
 		row.Corrections = n
 		row.Timings["correct"] = ms(time.Since(t3))
-		if err := st.tk.write(filepath.Join(st.outDir, correctedDir), p.Stem, c, nil); err != nil {
+		ca := accuracy(st.tk.triage(c)) // the estimate of the corrected text
+		step := st.tk.correction
+		ca.Correction = &step
+		if err := st.tk.write(filepath.Join(st.outDir, correctedDir), p.Stem, c, nil, ca); err != nil {
 			return fail("%q: writing corrected outputs: %v%s", p.Path, err, ioFix(err))
 		}
 		row.Outputs = append(row.Outputs, outputNames(correctedDir, p.Stem)...)
@@ -518,6 +522,12 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 	row.State, row.Error = ledger.StateDone, ""
 	st.dropStale(p.Rel, row.Outputs)
 	return row, false
+}
+
+// accuracy is triage's estimate as ALTO's Page@ACCURACY: the estimated
+// percentage of characters read right, 100 × (1 − predicted CER).
+func accuracy(v verdict) ocr.ALTOOptions {
+	return ocr.ALTOOptions{Accuracy: 100 * (1 - v.PredictedCER), HasAccuracy: true}
 }
 
 func ms(d time.Duration) float64 { return float64(d.Microseconds()) / 1000 }

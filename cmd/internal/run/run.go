@@ -38,7 +38,7 @@ type Options struct {
 	Jobs       int     // pages in parallel; 0 means GOMAXPROCS
 	Lang       string  // Tesseract language(s), e.g. "eng" or "eng+fra"; "" means "eng"
 	PSM        int     // Tesseract page segmentation mode; 0 means the engine default
-	DPI        float64 // resolution to assume when a file records none; 0 means 300
+	DPI        float64 // resolution to assume when a file records none; 0 means estimated from the text, else 300
 	Rescan     float64 // predicted CER above which a page is marked rescan; 0 means quality.DefaultRescan
 	Correct    float64 // predicted CER above which a page is corrected; 0 means quality.DefaultCorrect
 	Model      string  // quality model file for triage (recto calibrate); "" means the embedded one

@@ -117,4 +117,6 @@ func (e *shardsError) Error() string {
 	return "merge: not one whole run: " + strings.Join(e.problems, "; ") + "; nothing was merged (pass --allow-partial to merge anyway; the report then says it is partial)"
 }
 
-func (e *shardsError) Unwrap() error { return &cli.PartialError{Failed: len(e.problems), Total: len(e.problems), What: "shard checks"} }
+func (e *shardsError) Unwrap() error {
+	return &cli.PartialError{Failed: len(e.problems), Total: len(e.problems), What: "shard checks"}
+}

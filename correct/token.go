@@ -157,8 +157,16 @@ const confusableDigits = "0158"
 
 // protected reports whether a core must be left as it is whatever the
 // model says: numbers and dates, codes, URLs and e-mail addresses, roman
-// numerals. known tells whether the lexicon has the word.
+// numerals, suspended compound parts. known tells whether the lexicon has the word.
 func protected(raw, core string, known bool) bool {
+	if i := strings.Index(raw, core); i >= 0 {
+		// A suspended compound part ("for-, while- und until-Schleifen",
+		// "Ein- oder Ausgabe", "land- og sjøveien"): a hyphen and more
+		// punctuation after the word; the part need not be a word.
+		if trail := raw[i+len(core):]; strings.HasPrefix(trail, "-") && len(trail) > 1 {
+			return true
+		}
+	}
 	if strings.Contains(raw, "://") || strings.HasPrefix(strings.ToLower(raw), "www.") || strings.Contains(core, "@") {
 		return true
 	}

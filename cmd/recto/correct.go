@@ -35,6 +35,9 @@ type CorrectOptions struct {
 	Margin     float64 // natural-log odds a correction must win by; 0 = default
 	Jobs       int     // pages corrected in parallel; 0 means GOMAXPROCS
 	Collection bool    // add the input pages' own word counts to the context model
+	NoVocab    bool    // do not gather the collection vocabulary
+	Vocab      string  // saved collection vocabulary to add to the pages' own; "" for none
+	SaveVocab  string  // file to save the collection vocabulary to; "" for none
 	KeepMarks  bool    // leave stray marks in
 	MapGlyphs  bool    // rewrite punctuation glyphs as the model's ground truth has them
 }
@@ -90,6 +93,15 @@ The files under IN are never modified: --out must be another folder.
   recto correct scans/ocr --dry-run
   recto correct train --ocr corpus/ocr --truth corpus/truth --out my.model
 ` + langHelp + `
+The collection's own vocabulary: a word the engine read with confidence
+0.90 or more at least 3 times, on 2 pages or more under IN (names of
+people, farms, ships and places, dialect and old spellings) joins the
+lexicon with its count and is never changed; a change it stopped is listed
+in changes.jsonl with "blocked": "collection vocabulary" (and is not made).
+--save-vocabulary FILE writes it as a lexicon file, --vocabulary FILE adds
+a saved one (say, from earlier deliveries of the same collection), and
+--no-vocabulary turns it off.
+
 Without a lexicon for the language only language-independent fixes are
 made (stray marks): no word is changed into a word of another language.
 The error model (character confusions) is the same for every Latin-script
@@ -121,6 +133,9 @@ language. Each line of changes.jsonl names the language ("lang").
 	f.Float64Var(&o.Margin, "margin", 0, fmt.Sprintf("log-odds `margin` a correction must win by (0 = %g; higher is more cautious)", correct.DefaultMargin))
 	f.IntVarP(&o.Jobs, "jobs", "j", 0, "pages corrected in parallel (`n`; default: number of CPUs)")
 	f.BoolVar(&o.Collection, "collection", false, "also count the input pages' known words and word pairs for the context")
+	f.BoolVar(&o.NoVocab, "no-vocabulary", false, "do not gather the collection vocabulary (words read confidently across the pages)")
+	f.StringVar(&o.Vocab, "vocabulary", "", "saved collection vocabulary `file` (from --save-vocabulary) to add to the pages' own")
+	f.StringVar(&o.SaveVocab, "save-vocabulary", "", "save the collection vocabulary to this lexicon `file` (.gz to compress)")
 	f.BoolVar(&o.KeepMarks, "keep-marks", false, "leave stray marks (tokens with no letter or digit) in the text")
 	f.BoolVar(&o.MapGlyphs, "map-glyphs", false, "rewrite punctuation glyphs as the model's ground truth has them (curly/straight quotes)")
 	oldName(cmd, "model", "correction-model")
@@ -194,6 +209,9 @@ type changeLine struct {
 	After  string  `json:"after"`
 	Score  float64 `json:"score"`
 	Lang   string  `json:"lang"` // the language the page was corrected in (--lang)
+	// Blocked says why the change was not made ("collection vocabulary");
+	// absent for a change made.
+	Blocked string `json:"blocked,omitempty"`
 }
 
 func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in string) error {
@@ -239,6 +257,22 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 	if o.Collection {
 		cfg.Collection = collectionCounts(in, pages, lex)
 	}
+	if !o.NoVocab {
+		vocab, err := collectionVocabulary(in, pages, o)
+		if err != nil {
+			return err
+		}
+		cfg.Vocabulary = vocab
+		// Its words join the lexicon, unless the language has none: then
+		// no word is a correction, the vocabulary's neither.
+		if extra := unknownTo(lex, vocab); lc.lex != nil && extra.Len() > 0 {
+			lex = lexicon.Merge(lex, extra)
+		}
+		if !g.Quiet {
+			g.printf("collection vocabulary: %d words read with confidence %.2f or more at least %d times on %d pages or more",
+				vocab.Len(), correct.VocabularyConf, correct.VocabularyMin, correct.VocabularyPages)
+		}
+	}
 	c := correct.New(lex, m, cfg)
 
 	results := make([]correctResult, len(pages))
@@ -264,9 +298,11 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 			continue
 		}
 		for _, ch := range r.changes {
-			total++
+			if ch.Blocked == "" {
+				total++
+			}
 			title, _ := quality.TitlePage(pages[i].rel, rootName)
-			_ = enc.Encode(changeLine{Title: title, Page: pages[i].rel, Line: ch.Line, Column: ch.Column, Before: ch.Before, After: ch.After, Score: ch.Score, Lang: o.Lang})
+			_ = enc.Encode(changeLine{Title: title, Page: pages[i].rel, Line: ch.Line, Column: ch.Column, Before: ch.Before, After: ch.After, Score: ch.Score, Lang: o.Lang, Blocked: ch.Blocked})
 		}
 	}
 	if o.DryRun {
@@ -603,4 +639,49 @@ func recordedCorrectLang(in string, pages []correctPage) string {
 		}
 	}
 	return ""
+}
+
+// collectionVocabulary gathers the collection vocabulary of the pages'
+// records (correct.VocabularyCounter) with a saved one (o.Vocab) and saves
+// it when asked (o.SaveVocab). Pages whose record cannot be read are
+// skipped here; correcting them reports the error.
+func collectionVocabulary(in string, pages []correctPage, o CorrectOptions) (*lexicon.Lexicon, error) {
+	vc := correct.NewVocabularyCounter()
+	for _, p := range pages {
+		if !p.json {
+			continue
+		}
+		rec, err := ocr.ReadRecord(filepath.Join(in, filepath.FromSlash(p.rel)) + ocr.SuffixRecord)
+		if err != nil {
+			continue
+		}
+		vc.AddRecord(rec)
+	}
+	var prior *lexicon.Lexicon
+	if o.Vocab != "" {
+		l, err := lexicon.Load(o.Vocab)
+		if err != nil {
+			return nil, fmt.Errorf("--vocabulary: %w", err)
+		}
+		prior = l
+	}
+	v := vc.Vocabulary(prior)
+	if o.SaveVocab != "" {
+		if err := v.Save(o.SaveVocab); err != nil {
+			return nil, fmt.Errorf("--save-vocabulary: %w", err)
+		}
+	}
+	return v, nil
+}
+
+// unknownTo returns the words of v that lex does not know, with their
+// counts.
+func unknownTo(lex, v *lexicon.Lexicon) *lexicon.Lexicon {
+	out := lexicon.New()
+	for _, w := range v.Words() {
+		if !lex.Has(w) {
+			out.Add(w, v.Count(w))
+		}
+	}
+	return out
 }

@@ -125,7 +125,7 @@ func newToolkit(o Options) (*toolkit, error) {
 	ccfg := correct.Config{Margin: o.Margin, KeepMarks: o.KeepMarks, MapGlyphs: o.MapGlyphs}
 	tk.correct = func(r *ocr.Record) (*ocr.Record, int) {
 		c, changes := correctorFor(clex, cmodel, ccfg).CorrectRecord(r)
-		return c, len(changes)
+		return c, correct.Made(changes)
 	}
 	tk.fingerprint, tk.settingsJSON = fingerprint(settings)
 	if custom {

@@ -33,8 +33,11 @@ const scoreLong = `Score OCR text against ground truth: character and word error
 WER) per page, per title and for the whole collection.
 
 PAIRS
-  Every *.txt file under --truth (searched recursively) is a reference page.
-  Its hypothesis is the file at the same relative path under --ocr. A title
+  Every *.txt, *.xml, *.alto.xml or *.page.xml file under --truth (searched
+  recursively) is a reference page: plain UTF-8 text, ALTO (versions 2-4) or
+  PAGE XML (2010-2019), told apart by the content. Its hypothesis is the .txt
+  file at the same relative path, without the ending, under --ocr. A page
+  found in two files (p1.txt and p1.xml) is reported and not scored. A title
   is the first folder under --truth; pages lying directly in --truth form one
   title named after that folder. A missing hypothesis is scored as empty text
   and listed as missing; a hypothesis that cannot be read is scored as empty
@@ -69,8 +72,8 @@ OUTPUT (stdout)
   json   one document {"normalization", "pages", "titles", "total", ...};
          pages, titles and total carry chars, char_errors, cer, words,
          word_errors, wer; pages also title, page (relative path without
-         .txt) and status (ok, missing, unreadable); titles also pages,
-         cer_mean, cer_low, cer_high; also missing, unmatched, failed and,
+         .txt) and status (ok, missing, failed); titles also pages,
+         mean_cer, cer_low, cer_high; also missing, unmatched, failed and,
          with --confusions, confusions
   csv    one row per page: title,page,status,chars,char_errors,cer,words,
          word_errors,wer,normalization (the same description on every row)
@@ -79,13 +82,16 @@ OUTPUT (stdout)
   stands for nothing and "␣" for a space (not available with csv).
 
   Problems with single files go to stderr, one line each, naming the file
-  (with the byte offset for invalid UTF-8); the other pages are still scored.
+  (with the byte offset for text that is not UTF-8, and what it looks like:
+  Latin-1, Windows-1252, UTF-16, with the iconv command that converts it);
+  the other pages are still scored. 'recto run --truth' and 'recto calibrate'
+  read ground truth the same way, with the same messages.
 
 EXIT STATUS
   0    every reference page was scored against its hypothesis
   1    failure: unreadable --truth/--ocr, no reference page, nothing scored
   2    usage error: bad flag or option value
-  3    partial: some hypotheses missing or unreadable, or some references
+  3    partial: some hypotheses missing or failed to read, or some references
        unreadable (the rest were scored and reported)
   130  interrupted (SIGINT or SIGTERM)`
 
@@ -111,7 +117,7 @@ func newScoreCommand(g *GlobalOptions) *cobra.Command {
 	f.BoolVar(&o.FoldCase, "fold-case", false, "fold case before scoring")
 	f.BoolVar(&o.IgnorePunct, "ignore-punct", false, "ignore punctuation")
 	f.BoolVar(&o.PlainTypography, "plain-typography", false, "map typographic quotes, dashes, ligatures and long s to plain ones")
-	f.IntVar(&o.Jobs, "jobs", 0, "score `n` pages at once (0: one per core)")
+	f.IntVarP(&o.Jobs, "jobs", "j", 0, "score `n` pages at once (0: one per core)")
 	return cmd
 }
 
@@ -130,6 +136,11 @@ func runScore(ctx context.Context, o ScoreOptions, g GlobalOptions) error {
 	case o.Jobs < 0:
 		return usagef("score: --jobs %d: want 0 or more", o.Jobs)
 	}
+	for _, d := range [][2]string{{"--truth", o.Truth}, {"--ocr", o.OCR}} {
+		if err := checkDir(d[0], d[1]); err != nil {
+			return err
+		}
+	}
 	cfg := quality.DirConfig{
 		Norm:       quality.NormOptions{FoldCase: o.FoldCase, IgnorePunct: o.IgnorePunct, PlainTypography: o.PlainTypography},
 		Confusions: o.Confusions,
@@ -140,14 +151,14 @@ func runScore(ctx context.Context, o ScoreOptions, g GlobalOptions) error {
 		return fmt.Errorf("score: %w", err)
 	}
 	for _, fe := range rep.Failed {
-		fmt.Fprintf(g.stderr, "recto score: %v\n", fe)
+		g.printf("%v", fe)
 	}
 	for _, m := range rep.Missing {
-		fmt.Fprintf(g.stderr, "recto score: hypothesis %q is missing: page %q scored as empty text\n",
+		g.printf("hypothesis %q is missing: page %q scored as empty text",
 			filepath.Join(o.OCR, filepath.FromSlash(m+".txt")), m)
 	}
 	for _, u := range rep.Unmatched {
-		fmt.Fprintf(g.stderr, "recto score: hypothesis %q has no reference: not scored\n",
+		g.printf("hypothesis %q has no reference: not scored",
 			filepath.Join(o.OCR, filepath.FromSlash(u)))
 	}
 	switch o.Format {
@@ -221,7 +232,7 @@ type jsonTitle struct {
 	Title string `json:"title"`
 	Pages int    `json:"pages"`
 	jsonCounts
-	CERMean *float64 `json:"cer_mean"`
+	CERMean *float64 `json:"mean_cer"`
 	CERLow  *float64 `json:"cer_low"`
 	CERHigh *float64 `json:"cer_high"`
 }
@@ -288,6 +299,9 @@ func writeScoreJSON(w io.Writer, rep *quality.Report) error {
 	}
 	for _, fe := range rep.Failed {
 		jf := jsonFailure{Role: fe.Role, File: fe.File, Error: fe.Err.Error()}
+		if fe.Hint != "" {
+			jf.Error += ": " + fe.Hint
+		}
 		if fe.Offset >= 0 {
 			off := fe.Offset
 			jf.Offset = &off

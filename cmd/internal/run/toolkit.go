@@ -21,7 +21,8 @@ type toolkit struct {
 	settingsJSON string // the settings that change a page's results
 
 	newRecogniser func() (recogniser, error)
-	write         func(dir, rel string, rec *ocr.Record, prepared *image.Gray) error
+	write         func(dir, rel string, rec *ocr.Record, prepared *image.Gray, a ocr.ALTOOptions) error
+	correction    ocr.ALTOStep // the correction step in corrected ALTO
 	triage        func(*ocr.Record) verdict
 	correct       func(*ocr.Record) (*ocr.Record, int)
 	compare       func(ref, hyp string) counts
@@ -45,7 +46,8 @@ func newToolkit(o Options) (*toolkit, error) {
 		return nil, &usageError{Err: fmt.Errorf("run: %w", err)}
 	}
 	model := quality.DefaultModel()
-	lex := lexicon.Default()
+	var lex *lexicon.Lexicon // nil: the language has no lexicon
+	var lexFiles []string
 	var err error
 	if o.Model != "" {
 		if model, err = quality.LoadModel(o.Model); err != nil {
@@ -56,34 +58,79 @@ func newToolkit(o Options) (*toolkit, error) {
 		if lex, err = lexicon.Load(o.Lexicon); err != nil {
 			return nil, err
 		}
+	} else {
+		// --lang chooses the lexicon (lexicon.ForLang); without one for
+		// the language, triage leaves the lexicon features out and
+		// correction changes no word, said once.
+		sel, err := lexicon.ForLang(o.Lang)
+		if err != nil {
+			return nil, err
+		}
+		lex, lexFiles = sel.Lexicon, sel.Files
+		if !sel.Complete() && o.Stderr != nil {
+			fmt.Fprintf(o.Stderr, "%s: %s\n", o.Command, sel.MissingNote("triage does not use the lexicon features and correction makes only language-independent fixes (stray marks)"))
+		}
 	}
 	modelSum, err := fileSum(o.Model)
 	if err != nil {
-		return nil, fmt.Errorf("run: --model: %w", err)
+		return nil, fmt.Errorf("--quality-model: %w", err)
+	}
+	cmodel := correct.DefaultModel()
+	if o.CorrectionModel != "" {
+		if cmodel, err = correct.LoadModel(o.CorrectionModel); err != nil {
+			return nil, err
+		}
+	}
+	cmodelSum, err := fileSum(o.CorrectionModel)
+	if err != nil {
+		return nil, fmt.Errorf("--correction-model: %w", err)
 	}
 	lexSum, err := fileSum(o.Lexicon)
 	if err != nil {
-		return nil, fmt.Errorf("run: --lexicon: %w", err)
+		return nil, fmt.Errorf("--lexicon: %w", err)
 	}
 	custom := o.NewEngine != nil
-	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare}
+	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare, Lang: o.Lang, MaxPixels: o.MaxPixels}
 	cfg := tesseract.Config{Lang: o.Lang, PSM: o.PSM}
 	settings := map[string]any{"lang": o.Lang, "psm": o.PSM, "dpi": o.DPI, "rescan": o.Rescan, "correct": o.Correct,
 		"model": modelSum, "lexicon": lexSum, "margin": o.Margin, "fake_engine": custom, "record": ocr.RecordVersion}
+	if o.Lexicon == "" && o.Lang != "eng" { // the lexicons --lang chose (English runs keep their fingerprint)
+		settings["lexicons"] = lexFiles
+	}
+	if o.CorrectionModel != "" || o.KeepMarks || o.MapGlyphs { // absent keys keep older ledgers' fingerprints
+		settings["correction_model"], settings["keep_marks"], settings["map_glyphs"] = cmodelSum, o.KeepMarks, o.MapGlyphs
+	}
 	tk := &toolkit{
-		write:    func(dir, rel string, r *ocr.Record, g *image.Gray) error { return ocr.WriteOutputs(dir, rel, r, g) },
+		write: func(dir, rel string, r *ocr.Record, g *image.Gray, a ocr.ALTOOptions) error {
+			return ocr.WriteOutputsWith(dir, rel, r, g, a)
+		},
+		correction: ocr.ALTOStep{Description: []string{"correction of OCR confusions (recto run)"},
+			Settings: fmt.Sprintf("lang=%s lexicon=%s correction_model=%s margin=%g keep_marks=%t map_glyphs=%t",
+				o.Lang, orDefault(lexSum), orDefault(cmodelSum), o.Margin, o.KeepMarks, o.MapGlyphs)},
 		interval: cerInterval,
 		compare: func(ref, hyp string) counts {
 			c := quality.Compare(ref, hyp, quality.NormOptions{})
 			return counts{Chars: c.Chars, CharErrors: c.CharErrors, Words: c.Words, WordErrors: c.WordErrors}
 		},
 		triage: func(r *ocr.Record) verdict {
-			v := quality.Triage(quality.PageFeatures(r, lex), model, th)
+			var f quality.Features
+			if lex == nil {
+				f = quality.PageFeatures(r, lexicon.AcceptAll())
+				f.NoLexicon = true
+			} else {
+				f = quality.PageFeatures(r, lex)
+			}
+			v := quality.Triage(f, model, th)
 			return verdict{PredictedCER: v.PredictedCER, Decision: v.Decision, Reasons: v.Reasons}
 		},
 	}
+	clex := lex
+	if clex == nil {
+		clex = noLexicon
+	}
+	ccfg := correct.Config{Margin: o.Margin, KeepMarks: o.KeepMarks, MapGlyphs: o.MapGlyphs}
 	tk.correct = func(r *ocr.Record) (*ocr.Record, int) {
-		c, changes := correctorFor(lex, o.Margin).CorrectRecord(r)
+		c, changes := correctorFor(clex, cmodel, ccfg).CorrectRecord(r)
 		return c, len(changes)
 	}
 	tk.fingerprint, tk.settingsJSON = fingerprint(settings)
@@ -134,9 +181,14 @@ func newToolkit(o Options) (*toolkit, error) {
 // correction and once per process (tests run many jobs in one process).
 var correctors sync.Map // correctorKey -> *correctorEntry
 
+// noLexicon is the empty lexicon correction uses when the language has
+// none: it offers no word to change a word into.
+var noLexicon = lexicon.New()
+
 type correctorKey struct {
-	lex    *lexicon.Lexicon
-	margin float64
+	lex   *lexicon.Lexicon
+	model *correct.Model
+	cfg   correct.Config
 }
 
 type correctorEntry struct {
@@ -144,10 +196,10 @@ type correctorEntry struct {
 	c    *correct.Corrector
 }
 
-func correctorFor(lex *lexicon.Lexicon, margin float64) *correct.Corrector {
-	v, _ := correctors.LoadOrStore(correctorKey{lex, margin}, &correctorEntry{})
+func correctorFor(lex *lexicon.Lexicon, m *correct.Model, cfg correct.Config) *correct.Corrector {
+	v, _ := correctors.LoadOrStore(correctorKey{lex, m, cfg}, &correctorEntry{})
 	e := v.(*correctorEntry)
-	e.once.Do(func() { e.c = correct.New(lex, nil, correct.Config{Margin: margin}) })
+	e.once.Do(func() { e.c = correct.New(lex, m, cfg) })
 	return e.c
 }
 
@@ -162,3 +214,11 @@ func (e *engineRecogniser) Recognise(ctx context.Context, path string) (*ocr.Rec
 }
 
 func (e *engineRecogniser) Close() error { return e.eng.Close() }
+
+// orDefault names a missing file sum in the ALTO correction settings.
+func orDefault(sum string) string {
+	if sum == "" {
+		return "default"
+	}
+	return sum
+}

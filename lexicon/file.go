@@ -17,6 +17,8 @@ import (
 	"unsafe"
 
 	"golang.org/x/text/unicode/norm"
+
+	"recto/internal/atomicfile"
 )
 
 // The lexicon file format (version 1).
@@ -294,41 +296,29 @@ func keyOf(s string) string {
 }
 
 // Save writes the lexicon to path in the lexicon file format, gzip-compressed
-// when path ends in ".gz". It writes to a temporary file in the same folder
-// and renames it, so a failed Save leaves no partial file.
+// when path ends in ".gz". It writes through internal/atomicfile (a
+// temporary file in the same folder, fsync, rename), so a failed Save
+// leaves no partial file.
 func (l *Lexicon) Save(path string) error {
-	tmp, err := os.CreateTemp(filepath.Dir(path), ".lexicon-*")
+	err := atomicfile.WriteFunc(path, func(w io.Writer) error {
+		var zw *gzip.Writer
+		if filepath.Ext(path) == ".gz" {
+			zw, _ = gzip.NewWriterLevel(w, gzip.BestCompression)
+			w = zw
+		}
+		bw := bufio.NewWriterSize(w, 1<<16)
+		if err := l.write(bw); err != nil {
+			return err
+		}
+		if err := bw.Flush(); err != nil {
+			return err
+		}
+		if zw != nil {
+			return zw.Close()
+		}
+		return nil
+	})
 	if err != nil {
-		return fmt.Errorf("lexicon: %w", err)
-	}
-	defer os.Remove(tmp.Name())
-	var w io.Writer = tmp
-	var zw *gzip.Writer
-	if filepath.Ext(path) == ".gz" {
-		zw, _ = gzip.NewWriterLevel(tmp, gzip.BestCompression)
-		w = zw
-	}
-	bw := bufio.NewWriterSize(w, 1<<16)
-	if err := l.write(bw); err != nil {
-		tmp.Close()
-		return fmt.Errorf("lexicon: writing %q: %w", path, err)
-	}
-	err = bw.Flush()
-	if err == nil && zw != nil {
-		err = zw.Close()
-	}
-	if err != nil {
-		tmp.Close()
-		return fmt.Errorf("lexicon: writing %q: %w", path, err)
-	}
-	if err := tmp.Chmod(0o644); err != nil {
-		tmp.Close()
-		return fmt.Errorf("lexicon: %w", err)
-	}
-	if err := tmp.Close(); err != nil {
-		return fmt.Errorf("lexicon: writing %q: %w", path, err)
-	}
-	if err := os.Rename(tmp.Name(), path); err != nil {
 		return fmt.Errorf("lexicon: %w", err)
 	}
 	return nil

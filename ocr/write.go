@@ -10,6 +10,8 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+
+	"recto/internal/atomicfile"
 )
 
 // Output file suffixes that WriteOutputs appends to a page's name.
@@ -29,6 +31,12 @@ const (
 // a reader never sees half a file and an interrupted run leaves the
 // previous version intact.
 func WriteOutputs(dir, rel string, rec *Record, prepared *image.Gray) error {
+	return WriteOutputsWith(dir, rel, rec, prepared, ALTOOptions{})
+}
+
+// WriteOutputsWith is WriteOutputs with the ALTO document's quality
+// estimate and correction step (WriteALTOWith).
+func WriteOutputsWith(dir, rel string, rec *Record, prepared *image.Gray, ao ALTOOptions) error {
 	if rel == "" || filepath.IsAbs(rel) {
 		return fmt.Errorf("ocr: output name %q must be a relative path", rel)
 	}
@@ -42,7 +50,7 @@ func WriteOutputs(dir, rel string, rec *Record, prepared *image.Gray) error {
 	}); err != nil {
 		return err
 	}
-	if err := writeAtomic(base+SuffixALTO, func(w io.Writer) error { return WriteALTO(w, rec) }); err != nil {
+	if err := writeAtomic(base+SuffixALTO, func(w io.Writer) error { return WriteALTOWith(w, rec, ao) }); err != nil {
 		return err
 	}
 	if err := writeAtomic(base+SuffixRecord, func(w io.Writer) error { return writeRecordJSON(w, rec) }); err != nil {
@@ -71,33 +79,19 @@ func writeRecordJSON(w io.Writer, rec *Record) error {
 	return err
 }
 
-// writeAtomic writes path through a temporary file in the same directory
-// and renames it into place; on error the temporary file is removed and
-// path is left as it was.
-func writeAtomic(path string, write func(io.Writer) error) (err error) {
-	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*")
+// writeAtomic writes path through the one atomic writer (internal/atomicfile:
+// temporary file in the same folder, fsync, rename); on error path is left
+// as it was.
+func writeAtomic(path string, write func(io.Writer) error) error {
+	err := atomicfile.WriteFunc(path, func(w io.Writer) error {
+		bw := bufio.NewWriterSize(w, 64<<10)
+		if err := write(bw); err != nil {
+			return err
+		}
+		return bw.Flush()
+	})
 	if err != nil {
 		return fmt.Errorf("ocr: %w", err)
 	}
-	defer func() {
-		if err != nil {
-			f.Close()
-			os.Remove(f.Name())
-			err = fmt.Errorf("ocr: writing %q: %w", path, err)
-		}
-	}()
-	bw := bufio.NewWriterSize(f, 64<<10)
-	if err = write(bw); err != nil {
-		return err
-	}
-	if err = bw.Flush(); err != nil {
-		return err
-	}
-	if err = f.Chmod(0o644); err != nil {
-		return err
-	}
-	if err = f.Close(); err != nil {
-		return err
-	}
-	return os.Rename(f.Name(), path)
+	return nil
 }

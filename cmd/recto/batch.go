@@ -24,7 +24,7 @@ func addRunFlags(cmd *cobra.Command, o *run.Options) {
 	f.IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages at once (0: one per core)")
 	f.StringVarP(&o.Lang, "lang", "l", "eng", "Tesseract `languages`, e.g. eng or eng+fra")
 	f.IntVar(&o.PSM, "psm", 0, "Tesseract page segmentation `mode` (default: the engine's)")
-	f.Float64Var(&o.DPI, "dpi", 0, "resolution to assume when a file records none (default 300)")
+	f.Float64Var(&o.DPI, "dpi", 0, "resolution to assume when a file records none (default: estimated from the size of the text, else 300)")
 	f.Float64Var(&o.Rescan, "rescan", 0, "mark a page rescan when its predicted `CER` is above this (default 0.10)")
 	f.Float64Var(&o.Correct, "correct", 0, "correct a page when its predicted `CER` is above this (default 0.02)")
 	f.StringVar(&o.Model, "quality-model", "", "quality model `file` from 'recto calibrate' for triage (default: embedded)")
@@ -35,6 +35,8 @@ func addRunFlags(cmd *cobra.Command, o *run.Options) {
 	f.Float64Var(&o.Margin, "margin", 0, fmt.Sprintf("correct a word only when the candidate is e^`m` times likelier (default %g)", correct.DefaultMargin))
 	f.StringVar(&o.Shard, "shard", "", "process only share `i/n` of the pages (default: from JOB_COMPLETION_INDEX or SLURM_ARRAY_TASK_ID, else all)")
 	f.IntVar(&o.ShardCount, "shard-count", 0, "number of shards when the index comes from JOB_COMPLETION_INDEX (default: $RECTO_SHARDS)")
+	f.IntVar(&o.MaxPixels, "max-pixels", ocr.DefaultMaxPixels, "largest page accepted, width × height `pixels`; larger pages fail as a set-up problem, not a bad scan")
+	f.BoolVar(&o.NewCollection, "new-collection", false, "run this collection into an --out folder used for another one (its pages are kept as gone)")
 	oldName(cmd, "model", "quality-model")
 }
 
@@ -146,6 +148,7 @@ it is done in more than one, the most recent wins. The sources are only read.
 		},
 	}
 	cmd.Flags().StringVarP(&o.Out, "out", "o", "", "run `folder` to merge into (default: the one DIR given)")
+	cmd.Flags().BoolVar(&o.AllowPartial, "allow-partial", false, "merge even when shards are missing, repeated or of different settings (exit 3 otherwise); the report says it is partial")
 	return cmd
 }
 

@@ -130,3 +130,22 @@ func TestOldFlagNamesStillWork(t *testing.T) {
 		}
 	}
 }
+
+// TestHelpHasNoLocalPaths: no command's help shows a developer's own
+// files (issue 15: the lexicon build help showed /work/data/...).
+func TestHelpHasNoLocalPaths(t *testing.T) {
+	var walk func(c *cobra.Command)
+	walk = func(c *cobra.Command) {
+		for _, s := range []string{c.Long, c.Example, c.Use} {
+			for _, p := range []string{"/work/", "/home/", "/tmp/", "/root/"} {
+				if strings.Contains(s, p) {
+					t.Errorf("%s: help mentions %q", c.CommandPath(), p)
+				}
+			}
+		}
+		for _, sub := range c.Commands() {
+			walk(sub)
+		}
+	}
+	walk(newRootCommand())
+}

@@ -74,10 +74,12 @@ NFC, lower case, diacritics kept. Output ending in .gz is compressed.
 Example (the Norwegian and German lexicons):
   recto lexicon build --lang nob && recto lexicon build --lang nno && recto lexicon build --lang deu
 
-Example (rebuilds the embedded English lexicon):
+Example (a word list from Debian's wamerican, counts from your own texts):
   recto lexicon build --words /usr/share/dict/american-english \
-    --text /work/data/moby/package/data --text /work/data/sotu/package/data \
-    --out lexicon/data/en.lex.gz` + exitStatusHelp,
+    --text transcriptions/ --out english.lex.gz
+
+(The embedded English lexicon's exact rebuild command and its sources are in
+lexicon/data/SOURCES.md of the source tree.)` + exitStatusHelp,
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			return runLexiconBuild(cmd.Context(), o, *g)

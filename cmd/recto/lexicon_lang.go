@@ -9,6 +9,7 @@ import (
 	"strings"
 	"time"
 
+	"recto/internal/atomicfile"
 	"recto/lexicon"
 )
 
@@ -86,25 +87,6 @@ func packageVersion(pkg string) string {
 	return string(out)
 }
 
-// writeSourcesFile writes text to path through a temporary file in the
-// same folder and a rename, mode 0644.
-func writeSourcesFile(path, text string) error {
-	f, err := os.CreateTemp(filepath.Dir(path), ".sources-*")
-	if err != nil {
-		return err
-	}
-	_, err = f.WriteString(text)
-	if err == nil {
-		err = f.Chmod(0o644)
-	}
-	if cerr := f.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		err = os.Rename(f.Name(), path)
-	}
-	if err != nil {
-		os.Remove(f.Name())
-	}
-	return err
-}
+// writeSourcesFile writes text to path through the one atomic writer
+// (internal/atomicfile).
+func writeSourcesFile(path, text string) error { return atomicfile.Write(path, []byte(text)) }

@@ -13,11 +13,15 @@ import (
 	"syscall"
 
 	"recto/cmd/internal/cli"
+	"recto/ocr"
 )
 
 func main() {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
+	if version != "" {
+		ocr.SoftwareVersion = version // the ALTO Processing description names this build
+	}
 	root := newRootCommand()
 	cmd, err := root.ExecuteContextC(ctx)
 	name := "recto"
@@ -37,6 +41,7 @@ func exitCode(ctx context.Context, w io.Writer, command string, err error) int {
 	msg := cli.Message(command, err)
 	var ue *usageError
 	var pe *partialError
+	var se *cli.SetupError
 	switch {
 	case ctx.Err() != nil || errors.Is(err, context.Canceled):
 		fmt.Fprintf(w, "%s: interrupted\n", command)
@@ -44,6 +49,9 @@ func exitCode(ctx context.Context, w io.Writer, command string, err error) int {
 	case errors.As(err, &ue) || cli.IsCobraUsage(err):
 		fmt.Fprintf(w, "%s: %s\nRun '%s --help' for usage.\n", command, msg, command)
 		return exitUsage
+	case errors.As(err, &se):
+		fmt.Fprintf(w, "%s: %s\n", command, msg)
+		return cli.ExitSetup
 	case errors.As(err, &pe):
 		fmt.Fprintf(w, "%s: %s\n", command, msg)
 		return exitPartial

@@ -14,6 +14,7 @@ import (
 	"strings"
 	"testing"
 
+	"recto/cmd/internal/progress"
 	"recto/ocr"
 	"recto/ocr/ocrtest"
 	"recto/ocr/tesseract"
@@ -226,7 +227,7 @@ func TestOCRUsage(t *testing.T) {
 		t.Errorf("missing IN: %v", err)
 	}
 	empty := t.TempDir()
-	if _, _, err := runRecto(t, "ocr", empty, "--out", out); err == nil || !strings.Contains(err.Error(), "no page images") {
+	if _, _, err := runRecto(t, "ocr", empty, "--out", out); err == nil || !strings.Contains(err.Error(), "no page files") {
 		t.Errorf("empty IN: %v", err)
 	}
 }
@@ -244,9 +245,9 @@ func TestOCRAllFail(t *testing.T) {
 
 func TestOCRProgressLines(t *testing.T) {
 	fakeEngine(t, "eng")
-	old := progressPeriod
-	progressPeriod = 0 // a line per page
-	t.Cleanup(func() { progressPeriod = old })
+	old := progress.PlainEvery
+	progress.PlainEvery = 0 // a line per page
+	t.Cleanup(func() { progress.PlainEvery = old })
 	in := t.TempDir()
 	for _, n := range []string{"a.png", "b.png", "c.png"} {
 		ocrtest.WritePNG(t, filepath.Join(in, n), testPage())
@@ -255,7 +256,7 @@ func TestOCRProgressLines(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for _, want := range []string{"ocr: 1/3 pages, 0 failed", "ocr: 3/3 pages, 0 failed"} {
+	for _, want := range []string{"recto ocr: 1/3 pages", "recto ocr: 3/3 pages"} {
 		if !strings.Contains(stderr, want) {
 			t.Errorf("stderr lacks %q:\n%s", want, stderr)
 		}

@@ -72,6 +72,18 @@ type engine struct {
 	buf    []byte // PGM scratch, reused across pages
 	dpi    int    // resolution last handed to the client
 	psm    int    // page segmentation mode asked for
+	langs  []string
+}
+
+// Describe implements ocr.EngineDescriber: Tesseract's own version string
+// and the settings that change its reading.
+func (e *engine) Describe() ocr.EngineInfo {
+	v := ""
+	if e.client != nil {
+		v = e.client.Version()
+	}
+	return ocr.EngineInfo{Name: "Tesseract", Version: v,
+		Settings: "lang=" + strings.Join(e.langs, "+") + " psm=" + strconv.Itoa(e.psm) + " oem=default"}
 }
 
 // New returns an Engine with its own Tesseract client. It fails at once,
@@ -107,7 +119,7 @@ func New(cfg Config) (ocr.Engine, error) {
 	// Tesseract's diagnostics ("Empty page!!", resolution guesses) would
 	// otherwise reach our stderr.
 	c.SetVariable(gosseract.DEBUG_FILE, os.DevNull)
-	return &engine{client: c, psm: psm}, nil
+	return &engine{client: c, psm: psm, langs: langs}, nil
 }
 
 // Recognize implements ocr.Engine in one recognition pass.
@@ -122,8 +134,17 @@ func (e *engine) Recognize(ctx context.Context, img *image.Gray, dpi int) ([]ocr
 	if r.Dx() < 1 || r.Dy() < 1 {
 		return nil, nil
 	}
-	if dpi < 70 || dpi > 2400 {
+	// Tesseract accepts 70-2400 dpi (kMinCredibleResolution and
+	// kMaxCredibleResolution, publictypes.h; from memory). A page
+	// estimated below 70 dpi is read as at 70, the nearest the engine
+	// takes, not as at 300.
+	switch {
+	case dpi <= 0:
 		dpi = ocr.DefaultDPI
+	case dpi < 70:
+		dpi = 70
+	case dpi > 2400:
+		dpi = 2400
 	}
 	if dpi != e.dpi {
 		// PGM carries no resolution; Tesseract takes it from this variable.

@@ -10,12 +10,10 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
-	"runtime"
 	"strings"
 
-	"golang.org/x/sync/errgroup"
-
 	"recto/ocr"
+	"recto/ocr/par"
 	"recto/ocr/synth"
 )
 
@@ -151,30 +149,20 @@ func demoStamp(pages []demoPage) string {
 
 // writeDemo renders the pages in parallel and writes images and ground truth.
 func writeDemo(ctx context.Context, pages []demoPage, coll, truth string, jobs int) error {
-	if jobs == 0 {
-		jobs = runtime.GOMAXPROCS(0)
-	}
-	var g errgroup.Group
-	g.SetLimit(jobs)
-	for _, p := range pages {
-		g.Go(func() error {
-			if err := ctx.Err(); err != nil {
-				return err
-			}
-			img, gt, err := renderDemoPage(p)
-			if err != nil {
-				return fmt.Errorf("demo: page %s/%s: %w", p.Title, p.Name, err)
-			}
-			if err := writeIfChanged(filepath.Join(coll, p.Title, p.Name+".png"), img); err != nil {
-				return err
-			}
-			if p.Truth {
-				return writeIfChanged(filepath.Join(truth, p.Title, p.Name+".txt"), []byte(gt))
-			}
-			return nil
-		})
-	}
-	return g.Wait()
+	return par.EachErr(ctx, len(pages), jobs, func(_, i int) error {
+		p := pages[i]
+		img, gt, err := renderDemoPage(p)
+		if err != nil {
+			return fmt.Errorf("demo: page %s/%s: %w", p.Title, p.Name, err)
+		}
+		if err := writeIfChanged(filepath.Join(coll, p.Title, p.Name+".png"), img); err != nil {
+			return err
+		}
+		if p.Truth {
+			return writeIfChanged(filepath.Join(truth, p.Title, p.Name+".txt"), []byte(gt))
+		}
+		return nil
+	})
 }
 
 // writeIfChanged writes data to name (via a temporary file) unless the file

@@ -10,14 +10,20 @@ import (
 	"os"
 	"path/filepath"
 	"sort"
+	"strings"
 
 	"recto/cmd/internal/run/ledger"
+	"recto/internal/atomicfile"
 )
 
 // MergeOptions are the settings of `recto merge`.
 type MergeOptions struct {
 	Dirs []string // run folders to merge (at least one)
 	Out  string   // run folder to merge into; "" means the single folder in Dirs
+
+	// AllowPartial merges even when shards are missing, repeated or of
+	// different settings; the reports then say they are partial.
+	AllowPartial bool
 
 	Stderr io.Writer // messages; nil means none
 	Quiet  bool
@@ -29,6 +35,7 @@ type MergeSummary struct {
 	Taken   int    // rows taken from them
 	Pages   int    // pages in the merged ledger
 	Failed  int    // of which failed
+	Partial string // why the merge is partial; "" when every shard was there once
 	Report  string // path of report.html
 }
 
@@ -93,6 +100,18 @@ func Merge(ctx context.Context, o MergeOptions) (MergeSummary, error) {
 		srcs = append(srcs, s...)
 	}
 	dstLedger := filepath.Join(dst, ledger.FileName)
+	// Every shard once, all of one run: checked before anything is written.
+	problems, err := checkShards(ctx, srcs, dstLedger)
+	if err != nil {
+		return sum, err
+	}
+	if len(problems) > 0 {
+		if !o.AllowPartial {
+			return sum, &shardsError{problems: problems}
+		}
+		sum.Partial = strings.Join(problems, "; ")
+		fmt.Fprintf(stderr, "recto: warning: partial merge (--allow-partial): %s\n", sum.Partial)
+	}
 	if err := checkWritable(dst); err != nil {
 		return sum, err
 	}
@@ -130,9 +149,6 @@ func Merge(ctx context.Context, o MergeOptions) (MergeSummary, error) {
 		sl.Close()
 	}
 	for k, vals := range meta {
-		if len(vals) > 1 && !o.Quiet {
-			fmt.Fprintf(stderr, "recto: warning: the ledgers were written with different %s values; the merged report mixes them\n", k)
-		}
 		for v := range vals {
 			if len(vals) == 1 {
 				if err := l.SetMeta(ctx, k, v); err != nil {
@@ -151,7 +167,10 @@ func Merge(ctx context.Context, o MergeOptions) (MergeSummary, error) {
 	}
 	root, _ := l.Meta(ctx, "collection")
 	repDir := filepath.Join(dst, reportDir)
-	if err := buildReports(repDir, dst, root, rows, cerInterval); err != nil {
+	if err := l.SetMeta(ctx, metaPartial, sum.Partial); err != nil {
+		return sum, fmt.Errorf("merge: %w", err)
+	}
+	if err := buildPartialReports(repDir, dst, root, rows, cerInterval, sum.Partial); err != nil {
 		return sum, err
 	}
 	sum.Ledgers, sum.Taken, sum.Pages = len(paths), n, len(rows)
@@ -199,25 +218,5 @@ func copyOutputs(ctx context.Context, src *ledger.Ledger, from, dst string) erro
 	return nil
 }
 
-// writeAtomic writes data to a temporary file beside name and renames it
-// into place, so that a reader never sees half a file.
-func writeAtomic(name string, data []byte) error {
-	f, err := os.CreateTemp(filepath.Dir(name), "."+filepath.Base(name)+".tmp*")
-	if err != nil {
-		return err
-	}
-	_, err = f.Write(data)
-	if cerr := f.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		err = os.Chmod(f.Name(), 0o644)
-	}
-	if err == nil {
-		err = os.Rename(f.Name(), name)
-	}
-	if err != nil {
-		os.Remove(f.Name())
-	}
-	return err
-}
+// writeAtomic writes name through the one atomic writer.
+func writeAtomic(name string, data []byte) error { return atomicfile.Write(name, data) }

@@ -44,6 +44,7 @@ type Page struct {
 
 	Failed bool   // the page could not be processed
 	Error  string // why, when Failed
+	Setup  bool   // failed for a set-up or system reason, not the scan's: not on the rescan list
 
 	Decision     string   // one of Decisions; "" when Failed
 	PredictedCER float64  // estimated CER in [0, 1]
@@ -83,6 +84,7 @@ type Options struct {
 	Name     string       // collection name shown in the HTML heading; "" means "Collection"
 	Interval IntervalFunc // confidence intervals for measured CER; nil means none
 	Worst    int          // worst pages listed in the HTML; 0 means 25
+	Partial  string       // when not "", the report covers part of the run: why (shown at the top of the HTML)
 
 	// Snippet returns the start of a page's final text; the HTML calls it
 	// only for the worst pages it lists whose Snippet is empty. nil means
@@ -401,7 +403,7 @@ func RescanCSV(pages []Page) ([]byte, error) {
 	rows := [][]string{RescanHead}
 	for _, p := range pages {
 		switch {
-		case p.Failed:
+		case p.Failed && !p.Setup:
 			rows = append(rows, []string{cell(p.Title), cell(p.Page), cell(p.Rel), "", cell("unreadable: " + p.Error)})
 		case p.Decision == "rescan":
 			rows = append(rows, []string{cell(p.Title), cell(p.Page), cell(p.Rel), f4(p.PredictedCER), cell(strings.Join(p.Reasons, "; "))})

@@ -1,4 +1,9 @@
-package run
+// Package progress is the one progress reporter of recto's batch commands
+// (ocr, run, demo): on stderr, a bar redrawn in place when it is a
+// terminal, a plain line every ten seconds otherwise, nothing under
+// --quiet but the messages about failed pages, which are never silent.
+// Counters are atomics; one goroutine draws.
+package progress
 
 import (
 	"fmt"
@@ -12,10 +17,9 @@ import (
 	"github.com/mattn/go-isatty"
 )
 
-// runProgress reports a run on stderr: a redrawn bar when stderr is a
-// terminal, a plain line every runPlainEvery otherwise, nothing under --quiet.
-// Counters are atomics; one goroutine draws.
-type runProgress struct {
+// Reporter reports a batch on stderr: a redrawn bar when stderr is a
+// terminal, a plain line every plainEvery otherwise, nothing under --quiet.
+type Reporter struct {
 	w      io.Writer
 	prefix string // "recto run"
 	tty    bool
@@ -27,27 +31,36 @@ type runProgress struct {
 	failed  atomic.Int64
 	skipped atomic.Int64 // pages already in the ledger
 
+	perPage bool // a plain line per finished page, no drawing goroutine
+
 	mu   sync.Mutex // serialises drawing with other stderr writes
 	stop chan struct{}
 	wg   sync.WaitGroup
 }
 
-const (
-	runTTYEvery   = 250 * time.Millisecond
-	runPlainEvery = 10 * time.Second
-)
+const ttyEvery = 250 * time.Millisecond
 
-func newRunProgress(w io.Writer, prefix string, quiet bool, total int) *runProgress {
-	p := &runProgress{w: w, prefix: prefix, quiet: quiet, total: total, start: time.Now(), stop: make(chan struct{})}
+// PlainEvery is how often a plain line is written when stderr is not a
+// terminal; 0 writes one per finished page (tests use it).
+var PlainEvery = 10 * time.Second
+
+// New starts reporting total pages on w; every line starts with prefix
+// ("recto run") and a colon. Call Finish when the batch is done.
+func New(w io.Writer, prefix string, quiet bool, total int) *Reporter {
+	p := &Reporter{w: w, prefix: prefix, quiet: quiet, total: total, start: time.Now(), stop: make(chan struct{})}
 	if f, ok := w.(*os.File); ok && os.Getenv("TERM") != "dumb" {
 		p.tty = isatty.IsTerminal(f.Fd())
 	}
 	if quiet {
 		return p
 	}
-	every := runPlainEvery
+	every := PlainEvery
 	if p.tty {
-		every = runTTYEvery
+		every = ttyEvery
+	}
+	if every <= 0 {
+		p.perPage = true
+		return p
 	}
 	p.wg.Add(1)
 	go func() {
@@ -66,19 +79,30 @@ func newRunProgress(w io.Writer, prefix string, quiet bool, total int) *runProgr
 	return p
 }
 
-func (p *runProgress) add(failed bool) {
+// Add counts a page finished by this batch, failed or not.
+func (p *Reporter) Add(failed bool) {
 	p.done.Add(1)
 	if failed {
 		p.failed.Add(1)
 	}
+	if p.perPage && !p.quiet {
+		p.draw(false)
+	}
 }
 
-func (p *runProgress) skip() { p.skipped.Add(1) }
+// Skip counts a page found already done (a resumed run).
+func (p *Reporter) Skip() { p.skipped.Add(1) }
 
-// message prints one line (a failed page) on the progress writer, erasing
+// Done, Failed and Skipped return the counts so far: pages finished by
+// this batch (failed ones included), failed, and already done.
+func (p *Reporter) Done() int    { return int(p.done.Load()) }
+func (p *Reporter) Failed() int  { return int(p.failed.Load()) }
+func (p *Reporter) Skipped() int { return int(p.skipped.Load()) }
+
+// Message prints one line (a failed page) on the progress writer, erasing
 // the bar first on a terminal; the next tick redraws it. Messages are
 // printed under --quiet too: failures are never silent.
-func (p *runProgress) message(line string) {
+func (p *Reporter) Message(line string) {
 	p.mu.Lock()
 	defer p.mu.Unlock()
 	if p.tty && !p.quiet {
@@ -87,18 +111,20 @@ func (p *runProgress) message(line string) {
 	fmt.Fprintln(p.w, line)
 }
 
-// finish stops drawing and prints the last state on its own line.
-func (p *runProgress) finish() {
+// Finish stops drawing and prints the last state on its own line.
+func (p *Reporter) Finish() {
 	if p.quiet {
 		return
 	}
-	close(p.stop)
-	p.wg.Wait()
+	if !p.perPage {
+		close(p.stop)
+		p.wg.Wait()
+	}
 	p.draw(true)
 }
 
 // line formats the state: counts, rate and time left.
-func (p *runProgress) line(now time.Time) string {
+func (p *Reporter) line(now time.Time) string {
 	done, failed, skipped := p.done.Load(), p.failed.Load(), p.skipped.Load()
 	finished := done + skipped
 	var b strings.Builder
@@ -121,7 +147,7 @@ func (p *runProgress) line(now time.Time) string {
 	return b.String()
 }
 
-func (p *runProgress) draw(last bool) {
+func (p *Reporter) draw(last bool) {
 	p.mu.Lock()
 	defer p.mu.Unlock()
 	text := p.line(time.Now())

@@ -22,11 +22,11 @@ var testFaults struct {
 func applyTestFaults(st *runState, l *ledger.Ledger) {
 	if f := testFaults.write; f != nil {
 		w := st.tk.write
-		st.tk.write = func(dir, stem string, r *ocr.Record, g *image.Gray) error {
+		st.tk.write = func(dir, stem string, r *ocr.Record, g *image.Gray, a ocr.ALTOOptions) error {
 			if err := f(dir, stem); err != nil {
 				return err
 			}
-			return w(dir, stem, r, g)
+			return w(dir, stem, r, g, a)
 		}
 	}
 	l.BeforeCommit = testFaults.commit

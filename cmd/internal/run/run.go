@@ -5,6 +5,7 @@
 package run
 
 import (
+	"bytes"
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
@@ -25,6 +26,7 @@ import (
 	"recto/cmd/internal/progress"
 	"recto/cmd/internal/run/ledger"
 	"recto/cmd/internal/run/shard"
+	"recto/internal/atomicfile"
 	"recto/ocr"
 	"recto/ocr/par"
 )
@@ -67,6 +69,11 @@ type Options struct {
 	// goes to the engine without preparation.
 	NewEngine func() (ocr.Engine, error)
 	NoPrepare bool
+
+	// Prep are the preparation settings, as recto ocr's --deskew,
+	// --denoise, --cleanup, --binarize and --max-skew set them; the zero
+	// value decides every step automatically.
+	Prep ocr.PrepOptions
 
 	// NewCollection allows running a collection into a run folder used for
 	// another one; the old collection's pages are then marked gone.
@@ -489,13 +496,22 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 	final := r
 	if v.Decision == "correct" {
 		t3 := time.Now()
-		c, n := st.tk.correct(r)
-		row.Corrections = n
+		c, changes := st.tk.correct(r)
+		row.Corrections = len(changes)
 		row.Timings["correct"] = ms(time.Since(t3))
 		if err := st.tk.write(filepath.Join(st.outDir, correctedDir), p.Stem, c, nil); err != nil {
 			return fail("%q: writing corrected outputs: %v%s", p.Path, err, ioFix(err))
 		}
+		// The page's changes, as recto correct lists them; the run's
+		// corrected/changes.jsonl joins them (writeChanges).
+		var buf bytes.Buffer
+		AppendChanges(&buf, p.Title, p.Page, st.o.Lang, changes)
+		name := path.Join(correctedDir, p.Stem) + suffixChanges
+		if err := atomicfile.Write(filepath.Join(st.outDir, filepath.FromSlash(name)), buf.Bytes()); err != nil {
+			return fail("%q: writing its changes: %v%s", p.Path, err, ioFix(err))
+		}
 		row.Outputs = append(row.Outputs, outputNames(correctedDir, p.Stem)...)
+		row.Outputs = append(row.Outputs, name)
 		final = c
 	}
 	if hasTruth {

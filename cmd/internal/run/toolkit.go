@@ -23,7 +23,7 @@ type toolkit struct {
 	newRecogniser func() (recogniser, error)
 	write         func(dir, rel string, rec *ocr.Record, prepared *image.Gray) error
 	triage        func(*ocr.Record) verdict
-	correct       func(*ocr.Record) (*ocr.Record, int)
+	correct       func(*ocr.Record) (*ocr.Record, []correct.Change)
 	compare       func(ref, hyp string) counts
 	interval      report.IntervalFunc
 	close         func() // releases an engine no worker took; may be nil
@@ -89,12 +89,15 @@ func newToolkit(o Options) (*toolkit, error) {
 		return nil, fmt.Errorf("--lexicon: %w", err)
 	}
 	custom := o.NewEngine != nil
-	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare, Lang: o.Lang, MaxPixels: o.MaxPixels}
+	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare, Lang: o.Lang, MaxPixels: o.MaxPixels, Prep: o.Prep}
 	cfg := tesseract.Config{Lang: o.Lang, PSM: o.PSM}
 	settings := map[string]any{"lang": o.Lang, "psm": o.PSM, "dpi": o.DPI, "rescan": o.Rescan, "correct": o.Correct,
 		"model": modelSum, "lexicon": lexSum, "margin": o.Margin, "fake_engine": custom, "record": ocr.RecordVersion}
 	if o.Lexicon == "" && o.Lang != "eng" { // the lexicons --lang chose (English runs keep their fingerprint)
 		settings["lexicons"] = lexFiles
+	}
+	if o.Prep != (ocr.PrepOptions{}) || (o.NoPrepare && !custom) { // absent keys keep older ledgers' fingerprints
+		settings["prep"], settings["no_prepare"] = o.Prep, o.NoPrepare
 	}
 	if o.CorrectionModel != "" || o.KeepMarks || o.MapGlyphs { // absent keys keep older ledgers' fingerprints
 		settings["correction_model"], settings["keep_marks"], settings["map_glyphs"] = cmodelSum, o.KeepMarks, o.MapGlyphs
@@ -123,9 +126,8 @@ func newToolkit(o Options) (*toolkit, error) {
 		clex = noLexicon
 	}
 	ccfg := correct.Config{Margin: o.Margin, KeepMarks: o.KeepMarks, MapGlyphs: o.MapGlyphs}
-	tk.correct = func(r *ocr.Record) (*ocr.Record, int) {
-		c, changes := correctorFor(clex, cmodel, ccfg).CorrectRecord(r)
-		return c, len(changes)
+	tk.correct = func(r *ocr.Record) (*ocr.Record, []correct.Change) {
+		return correctorFor(clex, cmodel, ccfg).CorrectRecord(r)
 	}
 	tk.fingerprint, tk.settingsJSON = fingerprint(settings)
 	if custom {

@@ -25,7 +25,7 @@ func addRunFlags(cmd *cobra.Command, o *run.Options, prep *prepFlags) {
 	f.IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages at once (0: one per core)")
 	f.StringVarP(&o.Lang, "lang", "l", "eng", "Tesseract `languages`, e.g. eng or eng+fra")
 	f.IntVar(&o.PSM, "psm", 0, "Tesseract page segmentation `mode` (default: the engine's)")
-	f.Float64Var(&o.DPI, "dpi", 0, "resolution to assume when a file records none (default 300)")
+	f.Float64Var(&o.DPI, "dpi", 0, "resolution to assume when a file records none (default: estimated from the size of the text, else 300)")
 	f.Float64Var(&o.Rescan, "rescan", 0, "mark a page rescan when its predicted `CER` is above this (default 0.10)")
 	f.Float64Var(&o.Correct, "correct", 0, "correct a page when its predicted `CER` is above this (default 0.02)")
 	f.StringVar(&o.Model, "quality-model", "", "quality model `file` from 'recto calibrate' for triage (default: embedded)")

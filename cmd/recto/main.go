@@ -37,6 +37,7 @@ func exitCode(ctx context.Context, w io.Writer, command string, err error) int {
 	msg := cli.Message(command, err)
 	var ue *usageError
 	var pe *partialError
+	var se *cli.SetupError
 	switch {
 	case ctx.Err() != nil || errors.Is(err, context.Canceled):
 		fmt.Fprintf(w, "%s: interrupted\n", command)
@@ -44,6 +45,9 @@ func exitCode(ctx context.Context, w io.Writer, command string, err error) int {
 	case errors.As(err, &ue) || cli.IsCobraUsage(err):
 		fmt.Fprintf(w, "%s: %s\nRun '%s --help' for usage.\n", command, msg, command)
 		return exitUsage
+	case errors.As(err, &se):
+		fmt.Fprintf(w, "%s: %s\n", command, msg)
+		return cli.ExitSetup
 	case errors.As(err, &pe):
 		fmt.Fprintf(w, "%s: %s\n", command, msg)
 		return exitPartial

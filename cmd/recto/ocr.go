@@ -100,7 +100,7 @@ func (o *OCROptions) AddFlags(c *cobra.Command) {
 	f.StringVarP(&o.Lang, "lang", "l", "eng", "Tesseract `languages`, e.g. eng or eng+deu")
 	f.IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages at once (0: one per core)")
 	f.IntVar(&o.PSM, "psm", 0, "Tesseract page segmentation `mode` 1-13 (0: Tesseract's default, 3)")
-	f.Float64Var(&o.DPI, "dpi", ocr.DefaultDPI, "resolution of images without a resolution tag, in `dpi`")
+	f.Float64Var(&o.DPI, "dpi", 0, "resolution of images without a resolution tag, in `dpi` (default: estimated from the size of the text, else 300)")
 	f.IntVar(&o.MaxPixels, "max-pixels", ocr.DefaultMaxPixels, "refuse images larger than `n` pixels")
 	f.BoolVar(&o.KeepImages, "keep-images", false, "also write the prepared image as <name>.prepared.png")
 	o.prepFlags.add(f)
@@ -122,7 +122,7 @@ func (o *OCROptions) options() (ocr.Options, tesseract.Config, error) {
 	if o.PSM < 0 || o.PSM > 13 {
 		return ocr.Options{}, tesseract.Config{}, usagef("--psm %d: want 0 to 13", o.PSM)
 	}
-	if o.DPI < 70 || o.DPI > 2400 {
+	if o.DPI != 0 && (o.DPI < 70 || o.DPI > 2400) {
 		return ocr.Options{}, tesseract.Config{}, usagef("--dpi %g: want 70 to 2400", o.DPI)
 	}
 	if o.MaxPixels < 1 {

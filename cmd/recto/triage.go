@@ -11,6 +11,7 @@ import (
 	"strconv"
 	"strings"
 	"text/tabwriter"
+	"unicode/utf8"
 
 	"github.com/spf13/cobra"
 
@@ -277,6 +278,9 @@ func triageOne(p quality.OCRPage, root string, lex *lexicon.Lexicon, m *quality.
 	if rec != nil {
 		f = quality.PageFeatures(rec, fl)
 		r.Image = rec.Source
+		if !strings.Contains(p.Rel, "/") {
+			r.Title = looseTitle(rec.Source, r.Title)
+		}
 	} else {
 		f = quality.TextFeatures(text, fl)
 	}
@@ -284,6 +288,55 @@ func triageOne(p quality.OCRPage, root string, lex *lexicon.Lexicon, m *quality.
 	v := quality.Triage(f, m, th)
 	r.PredictedCER, r.Decision, r.Reasons = v.PredictedCER, v.Decision, v.Reasons
 	return r
+}
+
+// writeColumns writes rows as a table with two spaces between columns:
+// the first text columns left-aligned, the others (numbers) right-aligned,
+// widths counted in characters.
+func writeColumns(w io.Writer, rows [][]string, text int) {
+	var width []int
+	for _, r := range rows {
+		for i, c := range r {
+			if i >= len(width) {
+				width = append(width, 0)
+			}
+			width[i] = max(width[i], utf8.RuneCountInString(c))
+		}
+	}
+	for _, r := range rows {
+		var b strings.Builder
+		for i, c := range r {
+			pad := strings.Repeat(" ", width[i]-utf8.RuneCountInString(c))
+			switch {
+			case i < text && i == len(r)-1:
+				b.WriteString(c)
+			case i < text:
+				b.WriteString(c + pad + "  ")
+			case i == len(r)-1:
+				b.WriteString(pad + c)
+			default:
+				b.WriteString(pad + c + "  ")
+			}
+		}
+		fmt.Fprintln(w, b.String())
+	}
+}
+
+// looseTitle names the title of a page lying directly in the folder given
+// to triage: as the README's convention names the pages of a collection,
+// after the folder its image lies in (a page in the root of the collection
+// `harbour-gazette` belongs to the title `harbour-gazette`), not after the
+// output folder holding its record ("ocr"). It returns fallback when the
+// record names no folder.
+func looseTitle(source, fallback string) string {
+	if source == "" {
+		return fallback
+	}
+	b := filepath.Base(filepath.Dir(source))
+	if b == "." || b == ".." || b == string(filepath.Separator) || b == "" {
+		return fallback
+	}
+	return b
 }
 
 func writeTriageText(w io.Writer, rep triageReport, th quality.Thresholds) {
@@ -294,12 +347,13 @@ func writeTriageText(w io.Writer, rep triageReport, th quality.Thresholds) {
 	}
 	tw.Flush()
 	fmt.Fprintln(w)
-	tw = tabwriter.NewWriter(w, 0, 8, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "TITLE\tPAGES\tACCEPT\tCORRECT\tRESCAN\tBLANK\tPICTURE\tFAILED\tMEAN PREDICTED CER\t")
+	// The title (text) left-aligned, the numbers right-aligned.
+	rows := [][]string{{"TITLE", "PAGES", "ACCEPT", "CORRECT", "RESCAN", "BLANK", "PICTURE", "FAILED", "MEAN PREDICTED CER"}}
 	for _, t := range rep.Titles {
-		fmt.Fprintf(tw, "%s\t%d\t%d\t%d\t%d\t%d\t%d\t%d\t%.1f%%\t\n", t.Title, t.Pages, t.Accept, t.Correct, t.Rescan, t.Blank, t.Picture, t.Failed, 100*t.MeanPred)
+		rows = append(rows, []string{t.Title, strconv.Itoa(t.Pages), strconv.Itoa(t.Accept), strconv.Itoa(t.Correct), strconv.Itoa(t.Rescan),
+			strconv.Itoa(t.Blank), strconv.Itoa(t.Picture), strconv.Itoa(t.Failed), fmt.Sprintf("%.1f%%", 100*t.MeanPred)})
 	}
-	tw.Flush()
+	writeColumns(w, rows, 1)
 	if rep.Language != nil {
 		fmt.Fprintf(w, "\n%s\n", rep.Language.describe())
 	}

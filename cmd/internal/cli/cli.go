@@ -16,6 +16,7 @@ const (
 	ExitFailure     = 1
 	ExitUsage       = 2
 	ExitPartial     = 3
+	ExitSetup       = 4
 	ExitInterrupted = 130
 )
 
@@ -26,6 +27,8 @@ EXIT STATUS
   1    failure: nothing useful was produced
   2    usage error: bad flag, argument or option value
   3    partial: some pages were missing or unreadable (others were processed)
+  4    set-up: some pages failed because of the system or the set-up (disk,
+       names, limits), not the scans; report/failures.csv says how to fix each
   130  interrupted (SIGINT or SIGTERM)`
 
 // UsageError marks a bad invocation (exit status 2).
@@ -45,6 +48,24 @@ type PartialError struct {
 	Failed int    // inputs that failed
 	Total  int    // inputs seen
 	What   string // plural noun, e.g. "pages"
+}
+
+// SetupError marks a batch run in which pages failed because of the system
+// or the set-up, not the scans (exit status 4, even when scans failed too).
+type SetupError struct {
+	Setup  int    // pages failed for a set-up or system reason
+	Image  int    // pages failed because of the image (on the rescan list)
+	Total  int    // pages of the run
+	Report string // path of failures.csv
+	First  string // the first set-up message, as an example
+}
+
+func (e *SetupError) Error() string {
+	s := fmt.Sprintf("%d of %d pages failed because of the set-up or the system, not the scans (see %s; first: %s)", e.Setup, e.Total, e.Report, e.First)
+	if e.Image > 0 {
+		s += fmt.Sprintf("; %d more are on the rescan list", e.Image)
+	}
+	return s
 }
 
 func (e *PartialError) Error() string {

@@ -11,6 +11,7 @@ import (
 	"strings"
 	"syscall"
 
+	"recto/cmd/internal/cli"
 	"recto/cmd/internal/run/ledger"
 	"recto/ocr"
 )
@@ -22,7 +23,7 @@ import (
 // disk, a name too long, two names that clash, a ground-truth path that is
 // a folder, an image over the pixel limit, a variant this build cannot
 // decode, the engine): the scan is fine, the page is listed in
-// failures.csv with how to fix it, and the run exits with status 1.
+// failures.csv with how to fix it, and the run exits with status 4.
 
 // classify says whose fault err is and returns the message to record,
 // with the fix for a set-up problem.
@@ -148,20 +149,5 @@ func writeFailureReports(repDir string, rows []ledger.Page) error {
 }
 
 // SetupError is returned by Run when pages failed for set-up or system
-// reasons: exit status 1, whatever the scans did. Its message counts them
-// and names failures.csv.
-type SetupError struct {
-	Setup  int    // pages failed for a set-up or system reason
-	Image  int    // pages failed because of the image
-	Total  int    // pages of the run
-	Report string // path of failures.csv
-	First  string // the first set-up message, as an example
-}
-
-func (e *SetupError) Error() string {
-	s := fmt.Sprintf("%d of %d pages failed because of the set-up or the system, not the scans (see %s; first: %s)", e.Setup, e.Total, e.Report, e.First)
-	if e.Image > 0 {
-		s += fmt.Sprintf("; %d more are on the rescan list", e.Image)
-	}
-	return s
-}
+// reasons (exit status 4).
+type SetupError = cli.SetupError

@@ -40,7 +40,7 @@ type Options struct {
 	Jobs       int     // pages in parallel; 0 means GOMAXPROCS
 	Lang       string  // Tesseract language(s), e.g. "eng" or "eng+fra"; "" means "eng"
 	PSM        int     // Tesseract page segmentation mode; 0 means the engine default
-	DPI        float64 // resolution to assume when a file records none; 0 means 300
+	DPI        float64 // resolution to assume when a file records none; 0 means estimated from the text, else 300
 	Rescan     float64 // predicted CER above which a page is marked rescan; 0 means quality.DefaultRescan
 	Correct    float64 // predicted CER above which a page is corrected; 0 means quality.DefaultCorrect
 	Model      string  // quality model file for triage (recto calibrate); "" means the embedded one
@@ -304,7 +304,10 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 
 	prog := progress.New(stderr, o.Command, o.Quiet, len(pages))
 	w := l.NewWriter(func(p ledger.Page) { prog.Add(p.State == ledger.StateFailed) })
+	finished := make(chan struct{})
+	go st.sayStopping(ctx, prog, o.Command, len(pages), finished) // stopping.go
 	runErr := st.process(ctx, pages, w, prog)
+	close(finished)
 	werr := w.Close()
 	prog.Finish()
 	sum.Skipped = prog.Skipped()

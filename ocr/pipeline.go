@@ -10,6 +10,7 @@ import (
 	"io"
 	"math"
 	"os"
+	"path/filepath"
 	"strings"
 	"time"
 	"unicode"
@@ -181,6 +182,67 @@ func ProcessFile(ctx context.Context, eng Engine, path string, o Options) (*Reco
 	rec.Warnings = d.Warnings
 	rec.TimingsMS["decode"] = ms(decode)
 	return rec, prepared, nil
+}
+
+// ProcessFilePage is ProcessFile for page n (from 1) of a multi-page file
+// (OpenPages: a multi-page TIFF page by page, a PDF through poppler); n 0
+// is ProcessFile. Only page n is decoded, so memory does not grow with the
+// file's pages. sum is the file's SHA-256 in hex when the caller has it
+// ("" to compute it). The record names the page (FilePage, FilePages); an
+// error names the file and the page.
+func ProcessFilePage(ctx context.Context, eng Engine, path string, n int, sum string, o Options) (*Record, *image.Gray, error) {
+	if n == 0 {
+		return ProcessFile(ctx, eng, path, o)
+	}
+	if err := ctx.Err(); err != nil {
+		return nil, nil, err
+	}
+	if sum == "" {
+		var err error
+		if sum, err = hashFile(path); err != nil {
+			return nil, nil, err
+		}
+	}
+	t := time.Now()
+	pf, err := OpenPages(ctx, path, DecodeOptions{MaxPixels: o.maxPixels()})
+	if err != nil {
+		return nil, nil, err
+	}
+	defer pf.Close()
+	d, err := pf.Page(ctx, n)
+	decode := time.Since(t)
+	if err != nil {
+		return nil, nil, err
+	}
+	rec, prepared, err := Process(ctx, eng, d.Image, d.DPI, o)
+	if err != nil {
+		if ctx.Err() != nil {
+			return nil, nil, err
+		}
+		return nil, nil, fmt.Errorf("%w (page %d of %q)", err, n, path)
+	}
+	rec.Source, rec.SHA256 = path, sum
+	rec.FilePage, rec.FilePages = n, pf.Pages()
+	rec.Warnings = d.Warnings
+	rec.TimingsMS["decode"] = ms(decode)
+	return rec, prepared, nil
+}
+
+// CountPages returns the number of pages of the page file at path, reading
+// only headers (OpenPages): more than 1 for a multi-page TIFF or a PDF of
+// several pages, 1 for anything else, including a file that cannot be
+// opened as pages (it fails when it is processed, naming the problem).
+func CountPages(ctx context.Context, path string) int {
+	ext := strings.ToLower(filepath.Ext(path))
+	if ext != ".tif" && ext != ".tiff" && ext != ".pdf" {
+		return 1
+	}
+	pf, err := OpenPages(ctx, path, DecodeOptions{})
+	if err != nil {
+		return 1
+	}
+	defer pf.Close()
+	return pf.Pages()
 }
 
 func hashFile(path string) (string, error) {

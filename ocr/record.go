@@ -17,6 +17,12 @@ type Record struct {
 	Source  string `json:"source"`  // page image path as given by the user
 	SHA256  string `json:"sha256"`  // hex SHA-256 of the source file's bytes
 
+	// FilePage is the page's number in a multi-page source file (a
+	// multi-page TIFF, a PDF), from 1, and FilePages the file's page
+	// count; both 0 for a single image.
+	FilePage  int `json:"file_page,omitempty"`
+	FilePages int `json:"file_pages,omitempty"`
+
 	// Lang is the engine language list the page was read with ("eng",
 	// "nor", "eng+deu"; Tesseract's codes); triage and correction take
 	// their lexicon from it when not told otherwise. Empty in records

@@ -59,6 +59,13 @@ settings are unchanged are skipped; a changed image is done again. Killing
 the run loses at most the pages in flight. Only one run may use DIR at a
 time.
 
+Each page of a multi-page TIFF or PDF is a page of its own, named after
+the file and a 1-based page number: page 3 of box/reel-07.tif is
+box/reel-07/p0003 in the outputs, the reports and the ledger, and its ground
+truth is --truth/box/reel-07/p0003.txt. Pages are decoded one at a time; a
+corrupt page fails alone, named with its file and number; a rerun resumes
+page by page.
+
 Outputs: DIR/ocr/<page>.txt, .alto.xml and .json for every page, and
 DIR/corrected/<page>.* for corrected pages, with DIR/corrected/changes.jsonl
 listing every change as 'recto correct' lists them; reports:

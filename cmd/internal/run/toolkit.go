@@ -205,8 +205,8 @@ type engineRecogniser struct {
 	opts ocr.Options
 }
 
-func (e *engineRecogniser) Recognise(ctx context.Context, path string) (*ocr.Record, *image.Gray, error) {
-	return ocr.ProcessFile(ctx, e.eng, path, e.opts)
+func (e *engineRecogniser) Recognise(ctx context.Context, path string, n int, sum string) (*ocr.Record, *image.Gray, error) {
+	return ocr.ProcessFilePage(ctx, e.eng, path, n, sum, e.opts)
 }
 
 func (e *engineRecogniser) Close() error { return e.eng.Close() }

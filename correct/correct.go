@@ -284,8 +284,28 @@ func (c *Corrector) CorrectRecord(rec *ocr.Record) (*ocr.Record, []Change) {
 	changes := make([]Change, 0, len(eds))
 	words := make([]ocr.Word, 0, len(out.Words)+4)
 	next := 0
+	pieceWord, shift := -1, 0 // the word whose pieces are being edited, and how far its text has moved
 	for _, e := range eds {
 		first, last := toks[e.i], toks[e.i+e.n-1]
+		if first.piece {
+			// A part of a dash-joined word ("tbe—the"): its bytes are
+			// replaced inside the word, which keeps its box.
+			before := rec.Words[first.word].Text[first.start:first.end]
+			after := strings.Join(e.words, " ")
+			if pieceWord != first.word {
+				words = append(words, out.Words[next:first.word]...)
+				w := out.Words[first.word]
+				w.Alt = append(w.Alt, w.Text)
+				words = append(words, w)
+				pieceWord, shift = first.word, 0
+			}
+			w := &words[len(words)-1]
+			w.Text = w.Text[:first.start+shift] + after + w.Text[first.end+shift:]
+			shift += len(after) - (first.end - first.start)
+			next = first.word + 1
+			changes = append(changes, Change{Line: first.line, Column: first.col, Before: before, After: after, Score: round3(e.score)})
+			continue
+		}
 		words = append(words, out.Words[next:first.word]...)
 		before := rec.Words[first.word].Text
 		if e.n == 2 {
@@ -350,9 +370,19 @@ func recordTokens(rec *ocr.Record) []token {
 				col++
 			}
 		}
-		t := token{line: line, col: col, conf: w.Conf, word: i}
-		t.lead, t.core, t.trail = splitToken(w.Text)
-		toks = append(toks, t)
+		ps := dashPieces(w.Text)
+		for k, p := range ps {
+			e := len(w.Text)
+			if k+1 < len(ps) {
+				e = ps[k+1]
+			}
+			t := token{line: line, col: col + utf8.RuneCountInString(w.Text[:p]), conf: w.Conf, word: i}
+			if len(ps) > 1 {
+				t.piece, t.start, t.end = true, p, e
+			}
+			t.lead, t.core, t.trail = splitToken(w.Text[p:e])
+			toks = append(toks, t)
+		}
 		col += runeLen(w.Text)
 	}
 	if len(toks) > 0 {
@@ -388,6 +418,21 @@ func (c *Corrector) run(toks []token) []edit {
 				eds = append(eds, e)
 			}
 			prev = ""
+			continue
+		}
+		if t.piece {
+			// Parts of a dash-joined record word are corrected one by one,
+			// never joined, split or deleted (their word keeps one box).
+			e, ok := c.word(s, t, prev, "")
+			if ok && len(e.words) == 1 {
+				e.i = i
+				c.mapEdit(&e)
+				eds = append(eds, e)
+				_, core, _ := splitToken(e.words[0])
+				prev = c.contextAfter(lookupForm(core), t.trail)
+				continue
+			}
+			prev = c.contextAfter(lookupForm(t.core), t.trail)
 			continue
 		}
 		if e, ok := c.tryJoin(s, toks, i, prev); ok {
@@ -772,7 +817,7 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		return edit{}, false
 	}
 	if split != nil {
-		return edit{n: 1, words: []string{t.lead + applyCase(split[0], pattern, upper), applyCase(split[1], caseLower, false) + t.trail}, score: delta}, true
+		return edit{n: 1, words: []string{t.lead + inPageForm(t.core, applyCase(split[0], pattern, upper)), inPageForm(t.core, applyCase(split[1], caseLower, false)) + t.trail}, score: delta}, true
 	}
 	trail := t.trail
 	if (strings.HasPrefix(trail, "!") || strings.HasPrefix(trail, "|")) && len(best) > len(q) && strings.HasPrefix(best, q) {
@@ -781,7 +826,7 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		// the mark was one of them.
 		trail = trail[1:]
 	}
-	return edit{n: 1, words: []string{t.lead + applyCase(best, pattern, upper) + trail}, score: delta}, true
+	return edit{n: 1, words: []string{t.lead + inPageForm(t.core, applyCase(best, pattern, upper)) + trail}, score: delta}, true
 }
 
 // identity is log P(s | s) with s kept as read.
@@ -1106,7 +1151,7 @@ func (c *Corrector) tryJoin(s *scratch, toks []token, i int, prev string) (edit,
 		return edit{}, false
 	}
 	t, u := &toks[i], &toks[i+1]
-	if t.core == "" || u.core == "" || u.lead != "" {
+	if t.core == "" || u.core == "" || u.lead != "" || u.piece {
 		return edit{}, false
 	}
 	a, b := lookupForm(t.core), lookupForm(u.core)
@@ -1128,7 +1173,7 @@ func (c *Corrector) tryJoin(s *scratch, toks []token, i int, prev string) (edit,
 			return edit{}, false
 		}
 		keep := c.logContext(prev, a, "") + c.logContext("", b, next)
-		return edit{i: i, n: 2, words: []string{t.lead + applyCase(joined, pattern, upper) + u.trail},
+		return edit{i: i, n: 2, words: []string{t.lead + inPageForm(t.core+u.core, applyCase(joined, pattern, upper)) + u.trail},
 			score: c.logContext(prev, joined, next) - keep}, true
 	}
 	if c.cfg.KeepSpacing || t.trail != "" {
@@ -1161,7 +1206,7 @@ func (c *Corrector) tryJoin(s *scratch, toks []token, i int, prev string) (edit,
 	if v-keep <= c.marginFor(conf)+s.page {
 		return edit{}, false
 	}
-	return edit{i: i, n: 2, words: []string{t.lead + applyCase(joined, pattern, upper) + u.trail}, score: v - keep}, true
+	return edit{i: i, n: 2, words: []string{t.lead + inPageForm(t.core+u.core, applyCase(joined, pattern, upper)) + u.trail}, score: v - keep}, true
 }
 
 func isHyphen(trail string) bool {

@@ -63,6 +63,7 @@ func Process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 		}
 	}
 	rec.Skew = p.Skew
+	rec.SkewEstimate, rec.SkewConfidence, rec.SkewMeasuredOn = p.SkewEstimate, p.SkewConfidence, p.SkewMeasuredOn
 	rec.Binarization = p.Binarization
 	rec.Threshold = p.Threshold
 	rec.Noise = p.Noise

@@ -105,18 +105,20 @@ const (
 	// corrects: below it an estimate is not confidently a skew, and
 	// rotation's resampling costs more than it gains. Leptonica's
 	// pixDeskew (D. Bloomberg, Leptonica 1.82, skew.c, MIN_DESKEW_ANGLE)
-	// uses 0.1°; measured on the 39 real pages of TestSkewAgreesWithLeptonica,
-	// recto's and Leptonica's estimates differ by up to 0.22° on pages
-	// Leptonica finds straight (cavalerie.29 −0.14° against 0.08°,
-	// zanotti-78 −0.21° against −0.05°, lyra.036 −0.27° against −0.08°),
-	// so a skew under 0.3° is within the two finders' disagreement. At
-	// 0.3° a line 2,000 pixels long drifts by 10 pixels, about half the
-	// x-height at 300 dpi, which the engine's line finder follows (it fits
-	// each line's baseline with its own slope: R. Smith, "An Overview of
-	// the Tesseract OCR Engine", ICDAR 2007, from memory). On pages
-	// narrower than 191 pixels the bar is higher: the skew must move the
-	// far end of a line across the page by at least one pixel.
-	MinSkew = 0.3
+	// uses 0.1°; measured on the 39 real pages of
+	// TestSkewAgreesWithLeptonica, recto's estimate is up to 0.16° from
+	// zero on pages Leptonica finds straight (words.44 0.16° against
+	// −0.06°, table.15 0.14° against −0.05°, 8087_054.3B −0.12° against
+	// −0.05°), so a skew under 0.25° is within the two finders'
+	// disagreement; the pages Leptonica finds skewed by 0.3° or more
+	// measure 0.54° or more. At 0.25° a line 2,000 pixels long drifts by
+	// 9 pixels, about half the x-height at 300 dpi, which the engine's
+	// line finder follows (it fits each line's baseline with its own
+	// slope: R. Smith, "An Overview of the Tesseract OCR Engine", ICDAR
+	// 2007, from memory). On pages narrower than 229 pixels the bar is
+	// higher: the skew must move the far end of a line across the page by
+	// at least one pixel.
+	MinSkew = 0.25
 
 	// unevenFraction: Auto binarisation uses Sauvola when the background
 	// variation exceeds this fraction of the contrast between the paper

@@ -23,7 +23,7 @@ type Record struct {
 
 	Skew float64 `json:"skew_degrees"` // skew found and removed, degrees, counter-clockwise positive
 	// The skew measured, rotated or not, the sharpness of its peak (1 for
-	// a flat curve; rotated only from 1.1 and 0.3°) and the ink it was
+	// a flat curve; rotated only from 1.1 and 0.25°) and the ink it was
 	// measured on: "text" (text-like components only) or "all ink".
 	SkewEstimate   float64 `json:"skew_estimate_degrees"`
 	SkewConfidence float64 `json:"skew_confidence"`

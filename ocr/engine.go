@@ -38,6 +38,11 @@ type Options struct {
 	DPI       float64     // resolution for images without a tag, dots per inch; 0 means DefaultDPI
 	MaxPixels int         // refuse larger images; 0 means DefaultMaxPixels
 	KeepImage bool        // also return the prepared image
+
+	// Orient is orientation detection, for engines that have it
+	// (Orienter): Auto when the page's first reading looks poor, On
+	// before every reading, Off never (see processOriented).
+	Orient Mode
 }
 
 func (o Options) dpi() float64 {

@@ -22,8 +22,16 @@ import (
 // only when o.KeepImage is set. A page that preparation finds blank is not
 // handed to the engine and gets a record without words.
 //
+// A page found turned by 90°, 180° or 270° is read upright (see
+// processOriented).
+//
 // The record's Source and SHA256 are left empty; ProcessFile fills them.
 func Process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Options) (*Record, *image.Gray, error) {
+	return processOriented(ctx, eng, src, dpi, o)
+}
+
+// process is Process without orientation detection.
+func process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Options) (*Record, *image.Gray, error) {
 	if err := ctx.Err(); err != nil {
 		return nil, nil, err
 	}

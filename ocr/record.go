@@ -21,17 +21,23 @@ type Record struct {
 	Height int     `json:"height"` // original image height, pixels
 	DPI    float64 `json:"dpi"`    // resolution used: from the file, --dpi, or assumed
 
-	Skew float64 `json:"skew_degrees"` // skew found and removed, degrees, counter-clockwise positive
-	// The skew measured, rotated or not, the sharpness of its peak (1 for
-	// a flat curve; rotated only from 1.1 and 0.25°) and the ink it was
-	// measured on: "text" (text-like components only) or "all ink".
+	Skew         float64 `json:"skew_degrees"`        // skew found, degrees, counter-clockwise positive
+	Binarization string  `json:"binarization"`        // "otsu", "sauvola", or "none"
+	Threshold    int     `json:"threshold,omitempty"` // global threshold 0-255 when Binarization is "otsu"
+	Noise        float64 `json:"noise"`               // estimated noise, standard deviation in grey levels
+	Blank        bool    `json:"blank"`               // no ink worth recognising was found
+
+	// The skew measured, rotated or not (Skew is the rotation applied),
+	// the sharpness of its peak (1 for a flat curve; rotated only from
+	// 1.1 and 0.25°) and the ink it was measured on: "text" (text-like
+	// components only) or "all ink".
 	SkewEstimate   float64 `json:"skew_estimate_degrees"`
 	SkewConfidence float64 `json:"skew_confidence"`
 	SkewMeasuredOn string  `json:"skew_measured_on,omitempty"`
-	Binarization   string  `json:"binarization"`        // "otsu", "sauvola", or "none"
-	Threshold      int     `json:"threshold,omitempty"` // global threshold 0-255 when Binarization is "otsu"
-	Noise          float64 `json:"noise"`               // estimated noise, standard deviation in grey levels
-	Blank          bool    `json:"blank"`               // no ink worth recognising was found
+
+	// Orientation is what orientation detection found, when the engine
+	// has it (nil otherwise, and with no preparation).
+	Orientation *Orientation `json:"orientation,omitempty"`
 
 	MeanConfidence float64 `json:"mean_confidence"` // mean word confidence in [0, 1]; 0 with no words
 	Words          []Word  `json:"words"`           // in reading order

@@ -66,12 +66,18 @@ func limitThreads() {
 	})
 }
 
+// ompSerial turns OpenMP parallel regions off (see recto_omp_serial).
+func ompSerial() { C.recto_omp_serial() }
+
 // engine is one Tesseract client.
 type engine struct {
 	client *gosseract.Client
 	buf    []byte // PGM scratch, reused across pages
 	dpi    int    // resolution last handed to the client
 	psm    int    // page segmentation mode asked for
+
+	dataDir string     // Config.DataDir, for the orientation client
+	osd     *osdClient // orientation detection (orient.go), nil until used
 }
 
 // New returns an Engine with its own Tesseract client. It fails at once,
@@ -107,7 +113,7 @@ func New(cfg Config) (ocr.Engine, error) {
 	// Tesseract's diagnostics ("Empty page!!", resolution guesses) would
 	// otherwise reach our stderr.
 	c.SetVariable(gosseract.DEBUG_FILE, os.DevNull)
-	return &engine{client: c, psm: psm}, nil
+	return &engine{client: c, psm: psm, dataDir: cfg.DataDir}, nil
 }
 
 // Recognize implements ocr.Engine in one recognition pass.
@@ -176,6 +182,8 @@ func (e *engine) Close() error {
 	}
 	err := e.client.Close()
 	e.client = nil
+	e.osd.close()
+	e.osd = nil
 	return err
 }
 

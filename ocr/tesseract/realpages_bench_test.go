@@ -13,19 +13,32 @@ import (
 )
 
 // selfCheckCost sums, over a collection, how often the self-check read a
-// page a second time and the engine time of both readings.
+// page a second time and the engine time of the readings: first is the
+// "engine" timing of each page (its one reading, or for a page turned
+// upright the upright reading), second the rest: the self-check's second
+// reading, orientation detection and the readings before a page was
+// turned ("engine_original", "orientation", "engine_unturned").
 type selfCheckCost struct {
-	pages, second   int
-	first, secondMS float64 // engine time of the first readings and of the second ones
+	pages, second, turned int
+	first, secondMS       float64
+	orientMS              float64
 }
 
 func (c *selfCheckCost) add(rec *ocr.Record) {
 	c.pages++
 	c.first += rec.TimingsMS["engine"]
-	if ms, ok := rec.TimingsMS["engine_original"]; ok {
+	if rec.Reading != nil {
 		c.second++
-		c.secondMS += ms
 	}
+	if rec.Orientation != nil && rec.Orientation.Decided && rec.Orientation.Degrees != 0 {
+		c.turned++
+	}
+	c.secondMS += rec.TimingsMS["engine_original"] + rec.TimingsMS["orientation"] + rec.TimingsMS["engine_unturned"]
+	c.orientMS += rec.TimingsMS["orientation"]
+}
+
+func (c *selfCheckCost) plus(d selfCheckCost) selfCheckCost {
+	return selfCheckCost{c.pages + d.pages, c.second + d.second, c.turned + d.turned, c.first + d.first, c.secondMS + d.secondMS, c.orientMS + d.orientMS}
 }
 
 func (c *selfCheckCost) report(b *testing.B, prefix string) {
@@ -34,6 +47,8 @@ func (c *selfCheckCost) report(b *testing.B, prefix string) {
 	}
 	b.ReportMetric(100*float64(c.second)/float64(c.pages), prefix+"_second_%")
 	b.ReportMetric(100*c.secondMS/c.first, prefix+"_extra_engine_%")
+	b.ReportMetric(100*c.orientMS/c.first, prefix+"_orientation_%")
+	b.ReportMetric(float64(c.turned), prefix+"_turned")
 }
 
 // BenchmarkSelfCheck measures how often the self-check (issue 10 part 4:
@@ -86,11 +101,7 @@ func BenchmarkSelfCheck(b *testing.B) {
 			}
 			real.add(rec)
 		}
-		demo := clean
-		demo.pages += degraded.pages
-		demo.second += degraded.second
-		demo.first += degraded.first
-		demo.secondMS += degraded.secondMS
+		demo := clean.plus(degraded)
 		demo.report(b, "demo")
 		clean.report(b, "demo_clean")
 		degraded.report(b, "demo_degraded")

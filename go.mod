@@ -5,6 +5,7 @@ go 1.26.8
 require (
 	github.com/agnivade/levenshtein v1.2.2
 	github.com/disintegration/imaging v1.6.2
+	github.com/google/renameio/v2 v2.0.2
 	github.com/mattn/go-isatty v0.0.24
 	github.com/otiai10/gosseract/v2 v2.4.1
 	github.com/sajari/fuzzy v1.0.0

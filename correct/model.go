@@ -13,6 +13,8 @@ import (
 	"sort"
 	"sync"
 	"unicode/utf8"
+
+	"recto/internal/atomicfile"
 )
 
 // ModelVersion is the version of the model file format written by this build.
@@ -203,7 +205,7 @@ func (m *Model) Save(path string) error {
 	if err := m.write(&buf); err != nil {
 		return fmt.Errorf("correct: %q: %w", path, err)
 	}
-	if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
+	if err := atomicfile.Write(path, buf.Bytes()); err != nil {
 		return fmt.Errorf("correct: %w", err)
 	}
 	return nil

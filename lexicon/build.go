@@ -84,6 +84,13 @@ type BuildOptions struct {
 	// MinBigramCount is how often a word pair must occur in running text to
 	// be kept. 0 means 2.
 	MinBigramCount int64
+	// ListedOnly keeps a word seen only in running text only when a
+	// dictionary given accepts it as a compound: the word lists and
+	// dictionaries decide what is a word, the text gives counts. The
+	// language recipes set it, because translated program messages hold
+	// untranslated English ("of", "the") that must not become words of
+	// the language.
+	ListedOnly bool
 }
 
 // A Builder collects words from word lists, Hunspell dictionaries and
@@ -98,6 +105,7 @@ type Builder struct {
 
 	compounds []*compounding // one per Hunspell dictionary that compounds
 	cur       *compounding   // the dictionary being read
+	running   int64          // running words counted so far
 }
 
 // NewBuilder returns an empty Builder with default options.
@@ -144,6 +152,7 @@ func (b *Builder) AddText(r io.Reader, name string) error {
 	scanWords(string(data), func(w string, newSpan bool) {
 		k := Key(w)
 		b.counts[k]++
+		b.running++
 		if !newSpan && prev != "" {
 			b.bigrams[prev+pairSep+k]++
 		}
@@ -186,6 +195,43 @@ func (b *Builder) AddTextDir(dir string) error {
 	return nil
 }
 
+// Running returns the number of running words counted so far.
+func (b *Builder) Running() int64 { return b.running }
+
+// AddWordListCharset reads a plain word list (see AddWordList) in the
+// given single-byte character set, "ISO8859-1" for instance (the
+// spelling of Hunspell's SET). Debian's wnorwegian lists are ISO 8859-1.
+func (b *Builder) AddWordListCharset(path, charset string) error {
+	if charset == "" {
+		return b.AddWordList(path)
+	}
+	var a Affixes
+	if err := a.setEncoding(charset); err != nil {
+		return fmt.Errorf("lexicon: %q: %w", path, err)
+	}
+	if a.dec == nil {
+		return b.AddWordList(path)
+	}
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return fmt.Errorf("lexicon: %w", err)
+	}
+	for n, line := range bytes.Split(data, []byte{'\n'}) {
+		w, err := a.dec.String(string(bytes.TrimSpace(line)))
+		if err != nil {
+			return &ParseError{File: path, Line: n + 1, Err: err}
+		}
+		if w == "" {
+			continue
+		}
+		if strings.ContainsAny(w, " \t") {
+			return &ParseError{File: path, Line: n + 1, Err: fmt.Errorf("%w: word list line holds more than one word %q", ErrBadLine, w)}
+		}
+		b.AddWord(w)
+	}
+	return nil
+}
+
 // Lexicon returns the lexicon built from the sources added so far.
 func (b *Builder) Lexicon() *Lexicon {
 	minText := b.Options.MinTextCount
@@ -205,8 +251,19 @@ func (b *Builder) Lexicon() *Lexicon {
 		l.words[k] = b.counts[k]
 		l.total += b.counts[k]
 	}
+	accepted := func(k string) bool {
+		if !b.Options.ListedOnly {
+			return true
+		}
+		for _, c := range b.compounds {
+			if c.accepts(k) {
+				return true
+			}
+		}
+		return false
+	}
 	for k, c := range b.counts {
-		if _, ok := b.listed[k]; !ok && c >= minText {
+		if _, ok := b.listed[k]; !ok && c >= minText && accepted(k) {
 			l.words[k] = c
 			l.total += c
 		}

@@ -12,8 +12,13 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"unicode"
 	"unicode/utf8"
 	"unsafe"
+
+	"golang.org/x/text/unicode/norm"
+
+	"recto/internal/atomicfile"
 )
 
 // The lexicon file format (version 1).
@@ -265,50 +270,55 @@ func parseCount(s string) (int64, bool) {
 // keyOf returns Key(s), skipping the normalisation for the common case of
 // lower-case ASCII, which is already in key form.
 func keyOf(s string) string {
+	ascii := true
 	for i := 0; i < len(s); i++ {
-		if c := s[i]; c >= utf8.RuneSelf || ('A' <= c && c <= 'Z') {
+		if c := s[i]; c >= utf8.RuneSelf {
+			ascii = false
+		} else if 'A' <= c && c <= 'Z' {
 			return Key(s)
 		}
+	}
+	if ascii {
+		return s
+	}
+	// Words with letters beyond ASCII (æ, ø, å, ß...): a file written by
+	// Save holds keys already, so check before normalising: no upper-case
+	// letter and NFC (the quick check is far cheaper than the conversion).
+	for _, r := range s {
+		if unicode.IsUpper(r) || unicode.IsTitle(r) {
+			return Key(s)
+		}
+	}
+	if !norm.NFC.IsNormalString(s) {
+		return Key(s)
 	}
 	return s
 }
 
 // Save writes the lexicon to path in the lexicon file format, gzip-compressed
-// when path ends in ".gz". It writes to a temporary file in the same folder
-// and renames it, so a failed Save leaves no partial file.
+// when path ends in ".gz". It writes through internal/atomicfile (a
+// temporary file in the same folder, fsync, rename), so a failed Save
+// leaves no partial file.
 func (l *Lexicon) Save(path string) error {
-	tmp, err := os.CreateTemp(filepath.Dir(path), ".lexicon-*")
+	err := atomicfile.WriteFunc(path, func(w io.Writer) error {
+		var zw *gzip.Writer
+		if filepath.Ext(path) == ".gz" {
+			zw, _ = gzip.NewWriterLevel(w, gzip.BestCompression)
+			w = zw
+		}
+		bw := bufio.NewWriterSize(w, 1<<16)
+		if err := l.write(bw); err != nil {
+			return err
+		}
+		if err := bw.Flush(); err != nil {
+			return err
+		}
+		if zw != nil {
+			return zw.Close()
+		}
+		return nil
+	})
 	if err != nil {
-		return fmt.Errorf("lexicon: %w", err)
-	}
-	defer os.Remove(tmp.Name())
-	var w io.Writer = tmp
-	var zw *gzip.Writer
-	if filepath.Ext(path) == ".gz" {
-		zw, _ = gzip.NewWriterLevel(tmp, gzip.BestCompression)
-		w = zw
-	}
-	bw := bufio.NewWriterSize(w, 1<<16)
-	if err := l.write(bw); err != nil {
-		tmp.Close()
-		return fmt.Errorf("lexicon: writing %q: %w", path, err)
-	}
-	err = bw.Flush()
-	if err == nil && zw != nil {
-		err = zw.Close()
-	}
-	if err != nil {
-		tmp.Close()
-		return fmt.Errorf("lexicon: writing %q: %w", path, err)
-	}
-	if err := tmp.Chmod(0o644); err != nil {
-		tmp.Close()
-		return fmt.Errorf("lexicon: %w", err)
-	}
-	if err := tmp.Close(); err != nil {
-		return fmt.Errorf("lexicon: writing %q: %w", path, err)
-	}
-	if err := os.Rename(tmp.Name(), path); err != nil {
 		return fmt.Errorf("lexicon: %w", err)
 	}
 	return nil
@@ -337,6 +347,7 @@ func (c *countWriter) Write(p []byte) (int, error) {
 }
 
 func (l *Lexicon) write(w *bufio.Writer) error {
+	l = l.flat()
 	version := 1
 	if len(l.comp) > 0 {
 		version = 2

@@ -1,6 +1,7 @@
 package lexicon
 
 import (
+	"slices"
 	"sort"
 	"strings"
 	"sync"
@@ -20,6 +21,14 @@ type Lexicon struct {
 	bigrams map[string]int64 // Key(w1) + pairSep + Key(w2) -> count
 	total   int64            // sum of unigram counts
 	comp    []*compounding   // compound rules and parts, one per dictionary (compound.go)
+
+	// layers are the lexicons a Merge combined, read through without being
+	// copied: every read answers for the lexicon's own words and pairs
+	// (words, bigrams) together with each layer's. Empty for any other
+	// lexicon.
+	layers []*Lexicon
+
+	acceptAll bool // AcceptAll: Has and HasFold accept every word
 
 	foldMu sync.Mutex                          // guards building fold
 	fold   atomic.Pointer[map[string]struct{}] // Fold keys of words; nil until HasFold needs it
@@ -72,13 +81,18 @@ func Fold(word string) string {
 // word ("cafe" finds "café"). The first call builds an index of folded
 // words; it is safe for concurrent use with other reads.
 func (l *Lexicon) HasFold(word string) bool {
+	if l.acceptAll {
+		return true
+	}
 	idx := l.fold.Load()
 	if idx == nil {
 		l.foldMu.Lock()
 		if idx = l.fold.Load(); idx == nil {
 			m := make(map[string]struct{}, len(l.words))
-			for w := range l.words {
-				m[Fold(w)] = struct{}{}
+			for _, x := range l.all() {
+				for w := range x.words {
+					m[Fold(w)] = struct{}{}
+				}
 			}
 			idx = &m
 			l.fold.Store(idx)
@@ -114,14 +128,38 @@ func (l *Lexicon) AddBigram(w1, w2 string, n int64) {
 // Has reports whether the lexicon holds word (compared by Key), or, for a
 // lexicon built from a Hunspell dictionary that compounds, whether word is
 // a compound of its parts under the dictionary's rules (see compound.go).
-func (l *Lexicon) Has(word string) bool {
-	k := Key(word)
+func (l *Lexicon) Has(word string) bool { return l.acceptAll || l.hasKey(Key(word)) }
+
+// AcceptAll returns a lexicon that holds no words and counts nothing but
+// whose Has and HasFold accept every word: what page features are
+// computed with when the page's language has no lexicon, so that no word
+// counts against a page for being unknown (the lexicon features carry no
+// evidence then; quality.Features.NoLexicon says so). It must not be
+// used for correction (there is nothing to correct towards) and must
+// not be modified.
+func AcceptAll() *Lexicon { return acceptAll }
+
+var acceptAll = &Lexicon{words: map[string]int64{}, bigrams: map[string]int64{}, acceptAll: true}
+
+func (l *Lexicon) hasKey(k string) bool {
 	if _, ok := l.words[k]; ok {
 		return true
+	}
+	for _, x := range l.layers {
+		if _, ok := x.words[k]; ok {
+			return true
+		}
 	}
 	for _, c := range l.comp {
 		if c.accepts(k) {
 			return true
+		}
+	}
+	for _, x := range l.layers {
+		for _, c := range x.comp {
+			if c.accepts(k) {
+				return true
+			}
 		}
 	}
 	return false
@@ -129,65 +167,147 @@ func (l *Lexicon) Has(word string) bool {
 
 // Listed reports whether the lexicon holds word itself, not as a compound.
 func (l *Lexicon) Listed(word string) bool {
-	_, ok := l.words[Key(word)]
-	return ok
+	k := Key(word)
+	if _, ok := l.words[k]; ok {
+		return true
+	}
+	for _, x := range l.layers {
+		if _, ok := x.words[k]; ok {
+			return true
+		}
+	}
+	return false
 }
 
 // Compounds reports whether the lexicon accepts compounds.
-func (l *Lexicon) Compounds() bool { return len(l.comp) > 0 }
+func (l *Lexicon) Compounds() bool {
+	n := len(l.comp)
+	for _, x := range l.layers {
+		n += len(x.comp)
+	}
+	return n > 0
+}
 
-// EachBigram calls fn with the keys and count of every word pair, in no
-// particular order.
+// all returns the lexicon's own maps' holder and its layers: every lexicon
+// whose words and pairs the reads combine.
+func (l *Lexicon) all() []*Lexicon { return append([]*Lexicon{l}, l.layers...) }
+
+// EachBigram calls fn with the keys and count of every word pair (counts
+// of a merged lexicon added), in no particular order.
 func (l *Lexicon) EachBigram(fn func(k1, k2 string, n int64)) {
-	for k, n := range l.bigrams {
-		k1, k2, _ := strings.Cut(k, pairSep)
-		fn(k1, k2, n)
+	all := l.all()
+	for i, x := range all {
+	pairs:
+		for k, n := range x.bigrams {
+			for _, y := range all[:i] {
+				if _, ok := y.bigrams[k]; ok {
+					continue pairs // counted with the first lexicon that has it
+				}
+			}
+			for _, y := range all[i+1:] {
+				n += y.bigrams[k]
+			}
+			k1, k2, _ := strings.Cut(k, pairSep)
+			fn(k1, k2, n)
+		}
 	}
 }
 
 // Merge returns a lexicon holding the words and pairs of all the given
 // lexicons (counts added) and accepting the compounds of each under its own
-// rules. The inputs are not modified; their compound parts are shared.
+// rules. The inputs are read through, not copied (merging the Bokmål and
+// Nynorsk lexicons costs nothing), so they must not be modified afterwards;
+// words added to the result are its own.
 func Merge(ls ...*Lexicon) *Lexicon {
-	n := 0
+	l := New()
 	for _, x := range ls {
-		n = max(n, len(x.words))
-	}
-	l := &Lexicon{words: make(map[string]int64, n), bigrams: make(map[string]int64)}
-	for _, x := range ls {
-		for k, c := range x.words {
-			l.words[k] += c
-		}
-		for k, c := range x.bigrams {
-			l.bigrams[k] += c
-		}
-		l.total += x.total
-		l.comp = append(l.comp, x.comp...)
+		l.layers = append(l.layers, x.all()...)
 	}
 	return l
 }
 
 // Count returns the unigram count of word, 0 when absent.
-func (l *Lexicon) Count(word string) int64 { return l.words[Key(word)] }
+func (l *Lexicon) Count(word string) int64 {
+	k := Key(word)
+	n := l.words[k]
+	for _, x := range l.layers {
+		n += x.words[k]
+	}
+	return n
+}
 
 // Bigram returns the count of the pair w1 w2, 0 when absent.
-func (l *Lexicon) Bigram(w1, w2 string) int64 { return l.bigrams[Key(w1)+pairSep+Key(w2)] }
+func (l *Lexicon) Bigram(w1, w2 string) int64 {
+	k := Key(w1) + pairSep + Key(w2)
+	n := l.bigrams[k]
+	for _, x := range l.layers {
+		n += x.bigrams[k]
+	}
+	return n
+}
 
 // Total returns the sum of all unigram counts.
-func (l *Lexicon) Total() int64 { return l.total }
+func (l *Lexicon) Total() int64 {
+	n := l.total
+	for _, x := range l.layers {
+		n += x.total
+	}
+	return n
+}
 
 // Bigrams returns the number of distinct word pairs.
-func (l *Lexicon) Bigrams() int { return len(l.bigrams) }
+func (l *Lexicon) Bigrams() int {
+	if len(l.layers) == 0 {
+		return len(l.bigrams)
+	}
+	n := 0
+	l.EachBigram(func(string, string, int64) { n++ })
+	return n
+}
 
 // Len returns the number of distinct words.
-func (l *Lexicon) Len() int { return len(l.words) }
+func (l *Lexicon) Len() int {
+	if len(l.layers) == 0 {
+		return len(l.words)
+	}
+	return len(l.Words())
+}
 
 // Words returns the keys of all words, sorted.
 func (l *Lexicon) Words() []string {
-	ws := make([]string, 0, len(l.words))
-	for w := range l.words {
-		ws = append(ws, w)
+	n := len(l.words)
+	for _, x := range l.layers {
+		n += len(x.words)
+	}
+	ws := make([]string, 0, n)
+	for _, x := range l.all() {
+		for w := range x.words {
+			ws = append(ws, w)
+		}
 	}
 	sort.Strings(ws)
+	if len(l.layers) > 0 {
+		ws = slices.Compact(ws)
+	}
 	return ws
+}
+
+// flat returns a lexicon with the words, pairs and compounding of l in its
+// own maps (l itself when it has no layers), for Save.
+func (l *Lexicon) flat() *Lexicon {
+	if len(l.layers) == 0 {
+		return l
+	}
+	f := New()
+	for _, x := range l.all() {
+		for k, c := range x.words {
+			f.words[k] += c
+		}
+		for k, c := range x.bigrams {
+			f.bigrams[k] += c
+		}
+		f.total += x.total
+		f.comp = append(f.comp, x.comp...)
+	}
+	return f
 }

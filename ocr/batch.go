@@ -6,7 +6,8 @@ import (
 	"fmt"
 	"image"
 	"runtime"
-	"sync"
+
+	"recto/ocr/par"
 )
 
 // BatchConfig configures RunBatch. NewEngine is required; the zero value of
@@ -62,43 +63,24 @@ func RunBatch(ctx context.Context, paths []string, c BatchConfig) (<-chan Result
 		engines = append(engines, e)
 	}
 
-	todo := make(chan int)
 	results := make(chan Result)
 	go func() {
-		defer close(todo)
-		for i := range paths {
-			select {
-			case todo <- i:
-			case <-ctx.Done():
-				return
-			}
-		}
-	}()
-	var wg sync.WaitGroup
-	for _, eng := range engines {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			defer eng.Close()
-			for i := range todo {
-				if ctx.Err() != nil {
-					return
-				}
-				r := processOne(ctx, eng, i, paths[i], c)
-				if r.Err != nil && ctx.Err() != nil {
-					return // interrupted, not a bad page
-				}
-				select {
-				case results <- r:
-				case <-ctx.Done():
-					return
-				}
+		defer close(results)
+		defer func() {
+			for _, e := range engines {
+				e.Close()
 			}
 		}()
-	}
-	go func() {
-		wg.Wait()
-		close(results)
+		par.Each(ctx, len(paths), len(engines), func(w, i int) {
+			r := processOne(ctx, engines[w], i, paths[i], c)
+			if r.Err != nil && ctx.Err() != nil {
+				return // interrupted, not a bad page
+			}
+			select {
+			case results <- r:
+			case <-ctx.Done():
+			}
+		})
 	}()
 	return results, nil
 }

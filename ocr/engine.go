@@ -27,7 +27,8 @@ type Engine interface {
 }
 
 // DefaultDPI is the resolution assumed for an image without a resolution
-// tag when Options.DPI is zero.
+// tag when Options.DPI is zero and the page holds too little text to
+// estimate its resolution from (see EstimateDPI).
 const DefaultDPI = 300
 
 // Options configure Process and ProcessFile. The zero value prepares every
@@ -35,9 +36,10 @@ const DefaultDPI = 300
 type Options struct {
 	Prep      PrepOptions // preparation switches; ignored when NoPrepare is set
 	NoPrepare bool        // hand the greyscale page to the engine unchanged
-	DPI       float64     // resolution for images without a tag, dots per inch; 0 means DefaultDPI
+	DPI       float64     // resolution for images without a tag, dots per inch, used as given; 0 means estimated from the text, else DefaultDPI
 	MaxPixels int         // refuse larger images; 0 means DefaultMaxPixels
 	KeepImage bool        // also return the prepared image
+	Lang      string      // the engine's language list, recorded in each Record ("nor", "eng+deu"); "" records none
 
 	// Orient is orientation detection, for engines that have it
 	// (Orienter): Auto when the page's first reading looks poor, On

@@ -17,10 +17,13 @@ import (
 
 // Process prepares src (unless o.NoPrepare), recognises it with eng and
 // returns the page record with word boxes mapped back to src's pixels
-// (origin at src's top left). dpi is src's resolution from its file; 0 or
-// less means unknown, and o.DPI is used. The prepared image is returned
-// only when o.KeepImage is set. A page that preparation finds blank is not
-// handed to the engine and gets a record without words.
+// (origin at src's top left). dpi is the resolution src's file declares; 0
+// or less means the file has none. The resolution used for the page and
+// handed to the engine is decided from that tag, o.DPI and the size of the
+// text itself (see PrepOptions.DPI and EstimateDPI), without preparation
+// too; the record keeps the tag, the estimate and the choice. The prepared
+// image is returned only when o.KeepImage is set. A page that preparation
+// finds blank is not handed to the engine and gets a record without words.
 //
 // A page found turned by 90°, 180° or 270° is read upright (see
 // processOriented).
@@ -39,14 +42,13 @@ func process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 	if sb.Empty() {
 		return nil, nil, errors.New("ocr: empty image")
 	}
-	if dpi <= 0 {
-		dpi = o.dpi()
-	}
+	tag := max(dpi, 0)
 	rec := &Record{
 		Version:   RecordVersion,
+		Lang:      o.Lang,
 		Width:     sb.Dx(),
 		Height:    sb.Dy(),
-		DPI:       dpi,
+		TaggedDPI: tag,
 		TimingsMS: map[string]float64{},
 		Words:     []Word{},
 	}
@@ -54,13 +56,25 @@ func process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 	var p *Prepared
 	if o.NoPrepare {
 		t := time.Now()
-		p = &Prepared{Image: toGray(src), Binarization: "none", ToOriginal: func(b Box) Box { return b }}
+		g := toGray(src)
+		p = &Prepared{Image: g, Binarization: "none", Scale: 1, ToOriginal: func(b Box) Box { return b }}
 		rec.TimingsMS["gray"] = ms(time.Since(t))
+		// No preparation, but the engine is still told the page's
+		// resolution, decided as for a prepared page.
+		t = time.Now()
+		p.Ink = measureInk(g, otsu(histogram(g)))
+		p.EstimatedDPI, _ = EstimateDPI(p.Ink)
+		p.PageDPI, p.DPISource, _ = chooseDPI(tag, max(o.DPI, 0), p.Ink, 0)
+		p.DPI = p.PageDPI
+		rec.TimingsMS["resolution"] = ms(time.Since(t))
 	} else {
 		var err error
 		po := o.Prep
 		if po.DPI <= 0 {
-			po.DPI = dpi
+			po.DPI = tag
+		}
+		if po.UntaggedDPI <= 0 {
+			po.UntaggedDPI = max(o.DPI, 0)
 		}
 		p, err = Prepare(src, po)
 		if err != nil {
@@ -70,6 +84,19 @@ func process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 			rec.TimingsMS[s.Name] += ms(s.Duration)
 		}
 	}
+	// The resolution of the page itself, and of the image the engine reads
+	// (preparation may have enlarged the page).
+	dpi = p.PageDPI
+	if dpi <= 0 {
+		dpi = o.dpi()
+	}
+	edpi := dpi
+	if p.DPI > 0 {
+		edpi = p.DPI
+	}
+	rec.DPI, rec.DPISource, rec.EstimatedDPI = dpi, p.DPISource, p.EstimatedDPI
+	ink := p.Ink
+	rec.Ink = &ink
 	rec.Skew = p.Skew
 	rec.SkewEstimate, rec.SkewConfidence, rec.SkewMeasuredOn = p.SkewEstimate, p.SkewConfidence, p.SkewMeasuredOn
 	rec.Binarization = p.Binarization
@@ -79,12 +106,6 @@ func process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 
 	if !p.Blank {
 		t := time.Now()
-		// Preparation may enlarge a low-resolution page; the engine is
-		// told the prepared page's resolution.
-		edpi := dpi
-		if p.DPI > 0 {
-			edpi = p.DPI
-		}
 		words, err := eng.Recognize(ctx, p.Image, int(math.Round(edpi)))
 		rec.TimingsMS["engine"] = ms(time.Since(t))
 		if err != nil {
@@ -186,7 +207,9 @@ func hashFile(path string) (string, error) {
 
 // nameFile makes sure err names path, without naming it twice.
 func nameFile(path string, err error) error {
-	if strings.Contains(err.Error(), path) {
+	// A DecodeError or PathError already names the file, quoted (so with
+	// escapes when the name holds quotes or bytes that are not UTF-8).
+	if msg := err.Error(); strings.Contains(msg, path) || strings.Contains(msg, fmt.Sprintf("%q", path)) {
 		return err
 	}
 	return fmt.Errorf("ocr: %q: %w", path, err)

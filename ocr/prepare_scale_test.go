@@ -122,8 +122,8 @@ func TestPrepareLowResolution(t *testing.T) {
 		}
 	}
 
-	// Explicit binarisation, unknown or high resolution: left as it is.
-	for _, o := range []PrepOptions{{DPI: dpi, Binarize: "otsu"}, {DPI: dpi, Binarize: "sauvola"}, {}, {DPI: 300}} {
+	// Explicit binarisation, or high resolution: left as it is.
+	for _, o := range []PrepOptions{{DPI: dpi, Binarize: "otsu"}, {DPI: dpi, Binarize: "sauvola"}, {DPI: 300}} {
 		p := mustPrepare(t, page, o)
 		// (An evenly lit, clean page goes to the engine in grey at any
 		// resolution in auto mode; the scale step says whether the
@@ -134,10 +134,20 @@ func TestPrepareLowResolution(t *testing.T) {
 			t.Errorf("%+v: scale %g, dpi %g, size %v, binarisation %s (%s)", o, p.Scale, p.DPI, p.Image.Rect, p.Binarization, step(p, "scale").Detail)
 		}
 	}
-	// A doubtful tag: a 300-dpi-sized page tagged 72 dpi is treated as at 300 dpi.
+	// Unknown resolution: estimated from the text, and the page is treated
+	// as the low-resolution page it is. Go Regular at 11 points measures
+	// as 10-point type at about 1.27 times the resolution (its x-height is
+	// 0.53 of the body; 10-point type's 20 pixels at 300 dpi are 0.48).
+	p := mustPrepare(t, page, PrepOptions{})
+	if p.DPISource != DPIFromEstimate || p.PageDPI < 1.1*dpi || p.PageDPI > 1.45*dpi || !strings.Contains(step(p, "scale").Detail, "below") {
+		t.Errorf("untagged: %g dpi from %s (%s; %s); want an estimate of 130-175", p.PageDPI, p.DPISource, step(p, "resolution").Detail, step(p, "scale").Detail)
+	}
+	// A tag that does not fit: a 300-dpi-sized page tagged 72 dpi is
+	// prepared at the resolution estimated from its text, not enlarged.
 	big := drawPage(t, 2480, 1754, 300, pageText, 235, 30)
-	if p := mustPrepare(t, big, PrepOptions{DPI: 72}); p.Scale != 1 || !strings.Contains(step(p, "scale").Detail, "doubtful") {
-		t.Errorf("A4 page tagged 72 dpi: scale %g (%s); want 1, resolution tag doubtful", p.Scale, step(p, "scale").Detail)
+	if p := mustPrepare(t, big, PrepOptions{DPI: 72}); p.Scale != 1 || p.DPISource != DPIFromEstimate || p.PageDPI < LowDPI {
+		t.Errorf("A4 page tagged 72 dpi: scale %g, %g dpi from %s (%s); want 1, the estimate, at least %g dpi",
+			p.Scale, p.PageDPI, p.DPISource, step(p, "resolution").Detail, LowDPI)
 	}
 }
 
@@ -186,7 +196,6 @@ func TestProcessLowResolution(t *testing.T) {
 	}{
 		{"120 dpi, even", page, 120, Options{}, 120, 2},
 		{"120 dpi, uneven", uneven, 120, Options{}, 300, 5},
-		{"untagged, uneven", uneven, 0, Options{}, 300, 2}, // DefaultDPI: not enlarged
 		{"untagged, uneven, -dpi 120", uneven, 0, Options{DPI: 120}, 300, 5},
 		{"120 dpi, uneven, binarisation otsu", uneven, 120, Options{Prep: PrepOptions{Binarize: "otsu"}}, 120, 2},
 	} {
@@ -212,6 +221,40 @@ func TestProcessLowResolution(t *testing.T) {
 		}
 		if rec.DPI != wantRec {
 			t.Errorf("%s: record dpi %g, want the page's %g", c.name, rec.DPI, wantRec)
+		}
+	}
+}
+
+// TestProcessUntaggedResolution: without a tag the record keeps the tag
+// (none), the estimate and its use; with --dpi for untagged files the
+// given resolution is used and the estimate still recorded; a page with
+// too little text gets DefaultDPI. The engine is told the same.
+func TestProcessUntaggedResolution(t *testing.T) {
+	page := drawPage(t, 700, 420, 120, pageText, 235, 30)
+	for _, c := range []struct {
+		name     string
+		img      *image.Gray
+		opts     Options
+		from     string
+		lo, hi   float64
+		estimate bool
+	}{
+		{"untagged", page, Options{}, DPIFromEstimate, 130, 175, true},
+		{"untagged, no preparation", page, Options{NoPrepare: true}, DPIFromEstimate, 130, 175, true},
+		{"untagged, -dpi 200", page, Options{DPI: 200}, DPIFromOption, 200, 200, true},
+		// drawPage repeats the word on a few lines: an estimate, not trusted
+		{"untagged, one word", drawPage(t, 700, 420, 120, "Marrowby", 235, 30), Options{}, DPIDefault, DefaultDPI, DefaultDPI, true},
+	} {
+		e := &dpiEngine{box: Box{X: 250, Y: 100, W: 50, H: 25}}
+		rec, _, err := Process(context.Background(), e, c.img, 0, c.opts)
+		if err != nil {
+			t.Fatalf("%s: %v", c.name, err)
+		}
+		if rec.DPISource != c.from || rec.DPI < c.lo || rec.DPI > c.hi || rec.TaggedDPI != 0 || (rec.EstimatedDPI > 0) != c.estimate || rec.Ink == nil {
+			t.Errorf("%s: record %g dpi from %s (tag %g, estimate %g, ink %v); want %s, %g-%g", c.name, rec.DPI, rec.DPISource, rec.TaggedDPI, rec.EstimatedDPI, rec.Ink, c.from, c.lo, c.hi)
+		}
+		if e.dpi != int(math.Round(rec.DPI)) { // evenly lit: not enlarged
+			t.Errorf("%s: engine told %d dpi, record %g", c.name, e.dpi, rec.DPI)
 		}
 	}
 }

@@ -304,7 +304,7 @@ func TestPrepareOptions(t *testing.T) {
 	for _, s := range p.Steps {
 		names = append(names, s.Name)
 	}
-	if got := strings.Join(names, ","); got != "gray,noise,denoise,measure,scale,deskew,binarize,cleanup,blank" {
+	if got := strings.Join(names, ","); got != "gray,noise,denoise,resolution,measure,scale,deskew,binarize,cleanup,blank" {
 		t.Errorf("steps %s", got)
 	}
 	// Odd sizes and tiny images go through every step.

@@ -17,9 +17,30 @@ type Record struct {
 	Source  string `json:"source"`  // page image path as given by the user
 	SHA256  string `json:"sha256"`  // hex SHA-256 of the source file's bytes
 
+	// Lang is the engine language list the page was read with ("eng",
+	// "nor", "eng+deu"; Tesseract's codes); triage and correction take
+	// their lexicon from it when not told otherwise. Empty in records
+	// written before it was recorded.
+	Lang string `json:"lang,omitempty"`
+
 	Width  int     `json:"width"`  // original image width, pixels
 	Height int     `json:"height"` // original image height, pixels
-	DPI    float64 `json:"dpi"`    // resolution used: from the file, --dpi, or assumed
+	DPI    float64 `json:"dpi"`    // resolution used for the page: see DPISource
+
+	// TaggedDPI is the resolution the file declares, 0 when it has none;
+	// EstimatedDPI the resolution estimated from the size of the text
+	// (ocr.EstimateDPI: the resolution at which it would be 10-point type),
+	// 0 when no text-like ink was measured; DPISource says which was used:
+	// "tag", "estimate" (no tag, or a tag that does not fit the text),
+	// "option" (--dpi, for untagged files) or "default" (300 dpi).
+	TaggedDPI    float64 `json:"dpi_tagged"`
+	EstimatedDPI float64 `json:"dpi_estimated"`
+	DPISource    string  `json:"dpi_source,omitempty"`
+
+	// Ink is the shape of the page's ink (how much of it forms lines of
+	// letter-sized marks), measured on the page before recognition; nil
+	// in records written before it was measured.
+	Ink *InkShape `json:"ink,omitempty"`
 
 	Skew         float64 `json:"skew_degrees"`        // skew found, degrees, counter-clockwise positive
 	Binarization string  `json:"binarization"`        // "otsu", "sauvola", or "none"

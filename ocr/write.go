@@ -10,6 +10,8 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+
+	"recto/internal/atomicfile"
 )
 
 // Output file suffixes that WriteOutputs appends to a page's name.
@@ -71,33 +73,19 @@ func writeRecordJSON(w io.Writer, rec *Record) error {
 	return err
 }
 
-// writeAtomic writes path through a temporary file in the same directory
-// and renames it into place; on error the temporary file is removed and
-// path is left as it was.
-func writeAtomic(path string, write func(io.Writer) error) (err error) {
-	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*")
+// writeAtomic writes path through the one atomic writer (internal/atomicfile:
+// temporary file in the same folder, fsync, rename); on error path is left
+// as it was.
+func writeAtomic(path string, write func(io.Writer) error) error {
+	err := atomicfile.WriteFunc(path, func(w io.Writer) error {
+		bw := bufio.NewWriterSize(w, 64<<10)
+		if err := write(bw); err != nil {
+			return err
+		}
+		return bw.Flush()
+	})
 	if err != nil {
 		return fmt.Errorf("ocr: %w", err)
 	}
-	defer func() {
-		if err != nil {
-			f.Close()
-			os.Remove(f.Name())
-			err = fmt.Errorf("ocr: writing %q: %w", path, err)
-		}
-	}()
-	bw := bufio.NewWriterSize(f, 64<<10)
-	if err = write(bw); err != nil {
-		return err
-	}
-	if err = bw.Flush(); err != nil {
-		return err
-	}
-	if err = f.Chmod(0o644); err != nil {
-		return err
-	}
-	if err = f.Close(); err != nil {
-		return err
-	}
-	return os.Rename(f.Name(), path)
+	return nil
 }

@@ -50,18 +50,19 @@ func (e *FileError) Error() string {
 
 func (e *FileError) Unwrap() error { return e.Err }
 
-// Page status values.
+// Page status values: the one set of state words of every recto output
+// (score, the run's pages.csv).
 const (
-	StatusOK         = "ok"         // both files read
-	StatusMissing    = "missing"    // no hypothesis file: scored as empty text
-	StatusUnreadable = "unreadable" // hypothesis could not be read: scored as empty text
+	StatusOK      = "ok"      // the page was read and processed
+	StatusMissing = "missing" // no hypothesis file: scored as empty text
+	StatusFailed  = "failed"  // the page (here the hypothesis) could not be read: scored as empty text
 )
 
 // PageScore is the score of one reference page.
 type PageScore struct {
 	Title  string // first folder under the truth root, or the root's name
 	Page   string // path under the truth root, '/'-separated, without ".txt"
-	Status string // StatusOK, StatusMissing or StatusUnreadable
+	Status string // StatusOK, StatusMissing or StatusFailed
 	Counts
 }
 
@@ -188,7 +189,7 @@ func ScoreDirs(ctx context.Context, truth, ocr string, cfg DirConfig) (*Report, 
 		case fe != nil:
 			fe.Role = "hypothesis"
 			res.errs = append(res.errs, fe)
-			res.page.Status = StatusUnreadable
+			res.page.Status = StatusFailed
 			hyp = ""
 		}
 		res.page.Counts = wk.s.Compare(ref, hyp, cfg.Norm)

@@ -58,6 +58,21 @@ type Features struct {
 
 	Noise float64 `json:"noise"` // the page's estimated noise, grey levels (standard deviation), from the record
 
+	// InkMeasured is true when the record carries the shape of the page's
+	// ink (ocr.Record.Ink; records from before it was measured do not);
+	// TextLikeInk says whether that ink has the shape of text (lines of
+	// letter-sized marks, ocr.InkShape.LooksLikeText) and InkLines counts
+	// those lines.
+	InkMeasured bool `json:"ink_measured"`
+	TextLikeInk bool `json:"text_like_ink"`
+	InkLines    int  `json:"ink_lines"`
+
+	// NoLexicon is true when the page's language had no lexicon and the
+	// features were computed with lexicon.AcceptAll: LexHit, LexHitChars
+	// and the lexicon part of Suspect carry no evidence, and the reasons
+	// say so.
+	NoLexicon bool `json:"no_lexicon,omitempty"`
+
 	// Blank is true when there is nothing to read: the record says the
 	// engine found no ink worth recognising, or (plain text only, where ink
 	// cannot be seen) the text has no characters. A record with ink but no
@@ -119,6 +134,9 @@ func PageFeatures(rec *ocr.Record, lex *lexicon.Lexicon) Features {
 	}
 	f.Noise = rec.Noise
 	f.Blank = rec.Blank
+	if rec.Ink != nil {
+		f.InkMeasured, f.TextLikeInk, f.InkLines = true, rec.Ink.LooksLikeText(), rec.Ink.Lines
+	}
 	return f
 }
 

@@ -7,8 +7,9 @@ import (
 	"fmt"
 	"math"
 	"os"
-	"path/filepath"
 	"sync"
+
+	"recto/internal/atomicfile"
 )
 
 // ModelVersion is the version of the model file format written by Save.
@@ -183,29 +184,14 @@ func parseModel(data []byte, name string) (*Model, error) {
 	return &m, nil
 }
 
-// Save writes the model as indented JSON to path (via a temporary file
-// in the same folder, renamed into place).
+// Save writes the model as indented JSON to path atomically (package
+// internal/atomicfile).
 func (m *Model) Save(path string) error {
 	data, err := json.MarshalIndent(m, "", "  ")
 	if err != nil {
 		return fmt.Errorf("quality: %w", err)
 	}
-	tmp, err := os.CreateTemp(filepath.Dir(path), ".model-*")
-	if err != nil {
-		return fmt.Errorf("quality: %w", err)
-	}
-	defer os.Remove(tmp.Name())
-	_, err = tmp.Write(append(data, '\n'))
-	if err == nil {
-		err = tmp.Chmod(0o644)
-	}
-	if cerr := tmp.Close(); err == nil {
-		err = cerr
-	}
-	if err != nil {
-		return fmt.Errorf("quality: writing %q: %w", path, err)
-	}
-	if err := os.Rename(tmp.Name(), path); err != nil {
+	if err := atomicfile.Write(path, append(data, '\n')); err != nil {
 		return fmt.Errorf("quality: %w", err)
 	}
 	return nil

@@ -3,7 +3,6 @@ package quality
 import (
 	"fmt"
 	"math"
-	"sort"
 )
 
 // Decisions made by Triage.
@@ -25,7 +24,9 @@ const (
 // corpus has no picture pages). A page record that is not blank, has fewer
 // than PictureMaxTokens tokens of which fewer than PictureMaxWords are
 // lexicon words, and a clean scan (noise under PictureMaxNoise grey levels,
-// so that text on it would have been read) is taken for an illustration.
+// so that text on it would have been read) is taken for an illustration,
+// unless its ink has the shape of text (ocr.InkShape.LooksLikeText, in
+// records that carry it): then the reading failed.
 // The same page on a noisy scan is taken for unreadable text and sent for
 // rescanning: on the synthetic corpus, text pages the engine could not
 // read had noise of 18 grey levels and more, clean pages about 6 to 10.
@@ -74,14 +75,17 @@ func (t Thresholds) Validate() error {
 type Verdict struct {
 	PredictedCER float64  `json:"predicted_cer"` // in [0, 1]; 0 for blank pages
 	Decision     string   `json:"decision"`      // accept, correct, rescan, blank or picture
-	Reasons      []string `json:"reasons"`       // plain-language evidence, most telling first
+	Reasons      []string `json:"reasons"`       // plain-language evidence that explains the decision, in a fixed order (see reasons)
 }
 
 // Triage predicts a page's CER with m (nil means DefaultModel) and decides
 // what to do with the page. Blank pages and pictures get their own
 // decisions and are never sent for rescanning; a page record marked blank
 // on a noisy scan (noise of PictureMaxNoise or more) is not taken for
-// blank but sent for rescanning, as its text may have been lost.
+// blank but sent for rescanning, as its text may have been lost. When the
+// record carries the shape of the page's ink (Features.InkMeasured), a page
+// whose ink looks like text but yields almost no words is a failed reading
+// and is sent for rescanning, never decided picture or nearly blank.
 func Triage(f Features, m *Model, t Thresholds) Verdict {
 	if m == nil {
 		m = DefaultModel()
@@ -100,17 +104,30 @@ func Triage(f Features, m *Model, t Thresholds) Verdict {
 		}
 		return Verdict{Decision: DecisionBlank, Reasons: r}
 	}
+	words := int(math.Round(f.LexHit * float64(f.LexWords)))
+	if f.NoLexicon {
+		words = f.LexWords // every word of letters counts as a word
+	}
+	few := f.Tokens < PictureMaxTokens && words < PictureMaxWords
+	if f.FromRecord && f.InkMeasured && f.TextLikeInk && few {
+		// The image shows text; the reading did not: a failed reading
+		// (resolution, preparation, a damaged scan), not a picture and
+		// not a blank page.
+		return Verdict{PredictedCER: 1, Decision: DecisionRescan,
+			Reasons: []string{fmt.Sprintf("ink has the shape of text (%s of letter-sized marks) but %s read, %s in the lexicon: the reading failed",
+				plural(f.InkLines, "line"), plural(f.Tokens, "word"), plural(words, "word"))}}
+	}
 	if f.FromRecord && f.Chars > 0 && f.Chars < NearBlankMaxChars && f.Noise < PictureMaxNoise {
 		return Verdict{Decision: DecisionBlank, Reasons: []string{fmt.Sprintf("page is nearly blank: %s recognised on a clean scan", plural(f.Chars, "character"))}}
 	}
-	words := int(math.Round(f.LexHit * float64(f.LexWords)))
-	if f.FromRecord && f.Tokens < PictureMaxTokens && words < PictureMaxWords && f.Noise < PictureMaxNoise {
-		return Verdict{
-			PredictedCER: m.PredictCER(f),
-			Decision:     DecisionPicture,
-			Reasons: []string{fmt.Sprintf("clean scan with ink but almost no text (%s, %s in the lexicon): a picture or ornament",
-				plural(f.Tokens, "word"), plural(words, "word"))},
+	if f.FromRecord && few && f.Noise < PictureMaxNoise {
+		r := fmt.Sprintf("clean scan with ink but almost no text (%s, %s in the lexicon): a picture or ornament",
+			plural(f.Tokens, "word"), plural(words, "word"))
+		if f.InkMeasured {
+			r = fmt.Sprintf("ink that does not have the shape of text and almost no text read (%s, %s in the lexicon): a picture or ornament",
+				plural(f.Tokens, "word"), plural(words, "word"))
 		}
+		return Verdict{PredictedCER: m.PredictCER(f), Decision: DecisionPicture, Reasons: []string{r}}
 	}
 	if f.Tokens == 0 {
 		// Ink but nothing recognised, on a noisy scan: the model has no
@@ -136,14 +153,23 @@ func Triage(f Features, m *Model, t Thresholds) Verdict {
 	return v
 }
 
-// reasons turns the features into plain sentences, ordered by how much the
-// feature's term moved the prediction (largest first). When worse is true
-// (the page was not accepted) the extra sentence after the confidence and
-// lexicon ones must be evidence that raised the estimate.
+// reasons turns the features into plain sentences that explain the
+// decision, always in the same order: word confidence, lexicon, OCR
+// garbage, characters that are not letters, stray marks at line ends,
+// single characters. worse is true when the page was not accepted. A
+// sentence is given only when its features moved the estimate the way of
+// the decision: for a page not accepted, the evidence that raised it (and a
+// defect sentence only when the defect is present); for an accepted page,
+// the confidence and lexicon evidence that lowered it (an absent defect
+// explains nothing: no "0% of lines start or end with a stray mark"). When
+// no sentence qualifies, the confidence and lexicon sentences are given,
+// the evidence staff can check by eye.
 func reasons(f Features, m *Model, worse bool) []string {
 	type reason struct {
-		text   string
-		weight float64
+		text    string
+		weight  float64 // the features' share of the prediction (log units, relative to an average page)
+		defect  bool    // a sentence about a defect (not the confidence or lexicon evidence)
+		present bool    // the defect is present on the page
 	}
 	delta := map[string]float64{}
 	for _, c := range m.Contributions(f) {
@@ -158,46 +184,38 @@ func reasons(f Features, m *Model, worse bool) []string {
 	}
 	var rs []reason
 	if f.FromRecord {
-		rs = append(rs, reason{fmt.Sprintf("%s of words under confidence %d", pct(f.LowConf), int(LowConfidence*100)),
-			group("low_conf", "sqrt_low_conf", "mean_conf", "conf_x_miss", "conf_under_30", "conf_under_90", "char_doubt", "sqrt_suspect_doubt")})
+		rs = append(rs, reason{text: fmt.Sprintf("%s of words under confidence %d", pct(f.LowConf), int(LowConfidence*100)),
+			weight: group("low_conf", "sqrt_low_conf", "mean_conf", "conf_x_miss", "conf_under_30", "conf_under_90", "char_doubt", "sqrt_suspect_doubt")})
 	}
-	if f.LexWords > 0 {
-		rs = append(rs, reason{fmt.Sprintf("%s of words in the lexicon", pct(f.LexHit)), group("lex_miss", "sqrt_lex_miss", "lex_miss_chars", "suspect")})
+	lex := group("lex_miss", "sqrt_lex_miss", "lex_miss_chars", "suspect")
+	if f.NoLexicon {
+		rs = append(rs, reason{text: "no lexicon for the language: not used (share of words in the lexicon, unknown words among suspect words)", weight: lex})
+	} else if f.LexWords > 0 {
+		rs = append(rs, reason{text: fmt.Sprintf("%s of words in the lexicon", pct(f.LexHit)), weight: lex})
 	} else {
-		rs = append(rs, reason{"no words of letters to check against the lexicon", group("lex_miss", "sqrt_lex_miss", "lex_miss_chars", "suspect")})
+		rs = append(rs, reason{text: "no words of letters to check against the lexicon", weight: lex})
 	}
-	rs = append(rs, reason{fmt.Sprintf("%s of words look like OCR garbage", pct(f.Garbage)), group("garbage", "sqrt_garbage")})
-	rs = append(rs, reason{fmt.Sprintf("%s of characters are not letters", pct(1-f.Letters)),
-		group("non_letter", "punct", "symbols", "digits")})
-	rs = append(rs, reason{fmt.Sprintf("%s of lines start or end with a stray mark (%s of words have no letter or digit)", pct(f.EdgeJunk), pct(f.Stray)),
-		group("stray", "sqrt_stray", "edge_junk")})
-	if f.Short > 0.15 {
-		rs = append(rs, reason{fmt.Sprintf("%s of words are single characters", pct(f.Short)), group("short")})
-	}
-	// The confidence and lexicon sentences always come first (they are the
-	// evidence staff can check by eye), most telling first; then the
-	// strongest of the others.
-	head, rest := rs[:0:0], rs[:0:0]
-	for i, r := range rs {
-		if i < 2 && (f.FromRecord || i < 1) {
-			head = append(head, r)
-		} else {
-			rest = append(rest, r)
+	rs = append(rs,
+		reason{fmt.Sprintf("%s of words look like OCR garbage", pct(f.Garbage)), group("garbage", "sqrt_garbage"), true, f.Garbage > 0},
+		reason{fmt.Sprintf("%s of characters are not letters", pct(1-f.Letters)), group("non_letter", "punct", "symbols", "digits"), true, f.Letters < 1},
+		reason{fmt.Sprintf("%s of lines start or end with a stray mark (%s of words have no letter or digit)", pct(f.EdgeJunk), pct(f.Stray)),
+			group("stray", "sqrt_stray", "edge_junk"), true, f.EdgeJunk > 0 || f.Stray > 0},
+		reason{fmt.Sprintf("%s of words are single characters", pct(f.Short)), group("short"), true, f.Short > 0.15},
+	)
+	out := make([]string, 0, len(rs)+1)
+	for _, r := range rs {
+		switch {
+		case r.defect && worse && r.present && r.weight > 0:
+			out = append(out, r.text)
+		case !r.defect && worse && r.weight > 0, !r.defect && !worse && r.weight <= 0:
+			out = append(out, r.text)
 		}
 	}
-	byWeight := func(s []reason) {
-		sort.SliceStable(s, func(i, j int) bool { return math.Abs(s[i].weight) > math.Abs(s[j].weight) })
-	}
-	byWeight(head)
-	byWeight(rest)
-	out := make([]string, 0, 4)
-	for _, r := range head {
-		out = append(out, r.text)
-	}
-	for _, r := range rest {
-		if !worse || r.weight > 0 {
-			out = append(out, r.text)
-			break
+	if len(out) == 0 {
+		for _, r := range rs {
+			if !r.defect {
+				out = append(out, r.text)
+			}
 		}
 	}
 	if !f.FromRecord {

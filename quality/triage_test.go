@@ -4,6 +4,8 @@ import (
 	"math"
 	"strings"
 	"testing"
+
+	"recto/ocr"
 )
 
 // constModel predicts exp(intercept) − offset whatever the features.
@@ -36,6 +38,11 @@ func TestTriageDecisions(t *testing.T) {
 		{"marked blank on a clean scan", Features{FromRecord: true, Blank: true, Noise: 5.7}, 0.9, Thresholds{}, DecisionBlank},
 		{"text only, empty", Features{Blank: true}, 0.9, Thresholds{}, DecisionBlank},
 		{"nearly blank: a page number", Features{FromRecord: true, Tokens: 1, Chars: 2, Noise: 6}, 0.9, Thresholds{}, DecisionBlank},
+		{"text-shaped ink, nothing read", Features{FromRecord: true, InkMeasured: true, TextLikeInk: true, InkLines: 40, Noise: 3}, 0.001, Thresholds{}, DecisionRescan},
+		{"text-shaped ink, a few words", Features{FromRecord: true, InkMeasured: true, TextLikeInk: true, InkLines: 40, Tokens: 6, Chars: 20, LexWords: 2, LexHit: 0.5, Noise: 3}, 0.001, Thresholds{}, DecisionRescan},
+		{"text-shaped ink, two characters", Features{FromRecord: true, InkMeasured: true, TextLikeInk: true, InkLines: 12, Tokens: 1, Chars: 2, Noise: 3}, 0.001, Thresholds{}, DecisionRescan},
+		{"ink not shaped like text, nothing read", Features{FromRecord: true, InkMeasured: true, InkLines: 2, Noise: 3}, 0.9, Thresholds{}, DecisionPicture},
+		{"ink not shaped like text, noisy scan", Features{FromRecord: true, InkMeasured: true, InkLines: 2, Noise: 30}, 0.9, Thresholds{}, DecisionRescan},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
@@ -72,7 +79,8 @@ func TestTriageRescanFactor(t *testing.T) {
 }
 
 func TestTriageReasons(t *testing.T) {
-	f := Features{FromRecord: true, Tokens: 200, LexWords: 150, LexHit: 0.12, LowConf: 0.58, Garbage: 0.3, Letters: 0.7}
+	f := Features{FromRecord: true, Tokens: 200, Chars: 1000, LexWords: 150, LexHit: 0.12, LexHitChars: 0.12, LowConf: 0.58,
+		MeanConf: 0.55, CharConf: 0.55, ConfUnder30: 0.2, ConfUnder90: 0.9, Garbage: 0.3, Letters: 0.7}
 	v := Triage(f, DefaultModel(), Thresholds{})
 	all := strings.Join(v.Reasons, "; ")
 	for _, want := range []string{"58% of words under confidence 60", "12% of words in the lexicon"} {
@@ -88,6 +96,64 @@ func TestTriageReasons(t *testing.T) {
 	v = Triage(f, nil, Thresholds{})
 	if !strings.Contains(strings.Join(v.Reasons, "; "), "plain text only") {
 		t.Errorf("text-only page should say so: %q", v.Reasons)
+	}
+}
+
+// TestTriageReasonsExplain (issue 17, triage's words): the reasons list
+// only what explains the decision, in a fixed order. An accepted clean
+// page says nothing about defects it does not have; a page sent for
+// rescanning lists the evidence that raised its estimate, confidence
+// before lexicon before the defects, whichever weighed more.
+func TestTriageReasonsExplain(t *testing.T) {
+	// Page records of the triage test collection (testdata/triage: demo
+	// pages recognised by Tesseract), one clean, one badly read.
+	read := func(name string) Features {
+		rec, err := ocr.ReadRecord("../testdata/triage/ocr/" + name + ".json")
+		if err != nil {
+			t.Fatal(err)
+		}
+		return PageFeatures(rec, nil)
+	}
+	v := Triage(read("s00004"), nil, Thresholds{})
+	if v.Decision != DecisionAccept {
+		t.Fatalf("clean page: %s %v", v.Decision, v.Reasons)
+	}
+	all := strings.Join(v.Reasons, "; ")
+	for _, not := range []string{"stray mark", "garbage", "single characters", "not letters"} {
+		if strings.Contains(all, not) {
+			t.Errorf("accepted clean page: reasons %q mention %q", all, not)
+		}
+	}
+	for _, name := range []string{"s00015", "s00005", "s00124", "s00281"} {
+		v = Triage(read(name), nil, Thresholds{})
+		checkOrder(t, name, v)
+	}
+}
+
+// checkOrder checks that a page sent for rescanning has reasons in the
+// fixed order, at least two of them.
+func checkOrder(t *testing.T, name string, v Verdict) {
+	t.Helper()
+	if v.Decision != DecisionRescan {
+		t.Fatalf("%s: %s %v, want rescan", name, v.Decision, v.Reasons)
+	}
+	order := []string{"under confidence", "in the lexicon", "garbage", "not letters", "stray mark", "single characters", "margin"}
+	last := -1
+	for _, r := range v.Reasons {
+		i := -1
+		for k, o := range order {
+			if strings.Contains(r, o) {
+				i = k
+			}
+		}
+		if i < 0 || i <= last {
+			t.Errorf("%s: reasons %q out of the fixed order %q", name, v.Reasons, order)
+			break
+		}
+		last = i
+	}
+	if len(v.Reasons) < 2 {
+		t.Errorf("%s: reasons %q", name, v.Reasons)
 	}
 }
 

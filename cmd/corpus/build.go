@@ -14,9 +14,10 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-	"sync"
+	"sync/atomic"
 	"time"
 
+	"recto/ocr/par"
 	"recto/ocr/synth"
 )
 
@@ -297,30 +298,14 @@ func (p pagePlan) imagePath(out string) string {
 // returns the number of pages that failed; a failure is reported and does
 // not stop the others.
 func renderAll(o buildOptions, plans []pagePlan, ps []passage) int {
-	idx := make(chan int)
-	var mu sync.Mutex
-	failed := 0
-	var wg sync.WaitGroup
-	for range min(o.Workers, len(plans)) {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := range idx {
-				if err := renderOne(o.Out, o.DPI, plans[i], ps); err != nil {
-					mu.Lock()
-					failed++
-					mu.Unlock()
-					fmt.Fprintf(os.Stderr, "corpus: page %s: %v\n", plans[i].ID, err)
-				}
-			}
-		}()
-	}
-	for i := range plans {
-		idx <- i
-	}
-	close(idx)
-	wg.Wait()
-	return failed
+	var failed atomic.Int64
+	par.Each(context.Background(), len(plans), o.Workers, func(_, i int) {
+		if err := renderOne(o.Out, o.DPI, plans[i], ps); err != nil {
+			failed.Add(1)
+			fmt.Fprintf(os.Stderr, "corpus: page %s: %v\n", plans[i].ID, err)
+		}
+	})
+	return int(failed.Load())
 }
 
 func renderOne(out string, dpi int, p pagePlan, ps []passage) error {

@@ -21,17 +21,23 @@ func addRunFlags(cmd *cobra.Command, o *run.Options) {
 	f := cmd.Flags()
 	f.StringVarP(&o.Out, "out", "o", "", "run `folder` for the ledger, outputs and reports (required)")
 	f.StringVar(&o.Truth, "truth", "", "ground-truth `folder`: the same relative path with .txt scores a page")
-	f.IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages in parallel (default: number of CPUs)")
+	f.IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages at once (0: one per core)")
 	f.StringVarP(&o.Lang, "lang", "l", "eng", "Tesseract `languages`, e.g. eng or eng+fra")
 	f.IntVar(&o.PSM, "psm", 0, "Tesseract page segmentation `mode` (default: the engine's)")
-	f.Float64Var(&o.DPI, "dpi", 0, "resolution to assume when a file records none (default 300)")
+	f.Float64Var(&o.DPI, "dpi", 0, "resolution to assume when a file records none (default: estimated from the size of the text, else 300)")
 	f.Float64Var(&o.Rescan, "rescan", 0, "mark a page rescan when its predicted `CER` is above this (default 0.10)")
 	f.Float64Var(&o.Correct, "correct", 0, "correct a page when its predicted `CER` is above this (default 0.02)")
-	f.StringVar(&o.Model, "model", "", "triage model `file` (default: built in)")
+	f.StringVar(&o.Model, "quality-model", "", "quality model `file` from 'recto calibrate' for triage (default: embedded)")
+	f.StringVar(&o.CorrectionModel, "correction-model", "", "error model `file` from 'recto correct train' (default: embedded)")
+	f.BoolVar(&o.KeepMarks, "keep-marks", false, "leave stray marks (tokens with no letter or digit) in the text")
+	f.BoolVar(&o.MapGlyphs, "map-glyphs", false, "rewrite punctuation glyphs as the correction model's ground truth has them")
 	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` for triage and correction (default: built in)")
 	f.Float64Var(&o.Margin, "margin", 0, fmt.Sprintf("correct a word only when the candidate is e^`m` times likelier (default %g)", correct.DefaultMargin))
 	f.StringVar(&o.Shard, "shard", "", "process only share `i/n` of the pages (default: from JOB_COMPLETION_INDEX or SLURM_ARRAY_TASK_ID, else all)")
 	f.IntVar(&o.ShardCount, "shard-count", 0, "number of shards when the index comes from JOB_COMPLETION_INDEX (default: $RECTO_SHARDS)")
+	f.IntVar(&o.MaxPixels, "max-pixels", ocr.DefaultMaxPixels, "largest page accepted, width × height `pixels`; larger pages fail as a set-up problem, not a bad scan")
+	f.BoolVar(&o.NewCollection, "new-collection", false, "run this collection into an --out folder used for another one (its pages are kept as gone)")
+	oldName(cmd, "model", "quality-model")
 }
 
 func newRunCommand(g *GlobalOptions) *cobra.Command {
@@ -65,7 +71,7 @@ DIR/shards/<i>-of-<n>; 'recto merge DIR' combines the shards.
 		},
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Collection = args[0]
-			o.Stderr, o.Quiet = g.stderr, g.Quiet
+			o.Stderr, o.Quiet, o.Command = g.stderr, g.Quiet, g.prefix()
 			if testEngine != nil {
 				o.NewEngine, o.NoPrepare = testEngine, true
 			}
@@ -94,7 +100,7 @@ folder that was not made by demo is never touched.
 ` + exitStatusHelp,
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
-			o.Stderr, o.Quiet = g.stderr, g.Quiet
+			o.Stderr, o.Quiet, o.Command = g.stderr, g.Quiet, g.prefix()
 			if testEngine != nil {
 				o.NewEngine, o.NoPrepare = testEngine, true
 			}
@@ -108,7 +114,7 @@ folder that was not made by demo is never touched.
 		},
 	}
 	cmd.Flags().StringVarP(&o.Out, "out", "o", "recto-demo", "demo `folder`")
-	cmd.Flags().IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages in parallel (default: number of CPUs)")
+	cmd.Flags().IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages at once (0: one per core)")
 	return cmd
 }
 

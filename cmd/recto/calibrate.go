@@ -2,11 +2,13 @@ package main
 
 import (
 	"context"
+	"encoding/csv"
 	"encoding/json"
 	"fmt"
 	"io"
 	"math"
 	"sort"
+	"strconv"
 
 	"github.com/spf13/cobra"
 
@@ -49,17 +51,26 @@ The rescan cut is chosen on the fitting pages only: the lowest margin below
 that did not see it) catch --target-recall + 0.03 of the fitting pages above
 --rescan (never below half of --rescan). The report gives the cut.
 The model written to --out is the one that was judged; use it with
-'recto triage --model MODEL'.` + exitStatusHelp,
+'recto triage --quality-model MODEL'.
+
+OUTPUT (stdout)
+  table  (default) the figures in words
+  json   {"model", "pages", "fitted", "held_out", "skipped",
+         "held_out_evaluation", "targets_met", "record_rescan_cut",
+         "text_rescan_cut", "checks"}; undefined figures are -1
+  csv    a header and one row: model,pages,fitted,held_out,skipped,spearman,
+         mae,precision,recall,clean_accepted,true_pos,false_pos,false_neg,
+         record_rescan_cut,text_rescan_cut,targets_met (undefined: empty)` + exitStatusHelp,
 		Args: cobra.NoArgs,
 		PreRunE: func(cmd *cobra.Command, args []string) error {
 			if o.OCR == "" || o.Truth == "" || o.Out == "" {
 				return usagef("calibrate: --ocr, --truth and --out are required")
 			}
 			if !(o.Holdout > 0 && o.Holdout < 1) {
-				return usagef("calibrate: --holdout must lie strictly between 0 and 1, got %v", o.Holdout)
+				return usagef("--holdout %v: want a share strictly between 0 and 1", o.Holdout)
 			}
-			if o.Format != "text" && o.Format != "json" {
-				return usagef("calibrate: --format must be text or json, not %q", o.Format)
+			if err := checkFormat(&o.Format, "table", "json", "csv"); err != nil {
+				return err
 			}
 			if err := (quality.Thresholds{Rescan: o.Rescan, Correct: o.Correct}).Validate(); err != nil {
 				return usagef("calibrate: %v", err)
@@ -73,7 +84,7 @@ The model written to --out is the one that was judged; use it with
 	f := cmd.Flags()
 	f.StringVar(&o.OCR, "ocr", "", "`folder` of OCR output (page records or text)")
 	f.StringVar(&o.Truth, "truth", "", "`folder` of ground truth, <page>.txt at the same relative paths")
-	f.StringVar(&o.Out, "out", "", "write the fitted model to this `file` (JSON)")
+	f.StringVarP(&o.Out, "out", "o", "", "write the fitted model to this `file` (JSON)")
 	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` (default: embedded English)")
 	f.Float64Var(&o.Holdout, "holdout", 0.3, "`share` of pages held out for the report")
 	f.Int64Var(&o.Seed, "seed", 1, "seed `n` of the hold-out split and cross-validation folds")
@@ -83,7 +94,7 @@ The model written to --out is the one that was judged; use it with
 	f.Float64Var(&o.Targets.Recall, "target-recall", 0.95, "declared target: minimum recall of rescan")
 	f.Float64Var(&o.Targets.Precision, "target-precision", 0.85, "declared target: minimum precision of rescan")
 	f.Float64Var(&o.Targets.CleanAccept, "target-clean", 0.95, "declared target: minimum share of clean pages accepted")
-	f.StringVar(&o.Format, "format", "text", "report `format`: text or json")
+	f.StringVar(&o.Format, "format", "table", "report `format`: table, json or csv")
 	return cmd
 }
 
@@ -109,12 +120,17 @@ func runCalibrate(ctx context.Context, o CalibrateOptions, g GlobalOptions) erro
 			return err
 		}
 	}
+	for _, d := range [][2]string{{"--ocr", o.OCR}, {"--truth", o.Truth}} {
+		if err := checkDir(d[0], d[1]); err != nil {
+			return err
+		}
+	}
 	samples, problems, err := quality.LoadSamples(o.OCR, o.Truth, lex)
 	if err != nil {
 		return err
 	}
 	for _, p := range problems {
-		fmt.Fprintf(g.stderr, "recto: calibrate: skipped: %v\n", p)
+		g.printf("skipped: %v", p)
 	}
 	if err := ctx.Err(); err != nil {
 		return err
@@ -136,13 +152,18 @@ func runCalibrate(ctx context.Context, o CalibrateOptions, g GlobalOptions) erro
 	rep := calibrateReport{Model: o.Out, Pages: len(samples) + len(problems), Fitted: len(fit), HeldOut: len(held),
 		Skipped: len(problems), Evaluation: ev, TargetsMet: met, Checks: checks,
 		RecordCut: factorOf(m.Record) * th.Rescan, TextCut: factorOf(m.Text) * th.Rescan}
-	if o.Format == "json" {
+	switch o.Format {
+	case "json":
 		enc := json.NewEncoder(g.stdout)
 		enc.SetIndent("", "  ")
 		if err := enc.Encode(jsonSafe(rep)); err != nil {
 			return err
 		}
-	} else {
+	case "csv":
+		if err := writeCalibrateCSV(g.stdout, rep); err != nil {
+			return err
+		}
+	default:
 		writeCalibrateText(g.stdout, rep)
 	}
 	if len(problems) > 0 {
@@ -161,6 +182,25 @@ func jsonSafe(r calibrateReport) calibrateReport {
 		}
 	}
 	return r
+}
+
+func writeCalibrateCSV(w io.Writer, r calibrateReport) error {
+	e := r.Evaluation
+	fig := func(x float64) string {
+		if math.IsNaN(x) {
+			return ""
+		}
+		return strconv.FormatFloat(x, 'f', 4, 64)
+	}
+	cw := csv.NewWriter(w)
+	cw.Write([]string{"model", "pages", "fitted", "held_out", "skipped", "spearman", "mae", "precision", "recall",
+		"clean_accepted", "true_pos", "false_pos", "false_neg", "record_rescan_cut", "text_rescan_cut", "targets_met"})
+	cw.Write([]string{r.Model, strconv.Itoa(r.Pages), strconv.Itoa(r.Fitted), strconv.Itoa(r.HeldOut), strconv.Itoa(r.Skipped),
+		fig(e.Spearman), fig(e.MAE), fig(e.Precision), fig(e.Recall), fig(e.CleanAccepted),
+		strconv.Itoa(e.TruePos), strconv.Itoa(e.FalsePos), strconv.Itoa(e.FalseNeg),
+		fig(r.RecordCut), fig(r.TextCut), strconv.FormatBool(r.TargetsMet)})
+	cw.Flush()
+	return cw.Error()
 }
 
 func writeCalibrateText(w io.Writer, r calibrateReport) {

@@ -17,10 +17,12 @@ import (
 	"github.com/spf13/cobra"
 
 	"recto/correct"
+	"recto/internal/atomicfile"
 	"recto/lexicon"
 	"recto/ocr"
 	"recto/ocr/alto"
 	"recto/ocr/par"
+	"recto/quality"
 )
 
 // CorrectOptions are the options of `recto correct`.
@@ -28,7 +30,8 @@ type CorrectOptions struct {
 	Out        string  // output directory; must not be IN or inside it
 	DryRun     bool    // list the changes on stdout, write nothing
 	Model      string  // model file from `recto correct train`; "" for the embedded one
-	Lexicon    string  // lexicon file; "" for the embedded English one
+	Lexicon    string  // lexicon file; "" to choose by Lang
+	Lang       string  // engine language list ("nor", "eng+deu"); "" for the page records' own, else eng
 	Margin     float64 // natural-log odds a correction must win by; 0 = default
 	Jobs       int     // pages corrected in parallel; 0 means GOMAXPROCS
 	Collection bool    // add the input pages' own word counts to the context model
@@ -41,7 +44,7 @@ type CorrectTrainOptions struct {
 	OCR      string // directory of OCR .txt files
 	Truth    string // directory of ground-truth .txt files, same relative names
 	Out      string // model file to write
-	MinCount int    // drop longer confusions seen fewer times; 0 = default
+	MinCount int64  // drop longer confusions seen fewer times; 0 = default
 }
 
 func newCorrectCommand(g *GlobalOptions) *cobra.Command {
@@ -58,7 +61,8 @@ change) and a corrected record is written too; when <name>.alto.xml is
 beside it, a corrected ALTO file is written with the engine's reading kept
 as an ALTERNATIVE of each changed word. Outputs go under --out with the
 same relative names, and DIR/changes.jsonl lists every change, one JSON
-object a line: page, line, column (1-based, in characters), before, after,
+object a line: title, page (named as in 'recto score': the title is the
+first folder under IN, the page its path without extension), line, column (1-based, in characters), before, after,
 score (how much likelier the correction is, as a natural-log ratio).
 
 A word is changed only when the best candidate beats the word as read by
@@ -85,6 +89,11 @@ The files under IN are never modified: --out must be another folder.
   recto correct scans/ocr --out scans/corrected
   recto correct scans/ocr --dry-run
   recto correct train --ocr corpus/ocr --truth corpus/truth --out my.model
+` + langHelp + `
+Without a lexicon for the language only language-independent fixes are
+made (stray marks): no word is changed into a word of another language.
+The error model (character confusions) is the same for every Latin-script
+language. Each line of changes.jsonl names the language ("lang").
 ` + exitStatusHelp,
 		Args: cobra.ExactArgs(1),
 		PreRunE: func(cmd *cobra.Command, args []string) error {
@@ -106,13 +115,15 @@ The files under IN are never modified: --out must be another folder.
 	f := cmd.Flags()
 	f.StringVarP(&o.Out, "out", "o", "", "write corrected pages and changes.jsonl under `dir`")
 	f.BoolVar(&o.DryRun, "dry-run", false, "list the changes on stdout without writing anything")
-	f.StringVar(&o.Model, "model", "", "error model `file` from 'recto correct train' (default: embedded)")
-	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` (default: embedded English)")
+	f.StringVar(&o.Model, "correction-model", "", "error model `file` from 'recto correct train' (default: embedded)")
+	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` (default: the one of --lang)")
+	f.StringVarP(&o.Lang, "lang", "l", "", "engine `languages` of the pages, e.g. nor or eng+deu (default: as recorded by recto ocr, else eng)")
 	f.Float64Var(&o.Margin, "margin", 0, fmt.Sprintf("log-odds `margin` a correction must win by (0 = %g; higher is more cautious)", correct.DefaultMargin))
 	f.IntVarP(&o.Jobs, "jobs", "j", 0, "pages corrected in parallel (`n`; default: number of CPUs)")
 	f.BoolVar(&o.Collection, "collection", false, "also count the input pages' known words and word pairs for the context")
 	f.BoolVar(&o.KeepMarks, "keep-marks", false, "leave stray marks (tokens with no letter or digit) in the text")
 	f.BoolVar(&o.MapGlyphs, "map-glyphs", false, "rewrite punctuation glyphs as the model's ground truth has them (curly/straight quotes)")
+	oldName(cmd, "model", "correction-model")
 	cmd.AddCommand(newCorrectTrainCommand(g))
 	return cmd
 }
@@ -134,7 +145,7 @@ it there (for deleting strays), and character by character to count which
 character of the ground truth stands against each punctuation glyph read
 (for --map-glyphs).
 The model file (versioned, gzip-compressed JSON) is used with
-'recto correct --model'.
+'recto correct --correction-model' and 'recto run --correction-model'.
 ` + exitStatusHelp,
 		Args: cobra.NoArgs,
 		PreRunE: func(cmd *cobra.Command, args []string) error {
@@ -154,7 +165,7 @@ The model file (versioned, gzip-compressed JSON) is used with
 	f.StringVar(&o.OCR, "ocr", "", "`dir` of OCR output (.txt)")
 	f.StringVar(&o.Truth, "truth", "", "`dir` of ground truth (.txt, same names)")
 	f.StringVarP(&o.Out, "out", "o", "", "model `file` to write")
-	f.IntVar(&o.MinCount, "min-count", 0, "drop confusions of three or more characters seen fewer than `n` times (0 = 2)")
+	f.Int64Var(&o.MinCount, "min-count", 0, "drop confusions of three or more characters seen fewer than `n` times (0 = 2)")
 	return cmd
 }
 
@@ -175,21 +186,19 @@ type correctResult struct {
 
 // changeLine is one line of changes.jsonl.
 type changeLine struct {
+	Title  string  `json:"title"`
 	Page   string  `json:"page"`
 	Line   int     `json:"line"`
 	Column int     `json:"column"`
 	Before string  `json:"before"`
 	After  string  `json:"after"`
 	Score  float64 `json:"score"`
+	Lang   string  `json:"lang"` // the language the page was corrected in (--lang)
 }
 
 func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in string) error {
-	st, err := os.Stat(in)
-	if err != nil {
-		return fmt.Errorf("correct: %w", err)
-	}
-	if !st.IsDir() {
-		return usagef("correct: %q is not a folder (give the folder 'recto ocr' wrote)", in)
+	if err := checkDir("IN", in); err != nil {
+		return fmt.Errorf("%w (give the folder 'recto ocr' wrote)", err)
 	}
 	if o.Out != "" {
 		if inside, err := within(o.Out, in); err != nil {
@@ -211,12 +220,21 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 			return err
 		}
 	}
-	lex := lexicon.Default()
-	if o.Lexicon != "" {
-		if lex, err = lexicon.Load(o.Lexicon); err != nil {
-			return err
-		}
+	lc, err := chooseLanguage(o.Lang, o.Lexicon, func() string { return recordedCorrectLang(in, pages) },
+		"correction makes only language-independent fixes (stray marks) and changes no word")
+	if err != nil {
+		return err
 	}
+	if lc.note != "" {
+		g.printf("%s", lc.note)
+	}
+	lex := lc.lex
+	if lex == nil {
+		// No lexicon for the language: an empty one offers no word to
+		// change a word into, and joins no hyphenated halves.
+		lex = lexicon.New()
+	}
+	o.Lang = lc.Lang
 	cfg := correct.Config{Margin: o.Margin, KeepMarks: o.KeepMarks, MapGlyphs: o.MapGlyphs}
 	if o.Collection {
 		cfg.Collection = collectionCounts(in, pages, lex)
@@ -231,6 +249,10 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 		return err
 	}
 
+	rootName := filepath.Base(in)
+	if abs, err := filepath.Abs(in); err == nil {
+		rootName = filepath.Base(abs)
+	}
 	var lines bytes.Buffer
 	enc := json.NewEncoder(&lines)
 	enc.SetEscapeHTML(false)
@@ -238,12 +260,13 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 	for i, r := range results {
 		if r.err != nil {
 			failed++
-			fmt.Fprintf(g.stderr, "recto: %v\n", r.err)
+			g.printf("%v", r.err)
 			continue
 		}
 		for _, ch := range r.changes {
 			total++
-			_ = enc.Encode(changeLine{Page: pages[i].rel, Line: ch.Line, Column: ch.Column, Before: ch.Before, After: ch.After, Score: ch.Score})
+			title, _ := quality.TitlePage(pages[i].rel, rootName)
+			_ = enc.Encode(changeLine{Title: title, Page: pages[i].rel, Line: ch.Line, Column: ch.Column, Before: ch.Before, After: ch.After, Score: ch.Score, Lang: o.Lang})
 		}
 	}
 	if o.DryRun {
@@ -256,7 +279,7 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 		}
 	}
 	if !g.Quiet {
-		fmt.Fprintf(g.stderr, "correct: %d changes in %d pages\n", total, len(pages)-failed)
+		g.printf("%d changes in %d pages", total, len(pages)-failed)
 	}
 	if failed == len(pages) {
 		return fmt.Errorf("correct: every page failed")
@@ -352,7 +375,7 @@ func correctOne(c *correct.Corrector, in string, o CorrectOptions, p correctPage
 	warn := func(format string, args ...any) {
 		if !g.Quiet {
 			mu.Lock()
-			fmt.Fprintf(g.stderr, format, args...)
+			g.printf(format, args...)
 			mu.Unlock()
 		}
 	}
@@ -369,9 +392,12 @@ func correctOne(c *correct.Corrector, in string, o CorrectOptions, p correctPage
 			}
 		}
 		if len(rec.Words) == 0 {
-			warn("correct: %q: empty page, copied as it is\n", base+ocr.SuffixRecord)
+			warn("%q: empty page, copied as it is", base+ocr.SuffixRecord)
 		}
 		out, changes := c.CorrectRecord(rec)
+		if out.Lang == "" {
+			out.Lang = o.Lang
+		}
 		if o.DryRun {
 			return correctResult{changes: changes}
 		}
@@ -407,7 +433,7 @@ func correctOne(c *correct.Corrector, in string, o CorrectOptions, p correctPage
 		return correctResult{err: fmt.Errorf("correct: %q: not valid UTF-8 text (at byte %d)", base+ocr.SuffixText, firstInvalid(data))}
 	}
 	if len(bytes.TrimSpace(data)) == 0 {
-		warn("correct: %q: empty page, copied as it is\n", base+ocr.SuffixText)
+		warn("%q: empty page, copied as it is", base+ocr.SuffixText)
 	}
 	out, changes := c.CorrectText(string(data))
 	if !o.DryRun {
@@ -429,31 +455,8 @@ func firstInvalid(b []byte) int {
 	return len(b)
 }
 
-// writeFileAtomic writes data to path through a temporary file in the same
-// directory, creating missing directories.
-func writeFileAtomic(path string, data []byte) error {
-	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-		return fmt.Errorf("correct: %w", err)
-	}
-	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*")
-	if err != nil {
-		return fmt.Errorf("correct: %w", err)
-	}
-	if _, err := f.Write(data); err != nil {
-		f.Close()
-		os.Remove(f.Name())
-		return fmt.Errorf("correct: %q: %w", path, err)
-	}
-	if err := f.Close(); err != nil {
-		os.Remove(f.Name())
-		return fmt.Errorf("correct: %q: %w", path, err)
-	}
-	if err := os.Rename(f.Name(), path); err != nil {
-		os.Remove(f.Name())
-		return fmt.Errorf("correct: %w", err)
-	}
-	return nil
-}
+// writeFileAtomic writes data to path through the one atomic writer.
+func writeFileAtomic(path string, data []byte) error { return atomicfile.Write(path, data) }
 
 // collectionCounts counts the words the lexicon knows, and pairs of them,
 // over the pages' text. Unknown words are not counted: an OCR error that
@@ -502,7 +505,7 @@ func runCorrectTrain(ctx context.Context, o CorrectTrainOptions, g GlobalOptions
 		if errors.Is(err, fs.ErrNotExist) {
 			missing++
 			if !g.Quiet {
-				fmt.Fprintf(g.stderr, "correct train: no OCR twin for %q, skipped\n", path)
+				g.printf("no OCR twin for %q, skipped", path)
 			}
 			return nil
 		}
@@ -518,14 +521,14 @@ func runCorrectTrain(ctx context.Context, o CorrectTrainOptions, g GlobalOptions
 	if len(pairs) == 0 {
 		return fmt.Errorf("correct train: no page of %q has an OCR twin under %q", o.Truth, o.OCR)
 	}
-	m := correct.Train(pairs, correct.TrainOptions{MinCount: o.MinCount, Prior: correct.Classic})
+	m := correct.Train(pairs, correct.TrainOptions{MinCount: int(o.MinCount), Prior: correct.Classic})
 	if err := m.Save(o.Out); err != nil {
 		return err
 	}
 	if !g.Quiet {
-		fmt.Fprintf(g.stderr, "correct train: %d pairs (%d without OCR twin), %d reference characters, %d confusions\n",
+		g.printf("%d pairs (%d without OCR twin), %d reference characters, %d confusions",
 			len(pairs), missing, m.Chars(), len(m.Rules()))
-		fmt.Fprintf(g.stderr, "correct train: %s\n", trainSummary(m))
+		g.printf("%s", trainSummary(m))
 	}
 	return nil
 }
@@ -585,4 +588,19 @@ func readUTF8(path string) (string, error) {
 		return "", fmt.Errorf("correct train: %q: not valid UTF-8 text (at byte %d)", path, firstInvalid(data))
 	}
 	return string(data), nil
+}
+
+// recordedCorrectLang returns the language recorded in the first page
+// record under in ("" when none has one).
+func recordedCorrectLang(in string, pages []correctPage) string {
+	for _, p := range pages {
+		if !p.json {
+			continue
+		}
+		rec, err := ocr.ReadRecord(filepath.Join(in, filepath.FromSlash(p.rel)) + ocr.SuffixRecord)
+		if err == nil && rec.Lang != "" {
+			return rec.Lang
+		}
+	}
+	return ""
 }

@@ -4,6 +4,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"io"
 	"math/rand/v2"
 	"os"
 	"os/exec"
@@ -229,7 +230,7 @@ func TestUnknownCommandExit2(t *testing.T) {
 	if err == nil {
 		t.Fatal("an unknown command succeeded")
 	}
-	if st := exitCode(context.Background(), err); st != exitUsage {
+	if st := exitCode(context.Background(), io.Discard, "recto", err); st != exitUsage {
 		t.Errorf("exit status %d for %v, want %d", st, err, exitUsage)
 	}
 }

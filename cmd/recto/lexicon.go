@@ -20,6 +20,7 @@ type LexiconBuildOptions struct {
 	Out      string   // output lexicon file
 	MinText  int64    // see lexicon.BuildOptions.MinTextCount
 	MinPair  int64    // see lexicon.BuildOptions.MinBigramCount
+	Lang     string   // build a language's lexicon from its recipe (lexicon_lang.go)
 }
 
 func newLexiconCommand(g *GlobalOptions) *cobra.Command {
@@ -39,7 +40,7 @@ for the vocabulary of your collection with 'recto lexicon build'.`,
 func newLexiconBuildCommand(g *GlobalOptions) *cobra.Command {
 	var o LexiconBuildOptions
 	cmd := &cobra.Command{
-		Use:   "build --out FILE [--words LIST]... [--hunspell DIC]... [--text DIR]...",
+		Use:   "build (--lang CODE | --out FILE [--words LIST]... [--hunspell DIC]... [--text DIR]...)",
 		Short: "Build a lexicon file from word lists, Hunspell dictionaries and running text",
 		Long: `Build a lexicon file from any combination of sources:
 
@@ -58,10 +59,27 @@ the text joins the lexicon when it occurs at least --min-count times (default
 occurrences (default 2). All input must be UTF-8. Words are stored by key:
 NFC, lower case, diacritics kept. Output ending in .gz is compressed.
 
-Example (rebuilds the embedded English lexicon):
+  --lang CODE      build the lexicon of a language from the installed Debian
+                   packages: nob (Norwegian Bokmål: wnorwegian, hunspell-no),
+                   nno (Norwegian Nynorsk: the same packages), deu (German:
+                   wngerman, hunspell-de-de). Word lists and the dictionary's
+                   compounding rules give the words; the translated messages
+                   of the gettext catalogs under /usr/share/locale/LL give the
+                   counts. Without --out it is written where --lang finds it
+                   ($RECTO_LEXICONS, else ~/.local/share/recto/lexicons), with
+                   CODE.sources.md beside it (packages, versions, licences,
+                   how much text was counted). --lang nor on the other
+                   commands uses both nob and nno; deu serves frk too.
+
+Example (the Norwegian and German lexicons):
+  recto lexicon build --lang nob && recto lexicon build --lang nno && recto lexicon build --lang deu
+
+Example (a word list from Debian's wamerican, counts from your own texts):
   recto lexicon build --words /usr/share/dict/american-english \
-    --text /work/data/moby/package/data --text /work/data/sotu/package/data \
-    --out lexicon/data/en.lex.gz` + exitStatusHelp,
+    --text transcriptions/ --out english.lex.gz
+
+(The embedded English lexicon's exact rebuild command and its sources are in
+lexicon/data/SOURCES.md of the source tree.)` + exitStatusHelp,
 		Args: cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, args []string) error {
 			return runLexiconBuild(cmd.Context(), o, *g)
@@ -72,6 +90,7 @@ Example (rebuilds the embedded English lexicon):
 	f.StringArrayVar(&o.Hunspell, "hunspell", nil, "Hunspell `dic` file, .aff beside it, or DIC:AFF (repeatable)")
 	f.StringArrayVar(&o.Text, "text", nil, "`folder` of .txt running text to count (repeatable)")
 	f.StringVarP(&o.Out, "out", "o", "", "output lexicon `file` (.gz to compress)")
+	f.StringVar(&o.Lang, "lang", "", "build the lexicon of language `code` (nob, nno, deu) from the installed Debian packages")
 	f.Int64Var(&o.MinText, "min-count", 0, "occurrences a text-only word needs to be kept (0: 3 with a list, else 1)")
 	f.Int64Var(&o.MinPair, "min-pair", 0, "occurrences a word pair needs to be kept (0: 2)")
 	return cmd
@@ -79,7 +98,16 @@ Example (rebuilds the embedded English lexicon):
 
 func runLexiconBuild(ctx context.Context, o LexiconBuildOptions, g GlobalOptions) error {
 	if o.Out == "" {
-		return usagef("lexicon build: --out is required")
+		if o.Lang != "" {
+			return runLexiconBuildLang(o, g)
+		}
+		return usagef("lexicon build: --out is required (or --lang)")
+	}
+	if o.Lang != "" {
+		if len(o.Words)+len(o.Hunspell)+len(o.Text) > 0 {
+			return usagef("lexicon build: --lang takes its sources from its recipe; give --words/--hunspell/--text without it")
+		}
+		return runLexiconBuildLang(o, g)
 	}
 	if len(o.Words)+len(o.Hunspell)+len(o.Text) == 0 {
 		return usagef("lexicon build: give at least one source (--words, --hunspell or --text)")

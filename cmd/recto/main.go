@@ -7,41 +7,52 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"io"
 	"os"
 	"os/signal"
-	"strings"
 	"syscall"
+
+	"recto/cmd/internal/cli"
 )
 
 func main() {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
 	root := newRootCommand()
-	err := root.ExecuteContext(ctx)
-	os.Exit(exitCode(ctx, err))
+	cmd, err := root.ExecuteContextC(ctx)
+	name := "recto"
+	if cmd != nil {
+		name = cmd.CommandPath()
+	}
+	os.Exit(exitCode(ctx, os.Stderr, name, err))
 }
 
-// exitCode prints err to stderr in the form its kind calls for and returns
-// the process exit status; it is the one place that maps errors to codes.
-func exitCode(ctx context.Context, err error) int {
+// exitCode prints err to w as "<command>: message" (command is "recto
+// score", say) and returns the process exit status; it is the one place
+// that maps errors to codes.
+func exitCode(ctx context.Context, w io.Writer, command string, err error) int {
 	if err == nil {
 		return exitOK
 	}
+	msg := cli.Message(command, err)
 	var ue *usageError
 	var pe *partialError
+	var se *cli.SetupError
 	switch {
 	case ctx.Err() != nil || errors.Is(err, context.Canceled):
-		fmt.Fprintln(os.Stderr, "recto: interrupted")
+		fmt.Fprintf(w, "%s: interrupted\n", command)
 		return exitInterrupted
-	case errors.As(err, &ue) || strings.HasPrefix(err.Error(), "unknown command "):
-		// cobra reports an unknown command with a plain error: a usage error too.
-		fmt.Fprintf(os.Stderr, "recto: %v\nRun 'recto --help' for usage.\n", err)
+	case errors.As(err, &ue) || cli.IsCobraUsage(err):
+		fmt.Fprintf(w, "%s: %s\nRun '%s --help' for usage.\n", command, msg, command)
 		return exitUsage
+	case errors.As(err, &se):
+		fmt.Fprintf(w, "%s: %s\n", command, msg)
+		return cli.ExitSetup
 	case errors.As(err, &pe):
-		fmt.Fprintf(os.Stderr, "recto: %v\n", err)
+		fmt.Fprintf(w, "%s: %s\n", command, msg)
 		return exitPartial
 	default:
-		fmt.Fprintf(os.Stderr, "recto: %v\n", err)
+		fmt.Fprintf(w, "%s: %s\n", command, msg)
 		return exitFailure
 	}
 }

@@ -4,28 +4,27 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"io"
-	"io/fs"
 	"os"
 	"path/filepath"
 	"runtime"
 	"sort"
 	"strings"
-	"sync/atomic"
-	"time"
 
-	"github.com/mattn/go-isatty"
 	"github.com/spf13/cobra"
 
+	"recto/cmd/internal/cli"
+	"recto/cmd/internal/progress"
+	"recto/cmd/internal/run"
+	"recto/internal/atomicfile"
 	"recto/ocr"
 	"recto/ocr/tesseract"
+	"recto/quality"
 )
 
 // Engine hooks, swapped for a fake in tests (the C library is optional).
 var (
-	newEngine      = tesseract.New
-	tessLanguages  = tesseract.Languages
-	progressPeriod = 5 * time.Second // plain progress lines when stderr is not a terminal
+	newEngine     = tesseract.New
+	tessLanguages = tesseract.Languages
 )
 
 // OCROptions are the flags of `recto ocr`.
@@ -50,9 +49,9 @@ func (o *OCROptions) AddFlags(c *cobra.Command) {
 	f := c.Flags()
 	f.StringVarP(&o.Out, "out", "o", "", "write outputs under `dir` (required)")
 	f.StringVarP(&o.Lang, "lang", "l", "eng", "Tesseract `languages`, e.g. eng or eng+deu")
-	f.IntVarP(&o.Jobs, "jobs", "j", runtime.NumCPU(), "recognise `n` pages in parallel")
+	f.IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages at once (0: one per core)")
 	f.IntVar(&o.PSM, "psm", 0, "Tesseract page segmentation `mode` 1-13 (0: Tesseract's default, 3)")
-	f.Float64Var(&o.DPI, "dpi", ocr.DefaultDPI, "resolution of images without a resolution tag, in `dpi`")
+	f.Float64Var(&o.DPI, "dpi", 0, "resolution of images without a resolution tag, in `dpi` (default: estimated from the size of the text, else 300)")
 	f.IntVar(&o.MaxPixels, "max-pixels", ocr.DefaultMaxPixels, "refuse images larger than `n` pixels")
 	f.BoolVar(&o.KeepImages, "keep-images", false, "also write the prepared image as <name>.prepared.png")
 	f.BoolVar(&o.NoPrepare, "no-prepare", false, "hand the greyscale page to Tesseract without preparation")
@@ -94,13 +93,16 @@ func (o *OCROptions) options() (ocr.Options, tesseract.Config, error) {
 		return ocr.Options{}, tesseract.Config{}, usagef("--max-skew %g: want 0 to 45 degrees", o.MaxSkew)
 	}
 	prep.MaxSkew = o.MaxSkew
-	if o.Jobs < 1 {
-		return ocr.Options{}, tesseract.Config{}, usagef("--jobs %d: want 1 or more", o.Jobs)
+	if o.Jobs < 0 {
+		return ocr.Options{}, tesseract.Config{}, usagef("--jobs %d: want 0 (one per core) or more", o.Jobs)
+	}
+	if o.Jobs == 0 {
+		o.Jobs = runtime.GOMAXPROCS(0)
 	}
 	if o.PSM < 0 || o.PSM > 13 {
 		return ocr.Options{}, tesseract.Config{}, usagef("--psm %d: want 0 to 13", o.PSM)
 	}
-	if o.DPI < 70 || o.DPI > 2400 {
+	if o.DPI != 0 && (o.DPI < 70 || o.DPI > 2400) {
 		return ocr.Options{}, tesseract.Config{}, usagef("--dpi %g: want 70 to 2400", o.DPI)
 	}
 	if o.MaxPixels < 1 {
@@ -115,6 +117,7 @@ func (o *OCROptions) options() (ocr.Options, tesseract.Config, error) {
 			DPI:       o.DPI,
 			MaxPixels: o.MaxPixels,
 			KeepImage: o.KeepImages,
+			Lang:      o.Lang,
 		}, tesseract.Config{
 			Lang: o.Lang,
 			PSM:  o.PSM,
@@ -128,9 +131,10 @@ func newOCRCommand(g *GlobalOptions) *cobra.Command {
 		Short: "Prepare page images and recognise them with Tesseract",
 		Long: `Prepare page images and recognise them with Tesseract.
 
-IN is a page image or a folder searched recursively for TIFF, PNG and JPEG
-files (.tif .tiff .png .jpg .jpeg, any case; hidden files and folders are
-skipped). For each page, under DIR and keeping IN's folder structure:
+IN is a page file or a folder searched recursively for page files (TIFF,
+PNG, JPEG, BMP, GIF, WebP, JPEG 2000, PNM and PDF: .tif .tiff .png .jpg
+.jpeg .bmp .gif .webp .jp2 .j2k .pnm .pbm .pgm .ppm .pdf, any case; hidden
+files and folders are skipped), the same list as 'recto run'. For each page, under DIR and keeping IN's folder structure:
 
   <name>.txt       the text, lines in reading order, blocks apart by a blank line
   <name>.alto.xml  ALTO v4: blocks, lines and words with confidences and
@@ -141,7 +145,8 @@ skipped). For each page, under DIR and keeping IN's folder structure:
 
 <name> is the image's name without its extension, or with it when two images
 in one folder share a name (p1.tif and p1.png give p1.tif.txt and p1.png.txt).
-DIR/failures.tsv lists the pages that failed (path, problem), with a header
+DIR/failures.tsv lists the pages that failed (title, page, image, error;
+pages named as in 'recto score'), with a header
 line; it is written on every run. Files under IN are only read. DIR may lie
 inside IN: it is skipped while searching; DIR may not be IN itself.
 
@@ -194,7 +199,7 @@ func runOCR(ctx context.Context, o OCROptions, g GlobalOptions, args []string) e
 		return err
 	}
 	if len(pages) == 0 {
-		return fmt.Errorf("ocr: no page images (.tif, .tiff, .png, .jpg, .jpeg) under %q", in)
+		return fmt.Errorf("no page files (%s) under %q", strings.Join(ocr.PageExtensions(), " "), in)
 	}
 
 	// One level of parallelism: pages run in parallel. imaging v1.6.2, the
@@ -208,7 +213,7 @@ func runOCR(ctx context.Context, o OCROptions, g GlobalOptions, args []string) e
 	for i, p := range pages {
 		paths[i] = p.path
 	}
-	prog := newProgress(g, len(pages))
+	prog := progress.New(g.stderr, g.prefix(), g.Quiet, len(pages))
 	results, err := ocr.RunBatch(ctx, paths, ocr.BatchConfig{
 		Jobs:      o.Jobs,
 		NewEngine: func() (ocr.Engine, error) { return newEngine(cfg) },
@@ -229,17 +234,22 @@ func runOCR(ctx context.Context, o OCROptions, g GlobalOptions, args []string) e
 		r.Prepared = nil
 		if r.Err != nil {
 			failures = append(failures, r)
-			prog.fail(r.Err)
+			prog.Message(g.prefix() + ": " + cli.Message(g.prefix(), r.Err))
+			prog.Add(true)
 		} else {
 			for _, w := range r.Record.Warnings {
-				prog.warn(r.Path, w)
+				prog.Message(fmt.Sprintf("%s: warning: %q: %s", g.prefix(), r.Path, w))
 			}
-			prog.done()
+			prog.Add(false)
 		}
 	}
-	prog.finish()
+	prog.Finish()
 	sort.Slice(failures, func(i, j int) bool { return failures[i].Index < failures[j].Index })
-	if err := writeFailures(filepath.Join(o.Out, "failures.tsv"), failures); err != nil {
+	rootName := filepath.Base(in)
+	if abs, err := filepath.Abs(in); err == nil {
+		rootName = filepath.Base(abs)
+	}
+	if err := writeFailures(filepath.Join(o.Out, "failures.tsv"), rootName, pages, failures); err != nil {
 		return err
 	}
 	if ctx.Err() != nil {
@@ -254,17 +264,13 @@ func runOCR(ctx context.Context, o OCROptions, g GlobalOptions, args []string) e
 	return nil
 }
 
-// imageExt lists the suffixes of page images, lower case.
-var imageExt = map[string]bool{".tif": true, ".tiff": true, ".png": true, ".jpg": true, ".jpeg": true}
-
-// findPages lists the page images under in (or in itself when it is a
-// file), sorted, with their output names; out is skipped when it lies
-// inside in. Hidden files and folders (names starting with ".") are
-// skipped, so are files with other suffixes.
+// findPages lists the page files under in (or in itself when it is a
+// file) with their output names, through the run's walker (one list of
+// formats for every command); out is skipped when it lies inside in.
 func findPages(in, out string) ([]page, error) {
 	info, err := os.Stat(in)
 	if err != nil {
-		return nil, fmt.Errorf("ocr: %w", err)
+		return nil, checkDir("IN", in)
 	}
 	if !info.IsDir() {
 		// A single file is taken whatever its suffix; decoding judges it.
@@ -272,82 +278,44 @@ func findPages(in, out string) ([]page, error) {
 	}
 	absIn, err := filepath.Abs(in)
 	if err != nil {
-		return nil, fmt.Errorf("ocr: %w", err)
+		return nil, err
 	}
 	absOut, err := filepath.Abs(out)
 	if err != nil {
-		return nil, fmt.Errorf("ocr: %w", err)
+		return nil, err
 	}
 	if absIn == absOut {
-		return nil, usagef("ocr: --out %q is the input folder; choose another folder so that no input is overwritten", out)
+		return nil, usagef("--out %q is the input folder; choose another folder so that no input is overwritten", out)
 	}
-	var found []string
-	err = filepath.WalkDir(in, func(path string, d fs.DirEntry, err error) error {
-		if err != nil {
-			return fmt.Errorf("ocr: %w", err)
-		}
-		name := d.Name()
-		if d.IsDir() {
-			if path != in && strings.HasPrefix(name, ".") {
-				return fs.SkipDir
-			}
-			if abs, err := filepath.Abs(path); err == nil && abs == absOut {
-				return fs.SkipDir
-			}
-			return nil
-		}
-		if strings.HasPrefix(name, ".") || !d.Type().IsRegular() && d.Type()&fs.ModeSymlink == 0 {
-			return nil
-		}
-		if imageExt[strings.ToLower(filepath.Ext(name))] {
-			found = append(found, path)
-		}
-		return nil
-	})
+	imgs, _, err := run.FindImages(in, out)
 	if err != nil {
 		return nil, err
 	}
-	sort.Strings(found)
-	// Output names: the relative path without its suffix, or with it when
-	// two images in one folder share the stem.
-	stems := map[string]int{}
-	for _, p := range found {
-		rel, _ := filepath.Rel(in, p)
-		stems[strings.TrimSuffix(rel, filepath.Ext(rel))]++
-	}
-	pages := make([]page, len(found))
-	for i, p := range found {
-		rel, _ := filepath.Rel(in, p)
-		stem := strings.TrimSuffix(rel, filepath.Ext(rel))
-		if stems[stem] == 1 {
-			rel = stem
-		}
-		pages[i] = page{path: p, rel: filepath.ToSlash(rel)}
+	pages := make([]page, len(imgs))
+	for i, im := range imgs {
+		pages[i] = page{path: im.Path, rel: im.Stem}
 	}
 	return pages, nil
 }
 
 // writeFailures writes the failures list: a header line, then one line per
-// failed page, "path<TAB>problem", tabs and line breaks in the message
-// replaced by spaces.
-func writeFailures(path string, failures []ocr.Result) error {
+// failed page, "title<TAB>page<TAB>image<TAB>error" (the page named as in
+// recto score, after its output name; rootName is the title of images in
+// IN itself), tabs and line breaks in the message replaced by spaces.
+func writeFailures(path, rootName string, pages []page, failures []ocr.Result) error {
 	var b strings.Builder
-	b.WriteString("path\tproblem\n")
+	b.WriteString("title\tpage\timage\terror\n")
 	clean := strings.NewReplacer("\t", " ", "\n", " ", "\r", " ")
 	for _, f := range failures {
-		b.WriteString(clean.Replace(f.Path))
-		b.WriteByte('\t')
-		b.WriteString(clean.Replace(f.Err.Error()))
+		title, pg := quality.TitlePage(pages[f.Index].rel, rootName)
+		for _, c := range []string{title, pg, f.Path} {
+			b.WriteString(clean.Replace(c))
+			b.WriteByte('\t')
+		}
+		b.WriteString(clean.Replace(cli.Message("recto ocr", f.Err)))
 		b.WriteByte('\n')
 	}
-	tmp := path + ".tmp"
-	if err := os.WriteFile(tmp, []byte(b.String()), 0o644); err != nil {
-		return fmt.Errorf("ocr: %w", err)
-	}
-	if err := os.Rename(tmp, path); err != nil {
-		return fmt.Errorf("ocr: %w", err)
-	}
-	return nil
+	return atomicfile.Write(path, []byte(b.String()))
 }
 
 func contains(list []string, s string) bool {
@@ -357,84 +325,4 @@ func contains(list []string, s string) bool {
 		}
 	}
 	return false
-}
-
-// progress reports on stderr: one line per failed page always; counts
-// redrawn in place on a terminal, or a plain line every progressPeriod
-// otherwise; nothing but failures under --quiet.
-type progress struct {
-	w            io.Writer
-	quiet, tty   bool
-	total        int
-	ok, failed   atomic.Int64
-	start, last  time.Time
-	lastLineOpen bool
-}
-
-func newProgress(g GlobalOptions, total int) *progress {
-	p := &progress{w: g.stderr, quiet: g.Quiet, total: total, start: time.Now()}
-	p.last = p.start
-	if f, ok := g.stderr.(*os.File); ok {
-		p.tty = isatty.IsTerminal(f.Fd())
-	}
-	return p
-}
-
-func (p *progress) status() string {
-	n := p.ok.Load() + p.failed.Load()
-	el := time.Since(p.start).Seconds()
-	rate := 0.0
-	if el > 0 {
-		rate = float64(n) / el * 60
-	}
-	return fmt.Sprintf("ocr: %d/%d pages, %d failed, %.1f pages/min", n, p.total, p.failed.Load(), rate)
-}
-
-func (p *progress) clearLine() {
-	if p.lastLineOpen {
-		fmt.Fprint(p.w, "\r\033[K")
-		p.lastLineOpen = false
-	}
-}
-
-func (p *progress) fail(err error) {
-	p.failed.Add(1)
-	p.clearLine()
-	fmt.Fprintf(p.w, "recto: %v\n", err)
-	p.tick()
-}
-
-// warn reports something about a page that did not stop it; shown even
-// under --quiet, like failures.
-func (p *progress) warn(path, msg string) {
-	p.clearLine()
-	fmt.Fprintf(p.w, "recto: warning: %q: %s\n", path, msg)
-}
-
-func (p *progress) done() {
-	p.ok.Add(1)
-	p.tick()
-}
-
-func (p *progress) tick() {
-	if p.quiet {
-		return
-	}
-	if p.tty {
-		fmt.Fprint(p.w, "\r\033[K"+p.status())
-		p.lastLineOpen = true
-		return
-	}
-	if time.Since(p.last) >= progressPeriod {
-		p.last = time.Now()
-		fmt.Fprintln(p.w, p.status())
-	}
-}
-
-func (p *progress) finish() {
-	p.clearLine()
-	if p.quiet {
-		return
-	}
-	fmt.Fprintf(p.w, "%s in %.1fs\n", p.status(), time.Since(p.start).Seconds())
 }

@@ -14,6 +14,7 @@ import (
 	"strings"
 	"testing"
 
+	"recto/cmd/internal/progress"
 	"recto/ocr"
 	"recto/ocr/ocrtest"
 	"recto/ocr/tesseract"
@@ -123,7 +124,7 @@ func TestOCRTree(t *testing.T) {
 	}
 	tsv, _ := os.ReadFile(filepath.Join(out, "failures.tsv"))
 	lines := strings.Split(strings.TrimSpace(string(tsv)), "\n")
-	if len(lines) != 3 || lines[0] != "path\tproblem" || !strings.HasPrefix(lines[1], filepath.Join(in, "box1", "empty.tif")+"\t") {
+	if len(lines) != 3 || lines[0] != "title\tpage\timage\terror" || !strings.HasPrefix(lines[1], "box1\tbox1/empty\t"+filepath.Join(in, "box1", "empty.tif")+"\t") {
 		t.Errorf("failures.tsv:\n%s", tsv)
 	}
 	txt, _ := os.ReadFile(filepath.Join(out, "box1", "p0001.txt"))
@@ -202,7 +203,7 @@ func TestOCRUsage(t *testing.T) {
 		{"missing language", []string{"--lang", "eng+deu"}, "tesseract-ocr-deu"},
 		{"bad deskew", []string{"--deskew", "sometimes"}, "--deskew"},
 		{"bad binarize", []string{"--binarize", "niblack"}, "--binarize"},
-		{"zero jobs", []string{"--jobs", "0"}, "--jobs"},
+		{"negative jobs", []string{"--jobs", "-1"}, "--jobs"},
 		{"psm out of range", []string{"--psm", "14"}, "--psm"},
 		{"dpi out of range", []string{"--dpi", "5"}, "--dpi"},
 		{"unknown flag", []string{"--colour"}, "colour"},
@@ -226,7 +227,7 @@ func TestOCRUsage(t *testing.T) {
 		t.Errorf("missing IN: %v", err)
 	}
 	empty := t.TempDir()
-	if _, _, err := runRecto(t, "ocr", empty, "--out", out); err == nil || !strings.Contains(err.Error(), "no page images") {
+	if _, _, err := runRecto(t, "ocr", empty, "--out", out); err == nil || !strings.Contains(err.Error(), "no page files") {
 		t.Errorf("empty IN: %v", err)
 	}
 }
@@ -244,9 +245,9 @@ func TestOCRAllFail(t *testing.T) {
 
 func TestOCRProgressLines(t *testing.T) {
 	fakeEngine(t, "eng")
-	old := progressPeriod
-	progressPeriod = 0 // a line per page
-	t.Cleanup(func() { progressPeriod = old })
+	old := progress.PlainEvery
+	progress.PlainEvery = 0 // a line per page
+	t.Cleanup(func() { progress.PlainEvery = old })
 	in := t.TempDir()
 	for _, n := range []string{"a.png", "b.png", "c.png"} {
 		ocrtest.WritePNG(t, filepath.Join(in, n), testPage())
@@ -255,7 +256,7 @@ func TestOCRProgressLines(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	for _, want := range []string{"ocr: 1/3 pages, 0 failed", "ocr: 3/3 pages, 0 failed"} {
+	for _, want := range []string{"recto ocr: 1/3 pages", "recto ocr: 3/3 pages"} {
 		if !strings.Contains(stderr, want) {
 			t.Errorf("stderr lacks %q:\n%s", want, stderr)
 		}

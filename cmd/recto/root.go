@@ -2,8 +2,11 @@ package main
 
 import (
 	"errors"
+	"fmt"
 	"io"
+	"io/fs"
 	"os"
+	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -26,8 +29,66 @@ const exitStatusHelp = cli.ExitStatusHelp
 type GlobalOptions struct {
 	Quiet bool // no progress on stderr
 
-	stdout io.Writer
-	stderr io.Writer
+	stdout  io.Writer
+	stderr  io.Writer
+	command string // "recto score", "recto correct train": the prefix of messages
+}
+
+// prefix is what every message of the running command starts with,
+// before a colon: "recto <command>".
+func (g GlobalOptions) prefix() string {
+	if g.command == "" {
+		return "recto"
+	}
+	return g.command
+}
+
+// printf writes one message line on stderr: the command's prefix, then the
+// message with package prefixes taken out (cli.Message).
+func (g GlobalOptions) printf(format string, args ...any) {
+	fmt.Fprintf(g.stderr, "%s: %s\n", g.prefix(), cli.Message(g.prefix(), fmt.Errorf(format, args...)))
+}
+
+// oldName registers name as a hidden, deprecated spelling of the flag now
+// called to (same value), so that scripts written for older releases keep
+// working and say what to change.
+func oldName(c *cobra.Command, name, to string) {
+	f := c.Flags()
+	nf := f.Lookup(to)
+	f.Var(nf.Value, name, nf.Usage)
+	f.MarkHidden(name)
+	f.MarkDeprecated(name, "use --"+to)
+}
+
+// checkDir returns an error naming what (a flag such as "--truth", or an
+// argument's name) and dir when dir is not a readable folder.
+func checkDir(what, dir string) error {
+	fi, err := os.Stat(dir)
+	switch {
+	case errors.Is(err, fs.ErrNotExist):
+		return fmt.Errorf("%s %q: no such folder", what, dir)
+	case err != nil:
+		return fmt.Errorf("%s %q: %v", what, dir, errors.Unwrap(err))
+	case !fi.IsDir():
+		return fmt.Errorf("%s %q is a file, not a folder", what, dir)
+	}
+	return nil
+}
+
+// checkFormat checks a --format value against the formats a command
+// prints; "text", the name older releases used for the table, is taken as
+// "table".
+func checkFormat(f *string, allowed ...string) error {
+	if *f == "text" {
+		*f = "table"
+	}
+	for _, a := range allowed {
+		if *f == a {
+			return nil
+		}
+	}
+	want := strings.Join(allowed[:len(allowed)-1], ", ") + " or " + allowed[len(allowed)-1]
+	return usagef("--format %q: want %s", *f, want)
 }
 
 type (
@@ -56,6 +117,7 @@ corrects common OCR confusions, and measures CER and WER against ground truth.
 		PersistentPreRun: func(cmd *cobra.Command, args []string) {
 			g.stdout = cmd.OutOrStdout()
 			g.stderr = cmd.ErrOrStderr()
+			g.command = cmd.CommandPath()
 		},
 	}
 	root.PersistentFlags().BoolVarP(&g.Quiet, "quiet", "q", false, "no progress messages on stderr")

@@ -69,8 +69,8 @@ OUTPUT (stdout)
   json   one document {"normalization", "pages", "titles", "total", ...};
          pages, titles and total carry chars, char_errors, cer, words,
          word_errors, wer; pages also title, page (relative path without
-         .txt) and status (ok, missing, unreadable); titles also pages,
-         cer_mean, cer_low, cer_high; also missing, unmatched, failed and,
+         .txt) and status (ok, missing, failed); titles also pages,
+         mean_cer, cer_low, cer_high; also missing, unmatched, failed and,
          with --confusions, confusions
   csv    one row per page: title,page,status,chars,char_errors,cer,words,
          word_errors,wer,normalization (the same description on every row)
@@ -85,7 +85,7 @@ EXIT STATUS
   0    every reference page was scored against its hypothesis
   1    failure: unreadable --truth/--ocr, no reference page, nothing scored
   2    usage error: bad flag or option value
-  3    partial: some hypotheses missing or unreadable, or some references
+  3    partial: some hypotheses missing or failed to read, or some references
        unreadable (the rest were scored and reported)
   130  interrupted (SIGINT or SIGTERM)`
 
@@ -111,7 +111,7 @@ func newScoreCommand(g *GlobalOptions) *cobra.Command {
 	f.BoolVar(&o.FoldCase, "fold-case", false, "fold case before scoring")
 	f.BoolVar(&o.IgnorePunct, "ignore-punct", false, "ignore punctuation")
 	f.BoolVar(&o.PlainTypography, "plain-typography", false, "map typographic quotes, dashes, ligatures and long s to plain ones")
-	f.IntVar(&o.Jobs, "jobs", 0, "score `n` pages at once (0: one per core)")
+	f.IntVarP(&o.Jobs, "jobs", "j", 0, "score `n` pages at once (0: one per core)")
 	return cmd
 }
 
@@ -130,6 +130,11 @@ func runScore(ctx context.Context, o ScoreOptions, g GlobalOptions) error {
 	case o.Jobs < 0:
 		return usagef("score: --jobs %d: want 0 or more", o.Jobs)
 	}
+	for _, d := range [][2]string{{"--truth", o.Truth}, {"--ocr", o.OCR}} {
+		if err := checkDir(d[0], d[1]); err != nil {
+			return err
+		}
+	}
 	cfg := quality.DirConfig{
 		Norm:       quality.NormOptions{FoldCase: o.FoldCase, IgnorePunct: o.IgnorePunct, PlainTypography: o.PlainTypography},
 		Confusions: o.Confusions,
@@ -140,14 +145,14 @@ func runScore(ctx context.Context, o ScoreOptions, g GlobalOptions) error {
 		return fmt.Errorf("score: %w", err)
 	}
 	for _, fe := range rep.Failed {
-		fmt.Fprintf(g.stderr, "recto score: %v\n", fe)
+		g.printf("%v", fe)
 	}
 	for _, m := range rep.Missing {
-		fmt.Fprintf(g.stderr, "recto score: hypothesis %q is missing: page %q scored as empty text\n",
+		g.printf("hypothesis %q is missing: page %q scored as empty text",
 			filepath.Join(o.OCR, filepath.FromSlash(m+".txt")), m)
 	}
 	for _, u := range rep.Unmatched {
-		fmt.Fprintf(g.stderr, "recto score: hypothesis %q has no reference: not scored\n",
+		g.printf("hypothesis %q has no reference: not scored",
 			filepath.Join(o.OCR, filepath.FromSlash(u)))
 	}
 	switch o.Format {
@@ -221,7 +226,7 @@ type jsonTitle struct {
 	Title string `json:"title"`
 	Pages int    `json:"pages"`
 	jsonCounts
-	CERMean *float64 `json:"cer_mean"`
+	CERMean *float64 `json:"mean_cer"`
 	CERLow  *float64 `json:"cer_low"`
 	CERHigh *float64 `json:"cer_high"`
 }

@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/json"
 	"flag"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
@@ -26,11 +27,7 @@ func runScoreCmd(t *testing.T, args ...string) (stdout, stderr string, code int)
 
 // exitCodeQuiet maps err like exitCode without printing.
 func exitCodeQuiet(err error) int {
-	saved := os.Stderr
-	devnull, _ := os.Open(os.DevNull)
-	os.Stderr = devnull
-	defer func() { os.Stderr = saved; devnull.Close() }()
-	return exitCode(context.Background(), err)
+	return exitCode(context.Background(), io.Discard, "recto score", err)
 }
 
 const collection = "../../testdata/score/collection"
@@ -141,8 +138,8 @@ func TestScoreJSONShape(t *testing.T) {
 	if p := byPage["harbour-gazette/1902/p0001"]; p == nil || p["char_errors"].(float64) != 0 {
 		t.Errorf("NFD reference against NFC hypothesis: %v, want 0 errors", p)
 	}
-	if p := byPage["corvane-ledger/p0003"]; p == nil || p["status"] != "unreadable" || p["cer"].(float64) != 1 {
-		t.Errorf("hypothesis that is a directory: %v, want status unreadable and CER 1", p)
+	if p := byPage["corvane-ledger/p0003"]; p == nil || p["status"] != "failed" || p["cer"].(float64) != 1 {
+		t.Errorf("hypothesis that is a directory: %v, want status failed and CER 1", p)
 	}
 	if _, ok := byPage["harbour-gazette/1902/p0003"]; ok {
 		t.Error("a reference with invalid UTF-8 was scored")
@@ -222,9 +219,9 @@ func TestScoreUsageAndFailure(t *testing.T) {
 		{"csv confusions", []string{"score", "--truth", "x", "--ocr", "y", "--format", "csv", "--confusions", "3"}, exitUsage, "not available with --format csv"},
 		{"unknown flag", []string{"score", "--colour"}, exitUsage, "unknown flag"},
 		{"extra argument", []string{"score", "--truth", "x", "--ocr", "y", "z"}, exitUsage, "unknown command"},
-		{"truth absent", []string{"score", "--truth", filepath.Join(empty, "none"), "--ocr", empty}, exitFailure, "no such file"},
+		{"truth absent", []string{"score", "--truth", filepath.Join(empty, "none"), "--ocr", empty}, exitFailure, "--truth \"" + filepath.Join(empty, "none") + "\": no such folder"},
 		{"truth empty", []string{"score", "--truth", empty, "--ocr", empty}, exitFailure, "no reference pages"},
-		{"truth is a file", []string{"score", "--truth", collection + "/truth/phototest.txt", "--ocr", empty}, exitFailure, "is not a directory"},
+		{"truth is a file", []string{"score", "--truth", collection + "/truth/phototest.txt", "--ocr", empty}, exitFailure, "is a file, not a folder"},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {

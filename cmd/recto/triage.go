@@ -6,26 +6,30 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
-	"os"
 	"path/filepath"
 	"sort"
 	"strconv"
 	"strings"
 	"text/tabwriter"
+	"unicode/utf8"
 
 	"github.com/spf13/cobra"
 
+	"recto/cmd/internal/run/report"
+	"recto/internal/atomicfile"
 	"recto/lexicon"
+	"recto/ocr"
 	"recto/ocr/par"
 	"recto/quality"
 )
 
 // TriageOptions are the options of `recto triage`.
 type TriageOptions struct {
-	Format     string  // "text" or "json"
+	Format     string  // table, json or csv
 	RescanList string  // CSV file to write the pages to rescan to; "" for none
 	Model      string  // model file from `recto calibrate`; "" for the embedded one
-	Lexicon    string  // lexicon file; "" for the embedded English one
+	Lexicon    string  // lexicon file; "" to choose by Lang
+	Lang       string  // engine language list ("nor", "eng+deu"); "" for the page records' own, else eng
 	Rescan     float64 // rescan above this predicted CER (fraction)
 	Correct    float64 // correct above this predicted CER (fraction)
 	Jobs       int     // pages read in parallel; 0 means GOMAXPROCS
@@ -60,21 +64,33 @@ title is the first folder under OCRDIR, the page its path without extension.
 Each page gets plain-language reasons (share of words under confidence 60,
 share of words in the lexicon, share of garbage-looking words...). A
 summary per title follows. --rescan-list writes the pages to rescan as CSV
-(title, page, image, predicted_cer, reasons) for the scanning station.
+(title, page, image, predicted_cer, reasons) for the scanning station, in
+the same format as the rescan.csv of 'recto run'.
+
+OUTPUT (stdout)
+  table  (default) the pages, then the titles
+  json   {"pages", "titles", "failed"}; pages carry title, page, image,
+         predicted_cer, decision, reasons
+  csv    one row per page: title,page,image,decision,predicted_cer,reasons
 
 The estimate comes from a model fitted on recto's synthetic corpus; fit one
 on your own ground-truthed pages with 'recto calibrate' and pass it with
---model.` + exitStatusHelp,
+--quality-model.
+` + langHelp + `
+Without a lexicon for the language, the share of words in the lexicon
+and unknown words among the suspect words are not used: the estimate
+rests on confidences, garbage rules and the character mix, and each
+page's reasons say so.` + exitStatusHelp,
 		Args: cobra.ExactArgs(1),
 		PreRunE: func(cmd *cobra.Command, args []string) error {
-			if o.Format != "text" && o.Format != "json" {
-				return usagef("triage: --format must be text or json, not %q", o.Format)
+			if err := checkFormat(&o.Format, "table", "json", "csv"); err != nil {
+				return err
 			}
 			if err := (quality.Thresholds{Rescan: o.Rescan, Correct: o.Correct}).Validate(); err != nil {
-				return usagef("triage: %v", err)
+				return usagef("%v", err)
 			}
 			if o.Jobs < 0 {
-				return usagef("triage: --jobs must be positive")
+				return usagef("--jobs %d: want 0 (one per core) or more", o.Jobs)
 			}
 			return nil
 		},
@@ -83,13 +99,15 @@ on your own ground-truthed pages with 'recto calibrate' and pass it with
 		},
 	}
 	f := cmd.Flags()
-	f.StringVar(&o.Format, "format", "text", "output `format`: text or json")
+	f.StringVar(&o.Format, "format", "table", "output `format`: table, json or csv")
 	f.StringVar(&o.RescanList, "rescan-list", "", "write the pages to rescan to this CSV `file`")
-	f.StringVar(&o.Model, "model", "", "quality model `file` from 'recto calibrate' (default: embedded)")
-	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` (default: embedded English)")
+	f.StringVar(&o.Model, "quality-model", "", "quality model `file` from 'recto calibrate' (default: embedded)")
+	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` (default: the one of --lang)")
+	f.StringVarP(&o.Lang, "lang", "l", "", "engine `languages` of the pages, e.g. nor or eng+deu (default: as recorded by recto ocr, else eng)")
 	f.Float64Var(&o.Rescan, "rescan", quality.DefaultRescan, "rescan above this predicted CER, a `fraction` (0.10 = 10%)")
 	f.Float64Var(&o.Correct, "correct", quality.DefaultCorrect, "correct above this predicted CER, a `fraction` (0.02 = 2%)")
-	f.IntVarP(&o.Jobs, "jobs", "j", 0, "read `n` pages in parallel (0: number of CPUs)")
+	f.IntVarP(&o.Jobs, "jobs", "j", 0, "read `n` pages at once (0: one per core)")
+	oldName(cmd, "model", "quality-model")
 	return cmd
 }
 
@@ -100,7 +118,7 @@ type triagePage struct {
 	PredictedCER float64  `json:"predicted_cer"`
 	Decision     string   `json:"decision"`
 	Reasons      []string `json:"reasons"`
-	Image        string   `json:"image,omitempty"` // page image recorded by recto ocr
+	Image        string   `json:"image"` // page image recorded by recto ocr; "" for a page known by its text only
 	Error        string   `json:"-"`
 }
 
@@ -125,12 +143,16 @@ type triageFailure struct {
 }
 
 type triageReport struct {
-	Pages  []triagePage    `json:"pages"`
-	Titles []triageTitle   `json:"titles"`
-	Failed []triageFailure `json:"failed,omitempty"`
+	Language *langChoice     `json:"language"`
+	Pages    []triagePage    `json:"pages"`
+	Titles   []triageTitle   `json:"titles"`
+	Failed   []triageFailure `json:"failed,omitempty"`
 }
 
 func runTriage(ctx context.Context, o TriageOptions, g GlobalOptions, dir string) error {
+	if err := checkDir("OCRDIR", dir); err != nil {
+		return err
+	}
 	pages, err := quality.FindOCRPages(dir)
 	if err != nil {
 		return err
@@ -141,12 +163,15 @@ func runTriage(ctx context.Context, o TriageOptions, g GlobalOptions, dir string
 			return err
 		}
 	}
-	lex := lexicon.Default()
-	if o.Lexicon != "" {
-		if lex, err = lexicon.Load(o.Lexicon); err != nil {
-			return err
-		}
+	lc, err := chooseLanguage(o.Lang, o.Lexicon, func() string { return recordedLang(pages) },
+		"triage does not use the lexicon features (share of words in the lexicon, unknown words among suspect words)")
+	if err != nil {
+		return err
 	}
+	if lc.note != "" {
+		g.printf("%s", lc.note)
+	}
+	lex := lc.lex
 	th := quality.Thresholds{Rescan: o.Rescan, Correct: o.Correct}
 	root := filepath.Base(filepath.Clean(dir))
 	if abs, err := filepath.Abs(dir); err == nil {
@@ -160,7 +185,7 @@ func runTriage(ctx context.Context, o TriageOptions, g GlobalOptions, dir string
 		return err
 	}
 
-	rep := triageReport{Pages: []triagePage{}}
+	rep := triageReport{Language: lc, Pages: []triagePage{}}
 	titles := map[string]*triageTitle{}
 	textOnly := 0
 	for i, r := range results {
@@ -173,7 +198,7 @@ func runTriage(ctx context.Context, o TriageOptions, g GlobalOptions, dir string
 		if r.Error != "" {
 			t.Failed++
 			rep.Failed = append(rep.Failed, triageFailure{r.Title, r.Page, r.Error})
-			fmt.Fprintf(g.stderr, "recto: triage: %s\n", r.Error)
+			g.printf("%s", r.Error)
 			continue
 		}
 		if pages[i].JSON == "" {
@@ -205,7 +230,7 @@ func runTriage(ctx context.Context, o TriageOptions, g GlobalOptions, dir string
 	}
 	sort.Slice(rep.Titles, func(i, j int) bool { return rep.Titles[i].Title < rep.Titles[j].Title })
 	if textOnly > 0 && !g.Quiet {
-		fmt.Fprintf(g.stderr, "recto: triage: %d of %d pages have no .json page record; judged from their .txt alone (no confidences)\n", textOnly, len(pages))
+		g.printf("%d of %d pages have no .json page record; judged from their .txt alone (no confidences)", textOnly, len(pages))
 	}
 
 	if o.RescanList != "" {
@@ -213,18 +238,23 @@ func runTriage(ctx context.Context, o TriageOptions, g GlobalOptions, dir string
 			return err
 		}
 	}
-	if o.Format == "json" {
+	switch o.Format {
+	case "json":
 		enc := json.NewEncoder(g.stdout)
 		enc.SetIndent("", "  ")
 		if err := enc.Encode(rep); err != nil {
 			return err
 		}
-	} else {
+	case "csv":
+		if err := writeTriageCSV(g.stdout, rep); err != nil {
+			return err
+		}
+	default:
 		writeTriageText(g.stdout, rep, th)
 	}
 	switch n := len(rep.Failed); {
 	case n == len(pages):
-		return fmt.Errorf("triage: none of the %d pages in %q could be read", n, dir)
+		return fmt.Errorf("none of the %d pages in %q could be read", n, dir)
 	case n > 0:
 		return &partialError{Failed: n, Total: len(pages), What: "pages"}
 	}
@@ -241,15 +271,72 @@ func triageOne(p quality.OCRPage, root string, lex *lexicon.Lexicon, m *quality.
 		return r
 	}
 	var f quality.Features
-	if rec != nil {
-		f = quality.PageFeatures(rec, lex)
-		r.Image = rec.Source
-	} else {
-		f = quality.TextFeatures(text, lex)
+	fl := lex
+	if fl == nil { // no lexicon for the language: no word counts against the page for being unknown
+		fl = lexicon.AcceptAll()
 	}
+	if rec != nil {
+		f = quality.PageFeatures(rec, fl)
+		r.Image = rec.Source
+		if !strings.Contains(p.Rel, "/") {
+			r.Title = looseTitle(rec.Source, r.Title)
+		}
+	} else {
+		f = quality.TextFeatures(text, fl)
+	}
+	f.NoLexicon = lex == nil
 	v := quality.Triage(f, m, th)
 	r.PredictedCER, r.Decision, r.Reasons = v.PredictedCER, v.Decision, v.Reasons
 	return r
+}
+
+// writeColumns writes rows as a table with two spaces between columns:
+// the first text columns left-aligned, the others (numbers) right-aligned,
+// widths counted in characters.
+func writeColumns(w io.Writer, rows [][]string, text int) {
+	var width []int
+	for _, r := range rows {
+		for i, c := range r {
+			if i >= len(width) {
+				width = append(width, 0)
+			}
+			width[i] = max(width[i], utf8.RuneCountInString(c))
+		}
+	}
+	for _, r := range rows {
+		var b strings.Builder
+		for i, c := range r {
+			pad := strings.Repeat(" ", width[i]-utf8.RuneCountInString(c))
+			switch {
+			case i < text && i == len(r)-1:
+				b.WriteString(c)
+			case i < text:
+				b.WriteString(c + pad + "  ")
+			case i == len(r)-1:
+				b.WriteString(pad + c)
+			default:
+				b.WriteString(pad + c + "  ")
+			}
+		}
+		fmt.Fprintln(w, b.String())
+	}
+}
+
+// looseTitle names the title of a page lying directly in the folder given
+// to triage: as the README's convention names the pages of a collection,
+// after the folder its image lies in (a page in the root of the collection
+// `harbour-gazette` belongs to the title `harbour-gazette`), not after the
+// output folder holding its record ("ocr"). It returns fallback when the
+// record names no folder.
+func looseTitle(source, fallback string) string {
+	if source == "" {
+		return fallback
+	}
+	b := filepath.Base(filepath.Dir(source))
+	if b == "." || b == ".." || b == string(filepath.Separator) || b == "" {
+		return fallback
+	}
+	return b
 }
 
 func writeTriageText(w io.Writer, rep triageReport, th quality.Thresholds) {
@@ -260,35 +347,58 @@ func writeTriageText(w io.Writer, rep triageReport, th quality.Thresholds) {
 	}
 	tw.Flush()
 	fmt.Fprintln(w)
-	tw = tabwriter.NewWriter(w, 0, 8, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "TITLE\tPAGES\tACCEPT\tCORRECT\tRESCAN\tBLANK\tPICTURE\tFAILED\tMEAN PREDICTED CER\t")
+	// The title (text) left-aligned, the numbers right-aligned.
+	rows := [][]string{{"TITLE", "PAGES", "ACCEPT", "CORRECT", "RESCAN", "BLANK", "PICTURE", "FAILED", "MEAN PREDICTED CER"}}
 	for _, t := range rep.Titles {
-		fmt.Fprintf(tw, "%s\t%d\t%d\t%d\t%d\t%d\t%d\t%d\t%.1f%%\t\n", t.Title, t.Pages, t.Accept, t.Correct, t.Rescan, t.Blank, t.Picture, t.Failed, 100*t.MeanPred)
+		rows = append(rows, []string{t.Title, strconv.Itoa(t.Pages), strconv.Itoa(t.Accept), strconv.Itoa(t.Correct), strconv.Itoa(t.Rescan),
+			strconv.Itoa(t.Blank), strconv.Itoa(t.Picture), strconv.Itoa(t.Failed), fmt.Sprintf("%.1f%%", 100*t.MeanPred)})
 	}
-	tw.Flush()
+	writeColumns(w, rows, 1)
+	if rep.Language != nil {
+		fmt.Fprintf(w, "\n%s\n", rep.Language.describe())
+	}
 }
 
-// writeRescanList writes the pages decided rescan as CSV.
-func writeRescanList(path string, pages []triagePage) error {
-	f, err := os.Create(path)
-	if err != nil {
-		return fmt.Errorf("triage: rescan list: %w", err)
-	}
-	cw := csv.NewWriter(f)
-	cw.Write([]string{"title", "page", "image", "predicted_cer", "reasons"})
-	for _, p := range pages {
-		if p.Decision != quality.DecisionRescan {
-			continue
-		}
-		cw.Write([]string{p.Title, p.Page, p.Image, strconv.FormatFloat(p.PredictedCER, 'f', 4, 64), strings.Join(p.Reasons, "; ")})
+// writeTriageCSV writes one row per page.
+func writeTriageCSV(w io.Writer, rep triageReport) error {
+	cw := csv.NewWriter(w)
+	cw.Write([]string{"title", "page", "image", "decision", "predicted_cer", "reasons"})
+	for _, p := range rep.Pages {
+		cw.Write([]string{p.Title, p.Page, p.Image, p.Decision, strconv.FormatFloat(p.PredictedCER, 'f', 4, 64), strings.Join(p.Reasons, "; ")})
 	}
 	cw.Flush()
-	err = cw.Error()
-	if cerr := f.Close(); err == nil {
-		err = cerr
+	return cw.Error()
+}
+
+// writeRescanList writes the pages decided rescan as CSV, with the writer
+// of the run's rescan.csv.
+func writeRescanList(path string, pages []triagePage) error {
+	var rows []report.Page
+	for _, p := range pages {
+		rows = append(rows, report.Page{Title: p.Title, Page: p.Page, Rel: p.Image,
+			Decision: p.Decision, PredictedCER: p.PredictedCER, Reasons: p.Reasons})
+	}
+	data, err := report.RescanCSV(rows)
+	if err == nil {
+		err = atomicfile.Write(path, data)
 	}
 	if err != nil {
-		return fmt.Errorf("triage: writing rescan list %q: %w", path, err)
+		return fmt.Errorf("--rescan-list: %w", err)
 	}
 	return nil
+}
+
+// recordedLang returns the language recorded in the first page record
+// among pages that has one ("" when none does): the language 'recto ocr
+// --lang' read the pages in.
+func recordedLang(pages []quality.OCRPage) string {
+	for _, p := range pages {
+		if p.JSON == "" {
+			continue
+		}
+		if rec, err := ocr.ReadRecord(p.JSON); err == nil && rec.Lang != "" {
+			return rec.Lang
+		}
+	}
+	return ""
 }

@@ -139,3 +139,38 @@ func TestTriageBadInput(t *testing.T) {
 		t.Errorf("correct above rescan: %v, want a usage error", err)
 	}
 }
+
+// TestTriageLoosePagesAndSummary (issue 17, triage's words): pages lying
+// directly in the folder given take the title of the folder their images
+// lie in, as the README names the pages of a collection, not the name of
+// the output folder ("ocr"); the summary's text column is left-aligned,
+// its numbers right-aligned.
+func TestTriageLoosePagesAndSummary(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "ocr")
+	writeRecord(t, filepath.Join(dir, "p0001.json"), cleanText, 0.95, false) // image scans/p0001.json.tif
+	writeRecord(t, filepath.Join(dir, "harbour-gazette-long-name", "p0002.json"), cleanText, 0.95, false)
+	out, _, err := runRecto(t, "triage", dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(out, "\n")
+	var summary []string
+	for i, l := range lines {
+		if strings.HasPrefix(l, "TITLE") && strings.Contains(l, "MEAN PREDICTED CER") {
+			summary = lines[i : i+3]
+		}
+	}
+	if len(summary) != 3 {
+		t.Fatalf("no summary table:\n%s", out)
+	}
+	if !strings.HasPrefix(summary[1], "harbour-gazette-long-name ") || !strings.HasPrefix(summary[2], "scans ") {
+		t.Errorf("summary rows not left-aligned titles harbour-gazette-long-name, scans:\n%s", strings.Join(summary, "\n"))
+	}
+	if strings.Contains(out, "\nocr ") {
+		t.Errorf("a loose page was named after the output folder:\n%s", out)
+	}
+	// The counts end in the same column.
+	if len(strings.TrimRight(summary[1], " ")) != len(strings.TrimRight(summary[2], " ")) {
+		t.Errorf("numbers not right-aligned:\n%s", strings.Join(summary, "\n"))
+	}
+}

@@ -1,15 +1,19 @@
-// Package par runs one job per item (a page, a file) on a fixed number of
-// goroutines: the loop every batch step of recto uses when its items do not
-// each need an engine of their own.
+// Package par is recto's one worker pool: one job per item (a page, a
+// file) with at most a fixed number running at once, each job handed a
+// worker slot so that it can use memory or an engine kept per slot. It is
+// built on golang.org/x/sync/errgroup with SetLimit; every batch step of
+// recto (recognition, scoring, triage, correction, the run, the corpus
+// builder) uses it.
 package par
 
 import (
 	"context"
 	"runtime"
-	"sync"
+
+	"golang.org/x/sync/errgroup"
 )
 
-// Workers returns how many goroutines Each starts for n items when asked
+// Workers returns how many jobs Each runs at once for n items when asked
 // for workers: GOMAXPROCS when workers <= 0, never more than n, at least 1.
 func Workers(workers, n int) int {
 	if workers <= 0 {
@@ -18,41 +22,49 @@ func Workers(workers, n int) int {
 	return max(1, min(workers, n))
 }
 
-// Each calls fn(w, i) for every i in [0, n), handing the items out in
-// order to Workers(workers, n) goroutines; w (0 ≤ w < Workers) names the
-// goroutine, so that fn can keep scratch memory per goroutine. Once ctx is
-// done no further item is handed out; Each waits for the calls in flight
-// and returns ctx.Err(). A nil ctx never ends early.
+// Each calls fn(w, i) for every i in [0, n), starting the items in order
+// with at most Workers(workers, n) calls running at once; w (0 ≤ w <
+// Workers) is the slot the call holds, never held by two calls at once, so
+// that fn can keep scratch memory or an engine per slot. Once ctx is done
+// no further item is started; Each waits for the calls in flight and
+// returns ctx.Err(). A nil ctx never ends early.
 func Each(ctx context.Context, n, workers int, fn func(w, i int)) error {
+	return EachErr(ctx, n, workers, func(w, i int) error { fn(w, i); return nil })
+}
+
+// EachErr is Each for jobs that can fail in a way that must stop the batch
+// (a worker's engine that cannot be made; a bad page is not such a
+// failure): the first error stops further items from starting and is
+// returned once the calls in flight are done.
+func EachErr(ctx context.Context, n, workers int, fn func(w, i int) error) error {
 	if n <= 0 {
 		return nil
 	}
 	if ctx == nil {
 		ctx = context.Background()
 	}
-	next := make(chan int)
-	var wg sync.WaitGroup
-	for w := range Workers(workers, n) {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := range next {
-				fn(w, i)
-			}
-		}()
+	k := Workers(workers, n)
+	slots := make(chan int, k)
+	for w := range k {
+		slots <- w
 	}
-feed:
+	g, gctx := errgroup.WithContext(ctx)
+	g.SetLimit(k)
 	for i := range n {
-		if ctx.Err() != nil {
-			break // select picks at random when both cases are ready
+		if gctx.Err() != nil {
+			break
 		}
-		select {
-		case next <- i:
-		case <-ctx.Done():
-			break feed
-		}
+		g.Go(func() error { // blocks while k calls run
+			if gctx.Err() != nil {
+				return nil
+			}
+			w := <-slots // one is free: at most k goroutines run
+			defer func() { slots <- w }()
+			return fn(w, i)
+		})
 	}
-	close(next)
-	wg.Wait()
+	if err := g.Wait(); err != nil {
+		return err
+	}
 	return ctx.Err()
 }

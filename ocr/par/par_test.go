@@ -2,6 +2,7 @@ package par
 
 import (
 	"context"
+	"errors"
 	"runtime"
 	"sync/atomic"
 	"testing"
@@ -62,5 +63,50 @@ func TestEachStopsWhenCancelled(t *testing.T) {
 	}
 	if err := Each(nil, 5, 2, func(w, i int) {}); err != nil {
 		t.Errorf("nil context: %v", err)
+	}
+}
+
+// TestEachSlotsExclusive: a slot is held by one call at a time and no more
+// than Workers calls run at once (the contract of errgroup.SetLimit, which
+// Each is built on: golang.org/x/sync/errgroup documentation).
+func TestEachSlotsExclusive(t *testing.T) {
+	var held [3]atomic.Int32
+	var running, peak atomic.Int32
+	Each(context.Background(), 300, 3, func(w, i int) {
+		if held[w].Add(1) != 1 {
+			t.Errorf("slot %d held twice", w)
+		}
+		n := running.Add(1)
+		for {
+			p := peak.Load()
+			if n <= p || peak.CompareAndSwap(p, n) {
+				break
+			}
+		}
+		runtime.Gosched()
+		running.Add(-1)
+		held[w].Add(-1)
+	})
+	if p := peak.Load(); p > 3 {
+		t.Errorf("%d calls ran at once, want at most 3", p)
+	}
+}
+
+// TestEachErrStops: the first error stops new items and is returned.
+func TestEachErrStops(t *testing.T) {
+	boom := errors.New("no engine")
+	var started atomic.Int32
+	err := EachErr(context.Background(), 1000, 2, func(w, i int) error {
+		started.Add(1)
+		if i == 5 {
+			return boom
+		}
+		return nil
+	})
+	if !errors.Is(err, boom) {
+		t.Errorf("err = %v, want %v", err, boom)
+	}
+	if n := started.Load(); n > 8 {
+		t.Errorf("%d items started after the failure at item 5, want at most 8", n)
 	}
 }

@@ -128,8 +128,17 @@ func (e *engine) Recognize(ctx context.Context, img *image.Gray, dpi int) ([]ocr
 	if r.Dx() < 1 || r.Dy() < 1 {
 		return nil, nil
 	}
-	if dpi < 70 || dpi > 2400 {
+	// Tesseract accepts 70-2400 dpi (kMinCredibleResolution and
+	// kMaxCredibleResolution, publictypes.h; from memory). A page
+	// estimated below 70 dpi is read as at 70, the nearest the engine
+	// takes, not as at 300.
+	switch {
+	case dpi <= 0:
 		dpi = ocr.DefaultDPI
+	case dpi < 70:
+		dpi = 70
+	case dpi > 2400:
+		dpi = 2400
 	}
 	if dpi != e.dpi {
 		// PGM carries no resolution; Tesseract takes it from this variable.

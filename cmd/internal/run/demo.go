@@ -10,12 +10,10 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
-	"runtime"
 	"strings"
 
-	"golang.org/x/sync/errgroup"
-
 	"recto/ocr"
+	"recto/ocr/par"
 	"recto/ocr/synth"
 )
 
@@ -27,6 +25,7 @@ type DemoOptions struct {
 
 	Stderr    io.Writer                  // progress and messages; nil means none
 	Quiet     bool                       // only failures on Stderr
+	Command   string                     // prefix of the lines on Stderr; "" means "recto demo"
 	NewEngine func() (ocr.Engine, error) // as in Options
 	NoPrepare bool                       // as in Options
 }
@@ -109,6 +108,9 @@ func Demo(ctx context.Context, o DemoOptions) (Summary, error) {
 	if stderr == nil {
 		stderr = io.Discard
 	}
+	if o.Command == "" {
+		o.Command = "recto demo"
+	}
 	if err := claimDemoFolder(dir); err != nil {
 		return Summary{}, err
 	}
@@ -117,11 +119,11 @@ func Demo(ctx context.Context, o DemoOptions) (Summary, error) {
 	stamp := demoStamp(pages)
 	if old, _ := os.ReadFile(filepath.Join(dir, demoMarker+"-collection")); string(old) == stamp {
 		if !o.Quiet {
-			fmt.Fprintf(stderr, "recto: reusing the demo collection in %s\n", coll)
+			fmt.Fprintf(stderr, "%s: reusing the demo collection in %s\n", o.Command, coll)
 		}
 	} else {
 		if !o.Quiet {
-			fmt.Fprintf(stderr, "recto: writing the demo collection (%d pages) to %s\n", len(pages), coll)
+			fmt.Fprintf(stderr, "%s: writing the demo collection (%d pages) to %s\n", o.Command, len(pages), coll)
 		}
 		if err := writeDemo(ctx, pages, coll, truth, o.Jobs); err != nil {
 			return Summary{}, err
@@ -131,7 +133,7 @@ func Demo(ctx context.Context, o DemoOptions) (Summary, error) {
 		}
 	}
 	return Run(ctx, Options{Collection: coll, Out: runDir, Truth: truth, Jobs: o.Jobs, Lang: "eng",
-		Stderr: o.Stderr, Quiet: o.Quiet, NewEngine: o.NewEngine, NoPrepare: o.NoPrepare})
+		Stderr: o.Stderr, Quiet: o.Quiet, Command: o.Command, NewEngine: o.NewEngine, NoPrepare: o.NoPrepare})
 }
 
 // demoStamp identifies the generated collection: a rerun with the same
@@ -147,30 +149,20 @@ func demoStamp(pages []demoPage) string {
 
 // writeDemo renders the pages in parallel and writes images and ground truth.
 func writeDemo(ctx context.Context, pages []demoPage, coll, truth string, jobs int) error {
-	if jobs == 0 {
-		jobs = runtime.GOMAXPROCS(0)
-	}
-	var g errgroup.Group
-	g.SetLimit(jobs)
-	for _, p := range pages {
-		g.Go(func() error {
-			if err := ctx.Err(); err != nil {
-				return err
-			}
-			img, gt, err := renderDemoPage(p)
-			if err != nil {
-				return fmt.Errorf("demo: page %s/%s: %w", p.Title, p.Name, err)
-			}
-			if err := writeIfChanged(filepath.Join(coll, p.Title, p.Name+".png"), img); err != nil {
-				return err
-			}
-			if p.Truth {
-				return writeIfChanged(filepath.Join(truth, p.Title, p.Name+".txt"), []byte(gt))
-			}
-			return nil
-		})
-	}
-	return g.Wait()
+	return par.EachErr(ctx, len(pages), jobs, func(_, i int) error {
+		p := pages[i]
+		img, gt, err := renderDemoPage(p)
+		if err != nil {
+			return fmt.Errorf("demo: page %s/%s: %w", p.Title, p.Name, err)
+		}
+		if err := writeIfChanged(filepath.Join(coll, p.Title, p.Name+".png"), img); err != nil {
+			return err
+		}
+		if p.Truth {
+			return writeIfChanged(filepath.Join(truth, p.Title, p.Name+".txt"), []byte(gt))
+		}
+		return nil
+	})
 }
 
 // writeIfChanged writes data to name (via a temporary file) unless the file

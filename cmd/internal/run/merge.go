@@ -12,6 +12,7 @@ import (
 	"sort"
 
 	"recto/cmd/internal/run/ledger"
+	"recto/internal/atomicfile"
 )
 
 // MergeOptions are the settings of `recto merge`.
@@ -199,25 +200,5 @@ func copyOutputs(ctx context.Context, src *ledger.Ledger, from, dst string) erro
 	return nil
 }
 
-// writeAtomic writes data to a temporary file beside name and renames it
-// into place, so that a reader never sees half a file.
-func writeAtomic(name string, data []byte) error {
-	f, err := os.CreateTemp(filepath.Dir(name), "."+filepath.Base(name)+".tmp*")
-	if err != nil {
-		return err
-	}
-	_, err = f.Write(data)
-	if cerr := f.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		err = os.Chmod(f.Name(), 0o644)
-	}
-	if err == nil {
-		err = os.Rename(f.Name(), name)
-	}
-	if err != nil {
-		os.Remove(f.Name())
-	}
-	return err
-}
+// writeAtomic writes name through the one atomic writer.
+func writeAtomic(name string, data []byte) error { return atomicfile.Write(name, data) }

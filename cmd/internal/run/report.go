@@ -51,21 +51,25 @@ func Report(ctx context.Context, dir string) (string, error) {
 // texts are relative to repDir where possible, so a copied run folder and
 // collection keep working.
 func buildReports(repDir, outDir, root string, rows []ledger.Page, ci report.IntervalFunc) error {
+	rows = present(rows) // pages gone from the collection are left out
+	if err := writeFailureReports(repDir, rows); err != nil {
+		return err
+	}
 	pages := make([]report.Page, len(rows))
 	texts := make(map[string]string, len(rows))
 	for i, r := range rows {
 		p := report.Page{
-			Rel: r.Rel, Title: r.Title, Page: r.Page,
-			Failed: r.State != ledger.StateDone, Error: r.Error,
+			Rel: EscapeName(r.Rel), Title: EscapeName(r.Title), Page: EscapeName(r.Page), // names.go
+			Failed: r.State != ledger.StateDone, Error: r.Error, Setup: isSetup(r),
 			Decision: r.Decision, PredictedCER: r.PredictedCER, Reasons: r.Reasons, Corrections: r.Corrections,
 			HasTruth: r.HasTruth, RefChars: r.RefChars, RefWords: r.RefWords,
 			CharErrs: r.CharErrs, WordErrs: r.WordErrs, CharErrsAfter: r.CharErrsAf, WordErrsAfter: r.WordErrsAf,
 			Image: relLink(repDir, r.Source),
 		}
-		if t := finalText(r); t != "" {
+		if t := finalText(r); t != "" && r.State == ledger.StateDone {
 			full := filepath.Join(outDir, filepath.FromSlash(t))
 			p.Text = relLink(repDir, full)
-			texts[r.Rel] = full
+			texts[p.Rel] = full
 		}
 		pages[i] = p
 	}
@@ -77,7 +81,7 @@ func buildReports(repDir, outDir, root string, rows []ledger.Page, ci report.Int
 		Name:     name,
 		Interval: ci,
 		Snippet: func(p report.Page) string {
-			return readHead(texts[p.Rel], 1024)
+			return readHead(texts[p.Rel], 1024) // keyed by the escaped Rel, one to one
 		},
 	})
 	if err != nil {

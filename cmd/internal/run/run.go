@@ -17,17 +17,16 @@ import (
 	"os"
 	"path"
 	"path/filepath"
-	"runtime"
-	"sort"
 	"strings"
-	"sync"
+	"sync/atomic"
 	"time"
 
 	"recto/cmd/internal/cli"
+	"recto/cmd/internal/progress"
 	"recto/cmd/internal/run/ledger"
 	"recto/cmd/internal/run/shard"
 	"recto/ocr"
-	"recto/quality"
+	"recto/ocr/par"
 )
 
 // Options are the settings of a run. The zero value of every field means
@@ -39,27 +38,39 @@ type Options struct {
 	Jobs       int     // pages in parallel; 0 means GOMAXPROCS
 	Lang       string  // Tesseract language(s), e.g. "eng" or "eng+fra"; "" means "eng"
 	PSM        int     // Tesseract page segmentation mode; 0 means the engine default
-	DPI        float64 // resolution to assume when a file records none; 0 means 300
+	DPI        float64 // resolution to assume when a file records none; 0 means estimated from the text, else 300
 	Rescan     float64 // predicted CER above which a page is marked rescan; 0 means quality.DefaultRescan
 	Correct    float64 // predicted CER above which a page is corrected; 0 means quality.DefaultCorrect
-	Model      string  // triage model file; "" means the built-in model
+	Model      string  // quality model file for triage (recto calibrate); "" means the embedded one
 	Lexicon    string  // lexicon file; "" means the built-in lexicon
 	Margin     float64 // correction margin, natural-log odds; 0 means correct.DefaultMargin
-	Shard      string  // "i/n"; "" means from the environment, else every page
-	ShardCount int     // shard count for a Kubernetes Indexed Job (JOB_COMPLETION_INDEX); 0 means RECTO_SHARDS
+
+	CorrectionModel string // error model file (recto correct train); "" means the embedded one
+	KeepMarks       bool   // leave stray marks in (correct.Config.KeepMarks)
+	MapGlyphs       bool   // rewrite punctuation glyphs (correct.Config.MapGlyphs)
+
+	MaxPixels  int    // largest image accepted, width×height; 0 means ocr.DefaultMaxPixels
+	Shard      string // "i/n"; "" means from the environment, else every page
+	ShardCount int    // shard count for a Kubernetes Indexed Job (JOB_COMPLETION_INDEX); 0 means RECTO_SHARDS
 
 	// Getenv reads the batch system's environment for the shard; nil means os.Getenv.
 	Getenv func(string) string
 	// Stderr receives progress and the messages about failed pages; nil
-	// means none. Quiet keeps only the failures.
-	Stderr io.Writer
-	Quiet  bool
+	// means none. Quiet keeps only the failures. Every line starts with
+	// Command and a colon; "" means "recto run".
+	Stderr  io.Writer
+	Quiet   bool
+	Command string
 
 	// NewEngine makes one worker's engine (each worker owns one); nil
 	// means Tesseract with Lang and PSM. With NoPrepare the greyscale page
 	// goes to the engine without preparation.
 	NewEngine func() (ocr.Engine, error)
 	NoPrepare bool
+
+	// NewCollection allows running a collection into a run folder used for
+	// another one; the old collection's pages are then marked gone.
+	NewCollection bool
 }
 
 // Summary counts what a run did.
@@ -90,6 +101,8 @@ func (o Options) Validate() error {
 		return usagef("run: --shard-count %d: must be 1 or more", o.ShardCount)
 	case o.Margin < 0:
 		return usagef("run: --margin %g: must be 0 (default) or more", o.Margin)
+	case o.MaxPixels < 0:
+		return usagef("run: --max-pixels %d: must be 0 (default %d) or more", o.MaxPixels, ocr.DefaultMaxPixels)
 	case o.DPI < 0:
 		return usagef("run: --dpi %g: must be positive", o.DPI)
 	}
@@ -116,87 +129,26 @@ const (
 	shardsDir    = "shards"
 )
 
-// imageExts are the file extensions taken as page images (lower case):
-// the formats ocr.DecodeFile reads.
-var imageExts = map[string]bool{".tif": true, ".tiff": true, ".png": true, ".jpg": true, ".jpeg": true, ".bmp": true}
-
-// titlePage names a page: the title is the first folder of rel (as in
-// `recto score`), or rootName for an image directly in the root; the page
-// is the rest of rel.
-func titlePage(rel, rootName string) (title, page string) {
-	title, _ = quality.TitlePage(rel, rootName)
-	if _, rest, ok := strings.Cut(rel, "/"); ok {
-		return title, rest
-	}
-	return title, rel
-}
-
-// pageJob is one page image found under the collection.
+// pageJob is one page of the run.
 type pageJob struct {
 	Rel   string // slash-separated, relative to the collection root
-	Stem  string // output name: Rel without its extension, or with it when two images share the stem
+	Stem  string // output name: outputStem(Rel), see names.go
 	Path  string // absolute path
-	Title string
-	Page  string
+	Title string // first folder of Rel, or the collection's name for an image in its root (as in recto score)
+	Page  string // the page key: Rel without extension, as recto score names a page (FindImages' Stem)
 }
 
-// listPages walks root for page images, skipping hidden entries and the
-// folder skip (the run folder, when it lies inside the collection). It
-// returns the pages sorted by Rel and the number of other files ignored.
+// listPages finds the page files under root (FindImages) as the pages of
+// the run.
 func listPages(root, skip string) ([]pageJob, int, error) {
-	rootName := filepath.Base(root)
-	var pages []pageJob
-	ignored := 0
-	err := filepath.WalkDir(root, func(p string, d fs.DirEntry, err error) error {
-		if err != nil {
-			if p == root {
-				return err
-			}
-			ignored++ // an unreadable sub-folder must not stop the run
-			if d != nil && d.IsDir() {
-				return fs.SkipDir
-			}
-			return nil
-		}
-		name := d.Name()
-		if p != root && strings.HasPrefix(name, ".") {
-			if d.IsDir() {
-				return fs.SkipDir
-			}
-			return nil
-		}
-		if d.IsDir() {
-			if skip != "" && p == skip {
-				return fs.SkipDir
-			}
-			return nil
-		}
-		if !imageExts[strings.ToLower(filepath.Ext(name))] {
-			ignored++
-			return nil
-		}
-		rel, err := filepath.Rel(root, p)
-		if err != nil {
-			return err
-		}
-		rel = filepath.ToSlash(rel)
-		title, page := titlePage(rel, rootName)
-		pages = append(pages, pageJob{Rel: rel, Path: p, Title: title, Page: page})
-		return nil
-	})
+	imgs, ignored, err := FindImages(root, skip)
 	if err != nil {
-		return nil, 0, fmt.Errorf("run: collection %q: %w", root, err)
+		return nil, 0, fmt.Errorf("collection %w", err)
 	}
-	sort.Slice(pages, func(i, j int) bool { return pages[i].Rel < pages[j].Rel })
-	stems := map[string]int{}
-	for _, p := range pages {
-		stems[strings.TrimSuffix(p.Rel, path.Ext(p.Rel))]++
-	}
-	for i, p := range pages {
-		pages[i].Stem = strings.TrimSuffix(p.Rel, path.Ext(p.Rel))
-		if stems[pages[i].Stem] > 1 {
-			pages[i].Stem = p.Rel // p1.png and p1.tif side by side keep apart
-		}
+	pages := make([]pageJob, len(imgs))
+	for i, im := range imgs {
+		// Output names are unique for every input path (names.go).
+		pages[i] = pageJob{Rel: im.Rel, Stem: outputStem(im.Rel), Path: im.Path, Title: im.Title, Page: im.Stem}
 	}
 	return pages, ignored, nil
 }
@@ -210,6 +162,9 @@ type runState struct {
 	sh       shard.Shard
 	config   string // settings fingerprint
 	done     map[string]ledger.Key
+	badNames map[string]string   // rel -> why its output names cannot be made (names.go)
+	previous map[string][]string // rel -> outputs of its last ledger row
+	inFlight atomic.Int64        // pages being worked on
 }
 
 // Run is the whole job on o.Collection. A run in which some pages failed
@@ -233,12 +188,17 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 	if stderr == nil {
 		stderr = io.Discard
 	}
+	if o.Command == "" {
+		o.Command = "recto run"
+	}
 	root, err := filepath.Abs(o.Collection)
 	if err != nil {
 		return sum, err
 	}
-	if fi, err := os.Stat(root); err != nil {
-		return sum, fmt.Errorf("run: collection: %w", err)
+	if fi, err := os.Stat(root); errors.Is(err, fs.ErrNotExist) {
+		return sum, fmt.Errorf("COLLECTION %q: no such folder", o.Collection)
+	} else if err != nil {
+		return sum, fmt.Errorf("COLLECTION %q: %v", o.Collection, errors.Unwrap(err))
 	} else if !fi.IsDir() {
 		return sum, fmt.Errorf("run: collection %q is not a folder", o.Collection)
 	}
@@ -284,6 +244,9 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 		return sum, fmt.Errorf("run: %w", err)
 	}
 	defer l.Close()
+	if err := checkCollection(ctx, l, root, o.Out, o.NewCollection); err != nil {
+		return sum, err
+	}
 	for k, v := range map[string]string{"collection": root, "truth": st.truthDir, "settings": st.tk.settingsJSON, "shard": st.sh.String()} {
 		if err := l.SetMeta(ctx, k, v); err != nil {
 			return sum, fmt.Errorf("run: %w", err)
@@ -308,8 +271,18 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 		}
 	}
 	sum.Images, sum.Pages, sum.Ignored = len(all), len(pages), ignored
+	if _, err := markGone(ctx, l, pages, stderr, "recto"); err != nil {
+		return sum, err
+	}
+	st.badNames = checkNames(all, foldsCase(st.outDir))
+	if st.previous, err = previousOutputs(ctx, l); err != nil {
+		return sum, err
+	}
+	if o.MaxPixels > 0 {
+		maxPixelsNow = o.MaxPixels
+	}
 	if !o.Quiet {
-		msg := fmt.Sprintf("recto: %d page images in %q", len(all), o.Collection)
+		msg := fmt.Sprintf("%s: %d page images in %q", o.Command, len(all), o.Collection)
 		if st.sh.Sharded() {
 			msg += fmt.Sprintf(", %d in shard %s", len(pages), st.sh)
 		}
@@ -322,13 +295,16 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 		return sum, fmt.Errorf("run: no page images (%s) under %q", extList(), o.Collection)
 	}
 
-	prog := newRunProgress(stderr, o.Quiet, len(pages))
-	w := l.NewWriter(func(p ledger.Page) { prog.add(p.State == ledger.StateFailed) })
+	prog := progress.New(stderr, o.Command, o.Quiet, len(pages))
+	w := l.NewWriter(func(p ledger.Page) { prog.Add(p.State == ledger.StateFailed) })
+	finished := make(chan struct{})
+	go st.sayStopping(ctx, prog, o.Command, len(pages), finished) // stopping.go
 	runErr := st.process(ctx, pages, w, prog)
+	close(finished)
 	werr := w.Close()
-	prog.finish()
-	sum.Skipped = int(prog.skipped.Load())
-	sum.Done = int(prog.done.Load() - prog.failed.Load())
+	prog.Finish()
+	sum.Skipped = prog.Skipped()
+	sum.Done = prog.Done() - prog.Failed()
 	if werr != nil {
 		return sum, fmt.Errorf("run: ledger: %w", werr)
 	}
@@ -351,30 +327,32 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 	}
 	sum.Report = filepath.Join(repDir, "report.html")
 	if !o.Quiet {
-		fmt.Fprintf(stderr, "recto: report in %s\n", sum.Report)
+		fmt.Fprintf(stderr, "%s: report in %s\n", o.Command, sum.Report)
 	}
 	inShard := make(map[string]bool, len(pages))
 	for _, p := range pages {
 		inShard[p.Rel] = true
 	}
+	setup := &SetupError{Total: len(pages), Report: filepath.Join(repDir, "failures.csv")}
 	for _, r := range rows {
 		if inShard[r.Rel] && r.State == ledger.StateFailed {
 			sum.Failed++
+			if isSetup(r) {
+				if setup.Setup++; setup.First == "" {
+					setup.First = r.Error
+				}
+			} else {
+				setup.Image++
+			}
 		}
+	}
+	if setup.Setup > 0 {
+		return sum, setup
 	}
 	if sum.Failed > 0 {
 		return sum, &partialError{Failed: sum.Failed, Total: len(pages), What: "pages"}
 	}
 	return sum, nil
-}
-
-func extList() string {
-	var e []string
-	for k := range imageExts {
-		e = append(e, k)
-	}
-	sort.Strings(e)
-	return strings.Join(e, " ")
 }
 
 // checkWritable makes dir if needed and proves a file can be created in it.
@@ -391,59 +369,46 @@ func checkWritable(dir string) error {
 	return os.Remove(name)
 }
 
-// process runs the pages through a pool of workers, each with its own
-// engine, and hands every finished page to the ledger writer.
-func (st *runState) process(ctx context.Context, pages []pageJob, w *ledger.Writer, prog *runProgress) error {
-	jobs := st.o.Jobs
-	if jobs == 0 {
-		jobs = runtime.GOMAXPROCS(0)
-	}
-	jobs = max(1, min(jobs, len(pages)))
-	ch := make(chan pageJob)
-	go func() {
-		defer close(ch)
-		for _, p := range pages {
-			select {
-			case ch <- p:
-			case <-ctx.Done():
-				return
+// process runs the pages through the worker pool (par.EachErr), one
+// engine per worker slot, made when the slot first takes a page, and hands
+// every finished page to the ledger writer.
+func (st *runState) process(ctx context.Context, pages []pageJob, w *ledger.Writer, prog *progress.Reporter) error {
+	recs := make([]recogniser, par.Workers(st.o.Jobs, len(pages)))
+	defer func() {
+		for _, r := range recs {
+			if r != nil {
+				r.Close()
 			}
 		}
 	}()
-	var wg sync.WaitGroup
-	errs := make(chan error, jobs)
-	for range jobs {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			rec, err := st.tk.newRecogniser()
+	err := par.EachErr(ctx, len(pages), len(recs), func(slot, i int) error {
+		if w.Err() != nil {
+			return nil
+		}
+		if recs[slot] == nil {
+			r, err := st.tk.newRecogniser()
 			if err != nil {
-				errs <- err
-				return
+				return err
 			}
-			defer rec.Close()
-			for p := range ch {
-				if w.Err() != nil {
-					return
-				}
-				row, skipped := st.onePage(ctx, rec, p)
-				if skipped {
-					prog.skip()
-					continue
-				}
-				if row == nil { // interrupted mid-page: not recorded
-					continue
-				}
-				if row.State == ledger.StateFailed {
-					prog.message("recto: " + row.Error)
-				}
-				w.Put(*row)
+			recs[slot] = r
+		}
+		row, skipped := st.onePage(ctx, recs[slot], pages[i])
+		switch {
+		case skipped:
+			prog.Skip()
+		case row == nil: // interrupted mid-page: not recorded
+		default:
+			if row.State == ledger.StateFailed {
+				prog.Message(st.o.Command + ": " + row.Error)
 			}
-		}()
-	}
-	wg.Wait()
-	close(errs)
-	for err := range errs {
+			for _, m := range row.Warnings {
+				prog.Message(fmt.Sprintf("%s: warning: %q: %s", st.o.Command, pages[i].Path, m))
+			}
+			w.Put(*row)
+		}
+		return nil
+	})
+	if err != nil && ctx.Err() == nil {
 		return fmt.Errorf("run: %w", err)
 	}
 	return nil
@@ -459,29 +424,45 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 	row = &ledger.Page{Rel: p.Rel, Title: p.Title, Page: p.Page, Source: p.Path, Shard: st.sh.String(),
 		State: ledger.StateFailed, Timings: map[string]float64{}}
 	fail := func(format string, a ...any) (*ledger.Page, bool) {
-		row.Error = fmt.Sprintf(format, a...)
+		row.Error, row.Problem = fmt.Sprintf(format, a...), ledger.ProblemSetup
+		// Outputs of an earlier run of this page stay listed, so that no
+		// file in the run folder belongs to no page; they are not linked.
+		row.Outputs = st.stillThere(p.Rel)
 		return row, false
+	}
+	failErr := func(err error) (*ledger.Page, bool) {
+		row, _ = fail("")
+		row.Problem, row.Error = classify(p.Path, err)
+		return row, false
+	}
+	st.inFlight.Add(1)
+	defer st.inFlight.Add(-1)
+	if why, ok := st.badNames[p.Rel]; ok {
+		return fail("%q: %s", p.Path, why)
 	}
 	sum, size, err := hashFile(p.Path)
 	if err != nil {
-		return fail("%q: cannot read: %v", p.Path, errors.Unwrap(err))
+		return fail("%q: cannot read: %v%s", p.Path, errors.Unwrap(err), ioFix(err))
 	}
 	row.SHA256, row.Size = sum, size
 	truth, truthSum, hasTruth, err := st.readTruth(p.Rel)
 	if err != nil {
-		return fail("%v", err)
+		return fail("%v%s", err, ioFix(err))
 	}
 	row.Config = st.config + "+" + truthSum
 	if k, ok := st.done[p.Rel]; ok && k == (ledger.Key{SHA256: row.SHA256, Config: row.Config}) {
 		return nil, true
 	}
 	if size == 0 {
-		return fail("%q: empty file (0 bytes)", p.Path)
+		row, _ = fail("%q: empty file (0 bytes)", p.Path)
+		row.Problem = ledger.ProblemImage
+		return row, false
 	}
 
 	defer func() { // one bad page must never stop the batch
 		if r := recover(); r != nil {
-			row.State, row.Error, row.Outputs = ledger.StateFailed, fmt.Sprintf("%q: internal error: %v", p.Path, r), nil
+			row.State, row.Error, row.Outputs = ledger.StateFailed, fmt.Sprintf("%q: internal error: %v (please report it)", p.Path, r), nil
+			row.Problem = ledger.ProblemSetup
 			skipped = false
 		}
 	}()
@@ -491,12 +472,13 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 		if ctx.Err() != nil {
 			return nil, false
 		}
-		return fail("%v", err)
+		return failErr(err)
 	}
 	row.Timings["recognise"] = ms(time.Since(t0))
+	row.Warnings = r.Warnings
 	t1 := time.Now()
 	if err := st.tk.write(filepath.Join(st.outDir, ocrDir), p.Stem, r, prepared); err != nil {
-		return fail("%q: writing outputs: %v", p.Path, err)
+		return fail("%q: writing outputs: %v%s", p.Path, err, ioFix(err))
 	}
 	row.Outputs = outputNames(ocrDir, p.Stem)
 	row.Timings["write"] = ms(time.Since(t1))
@@ -514,7 +496,7 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 		row.Corrections = n
 		row.Timings["correct"] = ms(time.Since(t3))
 		if err := st.tk.write(filepath.Join(st.outDir, correctedDir), p.Stem, c, nil); err != nil {
-			return fail("%q: writing corrected outputs: %v", p.Path, err)
+			return fail("%q: writing corrected outputs: %v%s", p.Path, err, ioFix(err))
 		}
 		row.Outputs = append(row.Outputs, outputNames(correctedDir, p.Stem)...)
 		final = c
@@ -533,6 +515,7 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 		row.Timings["score"] = ms(time.Since(t4))
 	}
 	row.State, row.Error = ledger.StateDone, ""
+	st.dropStale(p.Rel, row.Outputs)
 	return row, false
 }
 
@@ -582,7 +565,7 @@ func (st *runState) readTruth(rel string) (text, sum string, ok bool, err error)
 		return "", "-", false, nil
 	}
 	if err != nil {
-		return "", "", false, fmt.Errorf("ground truth %q: %v", name, errors.Unwrap(err))
+		return "", "", false, fmt.Errorf("ground truth %q: %w", name, errors.Unwrap(err))
 	}
 	s := sha256.Sum256(data)
 	return string(data), hex.EncodeToString(s[:8]), true, nil

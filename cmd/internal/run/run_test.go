@@ -247,7 +247,7 @@ func TestHostileTextStaysValid(t *testing.T) {
 		t.Fatalf("hostile page decided %q (%v), want correct", r.Decision, r.Reasons)
 	}
 	for _, sub := range []string{ocrDir, correctedDir} {
-		data, err := os.ReadFile(filepath.Join(out, sub, "Title A", "p000.alto.xml"))
+		data, err := os.ReadFile(filepath.Join(out, sub, "Title A", "p000.png.alto.xml"))
 		if err != nil {
 			t.Fatal(err)
 		}

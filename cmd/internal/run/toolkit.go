@@ -45,7 +45,8 @@ func newToolkit(o Options) (*toolkit, error) {
 		return nil, &usageError{Err: fmt.Errorf("run: %w", err)}
 	}
 	model := quality.DefaultModel()
-	lex := lexicon.Default()
+	var lex *lexicon.Lexicon // nil: the language has no lexicon
+	var lexFiles []string
 	var err error
 	if o.Model != "" {
 		if model, err = quality.LoadModel(o.Model); err != nil {
@@ -56,20 +57,48 @@ func newToolkit(o Options) (*toolkit, error) {
 		if lex, err = lexicon.Load(o.Lexicon); err != nil {
 			return nil, err
 		}
+	} else {
+		// --lang chooses the lexicon (lexicon.ForLang); without one for
+		// the language, triage leaves the lexicon features out and
+		// correction changes no word, said once.
+		sel, err := lexicon.ForLang(o.Lang)
+		if err != nil {
+			return nil, err
+		}
+		lex, lexFiles = sel.Lexicon, sel.Files
+		if !sel.Complete() && o.Stderr != nil {
+			fmt.Fprintf(o.Stderr, "%s: %s\n", o.Command, sel.MissingNote("triage does not use the lexicon features and correction makes only language-independent fixes (stray marks)"))
+		}
 	}
 	modelSum, err := fileSum(o.Model)
 	if err != nil {
-		return nil, fmt.Errorf("run: --model: %w", err)
+		return nil, fmt.Errorf("--quality-model: %w", err)
+	}
+	cmodel := correct.DefaultModel()
+	if o.CorrectionModel != "" {
+		if cmodel, err = correct.LoadModel(o.CorrectionModel); err != nil {
+			return nil, err
+		}
+	}
+	cmodelSum, err := fileSum(o.CorrectionModel)
+	if err != nil {
+		return nil, fmt.Errorf("--correction-model: %w", err)
 	}
 	lexSum, err := fileSum(o.Lexicon)
 	if err != nil {
-		return nil, fmt.Errorf("run: --lexicon: %w", err)
+		return nil, fmt.Errorf("--lexicon: %w", err)
 	}
 	custom := o.NewEngine != nil
-	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare}
+	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare, Lang: o.Lang, MaxPixels: o.MaxPixels}
 	cfg := tesseract.Config{Lang: o.Lang, PSM: o.PSM}
 	settings := map[string]any{"lang": o.Lang, "psm": o.PSM, "dpi": o.DPI, "rescan": o.Rescan, "correct": o.Correct,
 		"model": modelSum, "lexicon": lexSum, "margin": o.Margin, "fake_engine": custom, "record": ocr.RecordVersion}
+	if o.Lexicon == "" && o.Lang != "eng" { // the lexicons --lang chose (English runs keep their fingerprint)
+		settings["lexicons"] = lexFiles
+	}
+	if o.CorrectionModel != "" || o.KeepMarks || o.MapGlyphs { // absent keys keep older ledgers' fingerprints
+		settings["correction_model"], settings["keep_marks"], settings["map_glyphs"] = cmodelSum, o.KeepMarks, o.MapGlyphs
+	}
 	tk := &toolkit{
 		write:    func(dir, rel string, r *ocr.Record, g *image.Gray) error { return ocr.WriteOutputs(dir, rel, r, g) },
 		interval: cerInterval,
@@ -78,12 +107,24 @@ func newToolkit(o Options) (*toolkit, error) {
 			return counts{Chars: c.Chars, CharErrors: c.CharErrors, Words: c.Words, WordErrors: c.WordErrors}
 		},
 		triage: func(r *ocr.Record) verdict {
-			v := quality.Triage(quality.PageFeatures(r, lex), model, th)
+			var f quality.Features
+			if lex == nil {
+				f = quality.PageFeatures(r, lexicon.AcceptAll())
+				f.NoLexicon = true
+			} else {
+				f = quality.PageFeatures(r, lex)
+			}
+			v := quality.Triage(f, model, th)
 			return verdict{PredictedCER: v.PredictedCER, Decision: v.Decision, Reasons: v.Reasons}
 		},
 	}
+	clex := lex
+	if clex == nil {
+		clex = noLexicon
+	}
+	ccfg := correct.Config{Margin: o.Margin, KeepMarks: o.KeepMarks, MapGlyphs: o.MapGlyphs}
 	tk.correct = func(r *ocr.Record) (*ocr.Record, int) {
-		c, changes := correctorFor(lex, o.Margin).CorrectRecord(r)
+		c, changes := correctorFor(clex, cmodel, ccfg).CorrectRecord(r)
 		return c, len(changes)
 	}
 	tk.fingerprint, tk.settingsJSON = fingerprint(settings)
@@ -134,9 +175,14 @@ func newToolkit(o Options) (*toolkit, error) {
 // correction and once per process (tests run many jobs in one process).
 var correctors sync.Map // correctorKey -> *correctorEntry
 
+// noLexicon is the empty lexicon correction uses when the language has
+// none: it offers no word to change a word into.
+var noLexicon = lexicon.New()
+
 type correctorKey struct {
-	lex    *lexicon.Lexicon
-	margin float64
+	lex   *lexicon.Lexicon
+	model *correct.Model
+	cfg   correct.Config
 }
 
 type correctorEntry struct {
@@ -144,10 +190,10 @@ type correctorEntry struct {
 	c    *correct.Corrector
 }
 
-func correctorFor(lex *lexicon.Lexicon, margin float64) *correct.Corrector {
-	v, _ := correctors.LoadOrStore(correctorKey{lex, margin}, &correctorEntry{})
+func correctorFor(lex *lexicon.Lexicon, m *correct.Model, cfg correct.Config) *correct.Corrector {
+	v, _ := correctors.LoadOrStore(correctorKey{lex, m, cfg}, &correctorEntry{})
 	e := v.(*correctorEntry)
-	e.once.Do(func() { e.c = correct.New(lex, nil, correct.Config{Margin: margin}) })
+	e.once.Do(func() { e.c = correct.New(lex, m, cfg) })
 	return e.c
 }
 

@@ -12,6 +12,8 @@ import (
 	"sort"
 	"time"
 
+	"recto/cmd/internal/run/fname"
+
 	_ "modernc.org/sqlite" // registers the "sqlite" database/sql driver
 )
 
@@ -19,7 +21,9 @@ import (
 const FileName = "ledger.db"
 
 // SchemaVersion is the version of the tables written by this build.
-const SchemaVersion = 1
+// Version 2 added the problem column and the state gone; a version 1
+// ledger is upgraded in place when opened for writing.
+const SchemaVersion = 2
 
 // ErrLocked is returned by Open when another process holds the ledger's lock.
 var ErrLocked = errors.New("ledger: in use by another recto process")
@@ -32,6 +36,24 @@ type State string
 const (
 	StateDone   State = "done"   // every step ran; outputs and metrics are recorded
 	StateFailed State = "failed" // a step failed; Error says why; redone by the next run
+	// StateGone marks a page whose image is no longer in the collection
+	// (deleted, renamed, or another collection was run into the folder).
+	// The row and its outputs are kept; reports leave it out.
+	StateGone State = "gone"
+)
+
+// Problem says what a failed page needs.
+type Problem string
+
+const (
+	// ProblemImage: the image itself is at fault (unreadable, empty,
+	// truncated, not an image): the page goes to the scanning station.
+	ProblemImage Problem = "image"
+	// ProblemSetup: the system or the run's set-up is at fault (a full
+	// or read-only disk, a name too long, a clash of names, a ground-truth
+	// path that is a folder, an image over the pixel limit, a missing
+	// engine); the scan is not to blame and Error says how to fix it.
+	ProblemSetup Problem = "setup"
 )
 
 // Page is one row of the ledger: everything a run learnt about one page image.
@@ -45,8 +67,12 @@ type Page struct {
 	Config string // fingerprint of the settings that produced the row
 	Shard  string // "i/n" when written by a sharded run, else ""
 
-	State State
-	Error string // why the page failed; "" when done
+	State   State
+	Error   string  // why the page failed; "" when done
+	Problem Problem // for a failed page, whose fault it is; "" when done
+	// Warnings are what a step said about the page that did not stop it
+	// (a multi-page file of which one page was read, ...).
+	Warnings []string
 
 	Decision     string   // accept, correct, rescan, blank or picture
 	PredictedCER float64  // estimated CER without ground truth, in [0, 1]
@@ -88,6 +114,11 @@ type Ledger struct {
 	path     string
 	lock     *os.File
 	readOnly bool
+
+	// BeforeCommit, when set before NewWriter, is called by the writer with
+	// each group of pages before it commits them; an error stops the
+	// writer as a failed commit would. Tests inject faults with it.
+	BeforeCommit func([]Page) error
 }
 
 const schema = `
@@ -121,8 +152,17 @@ CREATE TABLE IF NOT EXISTS pages (
 	word_errs_after INTEGER NOT NULL,
 	outputs       TEXT NOT NULL,
 	timings       TEXT NOT NULL,
-	done_at       TEXT NOT NULL
+	done_at       TEXT NOT NULL,
+	problem       TEXT NOT NULL DEFAULT '',
+	warnings      TEXT NOT NULL DEFAULT '[]'
 );`
+
+// upgrades take a ledger from the version in their key to the next.
+var upgrades = map[string]string{
+	"1": `ALTER TABLE pages ADD COLUMN problem TEXT NOT NULL DEFAULT '';
+		ALTER TABLE pages ADD COLUMN warnings TEXT NOT NULL DEFAULT '[]';
+		UPDATE meta SET value = '2' WHERE key = 'schema';`,
+}
 
 // Open opens the ledger at path for writing, creating it (and its folder)
 // when missing, and takes its lock. It returns an error wrapping ErrLocked
@@ -185,7 +225,11 @@ func openDB(path string, readOnly bool) (*Ledger, error) {
 	if !readOnly {
 		if _, err := db.Exec(schema); err != nil {
 			db.Close()
-			return nil, fmt.Errorf("ledger: %q: not a usable ledger: %w", path, err)
+			if d := describe(path, err); d != err {
+				return nil, d
+			}
+			return nil, fmt.Errorf("%w: %q is not a usable ledger (%v); move it aside (mv %q %q) and run again: the outputs beside it are kept and every page is read again",
+				ErrDamaged, path, err, path, path+".damaged")
 		}
 		var v string
 		err := db.QueryRow(`SELECT value FROM meta WHERE key = 'schema'`).Scan(&v)
@@ -193,10 +237,17 @@ func openDB(path string, readOnly bool) (*Ledger, error) {
 		case errors.Is(err, sql.ErrNoRows):
 			_, err = db.Exec(`INSERT INTO meta(key, value) VALUES('schema', ?)`, fmt.Sprint(SchemaVersion))
 		case err == nil && v != fmt.Sprint(SchemaVersion):
-			err = fmt.Errorf("schema version %s, this build writes version %d", v, SchemaVersion)
+			if up, ok := upgrades[v]; ok {
+				_, err = db.Exec(up)
+			} else {
+				err = fmt.Errorf("schema version %s, this build writes version %d: use the recto that wrote it, or start a new --out folder", v, SchemaVersion)
+			}
 		}
 		if err != nil {
 			db.Close()
+			if d := describe(path, err); d != err {
+				return nil, d
+			}
 			return nil, fmt.Errorf("ledger: %q: %w", path, err)
 		}
 	} else if err := db.Ping(); err != nil {
@@ -251,15 +302,18 @@ func (l *Ledger) Put(ctx context.Context, p Page) error { return l.PutAll(ctx, [
 func (l *Ledger) PutAll(ctx context.Context, ps []Page) error {
 	tx, err := l.db.BeginTx(ctx, nil)
 	if err != nil {
-		return fmt.Errorf("ledger: %w", err)
+		return describe(l.path, fmt.Errorf("ledger: %w", err))
 	}
 	for _, p := range ps {
 		if err := putTx(ctx, tx, p); err != nil {
 			tx.Rollback()
-			return err
+			return describe(l.path, err)
 		}
 	}
 	if err := tx.Commit(); err != nil {
+		if d := describe(l.path, err); d != err {
+			return d
+		}
 		return fmt.Errorf("ledger: commit of %d pages: %w", len(ps), err)
 	}
 	return nil
@@ -268,11 +322,18 @@ func (l *Ledger) PutAll(ctx context.Context, ps []Page) error {
 const insertSQL = `INSERT OR REPLACE INTO pages(rel, title, page, source, sha256, size, config, shard,
 	state, error, decision, predicted_cer, reasons, mean_conf, words, corrections,
 	has_truth, ref_chars, ref_words, char_errs, word_errs, char_errs_after, word_errs_after,
-	outputs, timings, done_at) VALUES(?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)`
+	outputs, timings, done_at, problem, warnings) VALUES(?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)`
 
 func putTx(ctx context.Context, tx *sql.Tx, p Page) error {
 	reasons, _ := json.Marshal(nonNil(p.Reasons))
-	outputs, _ := json.Marshal(nonNil(p.Outputs))
+	// Output names are paths and may hold bytes that are not UTF-8, which
+	// JSON cannot carry: they are stored escaped (package fname).
+	esc := make([]string, len(p.Outputs))
+	for i, o := range p.Outputs {
+		esc[i] = fname.Escape(o)
+	}
+	outputs, _ := json.Marshal(esc)
+	warnings, _ := json.Marshal(nonNil(p.Warnings))
 	timings, err := json.Marshal(p.Timings)
 	if err != nil { // NaN or Inf timings
 		return fmt.Errorf("ledger: %q: timings: %w", p.Rel, err)
@@ -284,7 +345,7 @@ func putTx(ctx context.Context, tx *sql.Tx, p Page) error {
 	_, err = tx.ExecContext(ctx, insertSQL, p.Rel, p.Title, p.Page, p.Source, p.SHA256, p.Size, p.Config, p.Shard,
 		string(p.State), p.Error, p.Decision, p.PredictedCER, string(reasons), p.MeanConf, p.Words, p.Corrections,
 		p.HasTruth, p.RefChars, p.RefWords, p.CharErrs, p.WordErrs, p.CharErrsAf, p.WordErrsAf,
-		string(outputs), string(timings), done.UTC().Format(time.RFC3339Nano))
+		string(outputs), string(timings), done.UTC().Format(time.RFC3339Nano), string(p.Problem), string(warnings))
 	if err != nil {
 		return fmt.Errorf("ledger: write %q: %w", p.Rel, err)
 	}
@@ -303,7 +364,7 @@ func (l *Ledger) Pages(ctx context.Context) ([]Page, error) {
 	rows, err := l.db.QueryContext(ctx, `SELECT rel, title, page, source, sha256, size, config, shard,
 		state, error, decision, predicted_cer, reasons, mean_conf, words, corrections,
 		has_truth, ref_chars, ref_words, char_errs, word_errs, char_errs_after, word_errs_after,
-		outputs, timings, done_at FROM pages ORDER BY rel`)
+		outputs, timings, done_at, problem, warnings FROM pages ORDER BY rel`)
 	if err != nil {
 		return nil, fmt.Errorf("ledger: %q: %w", l.path, err)
 	}
@@ -311,19 +372,30 @@ func (l *Ledger) Pages(ctx context.Context) ([]Page, error) {
 	var out []Page
 	for rows.Next() {
 		var p Page
-		var state, reasons, outputs, timings, done string
+		var state, reasons, outputs, timings, done, problem, warnings string
 		if err := rows.Scan(&p.Rel, &p.Title, &p.Page, &p.Source, &p.SHA256, &p.Size, &p.Config, &p.Shard,
 			&state, &p.Error, &p.Decision, &p.PredictedCER, &reasons, &p.MeanConf, &p.Words, &p.Corrections,
 			&p.HasTruth, &p.RefChars, &p.RefWords, &p.CharErrs, &p.WordErrs, &p.CharErrsAf, &p.WordErrsAf,
-			&outputs, &timings, &done); err != nil {
+			&outputs, &timings, &done, &problem, &warnings); err != nil {
 			return nil, fmt.Errorf("ledger: %q: %w", l.path, err)
 		}
-		p.State = State(state)
+		p.State, p.Problem = State(state), Problem(problem)
+		if err := json.Unmarshal([]byte(warnings), &p.Warnings); err != nil {
+			return nil, fmt.Errorf("ledger: %q: page %q: warnings: %w", l.path, p.Rel, err)
+		}
+		if len(p.Warnings) == 0 {
+			p.Warnings = nil
+		}
 		if err := json.Unmarshal([]byte(reasons), &p.Reasons); err != nil {
 			return nil, fmt.Errorf("ledger: %q: page %q: reasons: %w", l.path, p.Rel, err)
 		}
 		if err := json.Unmarshal([]byte(outputs), &p.Outputs); err != nil {
 			return nil, fmt.Errorf("ledger: %q: page %q: outputs: %w", l.path, p.Rel, err)
+		}
+		for i, o := range p.Outputs {
+			if raw, err := fname.Unescape(o); err == nil {
+				p.Outputs[i] = raw
+			}
 		}
 		if err := json.Unmarshal([]byte(timings), &p.Timings); err != nil {
 			return nil, fmt.Errorf("ledger: %q: page %q: timings: %w", l.path, p.Rel, err)
@@ -341,6 +413,25 @@ func (l *Ledger) Pages(ctx context.Context) ([]Page, error) {
 		return nil, fmt.Errorf("ledger: %q: %w", l.path, err)
 	}
 	return out, nil
+}
+
+// MarkGone sets the rows of rels to state gone in one transaction,
+// keeping everything else they hold.
+func (l *Ledger) MarkGone(ctx context.Context, rels []string) error {
+	tx, err := l.db.BeginTx(ctx, nil)
+	if err != nil {
+		return describe(l.path, fmt.Errorf("ledger: %w", err))
+	}
+	for _, r := range rels {
+		if _, err := tx.ExecContext(ctx, `UPDATE pages SET state = ? WHERE rel = ?`, string(StateGone), r); err != nil {
+			tx.Rollback()
+			return describe(l.path, fmt.Errorf("ledger: %w", err))
+		}
+	}
+	if err := tx.Commit(); err != nil {
+		return describe(l.path, fmt.Errorf("ledger: %w", err))
+	}
+	return nil
 }
 
 // Key identifies what a done page was computed from.

@@ -1,10 +1,14 @@
 package ledger
 
 import (
+	"bytes"
 	"context"
+	"database/sql"
 	"errors"
+	"os"
 	"path/filepath"
 	"reflect"
+	"strings"
 	"sync/atomic"
 	"testing"
 	"time"
@@ -140,5 +144,74 @@ func TestMergePrefersDoneThenLater(t *testing.T) {
 	got, _ := dst.Pages(ctx)
 	if len(got) != 3 || got[0].State != StateDone || got[1].Words != 7 || got[2].Rel != "c" {
 		t.Errorf("merged = %+v", got)
+	}
+}
+
+// TestUpgradeFromVersion1: a ledger written by schema version 1 opens,
+// keeps its rows and gains the problem and warnings columns.
+func TestUpgradeFromVersion1(t *testing.T) {
+	path := filepath.Join(t.TempDir(), FileName)
+	db, err := sql.Open("sqlite", "file:"+path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	v1 := strings.Replace(schema, ",\n\tproblem       TEXT NOT NULL DEFAULT '',\n\twarnings      TEXT NOT NULL DEFAULT '[]'", "", 1)
+	if v1 == schema {
+		t.Fatal("could not make the version 1 schema")
+	}
+	for _, q := range []string{v1, `INSERT INTO meta VALUES('schema', '1')`,
+		`INSERT INTO pages VALUES('T/a.png','T','a.png','/c/T/a.png','00',1,'c','','done','','accept',0.1,'[]',0.9,3,0,0,0,0,0,0,0,0,'["ocr/T/a.txt"]','{}','2024-01-01T00:00:00Z')`} {
+		if _, err := db.Exec(q); err != nil {
+			t.Fatal(q, err)
+		}
+	}
+	db.Close()
+	l, err := Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer l.Close()
+	rows, err := l.Pages(context.Background())
+	if err != nil || len(rows) != 1 || rows[0].Outputs[0] != "ocr/T/a.txt" || rows[0].Problem != "" {
+		t.Fatalf("rows %+v, %v", rows, err)
+	}
+	if v, _ := l.Meta(context.Background(), "schema"); v != "2" {
+		t.Errorf("schema %q after upgrade, want 2", v)
+	}
+}
+
+// TestDamagedLedgerSaysWhatToDo: a ledger file that is not a database is
+// named, with how to start over without losing the outputs.
+func TestDamagedLedgerSaysWhatToDo(t *testing.T) {
+	path := filepath.Join(t.TempDir(), FileName)
+	if err := os.WriteFile(path, bytes.Repeat([]byte("not a database "), 400), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	_, err := Open(path)
+	if !errors.Is(err, ErrDamaged) {
+		t.Fatalf("err = %v, want ErrDamaged", err)
+	}
+	for _, want := range []string{path, "mv ", ".damaged", "reports are rebuilt"} {
+		if !strings.Contains(err.Error(), want) {
+			t.Errorf("message %q lacks %q", err, want)
+		}
+	}
+}
+
+// TestOutputsKeepBytes: output names that are not UTF-8 come back byte
+// for byte (JSON alone would turn them into U+FFFD).
+func TestOutputsKeepBytes(t *testing.T) {
+	l, err := Open(filepath.Join(t.TempDir(), FileName))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer l.Close()
+	outs := []string{"ocr/T/latin1-\xe9.png.txt", `ocr/T/back\slash.png.txt`}
+	if err := l.Put(context.Background(), Page{Rel: "T/latin1-\xe9.png", State: StateDone, Outputs: outs}); err != nil {
+		t.Fatal(err)
+	}
+	rows, _ := l.Pages(context.Background())
+	if len(rows) != 1 || rows[0].Rel != "T/latin1-\xe9.png" || rows[0].Outputs[0] != outs[0] || rows[0].Outputs[1] != outs[1] {
+		t.Errorf("rows %+v", rows)
 	}
 }

@@ -54,7 +54,14 @@ func (w *Writer) loop() {
 		if w.Err() != nil {
 			continue // drain so that producers never block
 		}
-		if err := w.l.PutAll(context.Background(), group); err != nil {
+		err := error(nil)
+		if w.l.BeforeCommit != nil {
+			err = w.l.BeforeCommit(group)
+		}
+		if err == nil {
+			err = w.l.PutAll(context.Background(), group)
+		}
+		if err != nil {
 			w.mu.Lock()
 			w.err = err
 			w.mu.Unlock()

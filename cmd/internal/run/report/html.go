@@ -169,7 +169,7 @@ func fileURL(path string) template.URL {
 	}
 	segs := strings.Split(filepath.ToSlash(path), "/")
 	for i, s := range segs {
-		segs[i] = url.PathEscape(Clean(s))
+		segs[i] = url.PathEscape(s) // the real bytes, percent-encoded: the link finds the file
 	}
 	joined := strings.Join(segs, "/")
 	if filepath.IsAbs(path) {

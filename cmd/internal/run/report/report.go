@@ -28,6 +28,9 @@ import (
 	"strconv"
 	"strings"
 	"unicode/utf8"
+
+	"recto/internal/atomicfile"
+	"recto/quality"
 )
 
 // Decisions lists the triage decisions in report order.
@@ -41,6 +44,7 @@ type Page struct {
 
 	Failed bool   // the page could not be processed
 	Error  string // why, when Failed
+	Setup  bool   // failed for a set-up or system reason, not the scan's: not on the rescan list
 
 	Decision     string   // one of Decisions; "" when Failed
 	PredictedCER float64  // estimated CER in [0, 1]
@@ -227,27 +231,8 @@ func sortedPages(pages []Page) []Page {
 }
 
 func writeFileAtomic(path string, data []byte) error {
-	f, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp*")
-	if err != nil {
+	if err := atomicfile.Write(path, data); err != nil {
 		return fmt.Errorf("report: %w", err)
-	}
-	tmp := f.Name()
-	_, err = f.Write(data)
-	if err == nil {
-		err = f.Sync()
-	}
-	if cerr := f.Close(); err == nil {
-		err = cerr
-	}
-	if err == nil {
-		err = os.Chmod(tmp, 0o644)
-	}
-	if err == nil {
-		err = os.Rename(tmp, path)
-	}
-	if err != nil {
-		os.Remove(tmp)
-		return fmt.Errorf("report: write %q: %w", path, err)
 	}
 	return nil
 }
@@ -270,13 +255,6 @@ func optF4(p *float64) string {
 	return f4(*p)
 }
 
-func rateCells(m *Measured) []string {
-	if m == nil {
-		return []string{"", "", ""}
-	}
-	return []string{f4(m.Rate), optF4(m.Lo), optF4(m.Hi)}
-}
-
 // cell makes a text cell safe to open in a spreadsheet: a leading =, +, -,
 // @, tab or carriage return would start a formula, so it gets an apostrophe.
 func cell(s string) string {
@@ -296,24 +274,88 @@ func writeCSV(rows [][]string) ([]byte, error) {
 	return buf.Bytes(), nil
 }
 
+// Column names follow the vocabulary every recto output shares (see the
+// README's change notes): a page is keyed by title and page (its path
+// relative to the collection without extension) with the image file in a
+// column of its own; status is ok or failed; a rate is cer or wer with its
+// interval as cer_low and cer_high, and _before or _after appended where
+// both exist; chars and words count the reference.
+
+// titleHead is the header of titles.csv; titleJSON has the same keys.
+var titleHead = append(append([]string{"title", "pages", "failed"}, Decisions...),
+	"mean_predicted_cer", "truth_pages", "chars", "words",
+	"char_errors_before", "cer_before", "cer_low_before", "cer_high_before",
+	"char_errors_after", "cer_after", "cer_low_after", "cer_high_after",
+	"word_errors_before", "wer_before", "word_errors_after", "wer_after", "corrections")
+
+// titleJSON is a Title as titles.json has it: flat, with the column names
+// of titles.csv; a figure without ground truth is null.
+type titleJSON struct {
+	Title            string         `json:"title"`
+	Pages            int            `json:"pages"`
+	Failed           int            `json:"failed"`
+	Decisions        map[string]int `json:"decisions"`
+	MeanPredictedCER *float64       `json:"mean_predicted_cer"`
+	TruthPages       int            `json:"truth_pages"`
+	Chars            *int           `json:"chars"`
+	Words            *int           `json:"words"`
+	CharErrorsBefore *int           `json:"char_errors_before"`
+	CERBefore        *float64       `json:"cer_before"`
+	CERLowBefore     *float64       `json:"cer_low_before"`
+	CERHighBefore    *float64       `json:"cer_high_before"`
+	CharErrorsAfter  *int           `json:"char_errors_after"`
+	CERAfter         *float64       `json:"cer_after"`
+	CERLowAfter      *float64       `json:"cer_low_after"`
+	CERHighAfter     *float64       `json:"cer_high_after"`
+	WordErrorsBefore *int           `json:"word_errors_before"`
+	WERBefore        *float64       `json:"wer_before"`
+	WordErrorsAfter  *int           `json:"word_errors_after"`
+	WERAfter         *float64       `json:"wer_after"`
+	Corrections      int            `json:"corrections"`
+}
+
+// MarshalJSON writes t flat, as titles.json has it.
+func (t Title) MarshalJSON() ([]byte, error) { return json.Marshal(flat(t)) }
+
+// flat spreads t's measured rates into columns.
+func flat(t Title) titleJSON {
+	j := titleJSON{Title: t.Title, Pages: t.Pages, Failed: t.Failed, Decisions: t.Decisions,
+		MeanPredictedCER: t.MeanPredictedCER, TruthPages: t.TruthPages, Corrections: t.Corrections}
+	parts := func(m *Measured) (units, errs *int, rate, lo, hi *float64) {
+		if m == nil {
+			return nil, nil, nil, nil, nil
+		}
+		u, e, r := m.Units, m.Errors, m.Rate
+		return &u, &e, &r, m.Lo, m.Hi
+	}
+	j.Chars, j.CharErrorsBefore, j.CERBefore, j.CERLowBefore, j.CERHighBefore = parts(t.CERBefore)
+	_, j.CharErrorsAfter, j.CERAfter, j.CERLowAfter, j.CERHighAfter = parts(t.CERAfter)
+	j.Words, j.WordErrorsBefore, j.WERBefore, _, _ = parts(t.WERBefore)
+	_, j.WordErrorsAfter, j.WERAfter, _, _ = parts(t.WERAfter)
+	return j
+}
+
+func optInt(p *int) string {
+	if p == nil {
+		return ""
+	}
+	return strconv.Itoa(*p)
+}
+
 // TitlesCSV renders one row per title and a last row for the whole collection.
 func TitlesCSV(s Summary) ([]byte, error) {
-	head := []string{"title", "pages", "failed"}
-	head = append(head, Decisions...)
-	head = append(head, "mean_predicted_cer", "truth_pages",
-		"cer_before", "cer_before_lo", "cer_before_hi",
-		"cer_after", "cer_after_lo", "cer_after_hi",
-		"wer_before", "wer_after", "corrections")
-	rows := [][]string{head}
+	rows := [][]string{titleHead}
 	for _, t := range append(append([]Title(nil), s.Titles...), s.Total) {
+		j := flat(t)
 		r := []string{cell(t.Title), strconv.Itoa(t.Pages), strconv.Itoa(t.Failed)}
 		for _, d := range Decisions {
 			r = append(r, strconv.Itoa(t.Decisions[d]))
 		}
-		r = append(r, optF4(t.MeanPredictedCER), strconv.Itoa(t.TruthPages))
-		r = append(r, rateCells(t.CERBefore)...)
-		r = append(r, rateCells(t.CERAfter)...)
-		r = append(r, rateCells(t.WERBefore)[0], rateCells(t.WERAfter)[0], strconv.Itoa(t.Corrections))
+		r = append(r, optF4(t.MeanPredictedCER), strconv.Itoa(t.TruthPages), optInt(j.Chars), optInt(j.Words),
+			optInt(j.CharErrorsBefore), optF4(j.CERBefore), optF4(j.CERLowBefore), optF4(j.CERHighBefore),
+			optInt(j.CharErrorsAfter), optF4(j.CERAfter), optF4(j.CERLowAfter), optF4(j.CERHighAfter),
+			optInt(j.WordErrorsBefore), optF4(j.WERBefore), optInt(j.WordErrorsAfter), optF4(j.WERAfter),
+			strconv.Itoa(t.Corrections))
 		rows = append(rows, r)
 	}
 	return writeCSV(rows)
@@ -321,16 +363,16 @@ func TitlesCSV(s Summary) ([]byte, error) {
 
 // PagesCSV renders one row per page.
 func PagesCSV(pages []Page) ([]byte, error) {
-	rows := [][]string{{"title", "page", "path", "state", "decision", "predicted_cer", "reasons",
-		"corrections", "ref_chars", "char_errors_before", "char_errors_after", "cer_before", "cer_after",
-		"ref_words", "word_errors_before", "word_errors_after", "error"}}
+	rows := [][]string{{"title", "page", "image", "status", "decision", "predicted_cer", "reasons",
+		"corrections", "chars", "char_errors_before", "char_errors_after", "cer_before", "cer_after",
+		"words", "word_errors_before", "word_errors_after", "wer_before", "wer_after", "error"}}
 	for _, p := range pages {
-		state := "done"
+		status := quality.StatusOK
 		if p.Failed {
-			state = "failed"
+			status = quality.StatusFailed
 		}
-		r := []string{cell(p.Title), cell(p.Page), cell(p.Rel), state, p.Decision, "", cell(strings.Join(p.Reasons, "; ")),
-			strconv.Itoa(p.Corrections), "", "", "", "", "", "", "", "", cell(p.Error)}
+		r := []string{cell(p.Title), cell(p.Page), cell(p.Rel), status, p.Decision, "", cell(strings.Join(p.Reasons, "; ")),
+			strconv.Itoa(p.Corrections), "", "", "", "", "", "", "", "", "", "", cell(p.Error)}
 		if !p.Failed {
 			r[5] = f4(p.PredictedCER)
 		}
@@ -340,19 +382,27 @@ func PagesCSV(pages []Page) ([]byte, error) {
 				r[11], r[12] = f4(b), f4(a)
 			}
 			r[13], r[14], r[15] = strconv.Itoa(p.RefWords), strconv.Itoa(p.WordErrs), strconv.Itoa(p.WordErrsAfter)
+			if p.RefWords > 0 {
+				n := float64(p.RefWords)
+				r[16], r[17] = f4(float64(p.WordErrs)/n), f4(float64(p.WordErrsAfter)/n)
+			}
 		}
 		rows = append(rows, r)
 	}
 	return writeCSV(rows)
 }
 
+// RescanHead is the header of every rescan list recto writes (the run's
+// rescan.csv and 'recto triage --rescan-list').
+var RescanHead = []string{"title", "page", "image", "predicted_cer", "reasons"}
+
 // RescanCSV lists the pages to scan again: those triage marked rescan and
 // those that could not be read at all.
 func RescanCSV(pages []Page) ([]byte, error) {
-	rows := [][]string{{"title", "page", "path", "predicted_cer", "why"}}
+	rows := [][]string{RescanHead}
 	for _, p := range pages {
 		switch {
-		case p.Failed:
+		case p.Failed && !p.Setup:
 			rows = append(rows, []string{cell(p.Title), cell(p.Page), cell(p.Rel), "", cell("unreadable: " + p.Error)})
 		case p.Decision == "rescan":
 			rows = append(rows, []string{cell(p.Title), cell(p.Page), cell(p.Rel), f4(p.PredictedCER), cell(strings.Join(p.Reasons, "; "))})

@@ -110,7 +110,7 @@ func TestCSVFilesParseAndAreSafe(t *testing.T) {
 			}
 		}
 	}
-	var s Summary
+	var s struct{ Titles []map[string]any }
 	data, _ := os.ReadFile(filepath.Join(dir, "titles.json"))
 	if err := json.Unmarshal(data, &s); err != nil || len(s.Titles) != 2 {
 		t.Errorf("titles.json: %v, %d titles", err, len(s.Titles))

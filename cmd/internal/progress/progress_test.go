@@ -1,4 +1,4 @@
-package run
+package progress
 
 import (
 	"bytes"
@@ -9,13 +9,13 @@ import (
 
 func TestProgressLine(t *testing.T) {
 	var buf bytes.Buffer
-	p := newRunProgress(&buf, true, 100) // quiet: no drawing goroutine
+	p := New(&buf, "recto run", true, 100) // quiet: no drawing goroutine
 	p.start = time.Date(2026, 1, 1, 0, 0, 0, 0, time.UTC)
 	for range 10 {
-		p.skip()
+		p.Skip()
 	}
 	for i := range 30 {
-		p.add(i%10 == 0)
+		p.Add(i%10 == 0)
 	}
 	got := p.line(p.start.Add(3 * time.Minute))
 	// 30 pages in 3 minutes: 10 pages/min; 60 left: 6 minutes.
@@ -23,7 +23,7 @@ func TestProgressLine(t *testing.T) {
 	if got != want {
 		t.Errorf("line = %q, want %q", got, want)
 	}
-	p.finish()
+	p.Finish()
 	if buf.Len() != 0 {
 		t.Errorf("quiet progress wrote %q", buf.String())
 	}
@@ -31,12 +31,12 @@ func TestProgressLine(t *testing.T) {
 
 func TestProgressPlainWhenNotTerminal(t *testing.T) {
 	var buf bytes.Buffer
-	p := newRunProgress(&buf, false, 2) // a buffer is not a terminal
-	p.add(false)
-	p.add(false)
-	p.finish()
+	p := New(&buf, "recto run", false, 2) // a buffer is not a terminal
+	p.Add(false)
+	p.Add(false)
+	p.Finish()
 	out := buf.String()
-	if strings.Contains(out, "\r") || strings.Contains(out, "\033") || !strings.HasPrefix(out, "recto: 2/2 pages") {
+	if strings.Contains(out, "\r") || strings.Contains(out, "\033") || !strings.HasPrefix(out, "recto run: 2/2 pages") {
 		t.Errorf("plain progress = %q", out)
 	}
 }

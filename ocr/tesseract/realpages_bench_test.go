@@ -58,8 +58,8 @@ func (c *selfCheckCost) report(b *testing.B, prefix string) {
 // (25 synthetic pages, 4 of them clean; ocr/synth), on its clean pages and
 // its degraded pages apart, on a collection four fifths clean (the issue's
 // target, under 15 % more engine time, computed from the two) and on the
-// real pages (the 4 transcribed Tesseract pages and the 26 Leptonica pages
-// of TestLeptonicaPagesConfidentWords). One iteration reads 55 pages: run
+// real pages (the 4 transcribed Tesseract pages and the 31 Leptonica pages
+// of TestLeptonicaPagesConfidentWords). One iteration reads 60 pages: run
 // with -benchtime=1x.
 func BenchmarkSelfCheck(b *testing.B) {
 	e := engineOrSkip(b, Config{})

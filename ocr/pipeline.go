@@ -126,8 +126,14 @@ func process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 			if err != nil {
 				return nil, nil, err
 			}
-			r := &Reading{Kept: "prepared", PreparedScore: confidentLetters(words), OriginalScore: confidentLetters(owords)}
-			if r.OriginalScore > r.PreparedScore {
+			r := &Reading{Kept: "prepared", PreparedScore: confidentLetters(words), OriginalScore: confidentLetters(owords),
+				PreparedWords: confidentWords(words), OriginalWords: confidentWords(owords)}
+			// More confidently read words (of three letters or more)
+			// first, the figure the real-page check compares with the
+			// plain engine (issue 10 part 1); on a tie, more confident
+			// letters. Letters alone kept 11 words of 1555.003.jpg
+			// (51 letters) over the original's 37 letters.
+			if r.OriginalWords > r.PreparedWords || (r.OriginalWords == r.PreparedWords && r.OriginalScore > r.PreparedScore) {
 				r.Kept = "original"
 				words = owords
 				toOrig = func(b Box) Box { return b }
@@ -237,6 +243,27 @@ func readingLooksPoor(words []Word) bool {
 		}
 	}
 	return float64(n) <= poorReadingMax*float64(len(words))
+}
+
+// confidentWords counts the words read with confidence ConfidentWord or
+// more that have three letters or more.
+func confidentWords(words []Word) int {
+	n := 0
+	for _, w := range words {
+		if w.Conf < ConfidentWord {
+			continue
+		}
+		letters := 0
+		for _, r := range w.Text {
+			if unicode.IsLetter(r) {
+				letters++
+			}
+		}
+		if letters >= 3 {
+			n++
+		}
+	}
+	return n
 }
 
 // confidentLetters counts the letters and digits of the words read with

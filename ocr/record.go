@@ -76,12 +76,17 @@ type Record struct {
 }
 
 // Reading records the self-check of one page: both readings' scores (the
-// letters and digits of words read with confidence ConfidentWord or more)
-// and which reading was kept.
+// letters and digits, and the words of three letters or more, read with
+// confidence ConfidentWord or more) and which reading was kept.
 type Reading struct {
 	Kept          string `json:"kept"`           // "prepared" or "original" (no preparation)
 	PreparedScore int    `json:"prepared_score"` // confident letters in the prepared page's reading
 	OriginalScore int    `json:"original_score"` // confident letters in the original page's reading
+
+	// Confidently read words of three letters or more in each reading:
+	// the reading with more is kept, on a tie the one with more letters.
+	PreparedWords int `json:"prepared_words"`
+	OriginalWords int `json:"original_words"`
 }
 
 // Word is one recognised word.

@@ -52,6 +52,10 @@ func process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 		TimingsMS: map[string]float64{},
 		Words:     []Word{},
 	}
+	if d, ok := eng.(EngineDescriber); ok {
+		info := d.Describe()
+		rec.Engine = &info
+	}
 
 	var p *Prepared
 	if o.NoPrepare {

@@ -73,6 +73,11 @@ type Record struct {
 	// found the reading of the prepared page poor and read the original
 	// page too; nil when only the prepared page was read.
 	Reading *Reading `json:"reading,omitempty"`
+
+	// Engine names the recognition engine, its version and settings, for
+	// the ALTO Processing description; nil when the engine does not say
+	// (see EngineDescriber).
+	Engine *EngineInfo `json:"engine,omitempty"`
 }
 
 // Reading records the self-check of one page: both readings' scores (the

@@ -31,6 +31,12 @@ const (
 // a reader never sees half a file and an interrupted run leaves the
 // previous version intact.
 func WriteOutputs(dir, rel string, rec *Record, prepared *image.Gray) error {
+	return WriteOutputsWith(dir, rel, rec, prepared, ALTOOptions{})
+}
+
+// WriteOutputsWith is WriteOutputs with the ALTO document's quality
+// estimate and correction step (WriteALTOWith).
+func WriteOutputsWith(dir, rel string, rec *Record, prepared *image.Gray, ao ALTOOptions) error {
 	if rel == "" || filepath.IsAbs(rel) {
 		return fmt.Errorf("ocr: output name %q must be a relative path", rel)
 	}
@@ -44,7 +50,7 @@ func WriteOutputs(dir, rel string, rec *Record, prepared *image.Gray) error {
 	}); err != nil {
 		return err
 	}
-	if err := writeAtomic(base+SuffixALTO, func(w io.Writer) error { return WriteALTO(w, rec) }); err != nil {
+	if err := writeAtomic(base+SuffixALTO, func(w io.Writer) error { return WriteALTOWith(w, rec, ao) }); err != nil {
 		return err
 	}
 	if err := writeAtomic(base+SuffixRecord, func(w io.Writer) error { return writeRecordJSON(w, rec) }); err != nil {

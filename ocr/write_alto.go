@@ -5,53 +5,162 @@ import (
 	"encoding/xml"
 	"io"
 	"path/filepath"
+	"runtime/debug"
 	"strconv"
+	"strings"
 )
 
 // ALTO v4 identifiers written into every document.
 const (
 	ALTONamespace      = "http://www.loc.gov/standards/alto/ns-v4#"
-	ALTOSchemaLocation = "http://www.loc.gov/standards/alto/v4/alto-4-2.xsd"
+	ALTOSchemaLocation = "http://www.loc.gov/standards/alto/v4/alto-4-4.xsd"
+	ALTOSchemaVersion  = "4.4"
 )
 
-// WriteALTO writes rec as an ALTO v4 document (schema version 4.2): one
-// Page holding a PrintSpace with one TextBlock per engine block
-// (Word.Block, e.g. a column), one TextLine per line and one String per
-// word, in the engine's reading order, with HPOS/VPOS/WIDTH/HEIGHT in pixels of the original image
-// (MeasurementUnit "pixel"), WC the word confidence in [0, 1], and each of
-// Word.Alt as an ALTERNATIVE element. Package ocr/alto is the documented
-// entry point; this function exists because WriteOutputs needs it and
-// ocr/alto imports ocr.
+// SoftwareVersion is recto's version as written into the ALTO Processing
+// description; the command sets it from its build, else the module's build
+// information is used ("devel" when there is none).
+var SoftwareVersion = buildVersion()
+
+func buildVersion() string {
+	if bi, ok := debug.ReadBuildInfo(); ok && bi.Main.Version != "" && bi.Main.Version != "(devel)" {
+		return bi.Main.Version
+	}
+	return "devel"
+}
+
+// EngineInfo names a recognition engine for the ALTO Processing
+// description.
+type EngineInfo struct {
+	Name     string `json:"name"`     // "Tesseract"
+	Version  string `json:"version"`  // the engine's own version string
+	Settings string `json:"settings"` // the settings that change its reading, "lang=eng psm=3"
+}
+
+// EngineDescriber is implemented by engines that can name themselves;
+// Process records the description in Record.Engine.
+type EngineDescriber interface {
+	Describe() EngineInfo
+}
+
+// ALTOStep is a processing step the record does not hold, such as
+// correction.
+type ALTOStep struct {
+	Description []string // what was done, one item per step (processingStepDescription)
+	Settings    string   // the settings that change the result (processingStepSettings)
+	Software    string   // softwareName; "" means recto
+	Version     string   // softwareVersion; "" means SoftwareVersion
+}
+
+// ALTOOptions adds to the ALTO document what the record does not hold.
+type ALTOOptions struct {
+	// Accuracy, when HasAccuracy, is the page's quality estimate as an
+	// estimated percentage of characters read right, 100 × (1 − predicted
+	// CER), written as Page@ACCURACY (0–100).
+	Accuracy    float64
+	HasAccuracy bool
+	// Correction is the correction step, when the text was corrected.
+	Correction *ALTOStep
+}
+
+// WriteALTO writes rec as an ALTO document with no options (WriteALTOWith).
+func WriteALTO(w io.Writer, rec *Record) error { return WriteALTOWith(w, rec, ALTOOptions{}) }
+
+// WriteALTOWith writes rec as an ALTO v4 document (schema version 4.4; it
+// validates against alto-4-4.xsd): one Page holding a PrintSpace with one
+// TextBlock per engine block (Word.Block, e.g. a column), one TextLine per
+// line and one String per word, in the engine's reading order, with
+// HPOS/VPOS/WIDTH/HEIGHT in pixels of the original image (MeasurementUnit
+// "pixel"), WC the word confidence in [0, 1], and each of Word.Alt as an
+// ALTERNATIVE element. CC (character confidence) is not written: the
+// engine's reading gives no per-character confidence.
+//
+// Page@PC is the engine's mean word confidence (the schema: "confidence
+// level of the ocr for this page", 0 unsure to 1 sure); Page@ACCURACY is
+// o.Accuracy, the quality estimate ("estimated percentage of OCR
+// accuracy", 0–100), when given. Description/Processing holds one element
+// per step, referenced from Page@PROCESSINGREFS: "preparation"
+// (preOperation: binarisation, threshold, skew, resolution, noise),
+// "recognition" (contentGeneration: the engine's name, version and
+// settings from Record.Engine, the language and the self-check of
+// Record.Reading: which reading was kept and both scores) and, with
+// o.Correction, "correction" (contentModification).
 //
 // The output is deterministic: it carries no date, so equal records give
-// equal files.
-func WriteALTO(w io.Writer, rec *Record) error {
+// equal files. Package ocr/alto is the documented entry point; this
+// function exists because WriteOutputs needs it and ocr/alto imports ocr.
+func WriteALTOWith(w io.Writer, rec *Record, o ALTOOptions) error {
 	bw := bufio.NewWriter(w)
 	a := altoWriter{w: bw}
 	a.s(`<?xml version="1.0" encoding="UTF-8"?>` + "\n")
 	a.s(`<alto xmlns="` + ALTONamespace + `" xmlns:xsi="http://www.w3.org/2001/XMLSchema-instance" xsi:schemaLocation="` +
-		ALTONamespace + ` ` + ALTOSchemaLocation + `" SCHEMAVERSION="4.2">` + "\n")
+		ALTONamespace + ` ` + ALTOSchemaLocation + `" SCHEMAVERSION="` + ALTOSchemaVersion + `">` + "\n")
 	a.s("  <Description>\n    <MeasurementUnit>pixel</MeasurementUnit>\n")
 	if rec.Source != "" {
 		a.s("    <sourceImageInformation>\n      <fileName>")
 		a.esc(filepath.ToSlash(rec.Source))
 		a.s("</fileName>\n    </sourceImageInformation>\n")
 	}
-	a.s(`    <Processing ID="proc0">` + "\n")
-	a.s("      <processingCategory>contentGeneration</processingCategory>\n")
-	a.s("      <processingStepSettings>")
-	a.esc("binarization=" + orNone(rec.Binarization) + " skew_degrees=" + strconv.FormatFloat(rec.Skew, 'f', 2, 64) +
-		" dpi=" + strconv.FormatFloat(rec.DPI, 'f', -1, 64))
-	a.s("</processingStepSettings>\n")
-	a.s("      <processingSoftware>\n        <softwareName>recto</softwareName>\n")
-	a.s("        <applicationDescription>page preparation by recto, recognition by Tesseract</applicationDescription>\n")
-	a.s("      </processingSoftware>\n    </Processing>\n  </Description>\n")
+	refs := []string{"preparation", "recognition"}
+
+	// Preparation.
+	prep := ALTOStep{Settings: "binarization=" + orNone(rec.Binarization) + " threshold=" + strconv.Itoa(rec.Threshold) +
+		" skew_degrees=" + strconv.FormatFloat(rec.Skew, 'f', 2, 64) + " dpi=" + strconv.FormatFloat(rec.DPI, 'f', -1, 64) +
+		" noise=" + strconv.FormatFloat(rec.Noise, 'f', 2, 64)}
+	if rec.Binarization != "" && rec.Binarization != "none" {
+		prep.Description = append(prep.Description, "binarisation ("+rec.Binarization+")")
+	}
+	if rec.Skew != 0 {
+		prep.Description = append(prep.Description, "deskew ("+strconv.FormatFloat(rec.Skew, 'f', 2, 64)+" degrees)")
+	}
+	if rec.Reading != nil && rec.Reading.Kept == "original" {
+		prep.Description = append(prep.Description, "not used for the text: the self-check kept the reading of the original page")
+	}
+	if rec.Blank {
+		prep.Description = append(prep.Description, "no ink worth recognising was found (blank page)")
+	}
+	a.step("preparation", "preOperation", prep)
+
+	// Recognition.
+	recog := ALTOStep{Software: "engine not recorded", Description: []string{"text recognition"}}
+	settings := "lang=" + orNone(rec.Lang)
+	if rec.Engine != nil {
+		recog.Software, recog.Version = rec.Engine.Name, rec.Engine.Version
+		if rec.Engine.Settings != "" {
+			settings = rec.Engine.Settings
+		}
+		if recog.Version == "" {
+			recog.Version = "unknown"
+		}
+	}
+	if r := rec.Reading; r != nil {
+		recog.Description = append(recog.Description, "self-check: the reading of the "+r.Kept+" page was kept (kept="+r.Kept+
+			" prepared_score="+strconv.Itoa(r.PreparedScore)+" original_score="+strconv.Itoa(r.OriginalScore)+
+			": letters and digits in confidently read words)")
+		settings += " self_check=on"
+	}
+	recog.Settings = settings
+	a.step("recognition", "contentGeneration", recog)
+
+	if o.Correction != nil {
+		a.step("correction", "contentModification", *o.Correction)
+		refs = append(refs, "correction")
+	}
+	a.s("  </Description>\n")
 	a.s("  <Layout>\n")
 	a.s(`    <Page ID="page1" PHYSICAL_IMG_NR="1"`)
 	a.attrInt("WIDTH", rec.Width)
 	a.attrInt("HEIGHT", rec.Height)
+	a.s(` PROCESSINGREFS="` + strings.Join(refs, " ") + `"`)
 	if len(rec.Words) > 0 {
 		a.attrConf("PC", rec.MeanConfidence)
+	}
+	if o.HasAccuracy {
+		v := o.Accuracy
+		if v != v { // NaN
+			v = 0
+		}
+		a.s(` ACCURACY="` + strconv.FormatFloat(max(0, min(100, v)), 'f', 1, 64) + `"`)
 	}
 	a.s(">\n")
 
@@ -122,6 +231,37 @@ func WriteALTO(w io.Writer, rec *Record) error {
 		return a.err
 	}
 	return bw.Flush()
+}
+
+// step writes one Processing element; an empty software name is recto.
+func (a *altoWriter) step(id, category string, st ALTOStep) {
+	if st.Software == "" {
+		st.Software = "recto"
+	}
+	if st.Version == "" && st.Software == "recto" {
+		st.Version = SoftwareVersion
+	}
+	a.s(`    <Processing ID="` + id + `">` + "\n")
+	a.s("      <processingCategory>" + category + "</processingCategory>\n")
+	for _, d := range st.Description {
+		a.s("      <processingStepDescription>")
+		a.esc(d)
+		a.s("</processingStepDescription>\n")
+	}
+	if st.Settings != "" {
+		a.s("      <processingStepSettings>")
+		a.esc(st.Settings)
+		a.s("</processingStepSettings>\n")
+	}
+	a.s("      <processingSoftware>\n        <softwareName>")
+	a.esc(st.Software)
+	a.s("</softwareName>\n")
+	if st.Version != "" {
+		a.s("        <softwareVersion>")
+		a.esc(st.Version)
+		a.s("</softwareVersion>\n")
+	}
+	a.s("      </processingSoftware>\n    </Processing>\n")
 }
 
 func orNone(s string) string {

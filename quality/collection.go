@@ -39,13 +39,18 @@ type FileError struct {
 	File   string // path as found under the root given by the caller
 	Offset int    // byte offset of the problem, or -1
 	Err    error
+	Hint   string // what the file looks like and what to do, or ""
 }
 
 func (e *FileError) Error() string {
+	msg := fmt.Sprintf("%s %q: %v", e.Role, e.File, e.Err)
 	if e.Offset >= 0 {
-		return fmt.Sprintf("%s %q: %v at byte offset %d", e.Role, e.File, e.Err, e.Offset)
+		msg += fmt.Sprintf(" at byte offset %d", e.Offset)
 	}
-	return fmt.Sprintf("%s %q: %v", e.Role, e.File, e.Err)
+	if e.Hint != "" {
+		msg += ": " + e.Hint
+	}
+	return msg
 }
 
 func (e *FileError) Unwrap() error { return e.Err }
@@ -103,17 +108,20 @@ type DirConfig struct {
 	Seed       uint64 // bootstrap seed; 0 means DefaultSeed
 }
 
-// ScoreDirs scores every "*.txt" file under truth (recursively) against the
-// file at the same relative path under ocr. A missing hypothesis is scored
-// as empty text and listed in Missing; a hypothesis that cannot be read is
-// scored as empty text and listed in Failed; a reference that cannot be
-// read, is a directory or is not valid UTF-8 is listed in Failed and not
-// scored. "*.txt" files under ocr without a reference are listed in
-// Unmatched. One bad file never stops the others.
+// ScoreDirs scores every reference page under truth (recursively): a
+// "*.txt", "*.xml", "*.alto.xml" or "*.page.xml" file, read by ReadTruth
+// (plain text, ALTO or PAGE XML) against the "*.txt" file at the same
+// relative path, without the reference's ending, under ocr. A missing
+// hypothesis is scored as empty text and listed in Missing; a hypothesis
+// that cannot be read is scored as empty text and listed in Failed; a
+// reference that cannot be read, is a directory, is not valid UTF-8, is
+// unusable XML or is found in two files (p1.txt and p1.xml) is listed in
+// Failed and not scored. "*.txt" files under ocr without a reference are
+// listed in Unmatched. One bad file never stops the others.
 //
 // ScoreDirs returns an error, and no report, when truth or ocr is not a
-// readable directory, when truth holds no "*.txt" file, when no page could
-// be scored, or when ctx is cancelled.
+// readable directory, when truth holds no reference file, when no page
+// could be scored, or when ctx is cancelled.
 func ScoreDirs(ctx context.Context, truth, ocr string, cfg DirConfig) (*Report, error) {
 	for _, d := range []string{truth, ocr} {
 		fi, err := os.Stat(d)
@@ -127,15 +135,21 @@ func ScoreDirs(ctx context.Context, truth, ocr string, cfg DirConfig) (*Report, 
 	rep := &Report{Norm: cfg.Norm}
 	// When one root lies inside the other (--ocr gt/ocr), each walk skips
 	// the other root, so OCR output is never taken for ground truth.
-	refs, err := listText(truth, ocr, func(fe *FileError) {
+	nbad := 0
+	keys, refFiles, twice, err := listTruth(truth, ocr, func(fe *FileError) {
 		fe.Role = "reference"
 		rep.Failed = append(rep.Failed, fe)
+		nbad++
 	})
 	if err != nil {
 		return nil, err
 	}
-	if len(refs) == 0 {
-		return nil, fmt.Errorf("quality: no reference pages (*.txt) under %q", truth)
+	if len(keys)+nbad == 0 {
+		return nil, fmt.Errorf("quality: no reference pages (*.txt, *.xml) under %q", truth)
+	}
+	refs := make([]string, len(keys)) // the hypothesis file of each page
+	for i, k := range keys {
+		refs[i] = k + ".txt"
 	}
 	hyps, err := listText(ocr, truth, func(*FileError) {}) // unreadable hypotheses show up when read
 	if err != nil {
@@ -144,6 +158,9 @@ func ScoreDirs(ctx context.Context, truth, ocr string, cfg DirConfig) (*Report, 
 	isRef := make(map[string]bool, len(refs))
 	for _, r := range refs {
 		isRef[r] = true
+	}
+	for _, k := range twice {
+		isRef[k+".txt"] = true // reported as a failure, not as unmatched
 	}
 	for _, h := range hyps {
 		if !isRef[h] {
@@ -173,13 +190,13 @@ func ScoreDirs(ctx context.Context, truth, ocr string, cfg DirConfig) (*Report, 
 		res := &results[i]
 		title, page := TitlePage(rel, rootName)
 		res.page = PageScore{Title: title, Page: page, Status: StatusOK}
-		refPath := filepath.Join(truth, filepath.FromSlash(rel))
-		ref, fe := readText(refPath)
-		if fe != nil {
-			fe.Role = "reference"
-			res.errs = append(res.errs, fe)
+		refPath := filepath.Join(truth, filepath.FromSlash(refFiles[i]))
+		t, err := ReadTruth(refPath)
+		if err != nil {
+			res.errs = append(res.errs, err.(*FileError))
 			return
 		}
+		ref := t.Text
 		hypPath := filepath.Join(ocr, filepath.FromSlash(rel))
 		hyp, fe := readText(hypPath)
 		switch {
@@ -274,6 +291,11 @@ func Summarize(pages []PageScore, resamples int, seed uint64) ([]TitleScore, Cou
 // inside. A directory whose name ends in ".txt" and a directory that cannot
 // be listed are passed to bad (and the walk goes on).
 func listText(root, skip string, bad func(*FileError)) ([]string, error) {
+	return listFiles(root, skip, func(name string) bool { return strings.HasSuffix(name, ".txt") }, bad)
+}
+
+// listFiles is listText for the files whose names match.
+func listFiles(root, skip string, match func(name string) bool, bad func(*FileError)) ([]string, error) {
 	var out []string
 	skipInfo, skipErr := os.Stat(skip)
 	err := filepath.WalkDir(root, func(p string, d fs.DirEntry, err error) error {
@@ -292,7 +314,7 @@ func listText(root, skip string, bad func(*FileError)) ([]string, error) {
 			}
 			return nil
 		}
-		if !strings.HasSuffix(d.Name(), ".txt") || p == root {
+		if !match(d.Name()) || p == root {
 			return nil
 		}
 		if d.IsDir() {
@@ -311,32 +333,6 @@ func listText(root, skip string, bad func(*FileError)) ([]string, error) {
 	}
 	slices.Sort(out)
 	return out, nil
-}
-
-// readText reads a UTF-8 text file, checking its kind and size first.
-func readText(p string) (string, *FileError) {
-	fail := func(off int, err error) (string, *FileError) {
-		return "", &FileError{File: p, Offset: off, Err: err}
-	}
-	fi, err := os.Stat(p)
-	switch {
-	case err != nil:
-		return fail(-1, unwrapPath(err))
-	case fi.IsDir():
-		return fail(-1, ErrIsDirectory)
-	case !fi.Mode().IsRegular():
-		return fail(-1, ErrNotRegular)
-	case fi.Size() > MaxFileSize:
-		return fail(-1, ErrTooLarge)
-	}
-	b, err := os.ReadFile(p)
-	if err != nil {
-		return fail(-1, unwrapPath(err))
-	}
-	if off := invalidUTF8(b); off >= 0 {
-		return fail(off, ErrInvalidUTF8)
-	}
-	return string(b), nil
 }
 
 // invalidUTF8 returns the offset of the first byte of b that is not part of

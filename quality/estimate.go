@@ -131,7 +131,8 @@ func (p OCRPage) Features(lex *lexicon.Lexicon) (Features, error) {
 	return TextFeatures(text, lex), nil
 }
 
-// Sample reads the page and its ground truth (UTF-8 text at truthPath) and
+// Sample reads the page and its ground truth (the file at truthPath, read
+// by ReadTruth: UTF-8 text, ALTO or PAGE XML) and
 // measures its CER with Compare under the default normalisation. It
 // returns an error naming the file when either cannot be read. A page whose
 // ground truth has no characters gets EmptyTruth set and CER 0.
@@ -140,14 +141,11 @@ func (p OCRPage) Sample(truthPath string, lex *lexicon.Lexicon) (Sample, error) 
 	if err != nil {
 		return Sample{}, err
 	}
-	ref, err := os.ReadFile(truthPath)
+	ref, err := ReadTruth(truthPath)
 	if err != nil {
-		return Sample{}, fmt.Errorf("quality: %w", err)
+		return Sample{}, err
 	}
-	if !utf8.Valid(ref) {
-		return Sample{}, fmt.Errorf("quality: %q: ground truth is not valid UTF-8", truthPath)
-	}
-	cer, ok := Compare(string(ref), text, NormOptions{}).CER()
+	cer, ok := Compare(ref.Text, text, NormOptions{}).CER()
 	s := Sample{ID: p.Rel, Text: TextFeatures(text, lex), CER: cer, EmptyTruth: !ok}
 	if rec != nil {
 		s.Record = PageFeatures(rec, lex)
@@ -155,9 +153,11 @@ func (p OCRPage) Sample(truthPath string, lex *lexicon.Lexicon) (Sample, error) 
 	return s, nil
 }
 
-// TruthPath returns where the ground truth of p lies under truthDir.
-func (p OCRPage) TruthPath(truthDir string) string {
-	return filepath.Join(truthDir, filepath.FromSlash(path.Clean(p.Rel))+".txt")
+// TruthPath returns where the ground truth of p lies under truthDir: the
+// file FindTruth finds (.txt, .xml, .alto.xml or .page.xml), "" when there
+// is none, and an error naming both files when there are two.
+func (p OCRPage) TruthPath(truthDir string) (string, error) {
+	return FindTruth(filepath.Join(truthDir, filepath.FromSlash(path.Clean(p.Rel))))
 }
 
 // LoadSamples pairs every page under ocrDir with its ground truth under
@@ -186,9 +186,13 @@ func LoadSamples(ocrDir, truthDir string, lex *lexicon.Lexicon) (samples []Sampl
 	res := make([]result, len(pages))
 	_ = par.Each(context.Background(), len(pages), 0, func(_, i int) {
 		p := pages[i]
-		tp := p.TruthPath(truthDir)
-		if _, err := os.Stat(tp); err != nil {
-			res[i].err = fmt.Errorf("quality: page %q has no ground truth %q", p.Rel, tp)
+		tp, err := p.TruthPath(truthDir)
+		if err != nil {
+			res[i].err = err
+			return
+		}
+		if tp == "" {
+			res[i].err = fmt.Errorf("quality: page %q has no ground truth %q (or .xml)", p.Rel, filepath.Join(truthDir, filepath.FromSlash(path.Clean(p.Rel)))+".txt")
 			return
 		}
 		res[i].s, res[i].err = p.Sample(tp, lex)

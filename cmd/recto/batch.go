@@ -148,6 +148,7 @@ it is done in more than one, the most recent wins. The sources are only read.
 		},
 	}
 	cmd.Flags().StringVarP(&o.Out, "out", "o", "", "run `folder` to merge into (default: the one DIR given)")
+	cmd.Flags().BoolVar(&o.AllowPartial, "allow-partial", false, "merge even when shards are missing, repeated or of different settings (exit 3 otherwise); the report says it is partial")
 	return cmd
 }
 

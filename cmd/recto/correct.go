@@ -416,7 +416,9 @@ func correctOne(c *correct.Corrector, in string, o CorrectOptions, p correctPage
 		}
 		if p.altoXML {
 			buf.Reset()
-			if err := alto.Write(&buf, out); err != nil {
+			step := alto.Step{Description: []string{"correction of OCR confusions (recto correct)"},
+				Settings: fmt.Sprintf("lang=%s margin=%g keep_marks=%t map_glyphs=%t", out.Lang, o.Margin, o.KeepMarks, o.MapGlyphs)}
+			if err := alto.WriteWith(&buf, out, alto.Options{Correction: &step}); err != nil {
 				return correctResult{err: fmt.Errorf("correct: %q: %w", outBase+ocr.SuffixALTO, err)}
 			}
 			if err := writeFileAtomic(outBase+ocr.SuffixALTO, buf.Bytes()); err != nil {

@@ -13,11 +13,15 @@ import (
 	"syscall"
 
 	"recto/cmd/internal/cli"
+	"recto/ocr"
 )
 
 func main() {
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
+	if version != "" {
+		ocr.SoftwareVersion = version // the ALTO Processing description names this build
+	}
 	root := newRootCommand()
 	cmd, err := root.ExecuteContextC(ctx)
 	name := "recto"

@@ -33,8 +33,11 @@ const scoreLong = `Score OCR text against ground truth: character and word error
 WER) per page, per title and for the whole collection.
 
 PAIRS
-  Every *.txt file under --truth (searched recursively) is a reference page.
-  Its hypothesis is the file at the same relative path under --ocr. A title
+  Every *.txt, *.xml, *.alto.xml or *.page.xml file under --truth (searched
+  recursively) is a reference page: plain UTF-8 text, ALTO (versions 2-4) or
+  PAGE XML (2010-2019), told apart by the content. Its hypothesis is the .txt
+  file at the same relative path, without the ending, under --ocr. A page
+  found in two files (p1.txt and p1.xml) is reported and not scored. A title
   is the first folder under --truth; pages lying directly in --truth form one
   title named after that folder. A missing hypothesis is scored as empty text
   and listed as missing; a hypothesis that cannot be read is scored as empty
@@ -79,7 +82,10 @@ OUTPUT (stdout)
   stands for nothing and "␣" for a space (not available with csv).
 
   Problems with single files go to stderr, one line each, naming the file
-  (with the byte offset for invalid UTF-8); the other pages are still scored.
+  (with the byte offset for text that is not UTF-8, and what it looks like:
+  Latin-1, Windows-1252, UTF-16, with the iconv command that converts it);
+  the other pages are still scored. 'recto run --truth' and 'recto calibrate'
+  read ground truth the same way, with the same messages.
 
 EXIT STATUS
   0    every reference page was scored against its hypothesis
@@ -293,6 +299,9 @@ func writeScoreJSON(w io.Writer, rep *quality.Report) error {
 	}
 	for _, fe := range rep.Failed {
 		jf := jsonFailure{Role: fe.Role, File: fe.File, Error: fe.Err.Error()}
+		if fe.Hint != "" {
+			jf.Error += ": " + fe.Hint
+		}
 		if fe.Offset >= 0 {
 			off := fe.Offset
 			jf.Offset = &off

@@ -84,7 +84,7 @@ func TestScoreCollection(t *testing.T) {
 			golden(t, tt.golden, stdout)
 			// One line per bad file, naming it (quoted) and the problem.
 			for _, want := range []string{
-				`reference "../../testdata/score/collection/truth/harbour-gazette/1902/p0003.txt": invalid UTF-8 at byte offset 37`,
+				`reference "../../testdata/score/collection/truth/harbour-gazette/1902/p0003.txt": is not UTF-8 at byte offset 37: looks like Latin-1: convert with iconv -f latin1 -t utf-8`,
 				`reference "../../testdata/score/collection/truth/harbour-gazette/plate.txt": is a directory`,
 				`hypothesis "../../testdata/score/collection/ocr/corvane-ledger/p0003.txt": is a directory`,
 				`hypothesis "../../testdata/score/collection/ocr/harbour-gazette/1902/p0002.txt" is missing`,

@@ -75,9 +75,21 @@ type engine struct {
 	buf    []byte // PGM scratch, reused across pages
 	dpi    int    // resolution last handed to the client
 	psm    int    // page segmentation mode asked for
+	langs  []string
 
 	dataDir string     // Config.DataDir, for the orientation client
 	osd     *osdClient // orientation detection (orient.go), nil until used
+}
+
+// Describe implements ocr.EngineDescriber: Tesseract's own version string
+// and the settings that change its reading.
+func (e *engine) Describe() ocr.EngineInfo {
+	v := ""
+	if e.client != nil {
+		v = e.client.Version()
+	}
+	return ocr.EngineInfo{Name: "Tesseract", Version: v,
+		Settings: "lang=" + strings.Join(e.langs, "+") + " psm=" + strconv.Itoa(e.psm) + " oem=default"}
 }
 
 // New returns an Engine with its own Tesseract client. It fails at once,
@@ -113,7 +125,7 @@ func New(cfg Config) (ocr.Engine, error) {
 	// Tesseract's diagnostics ("Empty page!!", resolution guesses) would
 	// otherwise reach our stderr.
 	c.SetVariable(gosseract.DEBUG_FILE, os.DevNull)
-	return &engine{client: c, psm: psm, dataDir: cfg.DataDir}, nil
+	return &engine{client: c, psm: psm, langs: langs, dataDir: cfg.DataDir}, nil
 }
 
 // Recognize implements ocr.Engine in one recognition pass.

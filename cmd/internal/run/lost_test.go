@@ -2,6 +2,7 @@ package run
 
 import (
 	"bytes"
+	"context"
 	"encoding/csv"
 	"errors"
 	"fmt"
@@ -285,4 +286,70 @@ func FuzzEscapeName(f *testing.F) {
 			t.Fatalf("%q -> %q -> %q, %v", s, EscapeName(s), back, err)
 		}
 	})
+}
+
+// TestMergeRefusesIncompleteShards is defect 4: a merge that lacks a
+// shard, holds one twice, or holds shards of different settings fails
+// with exit status 3 naming what is wrong, writes nothing, and with
+// AllowPartial merges and says the report is partial.
+func TestMergeRefusesIncompleteShards(t *testing.T) {
+	coll, _ := testCollection(t, 2, 3, false)
+	base := t.TempDir()
+	shardRun := func(out, sh string, correct float64) {
+		t.Helper()
+		if _, se, err := runTest(t, Options{Collection: coll, Out: out, Shard: sh, Correct: correct, Rescan: 1}); err != nil {
+			t.Fatal(err, se)
+		}
+	}
+	missing := filepath.Join(base, "missing")
+	shardRun(missing, "0/3", 0.99)
+	shardRun(missing, "2/3", 0.99)
+	twice := filepath.Join(base, "twice")
+	other := filepath.Join(base, "other")
+	for i := range 3 {
+		shardRun(twice, fmt.Sprintf("%d/3", i), 0.99)
+	}
+	shardRun(other, "1/3", 0.99)
+	mixed := filepath.Join(base, "mixed")
+	shardRun(mixed, "0/2", 0.99)
+	shardRun(mixed, "1/2", 0.5)
+
+	for _, c := range []struct {
+		dirs []string
+		out  string
+		want string
+	}{
+		{[]string{missing}, "", "shard 1/3 missing"},
+		{[]string{twice, other}, filepath.Join(base, "m2"), "shard 1/3 is held twice"},
+		{[]string{mixed}, "", "different settings"},
+	} {
+		_, stderr, err := runMergeTest(t, MergeOptions{Dirs: c.dirs, Out: c.out})
+		var pe *partialError
+		if !errors.As(err, &pe) || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("merge %v: err = %v, want exit 3 saying %q\n%s", c.dirs, err, c.want, stderr)
+		}
+		dst := c.out
+		if dst == "" {
+			dst = c.dirs[0]
+		}
+		if _, err := os.Stat(filepath.Join(dst, ledger.FileName)); err == nil {
+			t.Errorf("merge %v wrote a merged ledger though refused", c.dirs)
+		}
+	}
+	sum, stderr, err := runMergeTest(t, MergeOptions{Dirs: []string{missing}, AllowPartial: true})
+	if err != nil || !strings.Contains(sum.Partial, "1/3 missing") || !strings.Contains(stderr, "partial") {
+		t.Fatalf("allowed partial merge: %v, %q\n%s", err, sum.Partial, stderr)
+	}
+	html, _ := os.ReadFile(filepath.Join(missing, reportDir, "report.html"))
+	if !bytes.Contains(html, []byte("Partial report")) || !bytes.Contains(html, []byte("1/3 missing")) {
+		t.Error("report.html does not say it is partial")
+	}
+	// Rebuilding the report keeps saying so.
+	os.Remove(filepath.Join(missing, reportDir, "report.html"))
+	if _, err := Report(context.Background(), missing); err != nil {
+		t.Fatal(err)
+	}
+	if html, _ := os.ReadFile(filepath.Join(missing, reportDir, "report.html")); !bytes.Contains(html, []byte("Partial report")) {
+		t.Error("rebuilt report.html does not say it is partial")
+	}
 }

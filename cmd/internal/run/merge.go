@@ -10,6 +10,7 @@ import (
 	"os"
 	"path/filepath"
 	"sort"
+	"strings"
 
 	"recto/cmd/internal/run/ledger"
 	"recto/internal/atomicfile"
@@ -19,6 +20,10 @@ import (
 type MergeOptions struct {
 	Dirs []string // run folders to merge (at least one)
 	Out  string   // run folder to merge into; "" means the single folder in Dirs
+
+	// AllowPartial merges even when shards are missing, repeated or of
+	// different settings; the reports then say they are partial.
+	AllowPartial bool
 
 	Stderr io.Writer // messages; nil means none
 	Quiet  bool
@@ -30,6 +35,7 @@ type MergeSummary struct {
 	Taken   int    // rows taken from them
 	Pages   int    // pages in the merged ledger
 	Failed  int    // of which failed
+	Partial string // why the merge is partial; "" when every shard was there once
 	Report  string // path of report.html
 }
 
@@ -94,6 +100,18 @@ func Merge(ctx context.Context, o MergeOptions) (MergeSummary, error) {
 		srcs = append(srcs, s...)
 	}
 	dstLedger := filepath.Join(dst, ledger.FileName)
+	// Every shard once, all of one run: checked before anything is written.
+	problems, err := checkShards(ctx, srcs, dstLedger)
+	if err != nil {
+		return sum, err
+	}
+	if len(problems) > 0 {
+		if !o.AllowPartial {
+			return sum, &shardsError{problems: problems}
+		}
+		sum.Partial = strings.Join(problems, "; ")
+		fmt.Fprintf(stderr, "recto: warning: partial merge (--allow-partial): %s\n", sum.Partial)
+	}
 	if err := checkWritable(dst); err != nil {
 		return sum, err
 	}
@@ -131,9 +149,6 @@ func Merge(ctx context.Context, o MergeOptions) (MergeSummary, error) {
 		sl.Close()
 	}
 	for k, vals := range meta {
-		if len(vals) > 1 && !o.Quiet {
-			fmt.Fprintf(stderr, "recto: warning: the ledgers were written with different %s values; the merged report mixes them\n", k)
-		}
 		for v := range vals {
 			if len(vals) == 1 {
 				if err := l.SetMeta(ctx, k, v); err != nil {
@@ -152,7 +167,10 @@ func Merge(ctx context.Context, o MergeOptions) (MergeSummary, error) {
 	}
 	root, _ := l.Meta(ctx, "collection")
 	repDir := filepath.Join(dst, reportDir)
-	if err := buildReports(repDir, dst, root, rows, cerInterval); err != nil {
+	if err := l.SetMeta(ctx, metaPartial, sum.Partial); err != nil {
+		return sum, fmt.Errorf("merge: %w", err)
+	}
+	if err := buildPartialReports(repDir, dst, root, rows, cerInterval, sum.Partial); err != nil {
 		return sum, err
 	}
 	sum.Ledgers, sum.Taken, sum.Pages = len(paths), n, len(rows)

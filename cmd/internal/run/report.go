@@ -41,7 +41,11 @@ func Report(ctx context.Context, dir string) (string, error) {
 		return "", fmt.Errorf("report: %w", err)
 	}
 	repDir := filepath.Join(abs, reportDir)
-	if err := buildReports(repDir, abs, root, rows, cerInterval); err != nil {
+	partial, err := l.Meta(ctx, metaPartial)
+	if err != nil {
+		return "", fmt.Errorf("report: %w", err)
+	}
+	if err := buildPartialReports(repDir, abs, root, rows, cerInterval, partial); err != nil {
 		return "", err
 	}
 	return filepath.Join(repDir, "report.html"), nil
@@ -51,6 +55,12 @@ func Report(ctx context.Context, dir string) (string, error) {
 // texts are relative to repDir where possible, so a copied run folder and
 // collection keep working.
 func buildReports(repDir, outDir, root string, rows []ledger.Page, ci report.IntervalFunc) error {
+	return buildPartialReports(repDir, outDir, root, rows, ci, "")
+}
+
+// buildPartialReports is buildReports for a report that covers part of a
+// run; partial says why (a merge without all its shards).
+func buildPartialReports(repDir, outDir, root string, rows []ledger.Page, ci report.IntervalFunc, partial string) error {
 	rows = present(rows) // pages gone from the collection are left out
 	if err := writeFailureReports(repDir, rows); err != nil {
 		return err
@@ -80,6 +90,7 @@ func buildReports(repDir, outDir, root string, rows []ledger.Page, ci report.Int
 	err := report.Write(repDir, pages, report.Options{
 		Name:     name,
 		Interval: ci,
+		Partial:  partial,
 		Snippet: func(p report.Page) string {
 			return readHead(texts[p.Rel], 1024) // keyed by the escaped Rel, one to one
 		},

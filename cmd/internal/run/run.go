@@ -27,6 +27,7 @@ import (
 	"recto/cmd/internal/run/shard"
 	"recto/ocr"
 	"recto/ocr/par"
+	"recto/quality"
 )
 
 // Options are the settings of a run. The zero value of every field means
@@ -476,18 +477,19 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 	}
 	row.Timings["recognise"] = ms(time.Since(t0))
 	row.Warnings = r.Warnings
-	t1 := time.Now()
-	if err := st.tk.write(filepath.Join(st.outDir, ocrDir), p.Stem, r, prepared); err != nil {
-		return fail("%q: writing outputs: %v%s", p.Path, err, ioFix(err))
-	}
-	row.Outputs = outputNames(ocrDir, p.Stem)
-	row.Timings["write"] = ms(time.Since(t1))
-
+	// Triage before writing: the ALTO carries its estimate (Page@ACCURACY).
 	t2 := time.Now()
 	v := st.tk.triage(r)
 	row.Decision, row.PredictedCER, row.Reasons = v.Decision, v.PredictedCER, v.Reasons
 	row.MeanConf, row.Words = r.MeanConfidence, len(r.Words)
 	row.Timings["triage"] = ms(time.Since(t2))
+
+	t1 := time.Now()
+	if err := st.tk.write(filepath.Join(st.outDir, ocrDir), p.Stem, r, prepared, accuracy(v)); err != nil {
+		return fail("%q: writing outputs: %v%s", p.Path, err, ioFix(err))
+	}
+	row.Outputs = outputNames(ocrDir, p.Stem)
+	row.Timings["write"] = ms(time.Since(t1))
 
 	final := r
 	if v.Decision == "correct" {
@@ -495,7 +497,10 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 		c, n := st.tk.correct(r)
 		row.Corrections = n
 		row.Timings["correct"] = ms(time.Since(t3))
-		if err := st.tk.write(filepath.Join(st.outDir, correctedDir), p.Stem, c, nil); err != nil {
+		ca := accuracy(st.tk.triage(c)) // the estimate of the corrected text
+		step := st.tk.correction
+		ca.Correction = &step
+		if err := st.tk.write(filepath.Join(st.outDir, correctedDir), p.Stem, c, nil, ca); err != nil {
 			return fail("%q: writing corrected outputs: %v%s", p.Path, err, ioFix(err))
 		}
 		row.Outputs = append(row.Outputs, outputNames(correctedDir, p.Stem)...)
@@ -517,6 +522,12 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 	row.State, row.Error = ledger.StateDone, ""
 	st.dropStale(p.Rel, row.Outputs)
 	return row, false
+}
+
+// accuracy is triage's estimate as ALTO's Page@ACCURACY: the estimated
+// percentage of characters read right, 100 × (1 − predicted CER).
+func accuracy(v verdict) ocr.ALTOOptions {
+	return ocr.ALTOOptions{Accuracy: 100 * (1 - v.PredictedCER), HasAccuracy: true}
 }
 
 func ms(d time.Duration) float64 { return float64(d.Microseconds()) / 1000 }
@@ -553,22 +564,27 @@ func hashFile(name string) (string, int64, error) {
 	return hex.EncodeToString(h.Sum(nil)), n, nil
 }
 
-// readTruth returns the ground truth of rel, if any, and its SHA-256 ("-"
-// when there is none).
+// readTruth returns the ground truth of rel, if any, and the SHA-256 of its
+// text ("-" when there is none; for a .txt file the hash of the file). It
+// reads through quality.ReadTruth, as recto score and calibrate do: the
+// same formats (.txt, ALTO, PAGE XML), checks, size limit and messages.
 func (st *runState) readTruth(rel string) (text, sum string, ok bool, err error) {
 	if st.truthDir == "" {
 		return "", "-", false, nil
 	}
-	name := filepath.Join(st.truthDir, filepath.FromSlash(strings.TrimSuffix(rel, path.Ext(rel))+".txt"))
-	data, err := os.ReadFile(name)
-	if errors.Is(err, fs.ErrNotExist) {
+	name, err := quality.FindTruth(filepath.Join(st.truthDir, filepath.FromSlash(strings.TrimSuffix(rel, path.Ext(rel)))))
+	if err != nil {
+		return "", "", false, err
+	}
+	if name == "" {
 		return "", "-", false, nil
 	}
+	t, err := quality.ReadTruth(name)
 	if err != nil {
-		return "", "", false, fmt.Errorf("ground truth %q: %w", name, errors.Unwrap(err))
+		return "", "", false, err
 	}
-	s := sha256.Sum256(data)
-	return string(data), hex.EncodeToString(s[:8]), true, nil
+	s := sha256.Sum256([]byte(t.Text))
+	return t.Text, hex.EncodeToString(s[:8]), true, nil
 }
 
 // recogniser is one worker's engine: never shared between goroutines.

@@ -21,7 +21,8 @@ type toolkit struct {
 	settingsJSON string // the settings that change a page's results
 
 	newRecogniser func() (recogniser, error)
-	write         func(dir, rel string, rec *ocr.Record, prepared *image.Gray) error
+	write         func(dir, rel string, rec *ocr.Record, prepared *image.Gray, a ocr.ALTOOptions) error
+	correction    ocr.ALTOStep // the correction step in corrected ALTO
 	triage        func(*ocr.Record) verdict
 	correct       func(*ocr.Record) (*ocr.Record, int)
 	compare       func(ref, hyp string) counts
@@ -100,7 +101,12 @@ func newToolkit(o Options) (*toolkit, error) {
 		settings["correction_model"], settings["keep_marks"], settings["map_glyphs"] = cmodelSum, o.KeepMarks, o.MapGlyphs
 	}
 	tk := &toolkit{
-		write:    func(dir, rel string, r *ocr.Record, g *image.Gray) error { return ocr.WriteOutputs(dir, rel, r, g) },
+		write: func(dir, rel string, r *ocr.Record, g *image.Gray, a ocr.ALTOOptions) error {
+			return ocr.WriteOutputsWith(dir, rel, r, g, a)
+		},
+		correction: ocr.ALTOStep{Description: []string{"correction of OCR confusions (recto run)"},
+			Settings: fmt.Sprintf("lang=%s lexicon=%s correction_model=%s margin=%g keep_marks=%t map_glyphs=%t",
+				o.Lang, orDefault(lexSum), orDefault(cmodelSum), o.Margin, o.KeepMarks, o.MapGlyphs)},
 		interval: cerInterval,
 		compare: func(ref, hyp string) counts {
 			c := quality.Compare(ref, hyp, quality.NormOptions{})
@@ -208,3 +214,11 @@ func (e *engineRecogniser) Recognise(ctx context.Context, path string) (*ocr.Rec
 }
 
 func (e *engineRecogniser) Close() error { return e.eng.Close() }
+
+// orDefault names a missing file sum in the ALTO correction settings.
+func orDefault(sum string) string {
+	if sum == "" {
+		return "default"
+	}
+	return sum
+}

@@ -71,6 +71,7 @@ type pageView struct {
 
 type htmlData struct {
 	Name      string
+	Partial   string
 	Decisions []string
 	Total     titleView
 	Titles    []titleView
@@ -84,7 +85,7 @@ func HTML(s Summary, pages []Page, o Options) ([]byte, error) {
 	for _, p := range pages {
 		by[p.Title] = append(by[p.Title], p)
 	}
-	d := htmlData{Name: Clean(o.Name), Decisions: Decisions}
+	d := htmlData{Name: Clean(o.Name), Partial: Clean(o.Partial), Decisions: Decisions}
 	if d.Name == "" {
 		d.Name = "Collection"
 	}
@@ -347,7 +348,8 @@ svg text{font:10px sans-serif;fill:#444}
 </head>
 <body>
 <h1>OCR report: {{.Name}}</h1>
-<p>{{.Total.Pages}} pages in {{len .Titles}} titles; {{.Total.Failed}} failed.
+{{with .Partial}}<p class="partial"><strong>Partial report:</strong> {{.}}</p>
+{{end}}<p>{{.Total.Pages}} pages in {{len .Titles}} titles; {{.Total.Failed}} failed.
 {{range .Decisions}}{{.}}: {{dec $.Total.Decisions .}}. {{end}}
 {{with .Total.CERBefore}}Measured CER on {{.Pages}} pages with ground truth: {{$.Total.BeforeTxt}} before correction, {{$.Total.AfterTxt}} after.{{end}}</p>
 

@@ -84,6 +84,7 @@ type Options struct {
 	Name     string       // collection name shown in the HTML heading; "" means "Collection"
 	Interval IntervalFunc // confidence intervals for measured CER; nil means none
 	Worst    int          // worst pages listed in the HTML; 0 means 25
+	Partial  string       // when not "", the report covers part of the run: why (shown at the top of the HTML)
 
 	// Snippet returns the start of a page's final text; the HTML calls it
 	// only for the worst pages it lists whose Snippet is empty. nil means

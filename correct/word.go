@@ -129,7 +129,7 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		return edit{}, false
 	}
 	if split != nil {
-		return edit{n: 1, words: []string{t.lead + applyCase(split[0], pattern, upper), applyCase(split[1], caseLower, false) + t.trail}, score: delta}, true
+		return edit{n: 1, words: []string{t.lead + inPageForm(t.core, applyCase(split[0], pattern, upper)), inPageForm(t.core, applyCase(split[1], caseLower, false)) + t.trail}, score: delta}, true
 	}
 	trail := t.trail
 	if (strings.HasPrefix(trail, "!") || strings.HasPrefix(trail, "|")) && len(best) > len(q) && strings.HasPrefix(best, q) {
@@ -138,7 +138,7 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		// the mark was one of them.
 		trail = trail[1:]
 	}
-	return edit{n: 1, words: []string{t.lead + applyCase(best, pattern, upper) + trail}, score: delta}, true
+	return edit{n: 1, words: []string{t.lead + inPageForm(t.core, applyCase(best, pattern, upper)) + trail}, score: delta}, true
 }
 
 // identity is log P(s | s) with s kept as read.

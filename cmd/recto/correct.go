@@ -279,7 +279,7 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 		}
 	}
 	if !g.Quiet {
-		g.printf("%d changes in %d pages", total, len(pages)-failed)
+		g.printf("%s in %s", counted(total, "change"), counted(len(pages)-failed, "page"))
 	}
 	if failed == len(pages) {
 		return fmt.Errorf("correct: every page failed")

@@ -16,6 +16,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"recto/cmd/internal/run"
 	"recto/correct"
 	"recto/internal/atomicfile"
 	"recto/lexicon"
@@ -184,17 +185,8 @@ type correctResult struct {
 	err     error
 }
 
-// changeLine is one line of changes.jsonl.
-type changeLine struct {
-	Title  string  `json:"title"`
-	Page   string  `json:"page"`
-	Line   int     `json:"line"`
-	Column int     `json:"column"`
-	Before string  `json:"before"`
-	After  string  `json:"after"`
-	Score  float64 `json:"score"`
-	Lang   string  `json:"lang"` // the language the page was corrected in (--lang)
-}
+// changeLine is one line of changes.jsonl, the format recto run writes too.
+type changeLine = run.ChangeLine
 
 func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in string) error {
 	if err := checkDir("IN", in); err != nil {
@@ -254,8 +246,6 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 		rootName = filepath.Base(abs)
 	}
 	var lines bytes.Buffer
-	enc := json.NewEncoder(&lines)
-	enc.SetEscapeHTML(false)
 	failed, total := 0, 0
 	for i, r := range results {
 		if r.err != nil {
@@ -263,23 +253,21 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 			g.printf("%v", r.err)
 			continue
 		}
-		for _, ch := range r.changes {
-			total++
-			title, _ := quality.TitlePage(pages[i].rel, rootName)
-			_ = enc.Encode(changeLine{Title: title, Page: pages[i].rel, Line: ch.Line, Column: ch.Column, Before: ch.Before, After: ch.After, Score: ch.Score, Lang: o.Lang})
-		}
+		total += len(r.changes)
+		title, _ := quality.TitlePage(pages[i].rel, rootName)
+		run.AppendChanges(&lines, title, pages[i].rel, o.Lang, r.changes)
 	}
 	if o.DryRun {
 		if _, err := g.stdout.Write(lines.Bytes()); err != nil {
 			return err
 		}
 	} else {
-		if err := writeFileAtomic(filepath.Join(o.Out, "changes.jsonl"), lines.Bytes()); err != nil {
+		if err := writeFileAtomic(filepath.Join(o.Out, run.ChangesFile), lines.Bytes()); err != nil {
 			return err
 		}
 	}
 	if !g.Quiet {
-		g.printf("%d changes in %d pages", total, len(pages)-failed)
+		g.printf("%s in %s", counted(total, "change"), counted(len(pages)-failed, "page"))
 	}
 	if failed == len(pages) {
 		return fmt.Errorf("correct: every page failed")

@@ -11,6 +11,7 @@ import (
 	"strings"
 
 	"github.com/spf13/cobra"
+	"github.com/spf13/pflag"
 
 	"recto/cmd/internal/cli"
 	"recto/cmd/internal/progress"
@@ -36,35 +37,31 @@ type OCROptions struct {
 	DPI        float64
 	MaxPixels  int
 	KeepImages bool
-	NoPrepare  bool
-	Deskew     string
-	Denoise    string
-	Cleanup    string
-	Binarize   string
-	MaxSkew    float64
+	prepFlags
 }
 
-// AddFlags registers the options on fs.
-func (o *OCROptions) AddFlags(c *cobra.Command) {
-	f := c.Flags()
-	f.StringVarP(&o.Out, "out", "o", "", "write outputs under `dir` (required)")
-	f.StringVarP(&o.Lang, "lang", "l", "eng", "Tesseract `languages`, e.g. eng or eng+deu")
-	f.IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages at once (0: one per core)")
-	f.IntVar(&o.PSM, "psm", 0, "Tesseract page segmentation `mode` 1-13 (0: Tesseract's default, 3)")
-	f.Float64Var(&o.DPI, "dpi", 0, "resolution of images without a resolution tag, in `dpi` (default: estimated from the size of the text, else 300)")
-	f.IntVar(&o.MaxPixels, "max-pixels", ocr.DefaultMaxPixels, "refuse images larger than `n` pixels")
-	f.BoolVar(&o.KeepImages, "keep-images", false, "also write the prepared image as <name>.prepared.png")
+// prepFlags are the preparation options, shared by recto ocr and recto run.
+type prepFlags struct {
+	NoPrepare bool
+	Deskew    string
+	Denoise   string
+	Cleanup   string
+	Binarize  string
+	MaxSkew   float64
+}
+
+// add registers the preparation flags on f.
+func (o *prepFlags) add(f *pflag.FlagSet) {
 	f.BoolVar(&o.NoPrepare, "no-prepare", false, "hand the greyscale page to Tesseract without preparation")
 	f.StringVar(&o.Deskew, "deskew", "auto", "straighten skewed pages: `auto`, on or off")
 	f.StringVar(&o.Denoise, "denoise", "auto", "remove speckle noise: `auto`, on or off")
 	f.StringVar(&o.Cleanup, "cleanup", "auto", "clear borders and specks after binarisation: `auto`, on or off")
 	f.StringVar(&o.Binarize, "binarize", "auto", "binarisation `method`: auto (Sauvola where light is uneven, Otsu on denoised pages, grey otherwise), otsu, sauvola or none")
 	f.Float64Var(&o.MaxSkew, "max-skew", 0, "largest skew searched, in `degrees` (0: the preparation default)")
-	c.MarkFlagRequired("out")
 }
 
-// options checks the flag values and turns them into library options.
-func (o *OCROptions) options() (ocr.Options, tesseract.Config, error) {
+// options checks the values and turns them into the library's options.
+func (o *prepFlags) options() (ocr.PrepOptions, error) {
 	var prep ocr.PrepOptions
 	for _, m := range []struct {
 		flag, val string
@@ -78,7 +75,7 @@ func (o *OCROptions) options() (ocr.Options, tesseract.Config, error) {
 		case "off":
 			*m.dst = ocr.Off
 		default:
-			return ocr.Options{}, tesseract.Config{}, usagef("--%s %q: want auto, on or off", m.flag, m.val)
+			return ocr.PrepOptions{}, usagef("--%s %q: want auto, on or off", m.flag, m.val)
 		}
 	}
 	switch b := strings.ToLower(o.Binarize); b {
@@ -87,12 +84,35 @@ func (o *OCROptions) options() (ocr.Options, tesseract.Config, error) {
 	case "otsu", "sauvola", "none":
 		prep.Binarize = b
 	default:
-		return ocr.Options{}, tesseract.Config{}, usagef("--binarize %q: want auto, otsu, sauvola or none", o.Binarize)
+		return ocr.PrepOptions{}, usagef("--binarize %q: want auto, otsu, sauvola or none", o.Binarize)
 	}
 	if o.MaxSkew < 0 || o.MaxSkew > 45 {
-		return ocr.Options{}, tesseract.Config{}, usagef("--max-skew %g: want 0 to 45 degrees", o.MaxSkew)
+		return ocr.PrepOptions{}, usagef("--max-skew %g: want 0 to 45 degrees", o.MaxSkew)
 	}
 	prep.MaxSkew = o.MaxSkew
+	return prep, nil
+}
+
+// AddFlags registers the options on fs.
+func (o *OCROptions) AddFlags(c *cobra.Command) {
+	f := c.Flags()
+	f.StringVarP(&o.Out, "out", "o", "", "write outputs under `dir` (required)")
+	f.StringVarP(&o.Lang, "lang", "l", "eng", "Tesseract `languages`, e.g. eng or eng+deu")
+	f.IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages at once (0: one per core)")
+	f.IntVar(&o.PSM, "psm", 0, "Tesseract page segmentation `mode` 1-13 (0: Tesseract's default, 3)")
+	f.Float64Var(&o.DPI, "dpi", 0, "resolution of images without a resolution tag, in `dpi` (default: estimated from the size of the text, else 300)")
+	f.IntVar(&o.MaxPixels, "max-pixels", ocr.DefaultMaxPixels, "refuse images larger than `n` pixels")
+	f.BoolVar(&o.KeepImages, "keep-images", false, "also write the prepared image as <name>.prepared.png")
+	o.prepFlags.add(f)
+	c.MarkFlagRequired("out")
+}
+
+// options checks the flag values and turns them into library options.
+func (o *OCROptions) options() (ocr.Options, tesseract.Config, error) {
+	prep, err := o.prepFlags.options()
+	if err != nil {
+		return ocr.Options{}, tesseract.Config{}, err
+	}
 	if o.Jobs < 0 {
 		return ocr.Options{}, tesseract.Config{}, usagef("--jobs %d: want 0 (one per core) or more", o.Jobs)
 	}

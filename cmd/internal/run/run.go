@@ -291,6 +291,7 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 		return sum, fmt.Errorf("run: %w", err)
 	}
 	defer l.Close()
+	applyTestFaults(st, l) // faults.go: nothing outside the reliability tests
 	if err := checkCollection(ctx, l, root, o.Out, o.NewCollection); err != nil {
 		return sum, err
 	}

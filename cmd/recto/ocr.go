@@ -165,6 +165,8 @@ files and folders are skipped), the same list as 'recto run'. For each page, und
 
 <name> is the image's name without its extension, or with it when two images
 in one folder share a name (p1.tif and p1.png give p1.tif.txt and p1.png.txt).
+Each page of a multi-page TIFF or PDF is a page: page 3 of reel-07.tif is
+reel-07/p0003 (reel-07/p0003.txt, ...), decoded one page at a time.
 DIR/failures.tsv lists the pages that failed (title, page, image, error;
 pages named as in 'recto score'), with a header
 line; it is written on every run. Files under IN are only read. DIR may lie
@@ -191,6 +193,9 @@ one thread.
 type page struct {
 	path string // as found: IN joined with the relative path
 	rel  string // output name relative to --out, without suffix, "/"-separated
+	// filePage is the page's number in a multi-page file (from 1), 0 for
+	// a single image; rel is then ocr.PageName's, "box/reel-07/p0003".
+	filePage int
 }
 
 func runOCR(ctx context.Context, o OCROptions, g GlobalOptions, args []string) error {
@@ -230,14 +235,16 @@ func runOCR(ctx context.Context, o OCROptions, g GlobalOptions, args []string) e
 	}
 
 	paths := make([]string, len(pages))
+	filePages := make([]int, len(pages))
 	for i, p := range pages {
-		paths[i] = p.path
+		paths[i], filePages[i] = p.path, p.filePage
 	}
 	prog := progress.New(g.stderr, g.prefix(), g.Quiet, len(pages))
 	results, err := ocr.RunBatch(ctx, paths, ocr.BatchConfig{
 		Jobs:      o.Jobs,
 		NewEngine: func() (ocr.Engine, error) { return newEngine(cfg) },
 		Options:   opts,
+		Pages:     filePages,
 		Done: func(r *ocr.Result) error {
 			return ocr.WriteOutputs(o.Out, pages[r.Index].rel, r.Record, r.Prepared)
 		},
@@ -294,6 +301,13 @@ func findPages(in, out string) ([]page, error) {
 	}
 	if !info.IsDir() {
 		// A single file is taken whatever its suffix; decoding judges it.
+		if n := ocr.CountPages(context.Background(), in); n > 1 {
+			var pages []page
+			for k := 1; k <= n; k++ {
+				pages = append(pages, page{path: in, rel: ocr.PageName(filepath.Base(in), k, n), filePage: k})
+			}
+			return pages, nil
+		}
 		return []page{{path: in, rel: strings.TrimSuffix(filepath.Base(in), filepath.Ext(in))}}, nil
 	}
 	absIn, err := filepath.Abs(in)
@@ -311,9 +325,16 @@ func findPages(in, out string) ([]page, error) {
 	if err != nil {
 		return nil, err
 	}
-	pages := make([]page, len(imgs))
-	for i, im := range imgs {
-		pages[i] = page{path: im.Path, rel: im.Stem}
+	var pages []page
+	for _, im := range imgs {
+		// Every page of a multi-page TIFF or PDF, named as recto run names it.
+		if n := ocr.CountPages(context.Background(), im.Path); n > 1 {
+			for k := 1; k <= n; k++ {
+				pages = append(pages, page{path: im.Path, rel: ocr.PageName(im.Rel, k, n), filePage: k})
+			}
+			continue
+		}
+		pages = append(pages, page{path: im.Path, rel: im.Stem})
 	}
 	return pages, nil
 }

@@ -319,7 +319,7 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 		}
 	}
 	sum.Images, sum.Pages, sum.Ignored = len(all), len(pages), ignored
-	if _, err := markGone(ctx, l, pages, stderr, "recto"); err != nil {
+	if _, err := markGone(ctx, l, pages, stderr, o.Command); err != nil {
 		return sum, err
 	}
 	st.badNames = checkNames(all, foldsCase(st.outDir))

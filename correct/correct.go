@@ -5,6 +5,7 @@ import (
 	"strings"
 	"sync"
 	"sync/atomic"
+	"unicode/utf8"
 
 	"recto/lexicon"
 	"recto/ocr"
@@ -297,8 +298,33 @@ func (c *Corrector) CorrectRecord(rec *ocr.Record) (*ocr.Record, []Change) {
 	changes := make([]Change, 0, len(eds))
 	words := make([]ocr.Word, 0, len(out.Words)+4)
 	next := 0
+	pieceWord, shift := -1, 0 // the word whose pieces are being edited, and how far its text has moved
 	for _, e := range eds {
 		first, last := toks[e.i], toks[e.i+e.n-1]
+		if first.piece && e.blocked {
+			changes = append(changes, Change{Line: first.line, Column: first.col, Before: rec.Words[first.word].Text[first.start:first.end],
+				After: strings.Join(e.words, " "), Score: round3(e.score), Blocked: BlockedVocabulary})
+			continue
+		}
+		if first.piece {
+			// A part of a dash-joined word ("tbe—the"): its bytes are
+			// replaced inside the word, which keeps its box.
+			before := rec.Words[first.word].Text[first.start:first.end]
+			after := strings.Join(e.words, " ")
+			if pieceWord != first.word {
+				words = append(words, out.Words[next:first.word]...)
+				w := out.Words[first.word]
+				w.Alt = append(w.Alt, w.Text)
+				words = append(words, w)
+				pieceWord, shift = first.word, 0
+			}
+			w := &words[len(words)-1]
+			w.Text = w.Text[:first.start+shift] + after + w.Text[first.end+shift:]
+			shift += len(after) - (first.end - first.start)
+			next = first.word + 1
+			changes = append(changes, Change{Line: first.line, Column: first.col, Before: before, After: after, Score: round3(e.score)})
+			continue
+		}
 		before := rec.Words[first.word].Text
 		if e.n == 2 {
 			before += " " + rec.Words[last.word].Text
@@ -368,9 +394,19 @@ func recordTokens(rec *ocr.Record) []token {
 				col++
 			}
 		}
-		t := token{line: line, col: col, conf: w.Conf, word: i}
-		t.lead, t.core, t.trail = splitToken(w.Text)
-		toks = append(toks, t)
+		ps := dashPieces(w.Text)
+		for k, p := range ps {
+			e := len(w.Text)
+			if k+1 < len(ps) {
+				e = ps[k+1]
+			}
+			t := token{line: line, col: col + utf8.RuneCountInString(w.Text[:p]), conf: w.Conf, word: i}
+			if len(ps) > 1 {
+				t.piece, t.start, t.end = true, p, e
+			}
+			t.lead, t.core, t.trail = splitToken(w.Text[p:e])
+			toks = append(toks, t)
+		}
 		col += runeLen(w.Text)
 	}
 	if len(toks) > 0 {
@@ -406,6 +442,21 @@ func (c *Corrector) run(toks []token) []edit {
 				eds = append(eds, e)
 			}
 			prev = ""
+			continue
+		}
+		if t.piece {
+			// Parts of a dash-joined record word are corrected one by one,
+			// never joined, split or deleted (their word keeps one box).
+			e, ok := c.word(s, t, prev, "")
+			if ok && len(e.words) == 1 {
+				e.i = i
+				c.mapEdit(&e)
+				eds = append(eds, e)
+				_, core, _ := splitToken(e.words[0])
+				prev = c.contextAfter(lookupForm(core), t.trail)
+				continue
+			}
+			prev = c.contextAfter(lookupForm(t.core), t.trail)
 			continue
 		}
 		if e, ok := c.tryJoin(s, toks, i, prev); ok {

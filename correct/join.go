@@ -59,7 +59,7 @@ func (c *Corrector) tryJoin(s *scratch, toks []token, i int, prev string) (edit,
 		return edit{}, false
 	}
 	t, u := &toks[i], &toks[i+1]
-	if t.core == "" || u.core == "" || u.lead != "" {
+	if t.core == "" || u.core == "" || u.lead != "" || u.piece {
 		return edit{}, false
 	}
 	a, b := lookupForm(t.core), lookupForm(u.core)
@@ -81,7 +81,7 @@ func (c *Corrector) tryJoin(s *scratch, toks []token, i int, prev string) (edit,
 			return edit{}, false
 		}
 		keep := c.logContext(prev, a, "") + c.logContext("", b, next)
-		return edit{i: i, n: 2, words: []string{t.lead + applyCase(joined, pattern, upper) + u.trail},
+		return edit{i: i, n: 2, words: []string{t.lead + inPageForm(t.core+u.core, applyCase(joined, pattern, upper)) + u.trail},
 			score: c.logContext(prev, joined, next) - keep}, true
 	}
 	if c.cfg.KeepSpacing || t.trail != "" {
@@ -114,7 +114,7 @@ func (c *Corrector) tryJoin(s *scratch, toks []token, i int, prev string) (edit,
 	if v-keep <= c.marginFor(conf)+s.page {
 		return edit{}, false
 	}
-	return edit{i: i, n: 2, words: []string{t.lead + applyCase(joined, pattern, upper) + u.trail}, score: v - keep}, true
+	return edit{i: i, n: 2, words: []string{t.lead + inPageForm(t.core+u.core, applyCase(joined, pattern, upper)) + u.trail}, score: v - keep}, true
 }
 
 func isHyphen(trail string) bool {

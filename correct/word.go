@@ -14,6 +14,13 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 	}
 	q := lookupForm(t.core)
 	known := c.known(q)
+	if known && c.cfg.Vocabulary != nil && c.cfg.Vocabulary.Listed(q) && c.lex.Count(q) <= c.cfg.Vocabulary.Count(q) {
+		// A word that only the collection vocabulary knows (the
+		// lexicon's count is the vocabulary's) is judged as if the
+		// lexicon lacked it, so that the change it stops is known and
+		// reported (blockVocabulary); it is never made.
+		known = false
+	}
 	raw := t.lead + t.core + t.trail
 	if protected(raw, t.core, known) || strings.HasPrefix(t.trail, "'") || strings.HasPrefix(t.trail, "’") ||
 		strings.HasSuffix(t.lead, "'") || strings.HasSuffix(t.lead, "’") {
@@ -138,7 +145,7 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		return edit{}, false
 	}
 	if split != nil {
-		return edit{n: 1, words: []string{t.lead + applyCase(split[0], pattern, upper), applyCase(split[1], caseLower, false) + t.trail}, score: delta}, true
+		return edit{n: 1, words: []string{t.lead + inPageForm(t.core, applyCase(split[0], pattern, upper)), inPageForm(t.core, applyCase(split[1], caseLower, false)) + t.trail}, score: delta}, true
 	}
 	trail := t.trail
 	if (strings.HasPrefix(trail, "!") || strings.HasPrefix(trail, "|")) && len(best) > len(q) && strings.HasPrefix(best, q) {
@@ -147,7 +154,7 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		// the mark was one of them.
 		trail = trail[1:]
 	}
-	return edit{n: 1, words: []string{t.lead + applyCase(best, pattern, upper) + trail}, score: delta}, true
+	return edit{n: 1, words: []string{t.lead + inPageForm(t.core, applyCase(best, pattern, upper)) + trail}, score: delta}, true
 }
 
 // identity is log P(s | s) with s kept as read.

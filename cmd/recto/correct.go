@@ -16,6 +16,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"recto/cmd/internal/run"
 	"recto/correct"
 	"recto/internal/atomicfile"
 	"recto/lexicon"
@@ -35,7 +36,6 @@ type CorrectOptions struct {
 	Margin     float64 // natural-log odds a correction must win by; 0 = default
 	Jobs       int     // pages corrected in parallel; 0 means GOMAXPROCS
 	Collection bool    // add the input pages' own word counts to the context model
-	NoVocab    bool    // do not gather the collection vocabulary
 	Vocab      string  // saved collection vocabulary to add to the pages' own; "" for none
 	SaveVocab  string  // file to save the collection vocabulary to; "" for none
 	KeepMarks  bool    // leave stray marks in
@@ -93,14 +93,15 @@ The files under IN are never modified: --out must be another folder.
   recto correct scans/ocr --dry-run
   recto correct train --ocr corpus/ocr --truth corpus/truth --out my.model
 ` + langHelp + `
-The collection's own vocabulary: a word the engine read with confidence
-0.90 or more at least 3 times, on 2 pages or more under IN (names of
-people, farms, ships and places, dialect and old spellings) joins the
-lexicon with its count and is never changed; a change it stopped is listed
-in changes.jsonl with "blocked": "collection vocabulary" (and is not made).
---save-vocabulary FILE writes it as a lexicon file, --vocabulary FILE adds
-a saved one (say, from earlier deliveries of the same collection), and
---no-vocabulary turns it off.
+--collection uses the collection's own vocabulary: a word the engine read
+with confidence 0.90 or more at least 3 times, on 2 pages or more under IN
+(names of people, farms, ships and places, dialect and old spellings)
+joins the lexicon with its count and is never changed; a change it
+stopped is listed in changes.jsonl with "blocked": "collection
+vocabulary" (and is not made). It also adds the pages' counts of known
+words and word pairs to the context. --save-vocabulary FILE writes the
+vocabulary as a lexicon file, --vocabulary FILE adds a saved one (say,
+from earlier deliveries of the same collection); either implies it.
 
 Without a lexicon for the language only language-independent fixes are
 made (stray marks): no word is changed into a word of another language.
@@ -132,8 +133,7 @@ language. Each line of changes.jsonl names the language ("lang").
 	f.StringVarP(&o.Lang, "lang", "l", "", "engine `languages` of the pages, e.g. nor or eng+deu (default: as recorded by recto ocr, else eng)")
 	f.Float64Var(&o.Margin, "margin", 0, fmt.Sprintf("log-odds `margin` a correction must win by (0 = %g; higher is more cautious)", correct.DefaultMargin))
 	f.IntVarP(&o.Jobs, "jobs", "j", 0, "pages corrected in parallel (`n`; default: number of CPUs)")
-	f.BoolVar(&o.Collection, "collection", false, "also count the input pages' known words and word pairs for the context")
-	f.BoolVar(&o.NoVocab, "no-vocabulary", false, "do not gather the collection vocabulary (words read confidently across the pages)")
+	f.BoolVar(&o.Collection, "collection", false, "use the collection's own vocabulary and counts: words read confidently across the pages are never changed")
 	f.StringVar(&o.Vocab, "vocabulary", "", "saved collection vocabulary `file` (from --save-vocabulary) to add to the pages' own")
 	f.StringVar(&o.SaveVocab, "save-vocabulary", "", "save the collection vocabulary to this lexicon `file` (.gz to compress)")
 	f.BoolVar(&o.KeepMarks, "keep-marks", false, "leave stray marks (tokens with no letter or digit) in the text")
@@ -199,20 +199,8 @@ type correctResult struct {
 	err     error
 }
 
-// changeLine is one line of changes.jsonl.
-type changeLine struct {
-	Title  string  `json:"title"`
-	Page   string  `json:"page"`
-	Line   int     `json:"line"`
-	Column int     `json:"column"`
-	Before string  `json:"before"`
-	After  string  `json:"after"`
-	Score  float64 `json:"score"`
-	Lang   string  `json:"lang"` // the language the page was corrected in (--lang)
-	// Blocked says why the change was not made ("collection vocabulary");
-	// absent for a change made.
-	Blocked string `json:"blocked,omitempty"`
-}
+// changeLine is one line of changes.jsonl, the format recto run writes too.
+type changeLine = run.ChangeLine
 
 func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in string) error {
 	if err := checkDir("IN", in); err != nil {
@@ -257,7 +245,7 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 	if o.Collection {
 		cfg.Collection = collectionCounts(in, pages, lex)
 	}
-	if !o.NoVocab {
+	if o.Collection || o.Vocab != "" || o.SaveVocab != "" {
 		vocab, err := collectionVocabulary(in, pages, o)
 		if err != nil {
 			return err
@@ -288,8 +276,6 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 		rootName = filepath.Base(abs)
 	}
 	var lines bytes.Buffer
-	enc := json.NewEncoder(&lines)
-	enc.SetEscapeHTML(false)
 	failed, total := 0, 0
 	for i, r := range results {
 		if r.err != nil {
@@ -297,25 +283,21 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 			g.printf("%v", r.err)
 			continue
 		}
-		for _, ch := range r.changes {
-			if ch.Blocked == "" {
-				total++
-			}
-			title, _ := quality.TitlePage(pages[i].rel, rootName)
-			_ = enc.Encode(changeLine{Title: title, Page: pages[i].rel, Line: ch.Line, Column: ch.Column, Before: ch.Before, After: ch.After, Score: ch.Score, Lang: o.Lang, Blocked: ch.Blocked})
-		}
+		total += correct.Made(r.changes)
+		title, _ := quality.TitlePage(pages[i].rel, rootName)
+		run.AppendChanges(&lines, title, pages[i].rel, o.Lang, r.changes)
 	}
 	if o.DryRun {
 		if _, err := g.stdout.Write(lines.Bytes()); err != nil {
 			return err
 		}
 	} else {
-		if err := writeFileAtomic(filepath.Join(o.Out, "changes.jsonl"), lines.Bytes()); err != nil {
+		if err := writeFileAtomic(filepath.Join(o.Out, run.ChangesFile), lines.Bytes()); err != nil {
 			return err
 		}
 	}
 	if !g.Quiet {
-		g.printf("%d changes in %d pages", total, len(pages)-failed)
+		g.printf("%s in %s", counted(total, "change"), counted(len(pages)-failed, "page"))
 	}
 	if failed == len(pages) {
 		return fmt.Errorf("correct: every page failed")

@@ -98,6 +98,11 @@ func buildPartialReports(repDir, outDir, root string, rows []ledger.Page, ci rep
 	if err != nil {
 		return fmt.Errorf("run: %w", err)
 	}
+	// corrected/changes.jsonl beside the report folder, as recto correct
+	// writes it in its --out folder.
+	if err := writeChanges(filepath.Join(filepath.Dir(repDir), correctedDir), outDir, rows); err != nil {
+		return fmt.Errorf("run: %w", err)
+	}
 	return nil
 }
 

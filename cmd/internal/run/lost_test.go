@@ -365,3 +365,26 @@ func TestMergeRefusesIncompleteShards(t *testing.T) {
 		t.Error("rebuilt report.html does not say it is partial")
 	}
 }
+
+// TestFindImagesStemsUnique (#16 defect 1 for recto ocr and the page key):
+// p1.tif, p1.png and p1.tif.png get three different stems.
+func TestFindImagesStemsUnique(t *testing.T) {
+	dir := t.TempDir()
+	for i, n := range []string{"p1.tif", "p1.png", "p1.tif.png", "p2.png"} {
+		writePage(t, filepath.Join(dir, "T", n), i, "w")
+	}
+	imgs, _, err := FindImages(dir, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	seen := map[string]string{}
+	for _, im := range imgs {
+		if other, ok := seen[im.Stem]; ok {
+			t.Errorf("%s and %s share the stem %s", other, im.Rel, im.Stem)
+		}
+		seen[im.Stem] = im.Rel
+	}
+	if len(seen) != 4 || seen["T/p2"] != "T/p2.png" {
+		t.Errorf("stems %v", seen)
+	}
+}

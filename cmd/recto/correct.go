@@ -434,8 +434,10 @@ func correctOne(c *correct.Corrector, in string, o CorrectOptions, p correctPage
 		}
 		if p.altoXML {
 			buf.Reset()
-			step := alto.Step{Description: []string{"correction of OCR confusions (recto correct)"},
-				Settings: fmt.Sprintf("lang=%s margin=%g keep_marks=%t map_glyphs=%t", out.Lang, o.Margin, o.KeepMarks, o.MapGlyphs)}
+			step, err := run.CorrectionStep(out.Lang, o.Lexicon, o.Model, o.Margin, o.KeepMarks, o.MapGlyphs)
+			if err != nil {
+				return correctResult{err: err}
+			}
 			if err := alto.WriteWith(&buf, out, alto.Options{Correction: &step}); err != nil {
 				return correctResult{err: fmt.Errorf("correct: %q: %w", outBase+ocr.SuffixALTO, err)}
 			}

@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 
@@ -70,10 +71,17 @@ func TestRunEqualsSteps(t *testing.T) {
 	if len(rows) != 12 || len(tri.Pages) != 12 {
 		t.Fatalf("%d pages run, %d triaged; want 12", len(rows), len(tri.Pages))
 	}
+	// The run writes triage's estimate into its ALTO (Page@ACCURACY, ALTO
+	// 4.4), which recto ocr cannot know: that attribute is left out of the
+	// comparison, everything else must match byte for byte.
+	accuracy := regexp.MustCompile(` ACCURACY="[0-9.]+"`)
 	same := func(what, a, b string) {
 		t.Helper()
 		x, errA := os.ReadFile(a)
 		y, errB := os.ReadFile(b)
+		if strings.HasSuffix(a, ocr.SuffixALTO) {
+			x = accuracy.ReplaceAll(x, nil)
+		}
 		if errA != nil || errB != nil || !bytes.Equal(x, y) {
 			t.Errorf("%s: run %s and steps %s differ (%v, %v)", what, a, b, errA, errB)
 		}

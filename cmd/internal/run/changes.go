@@ -12,6 +12,7 @@ import (
 	"recto/cmd/internal/run/ledger"
 	"recto/correct"
 	"recto/internal/atomicfile"
+	"recto/ocr"
 )
 
 // ChangeLine is one line of changes.jsonl, the list of corrections that
@@ -79,4 +80,22 @@ func writeChanges(dir, outDir string, rows []ledger.Page) error {
 		buf.Write(data)
 	}
 	return atomicfile.Write(filepath.Join(dir, ChangesFile), buf.Bytes())
+}
+
+// CorrectionStep is the ALTO processing step of correction, the same in
+// recto correct and recto run so that their ALTO files are equal: lexicon
+// and model are the files given ("" for the embedded ones), named by a
+// short hash of their content.
+func CorrectionStep(lang, lexiconFile, modelFile string, margin float64, keepMarks, mapGlyphs bool) (ocr.ALTOStep, error) {
+	lex, err := fileSum(lexiconFile)
+	if err != nil {
+		return ocr.ALTOStep{}, fmt.Errorf("--lexicon: %w", err)
+	}
+	model, err := fileSum(modelFile)
+	if err != nil {
+		return ocr.ALTOStep{}, fmt.Errorf("--correction-model: %w", err)
+	}
+	return ocr.ALTOStep{Description: []string{"correction of OCR confusions"},
+		Settings: fmt.Sprintf("lang=%s lexicon=%s correction_model=%s margin=%g keep_marks=%t map_glyphs=%t",
+			lang, orDefault(lex), orDefault(model), margin, keepMarks, mapGlyphs)}, nil
 }

@@ -103,14 +103,16 @@ func newToolkit(o Options) (*toolkit, error) {
 	if o.CorrectionModel != "" || o.KeepMarks || o.MapGlyphs { // absent keys keep older ledgers' fingerprints
 		settings["correction_model"], settings["keep_marks"], settings["map_glyphs"] = cmodelSum, o.KeepMarks, o.MapGlyphs
 	}
+	step, err := CorrectionStep(o.Lang, o.Lexicon, o.CorrectionModel, o.Margin, o.KeepMarks, o.MapGlyphs)
+	if err != nil {
+		return nil, err
+	}
 	tk := &toolkit{
 		write: func(dir, rel string, r *ocr.Record, g *image.Gray, a ocr.ALTOOptions) error {
 			return ocr.WriteOutputsWith(dir, rel, r, g, a)
 		},
-		correction: ocr.ALTOStep{Description: []string{"correction of OCR confusions (recto run)"},
-			Settings: fmt.Sprintf("lang=%s lexicon=%s correction_model=%s margin=%g keep_marks=%t map_glyphs=%t",
-				o.Lang, orDefault(lexSum), orDefault(cmodelSum), o.Margin, o.KeepMarks, o.MapGlyphs)},
-		interval: cerInterval,
+		correction: step,
+		interval:   cerInterval,
 		compare: func(ref, hyp string) counts {
 			c := quality.Compare(ref, hyp, quality.NormOptions{})
 			return counts{Chars: c.Chars, CharErrors: c.CharErrors, Words: c.Words, WordErrors: c.WordErrors}

@@ -91,13 +91,27 @@ type hashID struct {
 	id uint32
 }
 
+// IndexAllMax is the largest lexicon whose every word is offered as a
+// correction. A bigger lexicon (a Hunspell dictionary expanded into all
+// its forms: about 950,000 for Bokmål, 360,000 for German) offers only
+// the words its running text counted: the index stays small (its size
+// grows as words times their deletions, about 60 a word), and a rare form
+// no text attests is a poor guess for a misread word. Every word stays
+// known (Has), so none is changed for being rare.
+const IndexAllMax = 250_000
+
 func buildIndex(lex *lexicon.Lexicon) *deleteIndex {
 	ix := &deleteIndex{id: make(map[string]uint32), bloom: make([]uint64, bloomBits/64), pairs: buildPairFilter(lex)}
 	var pairs []hashID
 	var rs []rune
 	var hs []uint64
-	for _, w := range lex.Words() {
+	words := lex.Words()
+	onlyCounted := len(words) > IndexAllMax
+	for _, w := range words {
 		if !indexable(w) {
+			continue
+		}
+		if onlyCounted && lex.Count(w) == 0 {
 			continue
 		}
 		id := uint32(len(ix.words))

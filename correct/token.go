@@ -5,6 +5,8 @@ import (
 	"strings"
 	"unicode"
 	"unicode/utf8"
+
+	"golang.org/x/text/unicode/norm"
 )
 
 // token is one whitespace-separated piece of a page.
@@ -17,6 +19,61 @@ type token struct {
 	conf       float64 // engine confidence in [0, 1]; -1 when unknown
 	word       int     // index in Record.Words; -1 for plain text
 	lineEnd    bool    // the next token is on another line (or there is none)
+	// piece marks a token that is part of a record word joined to another
+	// part by a dash ("tbe—the"); start and end are then byte offsets in
+	// the word's text.
+	piece bool
+}
+
+// bom is the byte-order mark (U+FEFF). At the start of a page it says how
+// the file was encoded and is no part of the first word (Unicode Standard,
+// section 23.8, "Specials": U+FEFF as a signature); it stays in the text.
+const bom = '\ufeff'
+
+// dashAt reports the length in bytes of a dash that joins the words on
+// either side of it at s[i:]: an em dash, a horizontal bar, an en dash, or
+// two or more hyphens (the typewriter's dash, as plain-text transcriptions
+// such as Project Gutenberg's write it: common practice), and 0 for none.
+// Punctuation attached by such a dash splits like other punctuation:
+// "tbe—the" is the words "tbe" and "the".
+func dashAt(s string, i int) int {
+	switch {
+	case strings.HasPrefix(s[i:], "—"), strings.HasPrefix(s[i:], "―"), strings.HasPrefix(s[i:], "–"):
+		return len("—")
+	case strings.HasPrefix(s[i:], "--"):
+		n := 2
+		for i+n < len(s) && s[i+n] == '-' {
+			n++
+		}
+		return n
+	}
+	return 0
+}
+
+// dashPieces splits s after each dash that has a letter or digit on both
+// sides, returning the byte offsets where the pieces start (the first is
+// 0). The dash stays with the piece before it as its trail.
+func dashPieces(s string) []int {
+	starts := []int{0}
+	seenCore := false
+	for i := 0; i < len(s); {
+		r, size := utf8.DecodeRuneInString(s[i:])
+		if n := dashAt(s, i); n > 0 {
+			if seenCore && i+n < len(s) {
+				if next, _ := utf8.DecodeRuneInString(s[i+n:]); unicode.IsLetter(next) || unicode.IsDigit(next) {
+					starts = append(starts, i+n)
+					seenCore = false
+				}
+			}
+			i += n
+			continue
+		}
+		if unicode.IsLetter(r) || unicode.IsDigit(r) {
+			seenCore = true
+		}
+		i += size
+	}
+	return starts
 }
 
 // tokenize splits text at white space, recording where each token is.
@@ -28,12 +85,23 @@ func tokenize(text string) []token {
 		if start < 0 {
 			return
 		}
-		t := token{start: start, end: end, line: line, col: startCol, conf: -1, word: -1}
-		t.lead, t.core, t.trail = splitToken(text[start:end])
-		toks = append(toks, t)
+		raw := text[start:end]
+		ps := dashPieces(raw)
+		for k, p := range ps {
+			e := len(raw)
+			if k+1 < len(ps) {
+				e = ps[k+1]
+			}
+			t := token{start: start + p, end: start + e, line: line, col: startCol + utf8.RuneCountInString(raw[:p]), conf: -1, word: -1}
+			t.lead, t.core, t.trail = splitToken(raw[p:e])
+			toks = append(toks, t)
+		}
 		start = -1
 	}
 	for i, r := range text {
+		if i == 0 && r == bom {
+			continue // not counted as a column either
+		}
 		if unicode.IsSpace(r) {
 			flush(i)
 			if r == '\n' {
@@ -57,7 +125,9 @@ func tokenize(text string) []token {
 }
 
 // splitToken separates leading and trailing punctuation from the core,
-// which runs from the first to the last letter or digit.
+// which runs from the first to the last letter or digit, with the
+// combining marks that follow it (a word written decomposed, NFD "café",
+// ends in U+0301, which belongs to its last letter).
 func splitToken(s string) (lead, core, trail string) {
 	first, last := -1, -1
 	for i, r := range s {
@@ -65,6 +135,8 @@ func splitToken(s string) (lead, core, trail string) {
 			if first < 0 {
 				first = i
 			}
+			last = i + utf8.RuneLen(r)
+		} else if last == i && unicode.Is(unicode.M, r) {
 			last = i + utf8.RuneLen(r)
 		}
 	}
@@ -157,8 +229,17 @@ const confusableDigits = "0158"
 
 // protected reports whether a core must be left as it is whatever the
 // model says: numbers and dates, codes, URLs and e-mail addresses, roman
-// numerals. known tells whether the lexicon has the word.
+// numerals, suspended compound parts. known tells whether the lexicon has the word.
 func protected(raw, core string, known bool) bool {
+	if i := strings.Index(raw, core); i >= 0 {
+		// A suspended compound part ("for-, while- und until-Schleifen",
+		// "Ein- oder Ausgabe", "land- og sjøveien"): a hyphen and more
+		// punctuation after the word; the part need not be a word.
+		// "--" is a typewriter dash, not a hyphen.
+		if trail := raw[i+len(core):]; strings.HasPrefix(trail, "-") && len(trail) > 1 && trail[1] != '-' {
+			return true
+		}
+	}
 	if strings.Contains(raw, "://") || strings.HasPrefix(strings.ToLower(raw), "www.") || strings.Contains(core, "@") {
 		return true
 	}
@@ -227,13 +308,28 @@ func misreadOrdinal(core string) bool {
 }
 
 // lookupForm is the lower-case form a core is looked up and scored in:
-// typographic apostrophes become ASCII ones.
+// composed (Unicode normalisation form C, as the lexicon's words are), with
+// typographic apostrophes made ASCII ones.
 func lookupForm(core string) string {
+	if !norm.NFC.IsNormalString(core) {
+		core = norm.NFC.String(core)
+	}
 	s := strings.ToLower(core)
 	if strings.ContainsAny(s, "’‘") {
 		s = strings.NewReplacer("’", "'", "‘", "'").Replace(s)
 	}
 	return s
+}
+
+// inPageForm writes the replacement w (composed, as the lexicon has it) in
+// the normalisation form of the core it replaces: decomposed when the page
+// wrote that word decomposed, so a correction does not change how the rest
+// of the page is encoded.
+func inPageForm(core, w string) string {
+	if norm.NFC.IsNormalString(core) {
+		return w
+	}
+	return norm.NFD.String(w)
 }
 
 // plainWord reports whether s is letters with inner apostrophes or hyphens

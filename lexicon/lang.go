@@ -273,7 +273,7 @@ var Recipes = map[string]Recipe{
 		Code: "nno", Name: "Norwegian Nynorsk",
 		Words:    []Input{{Path: "/usr/share/dict/nynorsk", Charset: "ISO8859-1", Package: "wnorwegian", Licence: "GPL-2+"}},
 		Hunspell: []Input{{Path: "/usr/share/hunspell/nn_NO.dic", Package: "hunspell-no", Licence: "GPL-2"}},
-		Catalogs: CatalogSet{Dir: "/usr/share/locale/nn/LC_MESSAGES", HeldOut: []string{"dpkg.mo"}},
+		Catalogs: CatalogSet{Dir: "/usr/share/locale/nn/LC_MESSAGES", HeldOut: []string{"gtk20-properties.mo"}},
 	},
 	"deu": {
 		Code: "deu", Name: "German",

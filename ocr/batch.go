@@ -17,6 +17,10 @@ type BatchConfig struct {
 	NewEngine func() (Engine, error) // called once per worker
 	Options   Options                // per-page options
 
+	// Pages, when not nil, gives for each path the page to read of a
+	// multi-page file (from 1; ProcessFilePage), 0 for a single image.
+	Pages []int
+
 	// Done, when not nil, is called by the worker that processed a page,
 	// before the result is sent, e.g. to write the page's outputs; an error
 	// it returns becomes the result's Err. It runs concurrently on
@@ -95,7 +99,11 @@ func processOne(ctx context.Context, eng Engine, i int, path string, c BatchConf
 			r.Err = fmt.Errorf("ocr: %q: internal error: %v", path, p)
 		}
 	}()
-	rec, img, err := ProcessFile(ctx, eng, path, c.Options)
+	n := 0
+	if c.Pages != nil {
+		n = c.Pages[i]
+	}
+	rec, img, err := ProcessFilePage(ctx, eng, path, n, "", c.Options)
 	if err != nil {
 		r.Err = err
 		return r

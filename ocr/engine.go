@@ -40,6 +40,11 @@ type Options struct {
 	MaxPixels int         // refuse larger images; 0 means DefaultMaxPixels
 	KeepImage bool        // also return the prepared image
 	Lang      string      // the engine's language list, recorded in each Record ("nor", "eng+deu"); "" records none
+
+	// Orient is orientation detection, for engines that have it
+	// (Orienter): Auto when the page's first reading looks poor, On
+	// before every reading, Off never (see processOriented).
+	Orient Mode
 }
 
 func (o Options) dpi() float64 {

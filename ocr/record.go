@@ -17,6 +17,12 @@ type Record struct {
 	Source  string `json:"source"`  // page image path as given by the user
 	SHA256  string `json:"sha256"`  // hex SHA-256 of the source file's bytes
 
+	// FilePage is the page's number in a multi-page source file (a
+	// multi-page TIFF, a PDF), from 1, and FilePages the file's page
+	// count; both 0 for a single image.
+	FilePage  int `json:"file_page,omitempty"`
+	FilePages int `json:"file_pages,omitempty"`
+
 	// Lang is the engine language list the page was read with ("eng",
 	// "nor", "eng+deu"; Tesseract's codes); triage and correction take
 	// their lexicon from it when not told otherwise. Empty in records
@@ -48,6 +54,18 @@ type Record struct {
 	Noise        float64 `json:"noise"`               // estimated noise, standard deviation in grey levels
 	Blank        bool    `json:"blank"`               // no ink worth recognising was found
 
+	// The skew measured, rotated or not (Skew is the rotation applied),
+	// the sharpness of its peak (1 for a flat curve; rotated only from
+	// 1.1 and 0.25°) and the ink it was measured on: "text" (text-like
+	// components only) or "all ink".
+	SkewEstimate   float64 `json:"skew_estimate_degrees"`
+	SkewConfidence float64 `json:"skew_confidence"`
+	SkewMeasuredOn string  `json:"skew_measured_on,omitempty"`
+
+	// Orientation is what orientation detection found, when the engine
+	// has it (nil otherwise, and with no preparation).
+	Orientation *Orientation `json:"orientation,omitempty"`
+
 	MeanConfidence float64 `json:"mean_confidence"` // mean word confidence in [0, 1]; 0 with no words
 	Words          []Word  `json:"words"`           // in reading order
 
@@ -69,12 +87,17 @@ type Record struct {
 }
 
 // Reading records the self-check of one page: both readings' scores (the
-// letters and digits of words read with confidence ConfidentWord or more)
-// and which reading was kept.
+// letters and digits, and the words of three letters or more, read with
+// confidence ConfidentWord or more) and which reading was kept.
 type Reading struct {
 	Kept          string `json:"kept"`           // "prepared" or "original" (no preparation)
 	PreparedScore int    `json:"prepared_score"` // confident letters in the prepared page's reading
 	OriginalScore int    `json:"original_score"` // confident letters in the original page's reading
+
+	// Confidently read words of three letters or more in each reading:
+	// the reading with more is kept, on a tie the one with more letters.
+	PreparedWords int `json:"prepared_words"`
+	OriginalWords int `json:"original_words"`
 }
 
 // Word is one recognised word.

@@ -162,6 +162,13 @@ func ScoreDirs(ctx context.Context, truth, ocr string, cfg DirConfig) (*Report, 
 	for _, k := range twice {
 		isRef[k+".txt"] = true // reported as a failure, not as unmatched
 	}
+	for _, fe := range rep.Failed { // an unreadable reference (a folder, say) is listed once, as unreadable
+		if rel, err := filepath.Rel(truth, fe.File); err == nil {
+			if k, ok := TruthKey(filepath.ToSlash(rel)); ok {
+				isRef[k+".txt"] = true
+			}
+		}
+	}
 	for _, h := range hyps {
 		if !isRef[h] {
 			rep.Unmatched = append(rep.Unmatched, h)

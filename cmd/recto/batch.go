@@ -17,8 +17,9 @@ import (
 var testEngine func() (ocr.Engine, error)
 
 // addRunFlags registers the options of `recto run` on cmd.
-func addRunFlags(cmd *cobra.Command, o *run.Options) {
+func addRunFlags(cmd *cobra.Command, o *run.Options, prep *prepFlags) {
 	f := cmd.Flags()
+	prep.add(f)
 	f.StringVarP(&o.Out, "out", "o", "", "run `folder` for the ledger, outputs and reports (required)")
 	f.StringVar(&o.Truth, "truth", "", "ground-truth `folder`: the same relative path with .txt scores a page")
 	f.IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages at once (0: one per core)")
@@ -42,6 +43,7 @@ func addRunFlags(cmd *cobra.Command, o *run.Options) {
 
 func newRunCommand(g *GlobalOptions) *cobra.Command {
 	var o run.Options
+	var prep prepFlags
 	cmd := &cobra.Command{
 		Use:   "run COLLECTION --out DIR [--truth DIR]",
 		Short: "Run the whole job on a collection: recognise, triage, correct, score, report",
@@ -57,9 +59,25 @@ settings are unchanged are skipped; a changed image is done again. Killing
 the run loses at most the pages in flight. Only one run may use DIR at a
 time.
 
+Each page of a multi-page TIFF or PDF is a page of its own, named after
+the file and a 1-based page number: page 3 of box/reel-07.tif is
+box/reel-07/p0003 in the outputs, the reports and the ledger, and its ground
+truth is --truth/box/reel-07/p0003.txt. Pages are decoded one at a time; a
+corrupt page fails alone, named with its file and number; a rerun resumes
+page by page.
+
 Outputs: DIR/ocr/<page>.txt, .alto.xml and .json for every page, and
-DIR/corrected/<page>.* for corrected pages; reports: DIR/report/titles.csv,
-titles.json, pages.csv, rescan.csv and report.html.
+DIR/corrected/<page>.* for corrected pages, with DIR/corrected/changes.jsonl
+listing every change as 'recto correct' lists them; reports:
+DIR/report/titles.csv, titles.json, pages.csv, rescan.csv and report.html.
+
+The page steps are those of the commands, with the same options: the
+preparation options of 'recto ocr' (--no-prepare, --deskew, --denoise,
+--cleanup, --binarize, --max-skew), the thresholds and --quality-model of
+'recto triage', the --correction-model, --margin, --keep-marks and
+--map-glyphs of 'recto correct' (pages triage marks correct are
+corrected). The text, ALTO and change list are byte for byte what those
+commands write for the same pages.
 
 Scale-out: --shard i/n (or a Kubernetes Indexed Job or Slurm job array; see
 the README) processes a deterministic share of the pages into
@@ -67,6 +85,11 @@ DIR/shards/<i>-of-<n>; 'recto merge DIR' combines the shards.
 ` + exitStatusHelp,
 		Args: cobra.ExactArgs(1),
 		PreRunE: func(cmd *cobra.Command, args []string) error {
+			p, err := prep.options()
+			if err != nil {
+				return err
+			}
+			o.Prep, o.NoPrepare = p, prep.NoPrepare
 			return o.Validate()
 		},
 		RunE: func(cmd *cobra.Command, args []string) error {
@@ -79,7 +102,7 @@ DIR/shards/<i>-of-<n>; 'recto merge DIR' combines the shards.
 			return err
 		},
 	}
-	addRunFlags(cmd, &o)
+	addRunFlags(cmd, &o, &prep)
 	return cmd
 }
 

@@ -16,6 +16,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"recto/cmd/internal/run"
 	"recto/correct"
 	"recto/internal/atomicfile"
 	"recto/lexicon"
@@ -35,6 +36,8 @@ type CorrectOptions struct {
 	Margin     float64 // natural-log odds a correction must win by; 0 = default
 	Jobs       int     // pages corrected in parallel; 0 means GOMAXPROCS
 	Collection bool    // add the input pages' own word counts to the context model
+	Vocab      string  // saved collection vocabulary to add to the pages' own; "" for none
+	SaveVocab  string  // file to save the collection vocabulary to; "" for none
 	KeepMarks  bool    // leave stray marks in
 	MapGlyphs  bool    // rewrite punctuation glyphs as the model's ground truth has them
 }
@@ -90,6 +93,16 @@ The files under IN are never modified: --out must be another folder.
   recto correct scans/ocr --dry-run
   recto correct train --ocr corpus/ocr --truth corpus/truth --out my.model
 ` + langHelp + `
+--collection uses the collection's own vocabulary: a word the engine read
+with confidence 0.90 or more at least 3 times, on 2 pages or more under IN
+(names of people, farms, ships and places, dialect and old spellings)
+joins the lexicon with its count and is never changed; a change it
+stopped is listed in changes.jsonl with "blocked": "collection
+vocabulary" (and is not made). It also adds the pages' counts of known
+words and word pairs to the context. --save-vocabulary FILE writes the
+vocabulary as a lexicon file, --vocabulary FILE adds a saved one (say,
+from earlier deliveries of the same collection); either implies it.
+
 Without a lexicon for the language only language-independent fixes are
 made (stray marks): no word is changed into a word of another language.
 The error model (character confusions) is the same for every Latin-script
@@ -120,7 +133,9 @@ language. Each line of changes.jsonl names the language ("lang").
 	f.StringVarP(&o.Lang, "lang", "l", "", "engine `languages` of the pages, e.g. nor or eng+deu (default: as recorded by recto ocr, else eng)")
 	f.Float64Var(&o.Margin, "margin", 0, fmt.Sprintf("log-odds `margin` a correction must win by (0 = %g; higher is more cautious)", correct.DefaultMargin))
 	f.IntVarP(&o.Jobs, "jobs", "j", 0, "pages corrected in parallel (`n`; default: number of CPUs)")
-	f.BoolVar(&o.Collection, "collection", false, "also count the input pages' known words and word pairs for the context")
+	f.BoolVar(&o.Collection, "collection", false, "use the collection's own vocabulary and counts: words read confidently across the pages are never changed")
+	f.StringVar(&o.Vocab, "vocabulary", "", "saved collection vocabulary `file` (from --save-vocabulary) to add to the pages' own")
+	f.StringVar(&o.SaveVocab, "save-vocabulary", "", "save the collection vocabulary to this lexicon `file` (.gz to compress)")
 	f.BoolVar(&o.KeepMarks, "keep-marks", false, "leave stray marks (tokens with no letter or digit) in the text")
 	f.BoolVar(&o.MapGlyphs, "map-glyphs", false, "rewrite punctuation glyphs as the model's ground truth has them (curly/straight quotes)")
 	oldName(cmd, "model", "correction-model")
@@ -184,17 +199,8 @@ type correctResult struct {
 	err     error
 }
 
-// changeLine is one line of changes.jsonl.
-type changeLine struct {
-	Title  string  `json:"title"`
-	Page   string  `json:"page"`
-	Line   int     `json:"line"`
-	Column int     `json:"column"`
-	Before string  `json:"before"`
-	After  string  `json:"after"`
-	Score  float64 `json:"score"`
-	Lang   string  `json:"lang"` // the language the page was corrected in (--lang)
-}
+// changeLine is one line of changes.jsonl, the format recto run writes too.
+type changeLine = run.ChangeLine
 
 func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in string) error {
 	if err := checkDir("IN", in); err != nil {
@@ -239,6 +245,22 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 	if o.Collection {
 		cfg.Collection = collectionCounts(in, pages, lex)
 	}
+	if o.Collection || o.Vocab != "" || o.SaveVocab != "" {
+		vocab, err := collectionVocabulary(in, pages, o)
+		if err != nil {
+			return err
+		}
+		cfg.Vocabulary = vocab
+		// Its words join the lexicon, unless the language has none: then
+		// no word is a correction, the vocabulary's neither.
+		if extra := unknownTo(lex, vocab); lc.lex != nil && extra.Len() > 0 {
+			lex = lexicon.Merge(lex, extra)
+		}
+		if !g.Quiet {
+			g.printf("collection vocabulary: %d words read with confidence %.2f or more at least %d times on %d pages or more",
+				vocab.Len(), correct.VocabularyConf, correct.VocabularyMin, correct.VocabularyPages)
+		}
+	}
 	c := correct.New(lex, m, cfg)
 
 	results := make([]correctResult, len(pages))
@@ -254,8 +276,6 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 		rootName = filepath.Base(abs)
 	}
 	var lines bytes.Buffer
-	enc := json.NewEncoder(&lines)
-	enc.SetEscapeHTML(false)
 	failed, total := 0, 0
 	for i, r := range results {
 		if r.err != nil {
@@ -263,23 +283,21 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 			g.printf("%v", r.err)
 			continue
 		}
-		for _, ch := range r.changes {
-			total++
-			title, _ := quality.TitlePage(pages[i].rel, rootName)
-			_ = enc.Encode(changeLine{Title: title, Page: pages[i].rel, Line: ch.Line, Column: ch.Column, Before: ch.Before, After: ch.After, Score: ch.Score, Lang: o.Lang})
-		}
+		total += correct.Made(r.changes)
+		title, _ := quality.TitlePage(pages[i].rel, rootName)
+		run.AppendChanges(&lines, title, pages[i].rel, o.Lang, r.changes)
 	}
 	if o.DryRun {
 		if _, err := g.stdout.Write(lines.Bytes()); err != nil {
 			return err
 		}
 	} else {
-		if err := writeFileAtomic(filepath.Join(o.Out, "changes.jsonl"), lines.Bytes()); err != nil {
+		if err := writeFileAtomic(filepath.Join(o.Out, run.ChangesFile), lines.Bytes()); err != nil {
 			return err
 		}
 	}
 	if !g.Quiet {
-		g.printf("%d changes in %d pages", total, len(pages)-failed)
+		g.printf("%s in %s", counted(total, "change"), counted(len(pages)-failed, "page"))
 	}
 	if failed == len(pages) {
 		return fmt.Errorf("correct: every page failed")
@@ -416,8 +434,10 @@ func correctOne(c *correct.Corrector, in string, o CorrectOptions, p correctPage
 		}
 		if p.altoXML {
 			buf.Reset()
-			step := alto.Step{Description: []string{"correction of OCR confusions (recto correct)"},
-				Settings: fmt.Sprintf("lang=%s margin=%g keep_marks=%t map_glyphs=%t", out.Lang, o.Margin, o.KeepMarks, o.MapGlyphs)}
+			step, err := run.CorrectionStep(out.Lang, o.Lexicon, o.Model, o.Margin, o.KeepMarks, o.MapGlyphs)
+			if err != nil {
+				return correctResult{err: err}
+			}
 			if err := alto.WriteWith(&buf, out, alto.Options{Correction: &step}); err != nil {
 				return correctResult{err: fmt.Errorf("correct: %q: %w", outBase+ocr.SuffixALTO, err)}
 			}
@@ -605,4 +625,49 @@ func recordedCorrectLang(in string, pages []correctPage) string {
 		}
 	}
 	return ""
+}
+
+// collectionVocabulary gathers the collection vocabulary of the pages'
+// records (correct.VocabularyCounter) with a saved one (o.Vocab) and saves
+// it when asked (o.SaveVocab). Pages whose record cannot be read are
+// skipped here; correcting them reports the error.
+func collectionVocabulary(in string, pages []correctPage, o CorrectOptions) (*lexicon.Lexicon, error) {
+	vc := correct.NewVocabularyCounter()
+	for _, p := range pages {
+		if !p.json {
+			continue
+		}
+		rec, err := ocr.ReadRecord(filepath.Join(in, filepath.FromSlash(p.rel)) + ocr.SuffixRecord)
+		if err != nil {
+			continue
+		}
+		vc.AddRecord(rec)
+	}
+	var prior *lexicon.Lexicon
+	if o.Vocab != "" {
+		l, err := lexicon.Load(o.Vocab)
+		if err != nil {
+			return nil, fmt.Errorf("--vocabulary: %w", err)
+		}
+		prior = l
+	}
+	v := vc.Vocabulary(prior)
+	if o.SaveVocab != "" {
+		if err := v.Save(o.SaveVocab); err != nil {
+			return nil, fmt.Errorf("--save-vocabulary: %w", err)
+		}
+	}
+	return v, nil
+}
+
+// unknownTo returns the words of v that lex does not know, with their
+// counts.
+func unknownTo(lex, v *lexicon.Lexicon) *lexicon.Lexicon {
+	out := lexicon.New()
+	for _, w := range v.Words() {
+		if !lex.Has(w) {
+			out.Add(w, v.Count(w))
+		}
+	}
+	return out
 }

@@ -35,7 +35,11 @@ func TestMain(m *testing.M) {
 		main()
 		return
 	}
-	os.Exit(m.Run())
+	code := m.Run()
+	if testLexDir != "" { // lang_engine_test.go's lexicons
+		os.RemoveAll(testLexDir)
+	}
+	os.Exit(code)
 }
 
 // recto returns a command that runs this test binary as recto with the

@@ -2,11 +2,14 @@ package main
 
 import (
 	"encoding/json"
+	"path/filepath"
 	"strings"
 	"testing"
 	"unicode"
 
+	"recto/correct"
 	"recto/lexicon"
+	"recto/ocr"
 )
 
 // With no lexicon for the language (an empty lexicon folder), triage
@@ -99,4 +102,63 @@ func TestLangWithoutLexicon(t *testing.T) {
 		t.Errorf("without a lexicon %d words were changed, want none (English lexicon: %d)", n, words(eng))
 	}
 	t.Logf("word changes: %d with the English lexicon, %d without a lexicon; stray marks without: %d", words(eng), words(nor), len(nor))
+}
+
+// The collection vocabulary in recto correct (issue 12, part 4): a word
+// read with confidence 0.91 three times on two pages ("wbale", an
+// invented dialect spelling on invented pages) is not changed with
+// --collection, and changes.jsonl lists the change it stopped; without
+// --collection the corrector changes it (b read for h, a learned
+// confusion).
+func TestCollectionVocabularyBlocks(t *testing.T) {
+	in := t.TempDir()
+	line := func(ws ...string) []ocr.Word {
+		var out []ocr.Word
+		for i, w := range ws {
+			out = append(out, ocr.Word{Text: w, Conf: 0.91, Box: ocr.Box{X: 60 * i, Y: 10, W: 50, H: 20}})
+		}
+		return out
+	}
+	pages := map[string][]ocr.Word{
+		"p1": line("the", "old", "wbale", "came", "into", "the", "harbour", "and", "the", "wbale", "rested"),
+		"p2": line("they", "saw", "the", "wbale", "again", "near", "the", "pier", "at", "dawn"),
+	}
+	for name, ws := range pages {
+		rec := &ocr.Record{Version: ocr.RecordVersion, Lang: "eng", Width: 800, Height: 100, DPI: 300, Words: ws}
+		if err := ocr.WriteOutputs(in, name, rec, nil); err != nil {
+			t.Fatal(err)
+		}
+	}
+	read := func(args ...string) []changeLine {
+		out, stderr, err := runRecto(t, append([]string{"correct", in, "--dry-run"}, args...)...)
+		if err != nil {
+			t.Fatalf("%v\n%s", err, stderr)
+		}
+		var cs []changeLine
+		for _, l := range strings.Split(strings.TrimSpace(out), "\n") {
+			var c changeLine
+			if l != "" && json.Unmarshal([]byte(l), &c) == nil && c.Before == "wbale" {
+				cs = append(cs, c)
+			}
+		}
+		return cs
+	}
+	plain := read()
+	if len(plain) != 3 || plain[0].Blocked != "" {
+		t.Fatalf("without --collection: %+v, want wbale changed 3 times", plain)
+	}
+	saved := filepath.Join(t.TempDir(), "vocab.lex")
+	coll := read("--collection", "--save-vocabulary", saved)
+	if len(coll) != 3 {
+		t.Fatalf("with --collection: %+v, want 3 blocked changes listed", coll)
+	}
+	for _, c := range coll {
+		if c.Blocked != correct.BlockedVocabulary || c.After != plain[0].After {
+			t.Errorf("change %+v: want blocked %q", c, correct.BlockedVocabulary)
+		}
+	}
+	v, err := lexicon.Load(saved)
+	if err != nil || v.Count("wbale") != 3 {
+		t.Errorf("saved vocabulary: %v, wbale count %d, want 3", err, v.Count("wbale"))
+	}
 }

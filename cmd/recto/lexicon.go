@@ -116,7 +116,7 @@ func runLexiconBuild(ctx context.Context, o LexiconBuildOptions, g GlobalOptions
 	b.Options = lexicon.BuildOptions{MinTextCount: o.MinText, MinBigramCount: o.MinPair}
 	progress := func(format string, a ...any) {
 		if !g.Quiet {
-			fmt.Fprintf(g.stderr, format+"\n", a...)
+			g.printf(format, a...)
 		}
 	}
 	for _, p := range o.Words {

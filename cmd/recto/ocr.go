@@ -11,6 +11,7 @@ import (
 	"strings"
 
 	"github.com/spf13/cobra"
+	"github.com/spf13/pflag"
 
 	"recto/cmd/internal/cli"
 	"recto/cmd/internal/progress"
@@ -36,35 +37,31 @@ type OCROptions struct {
 	DPI        float64
 	MaxPixels  int
 	KeepImages bool
-	NoPrepare  bool
-	Deskew     string
-	Denoise    string
-	Cleanup    string
-	Binarize   string
-	MaxSkew    float64
+	prepFlags
 }
 
-// AddFlags registers the options on fs.
-func (o *OCROptions) AddFlags(c *cobra.Command) {
-	f := c.Flags()
-	f.StringVarP(&o.Out, "out", "o", "", "write outputs under `dir` (required)")
-	f.StringVarP(&o.Lang, "lang", "l", "eng", "Tesseract `languages`, e.g. eng or eng+deu")
-	f.IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages at once (0: one per core)")
-	f.IntVar(&o.PSM, "psm", 0, "Tesseract page segmentation `mode` 1-13 (0: Tesseract's default, 3)")
-	f.Float64Var(&o.DPI, "dpi", 0, "resolution of images without a resolution tag, in `dpi` (default: estimated from the size of the text, else 300)")
-	f.IntVar(&o.MaxPixels, "max-pixels", ocr.DefaultMaxPixels, "refuse images larger than `n` pixels")
-	f.BoolVar(&o.KeepImages, "keep-images", false, "also write the prepared image as <name>.prepared.png")
+// prepFlags are the preparation options, shared by recto ocr and recto run.
+type prepFlags struct {
+	NoPrepare bool
+	Deskew    string
+	Denoise   string
+	Cleanup   string
+	Binarize  string
+	MaxSkew   float64
+}
+
+// add registers the preparation flags on f.
+func (o *prepFlags) add(f *pflag.FlagSet) {
 	f.BoolVar(&o.NoPrepare, "no-prepare", false, "hand the greyscale page to Tesseract without preparation")
 	f.StringVar(&o.Deskew, "deskew", "auto", "straighten skewed pages: `auto`, on or off")
 	f.StringVar(&o.Denoise, "denoise", "auto", "remove speckle noise: `auto`, on or off")
 	f.StringVar(&o.Cleanup, "cleanup", "auto", "clear borders and specks after binarisation: `auto`, on or off")
 	f.StringVar(&o.Binarize, "binarize", "auto", "binarisation `method`: auto (Sauvola where light is uneven, Otsu on denoised pages, grey otherwise), otsu, sauvola or none")
 	f.Float64Var(&o.MaxSkew, "max-skew", 0, "largest skew searched, in `degrees` (0: the preparation default)")
-	c.MarkFlagRequired("out")
 }
 
-// options checks the flag values and turns them into library options.
-func (o *OCROptions) options() (ocr.Options, tesseract.Config, error) {
+// options checks the values and turns them into the library's options.
+func (o *prepFlags) options() (ocr.PrepOptions, error) {
 	var prep ocr.PrepOptions
 	for _, m := range []struct {
 		flag, val string
@@ -78,7 +75,7 @@ func (o *OCROptions) options() (ocr.Options, tesseract.Config, error) {
 		case "off":
 			*m.dst = ocr.Off
 		default:
-			return ocr.Options{}, tesseract.Config{}, usagef("--%s %q: want auto, on or off", m.flag, m.val)
+			return ocr.PrepOptions{}, usagef("--%s %q: want auto, on or off", m.flag, m.val)
 		}
 	}
 	switch b := strings.ToLower(o.Binarize); b {
@@ -87,12 +84,35 @@ func (o *OCROptions) options() (ocr.Options, tesseract.Config, error) {
 	case "otsu", "sauvola", "none":
 		prep.Binarize = b
 	default:
-		return ocr.Options{}, tesseract.Config{}, usagef("--binarize %q: want auto, otsu, sauvola or none", o.Binarize)
+		return ocr.PrepOptions{}, usagef("--binarize %q: want auto, otsu, sauvola or none", o.Binarize)
 	}
 	if o.MaxSkew < 0 || o.MaxSkew > 45 {
-		return ocr.Options{}, tesseract.Config{}, usagef("--max-skew %g: want 0 to 45 degrees", o.MaxSkew)
+		return ocr.PrepOptions{}, usagef("--max-skew %g: want 0 to 45 degrees", o.MaxSkew)
 	}
 	prep.MaxSkew = o.MaxSkew
+	return prep, nil
+}
+
+// AddFlags registers the options on fs.
+func (o *OCROptions) AddFlags(c *cobra.Command) {
+	f := c.Flags()
+	f.StringVarP(&o.Out, "out", "o", "", "write outputs under `dir` (required)")
+	f.StringVarP(&o.Lang, "lang", "l", "eng", "Tesseract `languages`, e.g. eng or eng+deu")
+	f.IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages at once (0: one per core)")
+	f.IntVar(&o.PSM, "psm", 0, "Tesseract page segmentation `mode` 1-13 (0: Tesseract's default, 3)")
+	f.Float64Var(&o.DPI, "dpi", 0, "resolution of images without a resolution tag, in `dpi` (default: estimated from the size of the text, else 300)")
+	f.IntVar(&o.MaxPixels, "max-pixels", ocr.DefaultMaxPixels, "refuse images larger than `n` pixels")
+	f.BoolVar(&o.KeepImages, "keep-images", false, "also write the prepared image as <name>.prepared.png")
+	o.prepFlags.add(f)
+	c.MarkFlagRequired("out")
+}
+
+// options checks the flag values and turns them into library options.
+func (o *OCROptions) options() (ocr.Options, tesseract.Config, error) {
+	prep, err := o.prepFlags.options()
+	if err != nil {
+		return ocr.Options{}, tesseract.Config{}, err
+	}
 	if o.Jobs < 0 {
 		return ocr.Options{}, tesseract.Config{}, usagef("--jobs %d: want 0 (one per core) or more", o.Jobs)
 	}
@@ -145,6 +165,8 @@ files and folders are skipped), the same list as 'recto run'. For each page, und
 
 <name> is the image's name without its extension, or with it when two images
 in one folder share a name (p1.tif and p1.png give p1.tif.txt and p1.png.txt).
+Each page of a multi-page TIFF or PDF is a page: page 3 of reel-07.tif is
+reel-07/p0003 (reel-07/p0003.txt, ...), decoded one page at a time.
 DIR/failures.tsv lists the pages that failed (title, page, image, error;
 pages named as in 'recto score'), with a header
 line; it is written on every run. Files under IN are only read. DIR may lie
@@ -171,6 +193,9 @@ one thread.
 type page struct {
 	path string // as found: IN joined with the relative path
 	rel  string // output name relative to --out, without suffix, "/"-separated
+	// filePage is the page's number in a multi-page file (from 1), 0 for
+	// a single image; rel is then ocr.PageName's, "box/reel-07/p0003".
+	filePage int
 }
 
 func runOCR(ctx context.Context, o OCROptions, g GlobalOptions, args []string) error {
@@ -210,14 +235,16 @@ func runOCR(ctx context.Context, o OCROptions, g GlobalOptions, args []string) e
 	}
 
 	paths := make([]string, len(pages))
+	filePages := make([]int, len(pages))
 	for i, p := range pages {
-		paths[i] = p.path
+		paths[i], filePages[i] = p.path, p.filePage
 	}
 	prog := progress.New(g.stderr, g.prefix(), g.Quiet, len(pages))
 	results, err := ocr.RunBatch(ctx, paths, ocr.BatchConfig{
 		Jobs:      o.Jobs,
 		NewEngine: func() (ocr.Engine, error) { return newEngine(cfg) },
 		Options:   opts,
+		Pages:     filePages,
 		Done: func(r *ocr.Result) error {
 			return ocr.WriteOutputs(o.Out, pages[r.Index].rel, r.Record, r.Prepared)
 		},
@@ -274,6 +301,13 @@ func findPages(in, out string) ([]page, error) {
 	}
 	if !info.IsDir() {
 		// A single file is taken whatever its suffix; decoding judges it.
+		if n := ocr.CountPages(context.Background(), in); n > 1 {
+			var pages []page
+			for k := 1; k <= n; k++ {
+				pages = append(pages, page{path: in, rel: ocr.PageName(filepath.Base(in), k, n), filePage: k})
+			}
+			return pages, nil
+		}
 		return []page{{path: in, rel: strings.TrimSuffix(filepath.Base(in), filepath.Ext(in))}}, nil
 	}
 	absIn, err := filepath.Abs(in)
@@ -291,9 +325,16 @@ func findPages(in, out string) ([]page, error) {
 	if err != nil {
 		return nil, err
 	}
-	pages := make([]page, len(imgs))
-	for i, im := range imgs {
-		pages[i] = page{path: im.Path, rel: im.Stem}
+	var pages []page
+	for _, im := range imgs {
+		// Every page of a multi-page TIFF or PDF, named as recto run names it.
+		if n := ocr.CountPages(context.Background(), im.Path); n > 1 {
+			for k := 1; k <= n; k++ {
+				pages = append(pages, page{path: im.Path, rel: ocr.PageName(im.Rel, k, n), filePage: k})
+			}
+			continue
+		}
+		pages = append(pages, page{path: im.Path, rel: im.Stem})
 	}
 	return pages, nil
 }

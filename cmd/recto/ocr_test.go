@@ -5,6 +5,7 @@ import (
 	"context"
 	"crypto/sha256"
 	"errors"
+	"fmt"
 	"image"
 	"image/color"
 	"io/fs"
@@ -15,6 +16,7 @@ import (
 	"testing"
 
 	"recto/cmd/internal/progress"
+	"recto/cmd/internal/run/runtest"
 	"recto/ocr"
 	"recto/ocr/ocrtest"
 	"recto/ocr/tesseract"
@@ -286,13 +288,14 @@ func TestOCRInterrupted(t *testing.T) {
 	}
 }
 
-// TestOCRMultiPageWarning: a multi-page TIFF is recognised from its first
-// page, and the skipped pages are reported on stderr and in the record.
-func TestOCRMultiPageWarning(t *testing.T) {
+// TestOCRMultiPageFixture: the two-page fixture (testdata/prep, page sizes
+// from ImageMagick's identify: 50×38 and 100×75) gives two pages, vol1/p0001
+// and vol1/p0002, each its own size, and no warning about pages left out.
+func TestOCRMultiPageFixture(t *testing.T) {
 	fakeEngine(t, "eng")
 	src, err := os.ReadFile("../../testdata/prep/multipage.tif")
 	if err != nil {
-		t.Skip(err)
+		t.Fatal(err)
 	}
 	in := t.TempDir()
 	os.WriteFile(filepath.Join(in, "vol1.tif"), src, 0o644)
@@ -301,11 +304,30 @@ func TestOCRMultiPageWarning(t *testing.T) {
 	if err != nil {
 		t.Fatalf("%v\n%s", err, stderr)
 	}
-	if !strings.Contains(stderr, "warning") || !strings.Contains(stderr, "vol1.tif") || !strings.Contains(stderr, "multi-page") {
-		t.Errorf("no warning naming the file on stderr:\n%s", stderr)
+	if strings.Contains(stderr, "only the first page") {
+		t.Errorf("stderr warns about pages left out:\n%s", stderr)
 	}
-	rec, err := ocr.ReadRecord(filepath.Join(out, "vol1.json"))
-	if err != nil || len(rec.Warnings) != 1 {
-		t.Errorf("record warnings %v, %v", rec, err)
+	for k, want := range [][2]int{{50, 38}, {100, 75}} {
+		rec, err := ocr.ReadRecord(filepath.Join(out, "vol1", fmt.Sprintf("p%04d.json", k+1)))
+		if err != nil || rec.Width != want[0] || rec.Height != want[1] || rec.FilePage != k+1 || len(rec.Warnings) != 0 {
+			t.Errorf("page %d: %v, %+v; want %d×%d", k+1, err, rec, want[0], want[1])
+		}
+	}
+}
+
+// TestOCRMultiPageTIFF: every page of a multi-page TIFF is a page, named
+// reel-07/p0001... (issue 11 part 2), its record saying which page it is.
+func TestOCRMultiPageTIFF(t *testing.T) {
+	fakeEngine(t, "eng")
+	in, out := t.TempDir(), filepath.Join(t.TempDir(), "out")
+	runtest.MultiPageTIFF(t, filepath.Join(in, "box", "reel-07.tif"), []*image.Gray{testPage(), testPage(), testPage()})
+	if _, stderr, err := runRecto(t, "-q", "ocr", in, "-o", out, "--no-prepare"); err != nil {
+		t.Fatalf("%v\n%s", err, stderr)
+	}
+	for k := 1; k <= 3; k++ {
+		rec, err := ocr.ReadRecord(filepath.Join(out, "box", "reel-07", fmt.Sprintf("p%04d.json", k)))
+		if err != nil || rec.FilePage != k || rec.FilePages != 3 || len(rec.Words) == 0 {
+			t.Errorf("page %d: %v, %+v", k, err, rec)
+		}
 	}
 }

@@ -42,7 +42,9 @@ func TestStopExits130EveryTime(t *testing.T) {
 		c.Stderr = pw
 		var rest bytes.Buffer
 		first := make(chan struct{})
+		read := make(chan struct{})
 		go func() {
+			defer close(read)
 			sc := bufio.NewScanner(pr)
 			for n := 0; sc.Scan(); n++ {
 				if n == 0 {
@@ -64,6 +66,7 @@ func TestStopExits130EveryTime(t *testing.T) {
 		c.Process.Signal(sig)
 		st := exitStatus(c.Wait())
 		pw.Close()
+		<-read // the reader is done with rest
 		if st != exitInterrupted && st != exitOK {
 			t.Errorf("try %d (%v): exit status %d, want %d\n%s", try, sig, st, exitInterrupted, rest.String())
 		}

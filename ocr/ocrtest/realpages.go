@@ -4,7 +4,12 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"strconv"
+	"strings"
 	"testing"
+	"unicode"
+
+	"recto/ocr"
 )
 
 // RealPages returns the folder of real page scans that scripts/fetch-realpages
@@ -53,4 +58,56 @@ func PlainEngine(t testing.TB, path string) string {
 		t.Fatalf("tesseract %s: %v", path, err)
 	}
 	return string(out)
+}
+
+// PlainEngineWords returns the words the `tesseract` command reads in the
+// image at path as PlainEngine runs it, with their confidences (from its
+// tsv output: level-5 rows, conf in percent, here in [0, 1]).
+func PlainEngineWords(t testing.TB, path string) []ocr.Word {
+	t.Helper()
+	bin, err := exec.LookPath("tesseract")
+	if err != nil {
+		t.Fatal("the tesseract command is missing (Debian: tesseract-ocr): the side-by-side check cannot run")
+	}
+	cmd := exec.Command(bin, path, "-", "tsv")
+	cmd.Env = append(os.Environ(), "OMP_THREAD_LIMIT=1")
+	out, err := cmd.Output()
+	if err != nil {
+		t.Fatalf("tesseract %s tsv: %v", path, err)
+	}
+	var words []ocr.Word
+	for i, line := range strings.Split(string(out), "\n") {
+		f := strings.Split(line, "\t")
+		if i == 0 || len(f) < 12 || f[0] != "5" {
+			continue
+		}
+		conf, err := strconv.ParseFloat(f[10], 64)
+		if err != nil {
+			t.Fatalf("tesseract %s tsv: line %d: confidence %q", path, i+1, f[10])
+		}
+		words = append(words, ocr.Word{Text: f[11], Conf: conf / 100})
+	}
+	return words
+}
+
+// ConfidentWords counts the words read with confidence ocr.ConfidentWord
+// (0.8) or more that have at least three letters: the figure of the
+// real-scans issue (issue 10 part 1) on pages without a transcription.
+func ConfidentWords(words []ocr.Word) int {
+	n := 0
+	for _, w := range words {
+		if w.Conf < ocr.ConfidentWord {
+			continue
+		}
+		letters := 0
+		for _, r := range w.Text {
+			if unicode.IsLetter(r) {
+				letters++
+			}
+		}
+		if letters >= 3 {
+			n++
+		}
+	}
+	return n
 }

@@ -66,6 +66,9 @@ func limitThreads() {
 	})
 }
 
+// ompSerial turns OpenMP parallel regions off (see recto_omp_serial).
+func ompSerial() { C.recto_omp_serial() }
+
 // engine is one Tesseract client.
 type engine struct {
 	client *gosseract.Client
@@ -73,6 +76,9 @@ type engine struct {
 	dpi    int    // resolution last handed to the client
 	psm    int    // page segmentation mode asked for
 	langs  []string
+
+	dataDir string     // Config.DataDir, for the orientation client
+	osd     *osdClient // orientation detection (orient.go), nil until used
 }
 
 // Describe implements ocr.EngineDescriber: Tesseract's own version string
@@ -119,7 +125,7 @@ func New(cfg Config) (ocr.Engine, error) {
 	// Tesseract's diagnostics ("Empty page!!", resolution guesses) would
 	// otherwise reach our stderr.
 	c.SetVariable(gosseract.DEBUG_FILE, os.DevNull)
-	return &engine{client: c, psm: psm, langs: langs}, nil
+	return &engine{client: c, psm: psm, langs: langs, dataDir: cfg.DataDir}, nil
 }
 
 // Recognize implements ocr.Engine in one recognition pass.
@@ -197,6 +203,8 @@ func (e *engine) Close() error {
 	}
 	err := e.client.Close()
 	e.client = nil
+	e.osd.close()
+	e.osd = nil
 	return err
 }
 

@@ -11,6 +11,7 @@ import (
 	"testing"
 
 	"recto/cmd/internal/run/ledger"
+	"recto/correct"
 	"recto/lexicon"
 	"recto/ocr"
 )
@@ -92,7 +93,9 @@ func BenchmarkAfterRecognition10k(b *testing.B) {
 					final := r
 					correctShare.Add(v.Decision == "correct")
 					if v.Decision == "correct" {
-						final, row.Corrections = tk.correct(r)
+						var ch []correct.Change
+						final, ch = tk.correct(r)
+						row.Corrections = len(ch)
 					}
 					if truth[i] != "" {
 						c := tk.compare(truth[i], r.Text())

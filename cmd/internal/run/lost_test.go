@@ -203,8 +203,9 @@ func TestSetupFailuresNotRescan(t *testing.T) {
 	}
 }
 
-// TestWarningsReachStderrAndReports is defect 6: the decoder's warning
-// about a multi-page TIFF reaches stderr and warnings.csv.
+// TestWarningsReachStderrAndReports was defect 6: the decoder's warning
+// about a multi-page TIFF reached neither stderr nor warnings.csv. The
+// run now reads every page of such a file, so there is no warning left.
 func TestWarningsReachStderrAndReports(t *testing.T) {
 	coll := filepath.Join(t.TempDir(), "coll")
 	// testdata/prep/multipage.tif: two pages, see testdata/prep/SOURCES.md.
@@ -219,11 +220,22 @@ func TestWarningsReachStderrAndReports(t *testing.T) {
 	if err != nil {
 		t.Fatal(err, stderr)
 	}
-	if !strings.Contains(stderr, "warning") || !strings.Contains(stderr, "two.tif") || !strings.Contains(stderr, "only the first page") {
-		t.Errorf("stderr has no warning for two.tif:\n%s", stderr)
+	// Since issue 11 part 2 the run reads every page of a multi-page TIFF
+	// (T/two/p0001, T/two/p0002), so the decoder has nothing to warn about
+	// here: no "only the first page" line, and warnings.csv is its header.
+	if strings.Contains(stderr, "only the first page") {
+		t.Errorf("stderr warns about a page left out:\n%s", stderr)
+	}
+	pages := readCSV(t, filepath.Join(out, reportDir, "pages.csv"))
+	var names []string
+	for _, r := range pages[1:] {
+		names = append(names, r[1])
+	}
+	if strings.Join(names, " ") != "T/one T/two/p0001 T/two/p0002" {
+		t.Errorf("pages %q, want T/one and the two pages of two.tif", names)
 	}
 	w := readCSV(t, filepath.Join(out, reportDir, "warnings.csv"))
-	if len(w) != 2 || w[1][2] != "T/two.tif" || !strings.Contains(w[1][3], "2 pages") {
+	if len(w) != 1 || strings.Join(w[0], ",") != "title,page,image,warning" {
 		t.Errorf("warnings.csv: %q", w)
 	}
 }
@@ -351,5 +363,28 @@ func TestMergeRefusesIncompleteShards(t *testing.T) {
 	}
 	if html, _ := os.ReadFile(filepath.Join(missing, reportDir, "report.html")); !bytes.Contains(html, []byte("Partial report")) {
 		t.Error("rebuilt report.html does not say it is partial")
+	}
+}
+
+// TestFindImagesStemsUnique (#16 defect 1 for recto ocr and the page key):
+// p1.tif, p1.png and p1.tif.png get three different stems.
+func TestFindImagesStemsUnique(t *testing.T) {
+	dir := t.TempDir()
+	for i, n := range []string{"p1.tif", "p1.png", "p1.tif.png", "p2.png"} {
+		writePage(t, filepath.Join(dir, "T", n), i, "w")
+	}
+	imgs, _, err := FindImages(dir, "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	seen := map[string]string{}
+	for _, im := range imgs {
+		if other, ok := seen[im.Stem]; ok {
+			t.Errorf("%s and %s share the stem %s", other, im.Rel, im.Stem)
+		}
+		seen[im.Stem] = im.Rel
+	}
+	if len(seen) != 4 || seen["T/p2"] != "T/p2.png" {
+		t.Errorf("stems %v", seen)
 	}
 }

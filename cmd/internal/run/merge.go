@@ -110,7 +110,7 @@ func Merge(ctx context.Context, o MergeOptions) (MergeSummary, error) {
 			return sum, &shardsError{problems: problems}
 		}
 		sum.Partial = strings.Join(problems, "; ")
-		fmt.Fprintf(stderr, "recto: warning: partial merge (--allow-partial): %s\n", sum.Partial)
+		fmt.Fprintf(stderr, "recto merge: warning: partial merge (--allow-partial): %s\n", sum.Partial)
 	}
 	if err := checkWritable(dst); err != nil {
 		return sum, err
@@ -180,7 +180,7 @@ func Merge(ctx context.Context, o MergeOptions) (MergeSummary, error) {
 		}
 	}
 	if !o.Quiet {
-		fmt.Fprintf(stderr, "recto: merged %d ledgers (%d rows taken); %d pages, %d failed\n", len(paths), n, len(rows), sum.Failed)
+		fmt.Fprintf(stderr, "recto merge: merged %d ledgers (%d rows taken); %d pages, %d failed\n", len(paths), n, len(rows), sum.Failed)
 	}
 	sum.Report = filepath.Join(repDir, "report.html")
 	return sum, nil

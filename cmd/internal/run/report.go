@@ -70,7 +70,7 @@ func buildPartialReports(repDir, outDir, root string, rows []ledger.Page, ci rep
 	for i, r := range rows {
 		p := report.Page{
 			Rel: EscapeName(r.Rel), Title: EscapeName(r.Title), Page: EscapeName(r.Page), // names.go
-			Failed: r.State != ledger.StateDone, Error: r.Error, Setup: isSetup(r),
+			Failed: r.State != ledger.StateDone, Error: r.Error, Setup: isSetup(r), Warnings: r.Warnings,
 			Decision: r.Decision, PredictedCER: r.PredictedCER, Reasons: r.Reasons, Corrections: r.Corrections,
 			HasTruth: r.HasTruth, RefChars: r.RefChars, RefWords: r.RefWords,
 			CharErrs: r.CharErrs, WordErrs: r.WordErrs, CharErrsAfter: r.CharErrsAf, WordErrsAfter: r.WordErrsAf,
@@ -96,6 +96,11 @@ func buildPartialReports(repDir, outDir, root string, rows []ledger.Page, ci rep
 		},
 	})
 	if err != nil {
+		return fmt.Errorf("run: %w", err)
+	}
+	// corrected/changes.jsonl beside the report folder, as recto correct
+	// writes it in its --out folder.
+	if err := writeChanges(filepath.Join(filepath.Dir(repDir), correctedDir), outDir, rows); err != nil {
 		return fmt.Errorf("run: %w", err)
 	}
 	return nil

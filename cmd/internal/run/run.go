@@ -5,6 +5,7 @@
 package run
 
 import (
+	"bytes"
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
@@ -18,6 +19,7 @@ import (
 	"path"
 	"path/filepath"
 	"strings"
+	"sync"
 	"sync/atomic"
 	"time"
 
@@ -25,6 +27,8 @@ import (
 	"recto/cmd/internal/progress"
 	"recto/cmd/internal/run/ledger"
 	"recto/cmd/internal/run/shard"
+	"recto/correct"
+	"recto/internal/atomicfile"
 	"recto/ocr"
 	"recto/ocr/par"
 	"recto/quality"
@@ -68,6 +72,11 @@ type Options struct {
 	// goes to the engine without preparation.
 	NewEngine func() (ocr.Engine, error)
 	NoPrepare bool
+
+	// Prep are the preparation settings, as recto ocr's --deskew,
+	// --denoise, --cleanup, --binarize and --max-skew set them; the zero
+	// value decides every step automatically.
+	Prep ocr.PrepOptions
 
 	// NewCollection allows running a collection into a run folder used for
 	// another one; the old collection's pages are then marked gone.
@@ -137,19 +146,36 @@ type pageJob struct {
 	Path  string // absolute path
 	Title string // first folder of Rel, or the collection's name for an image in its root (as in recto score)
 	Page  string // the page key: Rel without extension, as recto score names a page (FindImages' Stem)
+
+	// FilePage is the page's number in a multi-page file (from 1) and
+	// FilePages the file's page count; 0 for a single image. Rel and Page
+	// of such a page are ocr.PageName's: "box/reel-07/p0003".
+	FilePage, FilePages int
 }
 
 // listPages finds the page files under root (FindImages) as the pages of
 // the run.
-func listPages(root, skip string) ([]pageJob, int, error) {
+func listPages(ctx context.Context, root, skip string) ([]pageJob, int, error) {
 	imgs, ignored, err := FindImages(root, skip)
 	if err != nil {
 		return nil, 0, fmt.Errorf("collection %w", err)
 	}
-	pages := make([]pageJob, len(imgs))
-	for i, im := range imgs {
+	rootName := filepath.Base(root)
+	pages := make([]pageJob, 0, len(imgs))
+	for _, im := range imgs {
+		// A multi-page TIFF or PDF gives one page per page, named by
+		// ocr.PageName; its title is the first folder of that name, as
+		// recto score names the page's ground truth.
+		if n := ocr.CountPages(ctx, im.Path); n > 1 {
+			for k := 1; k <= n; k++ {
+				name := ocr.PageName(im.Rel, k, n)
+				title, _ := quality.TitlePage(name, rootName)
+				pages = append(pages, pageJob{Rel: name, Stem: outputStem(name), Path: im.Path, Title: title, Page: name, FilePage: k, FilePages: n})
+			}
+			continue
+		}
 		// Output names are unique for every input path (names.go).
-		pages[i] = pageJob{Rel: im.Rel, Stem: outputStem(im.Rel), Path: im.Path, Title: im.Title, Page: im.Stem}
+		pages = append(pages, pageJob{Rel: im.Rel, Stem: outputStem(im.Rel), Path: im.Path, Title: im.Title, Page: im.Stem})
 	}
 	return pages, ignored, nil
 }
@@ -166,6 +192,27 @@ type runState struct {
 	badNames map[string]string   // rel -> why its output names cannot be made (names.go)
 	previous map[string][]string // rel -> outputs of its last ledger row
 	inFlight atomic.Int64        // pages being worked on
+	sums     sync.Map            // path -> fileHash, for the pages of multi-page files
+}
+
+// fileHash is a file's SHA-256 and size, hashed once for all its pages.
+type fileHash struct {
+	once sync.Once
+	sum  string
+	size int64
+	err  error
+}
+
+// fileSum returns the SHA-256 and size of p's file; the file of a
+// multi-page page is read once for all its pages.
+func (st *runState) fileSum(p pageJob) (string, int64, error) {
+	if p.FilePage == 0 {
+		return hashFile(p.Path)
+	}
+	v, _ := st.sums.LoadOrStore(p.Path, &fileHash{})
+	h := v.(*fileHash)
+	h.once.Do(func() { h.sum, h.size, h.err = hashFile(p.Path) })
+	return h.sum, h.size, h.err
 }
 
 // Run is the whole job on o.Collection. A run in which some pages failed
@@ -245,6 +292,7 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 		return sum, fmt.Errorf("run: %w", err)
 	}
 	defer l.Close()
+	applyTestFaults(st, l) // faults.go: nothing outside the reliability tests
 	if err := checkCollection(ctx, l, root, o.Out, o.NewCollection); err != nil {
 		return sum, err
 	}
@@ -261,7 +309,7 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 	if strings.HasPrefix(st.outDir, root+string(filepath.Separator)) {
 		skip = st.outDir
 	}
-	all, ignored, err := listPages(root, skip)
+	all, ignored, err := listPages(ctx, root, skip)
 	if err != nil {
 		return sum, err
 	}
@@ -272,7 +320,7 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 		}
 	}
 	sum.Images, sum.Pages, sum.Ignored = len(all), len(pages), ignored
-	if _, err := markGone(ctx, l, pages, stderr, "recto"); err != nil {
+	if _, err := markGone(ctx, l, pages, stderr, o.Command); err != nil {
 		return sum, err
 	}
 	st.badNames = checkNames(all, foldsCase(st.outDir))
@@ -441,7 +489,7 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 	if why, ok := st.badNames[p.Rel]; ok {
 		return fail("%q: %s", p.Path, why)
 	}
-	sum, size, err := hashFile(p.Path)
+	sum, size, err := st.fileSum(p)
 	if err != nil {
 		return fail("%q: cannot read: %v%s", p.Path, errors.Unwrap(err), ioFix(err))
 	}
@@ -468,7 +516,7 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 		}
 	}()
 	t0 := time.Now()
-	r, prepared, err := rec.Recognise(ctx, p.Path)
+	r, prepared, err := rec.Recognise(ctx, p.Path, p.FilePage, sum)
 	if err != nil {
 		if ctx.Err() != nil {
 			return nil, false
@@ -494,8 +542,8 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 	final := r
 	if v.Decision == "correct" {
 		t3 := time.Now()
-		c, n := st.tk.correct(r)
-		row.Corrections = n
+		c, changes := st.tk.correct(r)
+		row.Corrections = correct.Made(changes)
 		row.Timings["correct"] = ms(time.Since(t3))
 		ca := accuracy(st.tk.triage(c)) // the estimate of the corrected text
 		step := st.tk.correction
@@ -503,7 +551,16 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 		if err := st.tk.write(filepath.Join(st.outDir, correctedDir), p.Stem, c, nil, ca); err != nil {
 			return fail("%q: writing corrected outputs: %v%s", p.Path, err, ioFix(err))
 		}
+		// The page's changes, as recto correct lists them; the run's
+		// corrected/changes.jsonl joins them (writeChanges).
+		var buf bytes.Buffer
+		AppendChanges(&buf, p.Title, p.Page, st.o.Lang, changes)
+		name := path.Join(correctedDir, p.Stem) + suffixChanges
+		if err := atomicfile.Write(filepath.Join(st.outDir, filepath.FromSlash(name)), buf.Bytes()); err != nil {
+			return fail("%q: writing its changes: %v%s", p.Path, err, ioFix(err))
+		}
 		row.Outputs = append(row.Outputs, outputNames(correctedDir, p.Stem)...)
+		row.Outputs = append(row.Outputs, name)
 		final = c
 	}
 	if hasTruth {
@@ -589,7 +646,9 @@ func (st *runState) readTruth(rel string) (text, sum string, ok bool, err error)
 
 // recogniser is one worker's engine: never shared between goroutines.
 type recogniser interface {
-	Recognise(ctx context.Context, path string) (*ocr.Record, *image.Gray, error)
+	// Recognise reads page n of the file at path (0 for a single image);
+	// sum is the file's SHA-256.
+	Recognise(ctx context.Context, path string, n int, sum string) (*ocr.Record, *image.Gray, error)
 	Close() error
 }
 

@@ -24,7 +24,7 @@ type toolkit struct {
 	write         func(dir, rel string, rec *ocr.Record, prepared *image.Gray, a ocr.ALTOOptions) error
 	correction    ocr.ALTOStep // the correction step in corrected ALTO
 	triage        func(*ocr.Record) verdict
-	correct       func(*ocr.Record) (*ocr.Record, int)
+	correct       func(*ocr.Record) (*ocr.Record, []correct.Change)
 	compare       func(ref, hyp string) counts
 	interval      report.IntervalFunc
 	close         func() // releases an engine no worker took; may be nil
@@ -90,24 +90,29 @@ func newToolkit(o Options) (*toolkit, error) {
 		return nil, fmt.Errorf("--lexicon: %w", err)
 	}
 	custom := o.NewEngine != nil
-	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare, Lang: o.Lang, MaxPixels: o.MaxPixels}
+	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare, Lang: o.Lang, MaxPixels: o.MaxPixels, Prep: o.Prep}
 	cfg := tesseract.Config{Lang: o.Lang, PSM: o.PSM}
 	settings := map[string]any{"lang": o.Lang, "psm": o.PSM, "dpi": o.DPI, "rescan": o.Rescan, "correct": o.Correct,
 		"model": modelSum, "lexicon": lexSum, "margin": o.Margin, "fake_engine": custom, "record": ocr.RecordVersion}
 	if o.Lexicon == "" && o.Lang != "eng" { // the lexicons --lang chose (English runs keep their fingerprint)
 		settings["lexicons"] = lexFiles
 	}
+	if o.Prep != (ocr.PrepOptions{}) || (o.NoPrepare && !custom) { // absent keys keep older ledgers' fingerprints
+		settings["prep"], settings["no_prepare"] = o.Prep, o.NoPrepare
+	}
 	if o.CorrectionModel != "" || o.KeepMarks || o.MapGlyphs { // absent keys keep older ledgers' fingerprints
 		settings["correction_model"], settings["keep_marks"], settings["map_glyphs"] = cmodelSum, o.KeepMarks, o.MapGlyphs
+	}
+	step, err := CorrectionStep(o.Lang, o.Lexicon, o.CorrectionModel, o.Margin, o.KeepMarks, o.MapGlyphs)
+	if err != nil {
+		return nil, err
 	}
 	tk := &toolkit{
 		write: func(dir, rel string, r *ocr.Record, g *image.Gray, a ocr.ALTOOptions) error {
 			return ocr.WriteOutputsWith(dir, rel, r, g, a)
 		},
-		correction: ocr.ALTOStep{Description: []string{"correction of OCR confusions (recto run)"},
-			Settings: fmt.Sprintf("lang=%s lexicon=%s correction_model=%s margin=%g keep_marks=%t map_glyphs=%t",
-				o.Lang, orDefault(lexSum), orDefault(cmodelSum), o.Margin, o.KeepMarks, o.MapGlyphs)},
-		interval: cerInterval,
+		correction: step,
+		interval:   cerInterval,
 		compare: func(ref, hyp string) counts {
 			c := quality.Compare(ref, hyp, quality.NormOptions{})
 			return counts{Chars: c.Chars, CharErrors: c.CharErrors, Words: c.Words, WordErrors: c.WordErrors}
@@ -129,9 +134,8 @@ func newToolkit(o Options) (*toolkit, error) {
 		clex = noLexicon
 	}
 	ccfg := correct.Config{Margin: o.Margin, KeepMarks: o.KeepMarks, MapGlyphs: o.MapGlyphs}
-	tk.correct = func(r *ocr.Record) (*ocr.Record, int) {
-		c, changes := correctorFor(clex, cmodel, ccfg).CorrectRecord(r)
-		return c, len(changes)
+	tk.correct = func(r *ocr.Record) (*ocr.Record, []correct.Change) {
+		return correctorFor(clex, cmodel, ccfg).CorrectRecord(r)
 	}
 	tk.fingerprint, tk.settingsJSON = fingerprint(settings)
 	if custom {
@@ -209,8 +213,8 @@ type engineRecogniser struct {
 	opts ocr.Options
 }
 
-func (e *engineRecogniser) Recognise(ctx context.Context, path string) (*ocr.Record, *image.Gray, error) {
-	return ocr.ProcessFile(ctx, e.eng, path, e.opts)
+func (e *engineRecogniser) Recognise(ctx context.Context, path string, n int, sum string) (*ocr.Record, *image.Gray, error) {
+	return ocr.ProcessFilePage(ctx, e.eng, path, n, sum, e.opts)
 }
 
 func (e *engineRecogniser) Close() error { return e.eng.Close() }

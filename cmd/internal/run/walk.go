@@ -84,6 +84,9 @@ func FindImages(root, skip string) ([]Image, int, error) {
 	stems := map[string]int{}
 	for _, f := range found {
 		stems[strings.TrimSuffix(f.Rel, path.Ext(f.Rel))]++
+		// A stem equal to another image's whole name (p1.tif.png beside
+		// p1.tif) keeps its extension too: every Stem is then unique.
+		stems[f.Rel]++
 	}
 	for i, f := range found {
 		found[i].Stem = strings.TrimSuffix(f.Rel, path.Ext(f.Rel))

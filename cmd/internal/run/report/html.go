@@ -77,6 +77,7 @@ type htmlData struct {
 	Titles    []titleView
 	Worst     []pageView
 	Failed    []pageView
+	Warned    []pageView // pages with warnings
 }
 
 // HTML renders the self-contained report page.
@@ -100,6 +101,9 @@ func HTML(s Summary, pages []Page, o Options) ([]byte, error) {
 	var ok []pageView
 	for _, p := range pages {
 		v := makePageView(p)
+		if len(v.Warnings) > 0 {
+			d.Warned = append(d.Warned, v)
+		}
 		if p.Failed {
 			d.Failed = append(d.Failed, v)
 		} else {
@@ -137,6 +141,11 @@ func makePageView(p Page) pageView {
 		reasons[i] = Clean(r)
 	}
 	p.Reasons = reasons
+	warnings := make([]string, len(p.Warnings))
+	for i, w := range p.Warnings {
+		warnings[i] = Clean(w)
+	}
+	p.Warnings = warnings
 	p.Snippet = Clean(truncate(p.Snippet, snippetRunes))
 	v := pageView{Page: p, Key: p.PredictedCER, KeyKind: "predicted"}
 	if _, after, ok := p.CER(); ok {
@@ -378,6 +387,14 @@ svg text{font:10px sans-serif;fill:#444}
 <tbody>
 {{range .Failed}}<tr><td class="l">{{if .ImageURL}}<a href="{{.ImageURL}}">{{.Rel}}</a>{{else}}{{.Rel}}{{end}}</td><td class="l">{{.Error}}</td></tr>
 {{end}}</tbody>
+</table>{{end}}
+
+{{if .Warned}}<h2>Warnings</h2>
+<table id="warnings">
+<thead><tr><th class="l">Page</th><th class="l">Warning</th></tr></thead>
+<tbody>
+{{range .Warned}}{{$p := .}}{{range .Warnings}}<tr><td class="l">{{if $p.ImageURL}}<a href="{{$p.ImageURL}}">{{$p.Rel}}</a>{{else}}{{$p.Rel}}{{end}}</td><td class="l">{{.}}</td></tr>
+{{end}}{{end}}</tbody>
 </table>{{end}}
 
 <h2>Per title</h2>

@@ -62,6 +62,8 @@ type Page struct {
 	Image   string // link to the page image, relative to the report folder or absolute
 	Text    string // link to the final text, relative to the report folder; "" when none
 	Snippet string // start of the final OCR text, shown for the worst pages
+
+	Warnings []string // what a step said about the page that did not stop it
 }
 
 // CER returns the page's measured CER before and after correction; ok is

@@ -204,3 +204,46 @@ func SameRun(t *testing.T, a, b string) {
 		}
 	}
 }
+
+// MultiPageTIFF writes the images as one multi-page TIFF: uncompressed
+// 8-bit grey pages, one strip each, their image file directories chained
+// (TIFF 6.0 specification, Adobe 1992, sections 2 and 8: header, IFD,
+// NextIFD offset, the baseline grey-scale fields).
+func MultiPageTIFF(t testing.TB, name string, pages []*image.Gray) {
+	t.Helper()
+	le := func(b []byte, v uint32, n int) []byte {
+		for i := 0; i < n; i++ {
+			b = append(b, byte(v>>(8*i)))
+		}
+		return b
+	}
+	buf := []byte("II*\x00")
+	buf = le(buf, 8, 4) // first IFD offset, patched below
+	next := 4           // where the offset of the next IFD goes
+	for _, g := range pages {
+		w, h := g.Rect.Dx(), g.Rect.Dy()
+		strip := len(buf)
+		for y := 0; y < h; y++ {
+			buf = append(buf, g.Pix[y*g.Stride:y*g.Stride+w]...)
+		}
+		if len(buf)%2 == 1 {
+			buf = append(buf, 0) // IFDs start on a word boundary
+		}
+		ifd := len(buf)
+		buf[next], buf[next+1], buf[next+2], buf[next+3] = byte(ifd), byte(ifd>>8), byte(ifd>>16), byte(ifd>>24)
+		entries := [][3]uint32{ // tag, type (3 SHORT, 4 LONG), value
+			{256, 4, uint32(w)}, {257, 4, uint32(h)}, {258, 3, 8}, {259, 3, 1}, {262, 3, 1},
+			{273, 4, uint32(strip)}, {277, 3, 1}, {278, 4, uint32(h)}, {279, 4, uint32(w * h)},
+		}
+		buf = le(buf, uint32(len(entries)), 2)
+		for _, e := range entries {
+			buf = le(buf, e[0], 2)
+			buf = le(buf, e[1], 2)
+			buf = le(buf, 1, 4)
+			buf = le(buf, e[2], 4) // a SHORT sits in the first two bytes, little-endian
+		}
+		next = len(buf)
+		buf = le(buf, 0, 4)
+	}
+	MustWrite(t, name, buf)
+}

@@ -135,6 +135,7 @@ corrects common OCR confusions, and measures CER and WER against ground truth.
 		newReportCommand(g),
 		newMergeCommand(g),
 		newDemoCommand(g),
+		newSampleCommand(g),
 	)
 	wrapArgErrors(root)
 	return root

@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -26,7 +27,8 @@ type ScoreOptions struct {
 	FoldCase        bool
 	IgnorePunct     bool
 	PlainTypography bool
-	Jobs            int // pages scored at once; 0 means all cores
+	Jobs            int    // pages scored at once; 0 means all cores
+	Plan            string // sampling plan of recto sample; "" for none
 }
 
 const scoreLong = `Score OCR text against ground truth: character and word error rates (CER,
@@ -118,6 +120,7 @@ func newScoreCommand(g *GlobalOptions) *cobra.Command {
 	f.BoolVar(&o.IgnorePunct, "ignore-punct", false, "ignore punctuation")
 	f.BoolVar(&o.PlainTypography, "plain-typography", false, "map typographic quotes, dashes, ligatures and long s to plain ones")
 	f.IntVarP(&o.Jobs, "jobs", "j", 0, "score `n` pages at once (0: one per core)")
+	f.StringVar(&o.Plan, "plan", "", "sampling plan `file` of recto sample: say per title whether its interval reached the target")
 	return cmd
 }
 
@@ -171,6 +174,11 @@ func runScore(ctx context.Context, o ScoreOptions, g GlobalOptions) error {
 	}
 	if err != nil {
 		return fmt.Errorf("score: writing the report: %w", err)
+	}
+	if o.Plan != "" {
+		if err := writePlanCheck(g, o.Plan, rep, o.Format == "table"); err != nil {
+			return err
+		}
 	}
 	if rep.Partial() {
 		failed := len(rep.Missing) + len(rep.Failed)
@@ -454,4 +462,46 @@ func dropIndent(s string) string {
 		}
 	}
 	return strings.Join(lines, "")
+}
+
+// writePlanCheck says, per title of the sampling plan, whether the
+// stratified interval of the scored planned pages reached the plan's
+// half-width: a section on stdout with the table, lines on stderr with
+// json and csv (which keep their layout).
+func writePlanCheck(g GlobalOptions, plan string, rep *quality.Report, table bool) error {
+	f, err := os.Open(plan)
+	if err != nil {
+		return fmt.Errorf("score: --plan: %w", err)
+	}
+	defer f.Close()
+	p, err := quality.ReadPlan(f, plan)
+	if err != nil {
+		return fmt.Errorf("score: %w", err)
+	}
+	res, err := quality.CheckPlan(p, rep.Pages, 0, 0)
+	if err != nil {
+		return fmt.Errorf("score: --plan %q: %w", plan, err)
+	}
+	line := func(r quality.TargetResult) string {
+		switch {
+		case !r.OK:
+			return fmt.Sprintf("%s: no interval (%d of %d planned pages scored; every band needs one)", r.Title, r.Scored, r.Planned)
+		case r.Reached:
+			return fmt.Sprintf("%s: target reached: CER %.2f %% [%.2f, %.2f], ±%.2f points within ±%.2f (%d of %d planned pages scored)",
+				r.Title, 100*r.CER, 100*r.Low, 100*r.High, 50*(r.High-r.Low), 100*p.HalfWidth, r.Scored, r.Planned)
+		}
+		return fmt.Sprintf("%s: target NOT reached: CER %.2f %% [%.2f, %.2f], ±%.2f points, target ±%.2f (%d of %d planned pages scored): transcribe more pages of the title",
+			r.Title, 100*r.CER, 100*r.Low, 100*r.High, 50*(r.High-r.Low), 100*p.HalfWidth, r.Scored, r.Planned)
+	}
+	if table {
+		fmt.Fprintf(g.stdout, "\nSampling plan %s (stratified 95 %% interval):\n", plan)
+		for _, r := range res {
+			fmt.Fprintf(g.stdout, "  %s\n", line(r))
+		}
+		return nil
+	}
+	for _, r := range res {
+		g.printf("%s", line(r))
+	}
+	return nil
 }

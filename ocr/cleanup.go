@@ -111,20 +111,7 @@ func cleanup(b *image.Gray, runs []run) (cleanupResult, []run) {
 func clean(b *image.Gray, runs []run, dust float64) (cleanupResult, []run) {
 	w, h := b.Rect.Dx(), b.Rect.Dy()
 	runs = components(b, runs)
-	// A component's root is its first run (the lowest index), so stats
-	// can be indexed by run.
-	stats := make([]compStats, len(runs))
-	var roots []int32
-	for i, r := range runs {
-		s := &stats[r.parent]
-		if int32(i) == r.parent {
-			*s = compStats{x0: r.x0, y0: r.y, x1: r.x1, y1: r.y + 1}
-			roots = append(roots, r.parent)
-		}
-		s.area += int(r.x1 - r.x0)
-		s.x0, s.x1 = min(s.x0, r.x0), max(s.x1, r.x1)
-		s.y1 = max(s.y1, r.y+1)
-	}
+	stats, roots := componentStats(runs)
 	var hist [256]int
 	n := 0
 	for _, root := range roots {
@@ -179,4 +166,23 @@ func clean(b *image.Gray, runs []run, dust float64) (cleanupResult, []run) {
 		}
 	}
 	return res, runs
+}
+
+// componentStats gathers the box and area of every component of runs, as
+// components labelled them. A component's root is its first run (the lowest
+// index), so stats is indexed by run and holds a component's figures at its
+// root; roots lists the roots in the order of their first runs.
+func componentStats(runs []run) (stats []compStats, roots []int32) {
+	stats = make([]compStats, len(runs))
+	for i, r := range runs {
+		s := &stats[r.parent]
+		if int32(i) == r.parent {
+			*s = compStats{x0: r.x0, y0: r.y, x1: r.x1, y1: r.y + 1}
+			roots = append(roots, r.parent)
+		}
+		s.area += int(r.x1 - r.x0)
+		s.x0, s.x1 = min(s.x0, r.x0), max(s.x1, r.x1)
+		s.y1 = max(s.y1, r.y+1)
+	}
+	return stats, roots
 }

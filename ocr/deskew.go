@@ -285,18 +285,7 @@ func (s *skewScorer) sweep(xs, ys []int32, maxDeg float64) (best, peak float64) 
 func textPoints(b *image.Gray) (xs, ys []int32) {
 	w, h := b.Rect.Dx(), b.Rect.Dy()
 	runs := components(b, nil)
-	stats := make([]compStats, len(runs))
-	var roots []int32
-	for i, r := range runs {
-		s := &stats[r.parent]
-		if int32(i) == r.parent {
-			*s = compStats{x0: r.x0, y0: r.y, x1: r.x1, y1: r.y + 1}
-			roots = append(roots, r.parent)
-		}
-		s.area += int(r.x1 - r.x0)
-		s.x0, s.x1 = min(s.x0, r.x0), max(s.x1, r.x1)
-		s.y1 = max(s.y1, r.y+1)
-	}
+	stats, roots := componentStats(runs)
 	touches := func(s *compStats) bool {
 		return s.x0 == 0 || s.y0 == 0 || int(s.x1) == w || int(s.y1) == h
 	}

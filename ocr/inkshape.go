@@ -79,18 +79,7 @@ func measureInk(g *image.Gray, t int) InkShape {
 	b := image.NewGray(image.Rect(0, 0, w, h))
 	threshold(b, g, t)
 	runs := components(b, nil)
-	stats := make([]compStats, len(runs))
-	var roots []int32
-	for i, r := range runs {
-		s := &stats[r.parent]
-		if int32(i) == r.parent {
-			*s = compStats{x0: r.x0, y0: r.y, x1: r.x1, y1: r.y + 1}
-			roots = append(roots, r.parent)
-		}
-		s.area += int(r.x1 - r.x0)
-		s.x0, s.x1 = min(s.x0, r.x0), max(s.x1, r.x1)
-		s.y1 = max(s.y1, r.y+1)
-	}
+	stats, roots := componentStats(runs)
 	var res InkShape
 	ink := 0
 	var letters []mark

@@ -140,7 +140,7 @@ func process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 				return nil, nil, err
 			}
 			r := &Reading{Kept: "prepared", PreparedScore: confidentLetters(words), OriginalScore: confidentLetters(owords),
-				PreparedWords: confidentWords(words), OriginalWords: confidentWords(owords)}
+				PreparedWords: ConfidentWords(words), OriginalWords: ConfidentWords(owords)}
 			// More confidently read words (of three letters or more)
 			// first, the figure the real-page check compares with the
 			// plain engine (issue 10 part 1); on a tie, more confident
@@ -319,9 +319,11 @@ func readingLooksPoor(words []Word) bool {
 	return float64(n) <= poorReadingMax*float64(len(words))
 }
 
-// confidentWords counts the words read with confidence ConfidentWord or
-// more that have three letters or more.
-func confidentWords(words []Word) int {
+// ConfidentWords counts the words read with confidence ConfidentWord (0.8)
+// or more that have at least three letters: the real-scans issue's figure
+// for a reading without a transcription (issue 10 part 1), and the
+// self-check's.
+func ConfidentWords(words []Word) int {
 	n := 0
 	for _, w := range words {
 		if w.Conf < ConfidentWord {

@@ -4,12 +4,9 @@ import (
 	"context"
 	"fmt"
 	"os"
-	"os/exec"
 	"path/filepath"
-	"strconv"
 	"strings"
 	"testing"
-	"unicode"
 
 	"recto/ocr"
 	"recto/ocr/ocrtest"
@@ -38,59 +35,6 @@ func untaggedPNG(t *testing.T, dir, name string, path string) string {
 		t.Fatal(err)
 	}
 	return out
-}
-
-// confidentWord is the real-scans issue's measure of a reading without a
-// transcription: a word read with confidence 0.8 or more that has three or
-// more letters.
-func confidentWord(text string, conf float64) bool {
-	n := 0
-	for _, r := range text {
-		if unicode.IsLetter(r) {
-			n++
-		}
-	}
-	return conf >= ocr.ConfidentWord && n >= 3
-}
-
-func confidentWords(ws []ocr.Word) int {
-	n := 0
-	for _, w := range ws {
-		if confidentWord(w.Text, w.Conf) {
-			n++
-		}
-	}
-	return n
-}
-
-// plainEngineTSV runs the tesseract command as ocrtest.PlainEngine does
-// (its defaults, one thread) with its TSV output, and returns its text and
-// its number of confident words (TSV word rows, level 5: confidence in
-// percent in column 11, the word in column 12; Tesseract's TSV renderer).
-func plainEngineTSV(t *testing.T, path string) (string, int) {
-	t.Helper()
-	bin, err := exec.LookPath("tesseract")
-	if err != nil {
-		t.Fatal("the tesseract command is missing (Debian: tesseract-ocr): the side-by-side check cannot run")
-	}
-	cmd := exec.Command(bin, path, "-", "tsv")
-	cmd.Env = append(os.Environ(), "OMP_THREAD_LIMIT=1")
-	out, err := cmd.Output()
-	if err != nil {
-		t.Fatalf("tesseract %s tsv: %v", path, err)
-	}
-	n := 0
-	for _, line := range strings.Split(string(out), "\n") {
-		f := strings.Split(line, "\t")
-		if len(f) < 12 || f[0] != "5" {
-			continue
-		}
-		conf, err := strconv.ParseFloat(f[10], 64)
-		if err == nil && confidentWord(f[11], conf/100) {
-			n++
-		}
-	}
-	return ocrtest.PlainEngine(t, path), n
 }
 
 // TestUntaggedRealPagesNotWorse reads real scans at 75-150 dpi of
@@ -129,8 +73,8 @@ func TestUntaggedRealPagesNotWorse(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		_, plain := plainEngineTSV(t, path)
-		r, o := confidentWords(rec.Words), confidentWords(old.Words)
+		plain := ocr.ConfidentWords(ocrtest.PlainEngineWords(t, path))
+		r, o := ocr.ConfidentWords(rec.Words), ocr.ConfidentWords(old.Words)
 		// Every page is print: triage must not call it a picture (the
 		// real-scans issue, part 5), however badly it was read.
 		v := quality.Triage(quality.PageFeatures(rec, nil), nil, quality.Thresholds{})

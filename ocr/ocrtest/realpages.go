@@ -7,7 +7,6 @@ import (
 	"strconv"
 	"strings"
 	"testing"
-	"unicode"
 
 	"recto/ocr"
 )
@@ -88,26 +87,4 @@ func PlainEngineWords(t testing.TB, path string) []ocr.Word {
 		words = append(words, ocr.Word{Text: f[11], Conf: conf / 100})
 	}
 	return words
-}
-
-// ConfidentWords counts the words read with confidence ocr.ConfidentWord
-// (0.8) or more that have at least three letters: the figure of the
-// real-scans issue (issue 10 part 1) on pages without a transcription.
-func ConfidentWords(words []ocr.Word) int {
-	n := 0
-	for _, w := range words {
-		if w.Conf < ocr.ConfidentWord {
-			continue
-		}
-		letters := 0
-		for _, r := range w.Text {
-			if unicode.IsLetter(r) {
-				letters++
-			}
-		}
-		if letters >= 3 {
-			n++
-		}
-	}
-	return n
 }

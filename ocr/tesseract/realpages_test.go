@@ -210,8 +210,8 @@ func TestLeptonicaPagesConfidentWords(t *testing.T) {
 			t.Errorf("%s: %v", page, err)
 			continue
 		}
-		r := ocrtest.ConfidentWords(rec.Words)
-		p := ocrtest.ConfidentWords(ocrtest.PlainEngineWords(t, img))
+		r := ocr.ConfidentWords(rec.Words)
+		p := ocr.ConfidentWords(ocrtest.PlainEngineWords(t, img))
 		t.Logf("%-20s recto %4d  plain engine %4d confident words  skew %.2f (estimate %.2f on %s)  reading %+v",
 			page, r, p, rec.Skew, rec.SkewEstimate, rec.SkewMeasuredOn, rec.Reading)
 		if float64(r) < math.Floor(0.95*float64(p)) {

@@ -77,7 +77,7 @@ type ReviewEntry struct {
 type Review struct {
 	Decision string    // the reviewed decision; "" when the decision was not reviewed
 	Note     string    // note of the decision entry
-	Who      string    // who made the decision entry
+	Who      string    // who made the page's latest standing entry (of either kind)
 	At       time.Time // when
 	// Corrections maps a correction key to Accepted or Rejected, for
 	// corrections a reviewer judged; unjudged corrections stand.
@@ -309,10 +309,11 @@ func (l *Ledger) reviews(ctx context.Context, only string) (map[string]Review, e
 		r := out[rel]
 		r.Last = id
 		if current && undoes == 0 && undoneBy == 0 {
+			r.Who = who
+			r.At, _ = time.Parse(time.RFC3339Nano, at)
 			switch kind {
 			case KindDecision:
-				r.Decision, r.Note, r.Who = val, note, who
-				r.At, _ = time.Parse(time.RFC3339Nano, at)
+				r.Decision, r.Note = val, note
 			case KindCorrection:
 				if r.Corrections == nil {
 					r.Corrections = make(map[string]string)

@@ -177,7 +177,7 @@ func TestReviewSessionsLoseNothing(t *testing.T) {
 	for i, rel := range rels {
 		r := m[rel]
 		want := []string{"ann", "bo"}[i%2]
-		if r.Decision != "rescan" || r.Who != want {
+		if r.Decision != "rescan" || r.Note != want { // the note names the session that decided
 			t.Errorf("%s: %+v, want rescan by %s", rel, r, want)
 		}
 		if !r.Rejected(CorrectionKey(1, 1, "ann", "x")) || !r.Rejected(CorrectionKey(1, 1, "bo", "x")) {

@@ -352,3 +352,14 @@ func (l *Ledger) ReviewLog(ctx context.Context, rel string) ([]ReviewEntry, erro
 	}
 	return out, rows.Err()
 }
+
+// DataVersion changes whenever another connection (another process: a
+// run, a merge) commits to the ledger; a reader caches the pages while it
+// stays the same (SQLite's PRAGMA data_version).
+func (l *Ledger) DataVersion(ctx context.Context) (int64, error) {
+	var v int64
+	if err := l.db.QueryRowContext(ctx, `PRAGMA data_version`).Scan(&v); err != nil {
+		return 0, fmt.Errorf("ledger: %q: %w", l.path, err)
+	}
+	return v, nil
+}

@@ -133,9 +133,12 @@ func TestChangesNeedPostAndCSRF(t *testing.T) {
 	}
 	form := url.Values{"p": {rel}, "decision": {"accept"}}
 	for name, mod := range map[string]func(*http.Request){
-		"no token":     func(r *http.Request) {},
-		"wrong token":  func(r *http.Request) { r.Header.Set("X-CSRF-Token", strings.Repeat("0", 64)) },
-		"other origin": func(r *http.Request) { r.Header.Set("X-CSRF-Token", s.csrf); r.Header.Set("Origin", "http://attacker.example") },
+		"no token":    func(r *http.Request) {},
+		"wrong token": func(r *http.Request) { r.Header.Set("X-CSRF-Token", strings.Repeat("0", 64)) },
+		"other origin": func(r *http.Request) {
+			r.Header.Set("X-CSRF-Token", s.csrf)
+			r.Header.Set("Origin", "http://attacker.example")
+		},
 	} {
 		req, _ := http.NewRequest("POST", ts.URL+"/decide", strings.NewReader(form.Encode()))
 		req.Header.Set("Content-Type", "application/x-www-form-urlencoded")
@@ -353,4 +356,3 @@ func TestTwoSessionsKeepEachOthersChanges(t *testing.T) {
 		t.Errorf("log %+v: want ann's rescan then bo's accept replacing it", log)
 	}
 }
-

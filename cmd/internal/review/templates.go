@@ -89,7 +89,7 @@ ul.keys{columns:2;font-size:.88em;padding-left:1em}
 {{define "page"}}<!doctype html>
 <html lang="en"><head><meta charset="utf-8"><title>{{.Rel}} · review</title>
 <meta name="csrf" content="{{.CSRF}}">{{template "style" .}}</head>
-<body data-rel="{{.Rel}}" data-relq="{{.RelQ}}" data-last="{{.Last}}" data-ro="{{if .ReadOnly}}1{{else}}0{{end}}" data-prev="{{.Prev}}" data-next="{{.Next}}" data-back="{{.Back}}">
+<body data-rel="{{.Key}}" data-relq="{{.RelQ}}" data-last="{{.Last}}" data-ro="{{if .ReadOnly}}1{{else}}0{{end}}" data-prev="{{.Prev}}" data-next="{{.Next}}" data-back="{{.Back}}">
 <header><a href="{{.Back}}" id="back">← overview</a><h1>{{.Rel}}</h1><span>page {{.Pos}} of {{.Count}}</span>
 {{if .Prev}}<a href="{{.Prev}}" id="prev">← previous</a>{{end}}{{if .Next}}<a href="{{.Next}}" id="next">next →</a>{{end}}
 {{if .ReadOnly}}<span class="ro">read-only</span>{{end}}</header>
@@ -97,17 +97,17 @@ ul.keys{columns:2;font-size:.88em;padding-left:1em}
 {{if .Failed}}<div class="panel"><h2>This page failed in the run</h2><p>{{.Error}}</p><p>Problem: {{.Problem}}. A failed page has nothing to review; its file is listed in failures.csv or rescan.csv.</p></div>{{else}}
 <div class="cols">
 <div>
-<div id="view"><div id="stage"><img id="pg" src="/image?p={{.RelQ}}" data-w="{{.Width}}" data-h="{{.Height}}" alt="page image" draggable="false"><div id="box" hidden></div></div></div>
+<div id="view"><div id="stage"><img id="pg" src="/image?p={{.Key}}" data-w="{{.Width}}" data-h="{{.Height}}" alt="page image" draggable="false"><div id="box" hidden></div></div></div>
 <div id="boxinfo" class="state">Click a word to see its box on the page. Drag to pan, wheel or + / − to zoom, 0 to fit.</div>
 </div>
 <div>
 <div class="panel" id="decide"><h2>Decision: <span class="dec {{.Decision}}" id="decision">{{.Decision}}</span> <span class="rv" id="revmark">{{if .Reviewed}}reviewed by {{.Who}}{{else}}not reviewed (triage){{end}}</span></h2>
 <div class="state">triage: {{.Triage}} · predicted CER {{.Pred}} · mean confidence {{.MeanConf}}{{if .HasTruth}} · measured CER {{.CERBefore}} before, {{.CERAfter}} after correction{{end}}</div>
 <ul class="reasons">{{range .Reasons}}<li>{{.}}</li>{{end}}</ul>
-{{if not .ReadOnly}}<form method="post" action="/decide" id="decform"><input type="hidden" name="csrf" value="{{.CSRF}}"><input type="hidden" name="p" value="{{.Rel}}"><input type="hidden" name="seen" value="{{.Last}}"><input type="hidden" name="back" value="/page?p={{.RelQ}}{{if .Filter}}&{{.Filter}}{{end}}">
+{{if not .ReadOnly}}<form method="post" action="/decide" id="decform"><input type="hidden" name="csrf" value="{{.CSRF}}"><input type="hidden" name="p" value="{{.Key}}"><input type="hidden" name="seen" value="{{.Last}}"><input type="hidden" name="back" value="{{.Self}}">
 {{range .Decisions}}<button name="decision" value="{{.}}" data-decision="{{.}}"{{if eq . $.Decision}} class="on"{{end}}>{{.}}</button> {{end}}
 <label>note <input name="note" id="note" size="28" maxlength="2000" value="{{.Note}}" autocomplete="off"></label></form>
-<form method="post" action="/undo" id="undoform"><input type="hidden" name="csrf" value="{{.CSRF}}"><input type="hidden" name="p" value="{{.Rel}}"><input type="hidden" name="seen" value="{{.Last}}"><button id="undo">undo last change</button></form>{{end}}
+<form method="post" action="/undo" id="undoform"><input type="hidden" name="csrf" value="{{.CSRF}}"><input type="hidden" name="p" value="{{.Key}}"><input type="hidden" name="seen" value="{{.Last}}"><button id="undo">undo last change</button></form>{{end}}
 <div id="msg"></div>
 </div>
 <div class="panel"><h2>Text <span class="state">({{.Words}} words, {{.LowWords}} read with low confidence, marked)</span>{{if .HasTruth}} <button id="gt" type="button">ground truth</button>{{end}}</h2>
@@ -117,7 +117,7 @@ ul.keys{columns:2;font-size:.88em;padding-left:1em}
 <div class="panel"><h2>Corrections ({{len .Changes}})</h2>
 {{if .Changes}}<table id="changes"><thead><tr><th>Before</th><th>After</th><th>Where</th><th>Score</th><th>State</th><th></th></tr></thead><tbody>
 {{range .Changes}}<tr class="chg" data-key="{{.Key}}" data-state="{{.State}}"><td>{{.Before}}</td><td class="aft">{{.After}}</td><td>{{.Where}}</td><td>{{.Score}}</td><td class="state">{{if eq .State "blocked"}}not made: {{.Why}}{{else}}{{.State}}{{end}}</td>
-<td>{{if and (ne .State "blocked") (not $.ReadOnly)}}<form method="post" action="/correction"><input type="hidden" name="csrf" value="{{$.CSRF}}"><input type="hidden" name="p" value="{{$.Rel}}"><input type="hidden" name="seen" value="{{$.Last}}"><input type="hidden" name="key" value="{{.Key}}"><button name="value" value="accepted">accept</button> <button name="value" value="rejected">reject</button></form>{{end}}</td></tr>{{end}}
+<td>{{if and (ne .State "blocked") (not $.ReadOnly)}}<form method="post" action="/correction"><input type="hidden" name="csrf" value="{{$.CSRF}}"><input type="hidden" name="p" value="{{$.Key}}"><input type="hidden" name="seen" value="{{$.Last}}"><input type="hidden" name="key" value="{{.Key}}"><button name="value" value="accepted">accept</button> <button name="value" value="rejected">reject</button></form>{{end}}</td></tr>{{end}}
 </tbody></table>{{else}}<p class="state">No correction was made on this page.</p>{{end}}
 </div>
 <div class="panel hist"><h2>History</h2>{{range .History}}<div{{if .Undone}} class="undone"{{end}}>{{.When}} {{.Who}}: {{.What}}{{if .Note}} — {{.Note}}{{end}}</div>{{else}}<div class="state">No change yet.</div>{{end}}

@@ -321,6 +321,8 @@ type pageData struct {
 	Nonce, CSRF              string
 	Name, Rel, Page, Title   string
 	RelQ                     string // the page key, URL-escaped
+	Key                      string // the page key as the ledger has it
+	Self                     string // this page's address, filter included
 	Pos, Count               int
 	Prev, Next, Back         string
 	Decision, Triage         string
@@ -378,7 +380,7 @@ func (s *Server) pageView(w http.ResponseWriter, r *http.Request) {
 	list := choose(items(rows, revs), f, row.Rel)
 	d := pageData{Nonce: randomHex(16), CSRF: s.csrf, Name: s.name(), Rel: report.Clean(run.EscapeName(row.Rel)),
 		Page: report.Clean(run.EscapeName(row.Page)), Title: report.Clean(run.EscapeName(row.Title)),
-		RelQ: url.QueryEscape(row.Rel), Count: len(list), Back: "/" + q(fq), Decisions: Decisions,
+		RelQ: url.QueryEscape(row.Rel), Key: row.Rel, Self: "/page?p=" + url.QueryEscape(row.Rel) + amp(fq), Count: len(list), Back: "/" + q(fq), Decisions: Decisions,
 		ReadOnly: s.o.ReadOnly, Keys: keys, Filter: fq, Triage: row.Decision, Decision: row.Decision,
 		Failed: row.State != ledger.StateDone, Error: report.Clean(row.Error), Problem: string(row.Problem)}
 	for i, it := range list {

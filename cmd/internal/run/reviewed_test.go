@@ -162,6 +162,10 @@ func TestReviewedDecisionsReachReports(t *testing.T) {
 		}
 	}
 	check("after recto report", true)
+	html, _ := os.ReadFile(filepath.Join(out, reportDir, "report.html"))
+	if !strings.Contains(string(html), "2 pages reviewed in recto review") || !strings.Contains(string(html), "<small>reviewed</small>") {
+		t.Error("report.html does not mark the reviewed pages")
+	}
 
 	// The corrected text keeps every change but the rejected one.
 	stem := strings.TrimSuffix(strings.TrimPrefix(EngineText(cor), "ocr/"), ".txt")

@@ -12,6 +12,7 @@ import (
 	"context"
 	"encoding/json"
 	"image"
+	"image/jpeg"
 	"image/png"
 	"io"
 	"net"
@@ -354,5 +355,109 @@ func TestTwoSessionsKeepEachOthersChanges(t *testing.T) {
 	log, _ := a.l.ReviewLog(ctx, rows[0].Rel)
 	if len(log) != 2 || log[0].Who != "ann" || log[1].Who != "bo" || log[1].Old != "rescan" {
 		t.Errorf("log %+v: want ann's rescan then bo's accept replacing it", log)
+	}
+}
+
+// TestJudgeAndUndo: a correction is rejected by its key (an unknown key
+// is refused), undo walks back one change at a time, and a plain form
+// post (no script) is answered with a redirect back to the page.
+func TestJudgeAndUndo(t *testing.T) {
+	ctx := context.Background()
+	_, dir, rows := testRun(t, 1, 3, nil)
+	page := pick(t, rows, "correct", true, dir)
+	changes, _ := run.ChangesOf(dir, page)
+	s, ts, c := testServer(t, Options{Dir: dir})
+	p := url.Values{"p": {page.Rel}}
+	state := func(res *http.Response) state {
+		t.Helper()
+		defer res.Body.Close()
+		var st state
+		if err := json.NewDecoder(res.Body).Decode(&st); err != nil || res.StatusCode != 200 {
+			t.Fatalf("%s: %v", res.Status, err)
+		}
+		return st
+	}
+	bad := post(t, c, s, ts.URL+"/correction?"+p.Encode(), url.Values{"key": {"1:1:x\x1fy"}, "value": {"rejected"}})
+	bad.Body.Close()
+	if bad.StatusCode != http.StatusNotFound {
+		t.Errorf("unknown correction: %s, want 404", bad.Status)
+	}
+	key := changes[0].Key()
+	st := state(post(t, c, s, ts.URL+"/correction?"+p.Encode(), url.Values{"key": {key}, "value": {"rejected"}}))
+	if st.Corrections[key] != ledger.Rejected || st.Decision != "correct" || st.Reviewed {
+		t.Errorf("after rejecting: %+v", st)
+	}
+	st = state(post(t, c, s, ts.URL+"/decide?"+p.Encode(), url.Values{"decision": {"rescan"}, "seen": {strconv.FormatInt(st.Last, 10)}}))
+	if st.Decision != "rescan" || !st.Reviewed {
+		t.Errorf("after deciding: %+v", st)
+	}
+	st = state(post(t, c, s, ts.URL+"/undo?"+p.Encode(), url.Values{}))
+	if st.Decision != "correct" || st.Reviewed || st.Corrections[key] != ledger.Rejected {
+		t.Errorf("after one undo: %+v, want the decision back to triage's and the rejection kept", st)
+	}
+	st = state(post(t, c, s, ts.URL+"/undo?"+p.Encode(), url.Values{}))
+	if len(st.Corrections) != 0 {
+		t.Errorf("after two undos: %+v, want nothing judged", st)
+	}
+	// Without the script: a form post, redirected back.
+	noRedirect := &http.Client{Jar: c.Jar, CheckRedirect: func(*http.Request, []*http.Request) error { return http.ErrUseLastResponse }}
+	v := url.Values{"p": {page.Rel}, "decision": {"accept"}, "csrf": {s.csrf}, "back": {"/page?p=x&decision=rescan"}}
+	res, err := noRedirect.PostForm(ts.URL+"/decide", v)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res.Body.Close()
+	if res.StatusCode != http.StatusSeeOther || res.Header.Get("Location") != "/page?p=x&decision=rescan" {
+		t.Errorf("form post: %s to %q", res.Status, res.Header.Get("Location"))
+	}
+	v.Set("back", "https://attacker.example/")
+	res, _ = noRedirect.PostForm(ts.URL+"/decide", v)
+	res.Body.Close()
+	if loc := res.Header.Get("Location"); !strings.HasPrefix(loc, "/page?p=") {
+		t.Errorf("form post with a foreign back address redirected to %q", loc)
+	}
+	if r, _ := s.l.ReviewOf(ctx, page.Rel); r.Decision != "accept" {
+		t.Errorf("form post not stored: %+v", r)
+	}
+}
+
+// TestThumbnailsCached: thumbnails and page images are JPEG renditions
+// of the source made once and kept in RUNDIR/review; the background pass
+// makes the missing ones only.
+func TestThumbnailsCached(t *testing.T) {
+	ctx := context.Background()
+	_, dir, rows := testRun(t, 1, 3, nil)
+	s, ts, c := testServer(t, Options{Dir: dir, Jobs: 2})
+	if n := s.Warm(ctx); n != len(rows) {
+		t.Fatalf("first pass made %d, want %d", n, len(rows))
+	}
+	if n := s.Warm(ctx); n != 0 {
+		t.Errorf("second pass made %d, want 0 (cached)", n)
+	}
+	files, _ := filepath.Glob(filepath.Join(dir, cacheDir, "*", "*", "*.jpg"))
+	if len(files) != 2*len(rows) {
+		t.Errorf("%d cached files, want %d", len(files), 2*len(rows))
+	}
+	for kind, want := range map[string]int{"thumb": ThumbWidth, "image": 620} {
+		res, body := get(t, c, ts.URL+"/"+kind+"?p="+url.QueryEscape(rows[0].Rel))
+		if res.Header.Get("Content-Type") != "image/jpeg" {
+			t.Fatalf("%s: %s", kind, res.Header.Get("Content-Type"))
+		}
+		cfg, err := jpeg.DecodeConfig(strings.NewReader(body))
+		if err != nil || cfg.Width != want {
+			t.Errorf("%s: %v, width %d, want %d", kind, err, cfg.Width, want)
+		}
+	}
+}
+
+// TestShrinkGrayAverages checks the box filter against the definition
+// (each target pixel the rounded mean of the source pixels it covers),
+// worked by hand on a 4×2 image halved.
+func TestShrinkGrayAverages(t *testing.T) {
+	g := image.NewGray(image.Rect(0, 0, 4, 2))
+	copy(g.Pix, []uint8{0, 10, 200, 255, 20, 30, 100, 0})
+	got := shrinkGray(g, 2, 1)
+	if want := []uint8{15, 139}; !bytes.Equal(got.Pix, want) { // (0+10+20+30)/4, (200+255+100+0)/4 = 138.75
+		t.Errorf("halved: %v, want %v", got.Pix, want)
 	}
 }

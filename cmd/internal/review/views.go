@@ -1,6 +1,7 @@
 package review
 
 import (
+	"context"
 	"fmt"
 	"net/http"
 	"net/url"
@@ -66,6 +67,20 @@ type item struct {
 	Decision string // the reviewed decision, else triage's; "failed" for a failed page
 	Reviewed bool
 	CER      float64 // measured CER after correction; -1 without ground truth
+}
+
+// items returns every page of the run with its reviewed state, and the
+// reviews.
+func (s *Server) items(ctx context.Context) ([]item, map[string]ledger.Review, error) {
+	rows, err := s.pages(ctx)
+	if err != nil {
+		return nil, nil, err
+	}
+	revs, err := s.l.Reviews(ctx)
+	if err != nil {
+		return nil, nil, err
+	}
+	return items(rows, revs), revs, nil
 }
 
 func items(rows []ledger.Page, revs map[string]ledger.Review) []item {
@@ -168,18 +183,11 @@ type overviewData struct {
 }
 
 func (s *Server) overview(w http.ResponseWriter, r *http.Request) {
-	ctx := r.Context()
-	rows, err := s.pages(ctx)
+	all, _, err := s.items(r.Context())
 	if err != nil {
 		http.Error(w, "recto review: "+err.Error(), http.StatusInternalServerError)
 		return
 	}
-	revs, err := s.l.Reviews(ctx)
-	if err != nil {
-		http.Error(w, "recto review: "+err.Error(), http.StatusInternalServerError)
-		return
-	}
-	all := items(rows, revs)
 	f := filterOf(r)
 	d := overviewData{Name: s.name(), Nonce: randomHex(16), Decisions: report.Decisions, Sorts: sorts, F: f,
 		All: len(all), ReadOnly: s.o.ReadOnly, CSRF: s.csrf, User: s.user,
@@ -365,19 +373,14 @@ func (s *Server) pageView(w http.ResponseWriter, r *http.Request) {
 	if !found {
 		return
 	}
-	rows, err := s.pages(ctx)
-	if err != nil {
-		http.Error(w, "recto review: "+err.Error(), http.StatusInternalServerError)
-		return
-	}
-	revs, err := s.l.Reviews(ctx)
+	all, revs, err := s.items(ctx)
 	if err != nil {
 		http.Error(w, "recto review: "+err.Error(), http.StatusInternalServerError)
 		return
 	}
 	f := filterOf(r)
 	fq := f.query()
-	list := choose(items(rows, revs), f, row.Rel)
+	list := choose(all, f, row.Rel)
 	d := pageData{Nonce: randomHex(16), CSRF: s.csrf, Name: s.name(), Rel: report.Clean(run.EscapeName(row.Rel)),
 		Page: report.Clean(run.EscapeName(row.Page)), Title: report.Clean(run.EscapeName(row.Title)),
 		RelQ: url.QueryEscape(row.Rel), Key: row.Rel, Self: "/page?p=" + url.QueryEscape(row.Rel) + amp(fq), Count: len(list), Back: "/" + q(fq), Decisions: Decisions,

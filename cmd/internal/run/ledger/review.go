@@ -5,7 +5,6 @@ import (
 	"database/sql"
 	"errors"
 	"fmt"
-	"net/url"
 	"os"
 	"time"
 )
@@ -107,16 +106,7 @@ func OpenReview(path string, readOnly bool) (*Ledger, error) {
 	if _, err := os.Stat(path); err != nil {
 		return nil, fmt.Errorf("ledger: %w", err)
 	}
-	q := url.Values{}
-	q.Add("_pragma", "busy_timeout(10000)")
-	if readOnly {
-		q.Add("mode", "ro")
-	} else {
-		q.Add("_pragma", "journal_mode(WAL)")
-		q.Add("_pragma", "synchronous(FULL)")
-		q.Add("_txlock", "immediate")
-	}
-	db, err := sql.Open("sqlite", "file:"+path+"?"+q.Encode())
+	db, err := sql.Open("sqlite", dsn(path, readOnly, true))
 	if err != nil {
 		return nil, fmt.Errorf("ledger: %q: %w", path, err)
 	}

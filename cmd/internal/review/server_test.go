@@ -461,3 +461,20 @@ func TestShrinkGrayAverages(t *testing.T) {
 		t.Errorf("halved: %v, want %v", got.Pix, want)
 	}
 }
+
+// TestMissingOutputsShown: a page whose record was deleted from the run
+// folder is still shown, saying what is missing, and can be decided.
+func TestMissingOutputsShown(t *testing.T) {
+	_, dir, rows := testRun(t, 1, 1, nil)
+	if err := os.Remove(filepath.Join(dir, "ocr", "Title A", "p000.png.json")); err != nil {
+		t.Fatal(err)
+	}
+	s, ts, c := testServer(t, Options{Dir: dir})
+	res, body := get(t, c, ts.URL+"/page?p="+url.QueryEscape(rows[0].Rel))
+	if res.StatusCode != 200 || !strings.Contains(body, "Cannot show the page") || !strings.Contains(body, "text and boxes: ") {
+		t.Errorf("page without its record: %s\n%.300s", res.Status, body)
+	}
+	if res := post(t, c, s, ts.URL+"/decide", url.Values{"p": {rows[0].Rel}, "decision": {"rescan"}}); res.StatusCode != 200 {
+		t.Errorf("deciding it: %s", res.Status)
+	}
+}

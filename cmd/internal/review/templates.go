@@ -41,7 +41,7 @@ button.on{background:#24313d;color:#fff;border-color:#24313d}
 .chg[data-state=rejected] .aft{text-decoration:line-through;color:var(--mute)}
 .chg[data-state=blocked]{color:var(--mute)}
 .state{font-size:.85em;color:var(--mute)}
-#msg.good{color:var(--acc)}#msg.bad{color:var(--res);font-weight:600}
+#msg.good{color:var(--acc)}#msg.bad,.bad{color:var(--res);font-weight:600}
 #truth{white-space:pre-wrap;background:#fbfbf3;border:1px dashed var(--line);padding:.5em;max-height:40vh;overflow:auto}
 kbd{border:1px solid #999;border-bottom-width:2px;border-radius:.2em;padding:0 .3em;font-size:.85em;background:#fff}
 ul.keys{columns:2;font-size:.88em;padding-left:1em}
@@ -95,6 +95,7 @@ ul.keys{columns:2;font-size:.88em;padding-left:1em}
 {{if .ReadOnly}}<span class="ro">read-only</span>{{end}}</header>
 <main>
 {{if .Failed}}<div class="panel"><h2>This page failed in the run</h2><p>{{.Error}}</p><p>Problem: {{.Problem}}. A failed page has nothing to review; its file is listed in failures.csv or rescan.csv.</p></div>{{else}}
+{{range .Missing}}<div class="panel"><span class="bad">Cannot show the page's {{.}}</span></div>{{end}}
 <div class="cols">
 <div>
 <div id="view"><div id="stage"><img id="pg" src="/image?p={{.Key}}" data-w="{{.Width}}" data-h="{{.Height}}" alt="page image" draggable="false"><div id="box" hidden></div></div></div>

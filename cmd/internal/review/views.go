@@ -355,6 +355,7 @@ type pageData struct {
 	MeanConf                 string
 	LowWords, Words, Blocked int
 	Problem                  string
+	Missing                  []string // what of the page could not be read, and why
 }
 
 // keys are the keyboard shortcuts, listed on the page.
@@ -423,8 +424,7 @@ func (s *Server) pageView(w http.ResponseWriter, r *http.Request) {
 		}
 		changes, err := s.changes(row)
 		if err != nil {
-			http.Error(w, "recto review: "+err.Error(), http.StatusInternalServerError)
-			return
+			d.Missing = append(d.Missing, "corrections: "+report.Clean(err.Error()))
 		}
 		at := map[[2]int]run.ChangeLine{}
 		for _, c := range changes {
@@ -445,8 +445,7 @@ func (s *Server) pageView(w http.ResponseWriter, r *http.Request) {
 		}
 		rec, err := s.record(row)
 		if err != nil {
-			http.Error(w, "recto review: "+err.Error(), http.StatusInternalServerError)
-			return
+			d.Missing = append(d.Missing, "text and boxes: "+report.Clean(err.Error()))
 		}
 		if rec != nil {
 			d.Width, d.Height = rec.Width, rec.Height

@@ -136,8 +136,9 @@ func fetch(b *testing.B, c *http.Client, u string) int {
 // card), and the rescan filter sorted by predicted CER.
 func BenchmarkOverview(b *testing.B) {
 	_, ts, c, _ := benchServer(b)
-	for _, u := range []string{"/", "/?decision=rescan&sort=predicted"} {
-		b.Run(strings.Trim(u, "/?"), func(b *testing.B) {
+	for _, v := range []struct{ name, u string }{{"all", "/"}, {"rescan-by-predicted", "/?decision=rescan&sort=predicted"}} {
+		u := v.u
+		b.Run(v.name, func(b *testing.B) {
 			size := 0
 			for b.Loop() {
 				size = fetch(b, c, ts.URL+u)

@@ -150,15 +150,43 @@ func BenchmarkOverview(b *testing.B) {
 }
 
 // BenchmarkPageView serves page views (320 words, 12 corrections on a
-// third of them) of pages in turn.
+// third of them) of 50 pages in turn, each with its page image from the
+// cache (an A4 page at 300 dpi shown 2000 pixels wide, as makeImages
+// leaves it): the HTML and the image, what the browser asks for.
 func BenchmarkPageView(b *testing.B) {
-	_, ts, c, rels := benchServer(b)
+	s, ts, c, rels := benchServer(b)
+	_, view := a4Images(b)
+	for _, rel := range rels[:50] {
+		row, _, _ := s.page(context.Background(), rel)
+		mustFile(row.Source, []byte("x")) // the source must exist in the collection; its image is cached
+		s.imgs.store("pages", imageKey(row.Rel, row.SHA256), view)
+	}
 	i := 0
 	for b.Loop() {
-		fetch(b, c, ts.URL+"/page?p="+url.QueryEscape(rels[i%len(rels)])+"&decision=rescan")
-		i += 7
+		rel := url.QueryEscape(rels[i%50])
+		fetch(b, c, ts.URL+"/page?p="+rel+"&decision=rescan")
+		fetch(b, c, ts.URL+"/image?p="+rel)
+		i++
 	}
 	b.ReportMetric(float64(b.Elapsed().Microseconds())/1e3/float64(b.N), "ms/page")
+	b.ReportMetric(float64(len(view))/1e3, "kB-image")
+}
+
+// a4Images makes the thumbnail and page image of one rendered A4 page.
+func a4Images(b *testing.B) (thumb, view []byte) {
+	name := filepath.Join(b.TempDir(), "a4.png")
+	p, _, err := synth.Render(strings.Repeat("The harbour master of Wrenmouth reported that the northern quay was mended. ", 60), synth.Layout{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	var buf bytes.Buffer
+	synth.WritePNG(&buf, p.Image, 300)
+	mustFile(name, buf.Bytes())
+	thumb, view, err = makeImages(context.Background(), pageSource{Rel: name, Path: name})
+	if err != nil {
+		b.Fatal(err)
+	}
+	return thumb, view
 }
 
 // BenchmarkDecision stores decisions (a committed, synced transaction

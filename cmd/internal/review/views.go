@@ -105,9 +105,11 @@ func items(rows []ledger.Page, revs map[string]ledger.Review) []item {
 }
 
 // choose returns the items f selects, in f's order; keep is always
-// included (the page being looked at, even once its decision has left
-// the filter).
-func choose(all []item, f filter, keep string) []item {
+// included (the page being looked at). With walk, a decision filter also
+// takes the pages triage decided so: the walk from page to page does not
+// change under the reviewer's feet when a page's decision leaves the
+// filter.
+func choose(all []item, f filter, keep string, walk bool) []item {
 	var out []item
 	for _, it := range all {
 		if it.Row.Rel != keep {
@@ -125,7 +127,7 @@ func choose(all []item, f filter, keep string) []item {
 					continue
 				}
 			default:
-				if it.Decision != f.Decision {
+				if it.Decision != f.Decision && !(walk && it.Row.Decision == f.Decision && it.Row.State == ledger.StateDone) {
 					continue
 				}
 			}
@@ -134,10 +136,10 @@ func choose(all []item, f filter, keep string) []item {
 	}
 	less := func(a, b item) bool { return a.Row.Rel < b.Row.Rel }
 	switch f.Sort {
-	case "predicted":
-		less = func(a, b item) bool { return a.Row.PredictedCER > b.Row.PredictedCER }
+	case "predicted": // failed pages (no prediction) last
+		less = func(a, b item) bool { return done(a) && (!done(b) || a.Row.PredictedCER > b.Row.PredictedCER) }
 	case "predicted-asc":
-		less = func(a, b item) bool { return a.Row.PredictedCER < b.Row.PredictedCER }
+		less = func(a, b item) bool { return done(a) && (!done(b) || a.Row.PredictedCER < b.Row.PredictedCER) }
 	case "measured": // pages without ground truth last
 		less = func(a, b item) bool { return a.CER > b.CER }
 	case "measured-asc":
@@ -146,6 +148,8 @@ func choose(all []item, f filter, keep string) []item {
 	sort.SliceStable(out, func(i, j int) bool { return less(out[i], out[j]) })
 	return out
 }
+
+func done(it item) bool { return it.Row.State == ledger.StateDone }
 
 func pct(x float64) string { return strconv.FormatFloat(100*x, 'f', 1, 64) + " %" }
 
@@ -194,7 +198,7 @@ func (s *Server) overview(w http.ResponseWriter, r *http.Request) {
 		Filters: append(append([]string{}, report.Decisions...), "failed", "reviewed", "unreviewed")}
 	d.Titles, d.Total = titles(all)
 	fq := f.query()
-	for _, it := range choose(all, f, "") {
+	for _, it := range choose(all, f, "", false) {
 		c := card{Rel: it.Row.Rel, Name: report.Clean(run.EscapeName(it.Row.Page)), Title: report.Clean(run.EscapeName(it.Row.Title)),
 			Decision: it.Decision, Reviewed: it.Reviewed, Failed: it.Row.State != ledger.StateDone,
 			Link: "/page?p=" + url.QueryEscape(it.Row.Rel) + amp(fq)}
@@ -381,7 +385,7 @@ func (s *Server) pageView(w http.ResponseWriter, r *http.Request) {
 	}
 	f := filterOf(r)
 	fq := f.query()
-	list := choose(all, f, row.Rel)
+	list := choose(all, f, row.Rel, true)
 	d := pageData{Nonce: randomHex(16), CSRF: s.csrf, Name: s.name(), Rel: report.Clean(run.EscapeName(row.Rel)),
 		Page: report.Clean(run.EscapeName(row.Page)), Title: report.Clean(run.EscapeName(row.Title)),
 		RelQ: url.QueryEscape(row.Rel), Key: row.Rel, Self: "/page?p=" + url.QueryEscape(row.Rel) + amp(fq), Count: len(list), Back: "/" + q(fq), Decisions: Decisions,

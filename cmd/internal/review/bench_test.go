@@ -151,14 +151,14 @@ func BenchmarkOverview(b *testing.B) {
 
 // BenchmarkPageView serves page views (320 words, 12 corrections on a
 // third of them) of 50 pages in turn, each with its page image from the
-// cache (an A4 page at 300 dpi shown 2000 pixels wide, as makeImages
-// leaves it): the HTML and the image, what the browser asks for.
+// cache (an A4 page at 300 dpi shown 2000 pixels wide, as the server makes
+// it of a TIFF): the HTML and the image, what the browser asks for.
 func BenchmarkPageView(b *testing.B) {
 	s, ts, c, rels := benchServer(b)
-	_, view := a4Images(b)
+	view := a4View(b)
 	for _, rel := range rels[:50] {
 		row, _, _ := s.page(context.Background(), rel)
-		mustFile(row.Source, []byte("x")) // the source must exist in the collection; its image is cached
+		mustFile(row.Source, []byte("II*\x00")) // the source must exist in the collection; its image is cached
 		s.imgs.store("pages", imageKey(row.Rel, row.SHA256), view)
 	}
 	i := 0
@@ -172,21 +172,28 @@ func BenchmarkPageView(b *testing.B) {
 	b.ReportMetric(float64(len(view))/1e3, "kB-image")
 }
 
-// a4Images makes the thumbnail and page image of one rendered A4 page.
-func a4Images(b *testing.B) (thumb, view []byte) {
-	name := filepath.Join(b.TempDir(), "a4.png")
-	p, _, err := synth.Render(strings.Repeat("The harbour master of Wrenmouth reported that the northern quay was mended. ", 60), synth.Layout{})
+// a4 writes one rendered A4 page at 300 dpi (2480 × 3508) as a PNG file.
+func a4(b *testing.B, name, text string) {
+	p, _, err := synth.Render(strings.Repeat(text, 60), synth.Layout{})
 	if err != nil {
 		b.Fatal(err)
 	}
 	var buf bytes.Buffer
-	synth.WritePNG(&buf, p.Image, 300)
+	if err := synth.WritePNG(&buf, p.Image, 300); err != nil {
+		b.Fatal(err)
+	}
 	mustFile(name, buf.Bytes())
-	thumb, view, err = makeImages(context.Background(), pageSource{Rel: name, Path: name})
+}
+
+// a4View is the page image the server makes of an A4 page.
+func a4View(b *testing.B) []byte {
+	name := filepath.Join(b.TempDir(), "a4.png")
+	a4(b, name, "The harbour master of Wrenmouth reported that the northern quay was mended. ")
+	view, err := makeImage(context.Background(), pageSource{Rel: name, Path: name}, ViewWidth)
 	if err != nil {
 		b.Fatal(err)
 	}
-	return thumb, view
+	return view
 }
 
 // BenchmarkDecision stores decisions (a committed, synced transaction
@@ -206,39 +213,40 @@ func BenchmarkDecision(b *testing.B) {
 	b.ReportMetric(float64(b.Elapsed().Microseconds())/1e3/float64(b.N), "ms/decision")
 }
 
-// BenchmarkThumbnails makes the thumbnail and page image of A4 pages at
-// 300 dpi (2480 × 3508, rendered text, PNG), GOMAXPROCS at a time, as the
-// server's background pass does.
+// BenchmarkThumbnails makes thumbnails of A4 pages at 300 dpi (2480 ×
+// 3508, rendered text, PNG), GOMAXPROCS at a time, as the server's
+// background pass does; /views also makes the 2000-pixel page image that
+// a source the browser cannot show (TIFF, PDF, ...) needs, in the pass's
+// second phase.
 func BenchmarkThumbnails(b *testing.B) {
 	dir := b.TempDir()
 	var srcs []pageSource
 	for i := range 4 {
-		p, _, err := synth.Render(strings.Repeat(fmt.Sprintf("The harbour master of Wrenmouth reported on page %d that the northern quay was mended. ", i), 60), synth.Layout{})
-		if err != nil {
-			b.Fatal(err)
-		}
-		var buf bytes.Buffer
-		if err := synth.WritePNG(&buf, p.Image, 300); err != nil {
-			b.Fatal(err)
-		}
 		name := filepath.Join(dir, fmt.Sprintf("p%d.png", i))
-		mustFile(name, buf.Bytes())
+		a4(b, name, fmt.Sprintf("The harbour master of Wrenmouth reported on page %d that the northern quay was mended. ", i))
 		srcs = append(srcs, pageSource{Rel: name, SHA256: fmt.Sprint(i), Path: name})
 	}
 	workers := runtime.GOMAXPROCS(0)
-	pages := 0
-	for b.Loop() {
-		err := par.EachErr(context.Background(), len(srcs), workers, func(_, i int) error {
-			_, _, err := makeImages(context.Background(), srcs[i])
-			return err
+	for _, c := range []struct {
+		name  string
+		width int
+	}{{"thumbs", ThumbWidth}, {"views", ViewWidth}} {
+		b.Run(c.name, func(b *testing.B) {
+			pages := 0
+			for b.Loop() {
+				err := par.EachErr(context.Background(), len(srcs), workers, func(_, i int) error {
+					_, err := makeImage(context.Background(), srcs[i], c.width)
+					return err
+				})
+				if err != nil {
+					b.Fatal(err)
+				}
+				pages += len(srcs)
+			}
+			b.ReportMetric(float64(pages)/b.Elapsed().Seconds(), "pages/s")
+			b.ReportMetric(float64(workers), "workers")
 		})
-		if err != nil {
-			b.Fatal(err)
-		}
-		pages += len(srcs)
 	}
-	b.ReportMetric(float64(pages)/b.Elapsed().Seconds(), "pages/s")
-	b.ReportMetric(float64(workers), "workers")
 }
 
 // BenchmarkServerMemory reports the memory the Go runtime holds from the

@@ -150,12 +150,19 @@ func (s *Server) image(kind string) http.HandlerFunc {
 			refuse(w, err)
 			return
 		}
-		data, err := s.imgs.get(r.Context(), kind, src)
+		ctype := "image/jpeg"
+		var data []byte
+		if kind == "pages" && src.Direct != "" {
+			ctype = src.Direct // a PNG or JPEG the browser shows as it is
+			data, err = readLimited(src.Path, 1<<30)
+		} else {
+			data, err = s.imgs.get(r.Context(), kind, src)
+		}
 		if err != nil {
 			http.Error(w, "recto review: "+err.Error(), http.StatusInternalServerError)
 			return
 		}
-		w.Header().Set("Content-Type", "image/jpeg")
+		w.Header().Set("Content-Type", ctype)
 		w.Header().Set("Cache-Control", "private, max-age=3600")
 		_, _ = w.Write(data)
 	}

@@ -28,7 +28,7 @@ form.filters{display:flex;gap:.8em;align-items:center;margin:1em 0;flex-wrap:wra
 .card .nm{font-size:.85em;overflow-wrap:anywhere}.card .fig{font-size:.8em;color:var(--mute)}
 .cols{display:grid;grid-template-columns:minmax(0,1.1fr) minmax(0,1fr);gap:1em}
 #view{position:relative;overflow:hidden;height:78vh;background:#3a4148;border-radius:.3em;cursor:grab;touch-action:none}
-#stage{position:absolute;left:0;top:0;transform-origin:0 0}#stage img{display:block;user-select:none;-webkit-user-drag:none}
+#stage{position:absolute;left:0;top:0;transform-origin:0 0}#stage img{display:block;user-select:none;-webkit-user-drag:none;image-orientation:none}
 #box{position:absolute;border:3px solid #ff3d7f;background:rgba(255,61,127,.12);pointer-events:none}
 #text{background:var(--card);border:1px solid var(--line);padding:.6em .8em;max-height:60vh;overflow:auto;font-family:ui-serif,Georgia,serif}
 #text p{margin:0 0 .8em}.w{cursor:pointer;border-radius:.15em}.w:hover{background:#e3eef7}

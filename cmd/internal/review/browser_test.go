@@ -39,7 +39,7 @@ func chromium(t *testing.T) string {
 // screenshots it takes.
 func TestReviewInBrowser(t *testing.T) {
 	bin := chromium(t)
-	_, dir, rows := testRun(t, 2, 3, nil)
+	dir, rows := synthRun(t)
 	pick(t, rows, "rescan", false, dir)
 	corrected := pick(t, rows, "correct", true, dir)
 

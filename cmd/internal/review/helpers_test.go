@@ -3,6 +3,8 @@ package review
 import (
 	"bytes"
 	"context"
+	"crypto/sha256"
+	"fmt"
 	"image"
 	"net/http"
 	"net/http/cookiejar"
@@ -17,6 +19,7 @@ import (
 	"recto/cmd/internal/run/runtest"
 	"recto/ocr"
 	"recto/ocr/ocrtest"
+	"recto/ocr/synth"
 )
 
 // testRun runs the test engine over a small collection (runtest) and
@@ -113,4 +116,61 @@ func post(t testing.TB, c *http.Client, s *Server, u string, v url.Values) *http
 		t.Fatal(err)
 	}
 	return res
+}
+
+// synthRun runs four pages of the fictional demo title (synth.Demo,
+// rendered at 150 dpi) through the batch run with a simulated engine: it
+// "reads" each page's laid-out words with their real boxes, confusing a
+// growing share of them (e→c, m→rn, the→tbe, read with low confidence),
+// so the review page shows real word images under real boxes.
+func synthRun(t testing.TB) (string, []ledger.Page) {
+	t.Helper()
+	base := t.TempDir()
+	coll, truth, out := filepath.Join(base, "collection"), filepath.Join(base, "truth"), filepath.Join(base, "run")
+	title := synth.Demo()[0]
+	lay := title.Layout
+	lay.DPI = 150
+	words := map[[32]byte][]ocr.Word{}
+	for i, share := range []int{3, 12, 30, 80} { // per cent of words confused
+		p, _, err := synth.Render(title.Pages[i], lay)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var buf bytes.Buffer
+		if err := synth.WritePNG(&buf, p.Image, float64(lay.DPI)); err != nil {
+			t.Fatal(err)
+		}
+		name := fmt.Sprintf("p%04d", i+1)
+		runtest.MustWrite(t, filepath.Join(coll, title.ID, name+".png"), buf.Bytes())
+		runtest.MustWrite(t, filepath.Join(truth, title.ID, name+".txt"), []byte(p.Truth+"\n"))
+		var ws []ocr.Word
+		n := 0
+		for li, l := range p.Lines {
+			for _, w := range l.Words {
+				text, conf := w.Text, 0.9+float64(n%10)/100
+				if n*37%100 < share {
+					r := strings.NewReplacer("the", "tbe", "m", "rn", "e", "c")
+					if c := r.Replace(text); c != text {
+						text, conf = c, 0.45+float64(n%20)/100
+					}
+				}
+				b := w.Box
+				ws = append(ws, ocr.Word{Text: text, Conf: conf, Line: li, Box: ocr.Box{X: b.Min.X, Y: b.Min.Y, W: b.Dx(), H: b.Dy()}})
+				n++
+			}
+		}
+		words[sha256.Sum256(p.Image.Pix)] = ws
+	}
+	engine := func() (ocr.Engine, error) {
+		return &ocrtest.Engine{Func: func(_ context.Context, img *image.Gray, _ int) ([]ocr.Word, error) {
+			return append([]ocr.Word(nil), words[sha256.Sum256(img.Pix)]...), nil
+		}}, nil
+	}
+	var stderr bytes.Buffer
+	_, err := run.Run(context.Background(), run.Options{Collection: coll, Out: out, Truth: truth, Correct: 0.001, Rescan: 0.08,
+		NewEngine: engine, NoPrepare: true, Stderr: &stderr, Getenv: func(string) string { return "" }})
+	if err != nil {
+		t.Fatalf("run: %v\n%s", err, stderr.String())
+	}
+	return out, runtest.LedgerRows(t, out)
 }

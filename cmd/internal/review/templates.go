@@ -155,7 +155,12 @@ ul.keys{columns:2;font-size:.88em;padding-left:1em}
     var b = el.dataset.b.split(",").map(Number), r = ratio();
     box.style.left = b[0] * r + "px"; box.style.top = b[1] * r + "px"; box.style.width = b[2] * r + "px"; box.style.height = b[3] * r + "px"; box.hidden = false;
     if (s < 0.5) s = Math.min(1, view.clientWidth / (b[2] * r * 6));
-    tx = view.clientWidth / 2 - (b[0] + b[2] / 2) * r * s; ty = view.clientHeight / 2 - (b[1] + b[3] / 2) * r * s; fit = false; place();
+    tx = view.clientWidth / 2 - (b[0] + b[2] / 2) * r * s; ty = view.clientHeight / 2 - (b[1] + b[3] / 2) * r * s;
+    // keep the page over the whole view where it is large enough
+    var iw = img.naturalWidth * s, ih = img.naturalHeight * s, vw = view.clientWidth, vh = view.clientHeight;
+    tx = iw <= vw ? (vw - iw) / 2 : Math.min(0, Math.max(vw - iw, tx));
+    ty = ih <= vh ? 0 : Math.min(0, Math.max(vh - ih, ty));
+    fit = false; place();
     document.querySelectorAll(".w.sel").forEach(function (e) { e.classList.remove("sel"); }); el.classList.add("sel");
     document.getElementById("boxinfo").textContent = "box at x " + b[0] + ", y " + b[1] + ", " + b[2] + " × " + b[3] + " pixels of the original image; confidence " + el.dataset.c + " %";
   }

@@ -37,8 +37,8 @@ func TestChooseFiltersAndSorts(t *testing.T) {
 		{filter{Title: "b", Decision: "unreviewed", Sort: "name"}, "", false, "b/1 b/3"},
 		{filter{Sort: "predicted"}, "", false, "a/2 b/2 b/1 a/1 b/3"},
 		{filter{Sort: "predicted-asc"}, "", false, "a/1 b/1 b/2 a/2 b/3"}, // failed last
-		{filter{Sort: "measured"}, "", false, "b/2 b/1 a/1 a/2 b/3"},     // no ground truth last
-		{filter{Sort: "measured-asc"}, "", false, "a/1 b/1 b/2 a/2 b/3"}, // no ground truth last
+		{filter{Sort: "measured"}, "", false, "b/2 b/1 a/1 a/2 b/3"},      // no ground truth last
+		{filter{Sort: "measured-asc"}, "", false, "a/1 b/1 b/2 a/2 b/3"},  // no ground truth last
 	} {
 		var got []string
 		for _, it := range choose(all, c.f, c.keep, c.walk) {

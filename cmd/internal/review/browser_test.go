@@ -169,7 +169,8 @@ func TestReviewInBrowser(t *testing.T) {
 	key := eval(`document.querySelector(".chg").dataset.key`)
 	step("reject a correction",
 		chromedp.Click(css(`.chg button[value=rejected]`)),
-		until(`document.querySelector(".chg").dataset.state === "rejected"`))
+		until(`document.querySelector(".chg").dataset.state === "rejected"`),
+		until(`document.getElementById("history").textContent.indexOf("rejected") >= 0`)) // the history follows
 	step("click a word",
 		until(`document.getElementById("pg").complete && document.getElementById("pg").naturalWidth > 0`),
 		chromedp.Click(css(`#text .w`)),

@@ -263,7 +263,7 @@ type state struct {
 	Note        string            `json:"note"`
 	Last        int64             `json:"last"`
 	Corrections map[string]string `json:"corrections"`
-	Undone      bool              `json:"undone,omitempty"`
+	History     []entryView       `json:"history"`
 }
 
 func (s *Server) answer(w http.ResponseWriter, r *http.Request, row ledger.Page) {
@@ -286,6 +286,10 @@ func (s *Server) answer(w http.ResponseWriter, r *http.Request, row ledger.Page)
 	}
 	if st.Corrections == nil {
 		st.Corrections = map[string]string{}
+	}
+	if st.History, err = s.history(r.Context(), row.Rel); err != nil {
+		s.fail(w, r, http.StatusInternalServerError, err.Error())
+		return
 	}
 	writeJSON(w, http.StatusOK, st)
 }

@@ -121,7 +121,7 @@ ul.keys{columns:2;font-size:.88em;padding-left:1em}
 <td>{{if and (ne .State "blocked") (not $.ReadOnly)}}<form method="post" action="/correction"><input type="hidden" name="csrf" value="{{$.CSRF}}"><input type="hidden" name="p" value="{{$.Key}}"><input type="hidden" name="seen" value="{{$.Last}}"><input type="hidden" name="key" value="{{.Key}}"><button name="value" value="accepted">accept</button> <button name="value" value="rejected">reject</button></form>{{end}}</td></tr>{{end}}
 </tbody></table>{{else}}<p class="state">No correction was made on this page.</p>{{end}}
 </div>
-<div class="panel hist"><h2>History</h2>{{range .History}}<div{{if .Undone}} class="undone"{{end}}>{{.When}} {{.Who}}: {{.What}}{{if .Note}} — {{.Note}}{{end}}</div>{{else}}<div class="state">No change yet.</div>{{end}}
+<div class="panel hist"><h2>History</h2><div id="history">{{range .History}}<div{{if .Undone}} class="undone"{{end}}>{{.When}} {{.Who}}: {{.What}}{{if .Note}} — {{.Note}}{{end}}</div>{{else}}<div class="state">No change yet.</div>{{end}}</div>
 <h2>Files</h2>{{range .Outputs}}<a href="{{.Link}}">{{.Name}}</a><br>{{end}}</div>
 <div class="panel"><h2>Keyboard</h2><ul class="keys">{{range .Keys}}<li><kbd>{{.Key}}</kbd> {{.What}}</li>{{end}}</ul></div>
 </div></div>{{end}}
@@ -173,6 +173,16 @@ ul.keys{columns:2;font-size:.88em;padding-left:1em}
     document.querySelectorAll("[data-decision]").forEach(function (b) { b.classList.toggle("on", b.dataset.decision === st.decision); });
     var d = document.getElementById("decision"); d.textContent = st.decision; d.className = "dec " + st.decision;
     document.getElementById("revmark").textContent = st.reviewed ? "reviewed by " + st.who : "not reviewed (triage)";
+    var h = document.getElementById("history");
+    if (h && st.history) {
+      h.textContent = "";
+      st.history.forEach(function (e) {
+        var div = document.createElement("div");
+        if (e.undone) div.className = "undone";
+        div.textContent = e.when + " " + e.who + ": " + e.what + (e.note ? " — " + e.note : "");
+        h.appendChild(div);
+      });
+    }
     document.querySelectorAll(".chg").forEach(function (row) {
       if (row.dataset.state === "blocked") return;
       var v = st.corrections[row.dataset.key] || "accepted"; row.dataset.state = v; row.querySelector(".state").textContent = v;

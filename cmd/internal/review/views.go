@@ -325,8 +325,11 @@ type changeView struct {
 }
 
 type entryView struct {
-	When, Who, What, Note string
-	Undone                bool
+	When   string `json:"when"`
+	Who    string `json:"who"`
+	What   string `json:"what"`
+	Note   string `json:"note"`
+	Undone bool   `json:"undone"`
 }
 
 type pageData struct {
@@ -462,12 +465,21 @@ func (s *Server) pageView(w http.ResponseWriter, r *http.Request) {
 			}
 		}
 	}
-	log, err := s.l.ReviewLog(ctx, row.Rel)
-	if err != nil {
+	if d.History, err = s.history(ctx, row.Rel); err != nil {
 		http.Error(w, "recto review: "+err.Error(), http.StatusInternalServerError)
 		return
 	}
-	for i := len(log) - 1; i >= 0 && len(d.History) < 20; i-- {
+	s.render(w, "page", d, d.Nonce)
+}
+
+// history returns the page's last 20 review entries, newest first.
+func (s *Server) history(ctx context.Context, rel string) ([]entryView, error) {
+	log, err := s.l.ReviewLog(ctx, rel)
+	if err != nil {
+		return nil, err
+	}
+	var out []entryView
+	for i := len(log) - 1; i >= 0 && len(out) < 20; i-- {
 		e := log[i]
 		what := e.Kind + ": " + e.Old + " → " + e.New
 		if e.Kind == ledger.KindCorrection {
@@ -480,10 +492,10 @@ func (s *Server) pageView(w http.ResponseWriter, r *http.Request) {
 		if e.Undoes != 0 {
 			what = "undo (" + what + ")"
 		}
-		d.History = append(d.History, entryView{When: e.At.Local().Format(time.DateTime), Who: e.Who,
+		out = append(out, entryView{When: e.At.Local().Format(time.DateTime), Who: e.Who,
 			What: report.Clean(what), Note: report.Clean(e.Note), Undone: e.UndoneBy != 0})
 	}
-	s.render(w, "page", d, d.Nonce)
+	return out, nil
 }
 
 func q(s string) string {

@@ -154,7 +154,7 @@ func TestReviewInBrowser(t *testing.T) {
 	}
 	step("press k", chromedp.KeyEvent("k"), until(`document.readyState === "complete" && document.body.dataset.rel === `+strconv.Quote(rel)))
 	// g shows the ground truth beside the text.
-	step("press g", chromedp.KeyEvent("g"), until(`document.getElementById("truth").textContent.length > 100`))
+	step("press g", chromedp.KeyEvent("g"), until(`document.getElementById("truth").textContent.length > 100`), shot("truth.png"))
 	if gt := text("#truth"); !strings.HasPrefix(gt, strings.SplitN(truthOf(t, dir, rel), "\n", 2)[0]) {
 		t.Errorf("ground truth shown %.60q, want the page's", gt)
 	}

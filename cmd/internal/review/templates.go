@@ -42,7 +42,8 @@ button.on{background:#24313d;color:#fff;border-color:#24313d}
 .chg[data-state=blocked]{color:var(--mute)}
 .state{font-size:.85em;color:var(--mute)}
 #msg.good{color:var(--acc)}#msg.bad,.bad{color:var(--res);font-weight:600}
-#truth{white-space:pre-wrap;background:#fbfbf3;border:1px dashed var(--line);padding:.5em;max-height:40vh;overflow:auto}
+#truth{white-space:pre-wrap;background:#fbfbf3;border:1px dashed var(--line);padding:.6em .8em;max-height:60vh;overflow:auto;font-family:ui-serif,Georgia,serif}
+#pair.two{display:grid;grid-template-columns:1fr 1fr;gap:.5em}
 kbd{border:1px solid #999;border-bottom-width:2px;border-radius:.2em;padding:0 .3em;font-size:.85em;background:#fff}
 ul.keys{columns:2;font-size:.88em;padding-left:1em}
 .hist{font-size:.85em}.hist .undone{text-decoration:line-through;color:var(--mute)}
@@ -111,9 +112,9 @@ ul.keys{columns:2;font-size:.88em;padding-left:1em}
 <form method="post" action="/undo" id="undoform"><input type="hidden" name="csrf" value="{{.CSRF}}"><input type="hidden" name="p" value="{{.Key}}"><input type="hidden" name="seen" value="{{.Last}}"><button id="undo">undo last change</button></form>{{end}}
 <div id="msg"></div>
 </div>
-<div class="panel"><h2>Text <span class="state">({{.Words}} words, {{.LowWords}} read with low confidence, marked)</span>{{if .HasTruth}} <button id="gt" type="button">ground truth</button>{{end}}</h2>
-<div id="text">{{range .Paras}}<p>{{range .}}{{range .}}<span class="w{{if .Low}} low{{end}}{{if .Changed}} fix{{end}}" data-b="{{.Box}}" data-c="{{.Conf}}"{{if .Changed}} title="corrected to: {{.Changed}}"{{end}}>{{.Text}}</span> {{end}}<br>{{end}}</p>{{else}}<p class="state">No text was read on this page.</p>{{end}}</div>
-<div id="truthbox" hidden><h2>Ground truth</h2><div id="truth"></div></div>
+<div class="panel"><h2>Text <span class="state">({{.Words}} words, {{.LowWords}} read with low confidence, marked)</span>{{if .HasTruth}} <button id="gt" type="button" title="show the ground truth beside the text (g)">ground truth</button>{{end}}</h2>
+<div id="pair"><div id="text">{{range .Paras}}<p>{{range .}}{{range .}}<span class="w{{if .Low}} low{{end}}{{if .Changed}} fix{{end}}" data-b="{{.Box}}" data-c="{{.Conf}}"{{if .Changed}} title="corrected to: {{.Changed}}"{{end}}>{{.Text}}</span> {{end}}<br>{{end}}</p>{{else}}<p class="state">No text was read on this page.</p>{{end}}</div>
+<div id="truthbox" hidden><div id="truth"></div></div></div>
 </div>
 <div class="panel"><h2>Corrections ({{len .Changes}})</h2>
 {{if .Changes}}<table id="changes"><thead><tr><th>Before</th><th>After</th><th>Where</th><th>Score</th><th>State</th><th></th></tr></thead><tbody>
@@ -212,7 +213,7 @@ ul.keys{columns:2;font-size:.88em;padding-left:1em}
   var shown = false;
   function truth() {
     var tb = document.getElementById("truthbox"); if (!tb) return;
-    shown = !shown; tb.hidden = !shown; if (!shown) return;
+    shown = !shown; tb.hidden = !shown; document.getElementById("pair").classList.toggle("two", shown); if (!shown) return;
     fetch("/truth?p=" + body.dataset.relq, {headers: {"Accept": "application/json"}}).then(function (r) { return r.json(); }).then(function (j) {
       document.getElementById("truth").textContent = j.text !== undefined ? j.text : j.error;
     });

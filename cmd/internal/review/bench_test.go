@@ -233,6 +233,7 @@ func BenchmarkThumbnails(b *testing.B) {
 	}{{"thumbs", ThumbWidth}, {"views", ViewWidth}} {
 		b.Run(c.name, func(b *testing.B) {
 			pages := 0
+			cpu0 := cpuSeconds()
 			for b.Loop() {
 				err := par.EachErr(context.Background(), len(srcs), workers, func(_, i int) error {
 					_, err := makeImage(context.Background(), srcs[i], c.width)
@@ -244,7 +245,14 @@ func BenchmarkThumbnails(b *testing.B) {
 				pages += len(srcs)
 			}
 			b.ReportMetric(float64(pages)/b.Elapsed().Seconds(), "pages/s")
+			if cpu := cpuSeconds() - cpu0; cpu > 0 {
+				// what 2 idle cores would make: twice the pages per CPU-second
+				b.ReportMetric(2*float64(pages)/cpu, "pages/s-2-idle-cores")
+			}
 			b.ReportMetric(float64(workers), "workers")
+			var m runtime.MemStats
+			runtime.ReadMemStats(&m)
+			b.ReportMetric(float64(m.Sys)/(1<<20), "MB-sys")
 		})
 	}
 }

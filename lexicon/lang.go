@@ -14,9 +14,9 @@ import (
 // Languages. The option --lang takes the engine's language codes, "+"
 // between several ("nor", "deu", "eng+deu"): Tesseract's codes, which are
 // ISO 639-2/T codes with a few of the engine's own ("frk" for German set in
-// Fraktur). Each engine code names the lexicons that judge its words:
+// Fraktur, "Fraktur" for the Fraktur script model). Each engine code names the lexicons that judge its words:
 // "eng" the embedded English one, "nor" (Tesseract's one Norwegian model)
-// both Bokmål ("nob") and Nynorsk ("nno"), "frk" German; any other code
+// both Bokmål ("nob") and Nynorsk ("nno"), "frk" and "Fraktur" German; any other code
 // names itself. Every lexicon but English's is a file <code>.lex.gz in the
 // lexicon folder (Dir), built by `recto lexicon build --lang CODE` from the
 // Debian packages of Recipes, or by hand for any other language.
@@ -30,6 +30,10 @@ const EmbeddedEnglish = "embedded English (en.lex.gz)"
 var engineLexicons = map[string][]string{
 	"nor": {"nob", "nno"},
 	"frk": {"deu"},
+	// The engine's Fraktur script model (Debian tesseract-ocr-script-frak)
+	// reads German print in Fraktur above all.
+	"Fraktur":        {"deu"},
+	"script/Fraktur": {"deu"},
 }
 
 // LexiconCodes returns the lexicon codes an engine language list needs, in

@@ -19,6 +19,7 @@ func TestLexiconCodes(t *testing.T) {
 		{"nor", "nob nno"},
 		{"eng+nor+deu", "eng nob nno deu"},
 		{"deu+frk", "deu"}, // Fraktur is judged as German
+		{"Fraktur", "deu"},
 		{"fra", "fra"},
 	} {
 		if got := strings.Join(LexiconCodes(c.lang), " "); got != c.want {

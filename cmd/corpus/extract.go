@@ -6,11 +6,13 @@ import (
 	"encoding/json"
 	"flag"
 	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 	"sort"
 	"strconv"
 	"strings"
+	"unicode"
 
 	"recto/ocr/synth"
 )
@@ -29,14 +31,33 @@ func runExtract(args []string) error {
 	out := fs.String("o", "testdata/synth/passages.jsonl.gz", "output `file`")
 	perMoby := fs.Int("per-chapter", 3, "passages per Moby-Dick chapter")
 	perSotu := fs.Int("per-address", 2, "passages per address")
+	devil := fs.String("devil", "", "also the Devil's Dictionary (1911, public domain): the `file` of Debian's dict-devil, /usr/share/dictd/devil.dict.dz")
+	fortunes := fs.String("fortunes-de", "", "also German running text: the fortune `dir` of Debian's fortunes-de, /usr/share/games/fortunes/de (GPL-2+; not vendored)")
 	if err := fs.Parse(args); err != nil {
 		return err
 	}
 	var all []passage
+	if *devil != "" {
+		ps, err := devilPassages(*devil)
+		if err != nil {
+			return fmt.Errorf("extract: %w", err)
+		}
+		all = append(all, ps...)
+	}
+	if *fortunes != "" {
+		ps, err := fortunePassages(*fortunes)
+		if err != nil {
+			return fmt.Errorf("extract: %w", err)
+		}
+		all = append(all, ps...)
+	}
 	for _, src := range []struct {
 		dir, tag string
 		per      int
 	}{{*moby, "moby", *perMoby}, {*sotu, "sotu", *perSotu}} {
+		if src.dir == "" {
+			continue
+		}
 		files, err := filepath.Glob(filepath.Join(src.dir, "*.txt"))
 		if err != nil {
 			return err
@@ -204,4 +225,115 @@ func splitLong(p []string) [][]string {
 		out = append(out, p[start:])
 	}
 	return out
+}
+
+// devilPassages cuts passages from the Devil's Dictionary as Debian's
+// dict-devil ships it (dictzip, which gzip reads): the entries after the
+// dictfmt header lines ("00-database-..."), in ten parts of the alphabet
+// (sources devil/part_1 ... devil/part_10), eight passages a part.
+func devilPassages(path string) ([]passage, error) {
+	data, err := readMaybeGzip(path)
+	if err != nil {
+		return nil, err
+	}
+	text := string(data)
+	// The entries start at "ABASEMENT, n."; before it are the
+	// header lines and the preface.
+	if i := strings.Index(text, "\nABASEMENT, n."); i >= 0 {
+		text = text[i+1:]
+	}
+	var lines []string
+	for _, l := range strings.Split(text, "\n") {
+		if !strings.HasPrefix(l, "00-database") {
+			lines = append(lines, l)
+		}
+	}
+	const parts = 10
+	var out []passage
+	for k := 0; k < parts; k++ {
+		part := strings.Join(lines[k*len(lines)/parts:(k+1)*len(lines)/parts], "\n")
+		for _, t := range passages(part, 8) {
+			if miss, _ := synth.Missing(t, ""); len(miss) > 0 {
+				continue
+			}
+			out = append(out, passage{Source: fmt.Sprintf("devil/part_%d", k+1), Text: t})
+		}
+	}
+	if len(out) == 0 {
+		return nil, fmt.Errorf("%q: no passages", path)
+	}
+	return out, nil
+}
+
+// fortunePassages joins the German sayings, anecdotes and poems of
+// Debian's fortunes-de (the UTF-8 files, *.u8, one saying between "%"
+// lines) into passages, one source per file. Attribution lines ("-- ...",
+// people's names) and lines that are drawings or tables (runs of spaces or
+// mostly non-letters) are left out.
+func fortunePassages(dir string) ([]passage, error) {
+	files, err := filepath.Glob(filepath.Join(dir, "*.u8"))
+	if err != nil || len(files) == 0 {
+		return nil, fmt.Errorf("%q: no fortune files (*.u8)", dir)
+	}
+	sort.Strings(files)
+	var out []passage
+	for _, f := range files {
+		name := strings.TrimSuffix(filepath.Base(f), ".u8")
+		if name == "asciiart" || name == "translations" {
+			continue
+		}
+		data, err := os.ReadFile(f)
+		if err != nil {
+			return nil, err
+		}
+		var b strings.Builder
+		for _, saying := range strings.Split(string(data), "\n%\n") {
+			var keep []string
+			for _, l := range strings.Split(saying, "\n") {
+				t := strings.TrimSpace(l)
+				if t == "" || strings.HasPrefix(t, "--") || strings.Contains(l, "   ") || letterShare(t) < 0.6 {
+					continue
+				}
+				keep = append(keep, t)
+			}
+			if len(keep) > 0 {
+				b.WriteString(strings.Join(keep, " "))
+				b.WriteString("\n\n")
+			}
+		}
+		for _, t := range passages(b.String(), 12) {
+			out = append(out, passage{Source: "fortunes-de/" + name, Text: t})
+		}
+	}
+	return out, nil
+}
+
+func letterShare(s string) float64 {
+	n, l := 0, 0
+	for _, r := range s {
+		n++
+		if unicode.IsLetter(r) || r == ' ' {
+			l++
+		}
+	}
+	if n == 0 {
+		return 0
+	}
+	return float64(l) / float64(n)
+}
+
+func readMaybeGzip(path string) ([]byte, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	if !strings.HasSuffix(path, ".gz") && !strings.HasSuffix(path, ".dz") {
+		return io.ReadAll(f)
+	}
+	zr, err := gzip.NewReader(f)
+	if err != nil {
+		return nil, fmt.Errorf("%q: %w", path, err)
+	}
+	return io.ReadAll(zr)
 }

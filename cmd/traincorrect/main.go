@@ -40,7 +40,7 @@ func main() {
 	flag.StringVar(&dumpDir, "dump", "", "-eval: write each corrected page here as <id>.txt")
 	flag.BoolVar(&normOpts.PlainTypography, "plain", false, "-eval: compare with quality's PlainTypography normalisation (curly quotes, dashes as plain)")
 	cpuprofile := flag.String("cpuprofile", "", "write a CPU profile of the evaluation here")
-	split := flag.String("split", "heldout", "-eval: pages to measure: \"heldout\", or \"dev\" (the development fifth of fit, left out of training)")
+	split := flag.String("split", "heldout", "-eval: pages to measure: \"heldout\", \"dev\" (the development fifth of fit, left out of training), or any other split of the corpus (-split fonttext: incorpus, fontonly, textonly)")
 	truthDir := flag.String("truth", "", "-eval: measure the pages with ground truth under this directory instead of -corpus (OCR under -ocr)")
 	ocrDir := flag.String("ocr", "", "-eval with -truth: directory of the OCR records (.json) or text, same relative paths")
 	final := flag.Bool("final", false, "train on all of fit, development pages included (once the constants are set on dev)")
@@ -223,7 +223,7 @@ func loadLexicon(which, corpus, data string) (*lexicon.Lexicon, error) {
 			return nil, err
 		}
 		for _, r := range rows {
-			if r["split"] == "heldout" {
+			if heldText(r) {
 				held[r["source"]] = true
 			}
 		}
@@ -250,7 +250,19 @@ func loadLexicon(which, corpus, data string) (*lexicon.Lexicon, error) {
 	return lex, nil
 }
 
-// heldoutSources returns the source texts of the corpus's heldout pages.
+// heldText reports whether a manifest row's source text is held out of
+// training: its "text" column (corpora built with -split fonttext), else
+// its page's split (the id split: every text of a heldout page).
+func heldText(r map[string]string) bool {
+	if t, ok := r["text"]; ok && t != "-" && t != "" {
+		return t == "heldout"
+	}
+	return r["split"] == "heldout"
+}
+
+// heldoutSources returns the source texts of the corpus's heldout pages
+// that are files under data (Moby-Dick chapters and addresses; the
+// Devil's Dictionary parts are not, and are left out).
 func heldoutSources(corpus, data string) ([]string, error) {
 	rows, err := manifest(corpus)
 	if err != nil {
@@ -265,7 +277,7 @@ func heldoutSources(corpus, data string) ([]string, error) {
 		}
 		seen[src] = true
 		set, name, ok := strings.Cut(src, "/")
-		if !ok {
+		if !ok || (set != "moby" && set != "sotu") {
 			continue
 		}
 		names = append(names, filepath.Join(data, set, "package", "data", name+".txt"))

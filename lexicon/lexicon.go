@@ -59,6 +59,11 @@ func Key(word string) string {
 // FoldForms returns s with the long s and the ligatures U+FB00–U+FB06 as
 // their plain letters.
 func FoldForms(s string) string {
+	// Every form's UTF-8 starts with byte 0xC5 (U+017F) or 0xEF
+	// (U+FB00–U+FB06): two byte scans keep the common case cheap.
+	if strings.IndexByte(s, 0xC5) < 0 && strings.IndexByte(s, 0xEF) < 0 {
+		return s
+	}
 	if strings.ContainsAny(s, letterForms) {
 		s = formFold.Replace(s)
 	}

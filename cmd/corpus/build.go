@@ -57,6 +57,7 @@ type pagePlan struct {
 	Source   string
 	D        synth.Degradation
 	Blank    bool
+	Spaced   bool // a space before , ; : ? ! (spacePunct)
 }
 
 type buildOptions struct {
@@ -72,6 +73,7 @@ type buildOptions struct {
 	Split   string  // "id" (by the page id's hash) or "fonttext" (by font family and source text)
 	Lang    string  // engine language(s) for recognition; "" means eng
 	LongS   bool    // set the text with the long s (correct.LongS), as Fraktur print
+	Spaced  float64 // share of pages set with a space before , ; : ? ! (spacePunct)
 	MaxT    float64 // highest Level severity; 0 means 1
 }
 
@@ -86,6 +88,7 @@ func runBuild(args []string) error {
 	fs.StringVar(&o.Split, "split", "id", "`split`: id (70 % fit by the page id's hash) or fonttext (held-out pages have fonts and source texts never in fit)")
 	fs.StringVar(&o.Lang, "lang", "", "engine `language`(s) for recognition, e.g. frk (default eng)")
 	fs.BoolVar(&o.LongS, "long-s", false, "set the passages with the long s (Fraktur print)")
+	fs.Float64Var(&o.Spaced, "spaced-punct", 0, "`share` of pages set with a space before , ; : ? ! as older print often is")
 	fs.Float64Var(&o.MaxT, "max-severity", 1, "highest Level severity `t` (1 = unreadable)")
 	fs.IntVar(&o.Workers, "workers", 2, "pages rendered or recognised at once")
 	fs.BoolVar(&o.Force, "force", false, "write into an output dir that already holds a corpus")
@@ -316,13 +319,17 @@ func planPages(n int, seed uint64, ps []passage) []pagePlan {
 
 func writeManifest(path string, plans []pagePlan) error {
 	var b strings.Builder
-	b.WriteString("id\tsplit\tkind\tseverity\tseed\tfont\tsize_pt\tsource\tfamily\ttext\n")
+	b.WriteString("id\tsplit\tkind\tseverity\tseed\tfont\tsize_pt\tsource\tfamily\ttext\tpunct\n")
 	for _, p := range plans {
 		sev := "-"
 		if p.Severity >= 0 {
 			sev = fmt.Sprintf("%.4f", p.Severity)
 		}
-		fmt.Fprintf(&b, "%s\t%s\t%s\t%s\t%d\t%s\t%.1f\t%s\t%s\t%s\n", p.ID, p.Split, p.Kind, sev, p.Seed, p.Font, p.SizePt, p.Source, p.Family, p.Text)
+		punct := "-"
+		if p.Spaced {
+			punct = "spaced"
+		}
+		fmt.Fprintf(&b, "%s\t%s\t%s\t%s\t%d\t%s\t%.1f\t%s\t%s\t%s\t%s\n", p.ID, p.Split, p.Kind, sev, p.Seed, p.Font, p.SizePt, p.Source, p.Family, p.Text, punct)
 	}
 	return os.WriteFile(path, []byte(b.String()), 0o644)
 }
@@ -352,6 +359,9 @@ func renderOne(out string, dpi int, p pagePlan, ps []passage) error {
 	text := ps[p.Passage].Text
 	if p.Blank {
 		text = ""
+	}
+	if p.Spaced {
+		text = spacePunct(text)
 	}
 	font := p.Font
 	if p.FontFile != "" {

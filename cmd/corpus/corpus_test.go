@@ -188,3 +188,13 @@ func TestFontFamiliesDraw(t *testing.T) {
 		}
 	}
 }
+
+// TestSpacePunct: the period's spacing before marks (Leptonica's
+// prog/german.png sets "kund , das den , der drein").
+func TestSpacePunct(t *testing.T) {
+	got := spacePunct("kund, das den, der drein: nur? Ja! 1,5 (so), \"gut\", ...")
+	want := "kund , das den , der drein : nur ? Ja ! 1,5 (so), \"gut\", ..."
+	if got != want {
+		t.Errorf("spacePunct = %q\nwant %q", got, want)
+	}
+}

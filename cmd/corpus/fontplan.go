@@ -6,6 +6,7 @@ import (
 	"math/rand/v2"
 	"sort"
 	"strings"
+	"unicode"
 
 	"recto/ocr/synth"
 )
@@ -128,6 +129,7 @@ func planFontPages(o buildOptions, fams []family, ps []passage) []pagePlan {
 		style, file := f.face(pr.IntN(100))
 		p.Family, p.Font, p.FontFile = f.Name, f.Name+" "+style, file
 		p.SizePt = 10 + 0.5*float64(pr.IntN(5))
+		p.Spaced = pr.Float64() < o.Spaced
 		if pr.Float64() < kindShare {
 			k := kinds[pr.IntN(len(kinds))]
 			p.Kind, p.Severity, p.D, p.Blank = k.Name, -1, k.D, k.Blank
@@ -178,4 +180,22 @@ func drawable(text, font string) (string, error) {
 		return "", fmt.Errorf("font %q cannot draw %q", font, string(miss))
 	}
 	return text, nil
+}
+
+// spacePunct sets a space before every , ; : ? ! that follows a letter
+// (not a digit: "1,5" stays), as German and French print of the 18th and 19th centuries often
+// did ("kund , das den , der drein", Leptonica's prog/german.png; common
+// practice of the period, from memory).
+func spacePunct(text string) string {
+	var b strings.Builder
+	b.Grow(len(text) + len(text)/20)
+	var prev rune
+	for _, r := range text {
+		if strings.ContainsRune(",;:?!", r) && unicode.IsLetter(prev) {
+			b.WriteByte(' ')
+		}
+		b.WriteRune(r)
+		prev = r
+	}
+	return b.String()
 }

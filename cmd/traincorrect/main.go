@@ -27,7 +27,7 @@ import (
 )
 
 func main() {
-	corpus := flag.String("corpus", "", "corpus directory (truth/ and ocr/ with fit and heldout splits)")
+	corpus := flag.String("corpus", "", "corpus directory (truth/ and ocr/ with fit and heldout splits); for training, several comma-separated")
 	plant := flag.String("plant", "", "directory of clean .txt files to plant confusions in (instead of -corpus)")
 	out := flag.String("out", "", "write the trained model here")
 	eval := flag.Bool("eval", false, "measure the corrector on the heldout split of -corpus (or on planted text)")
@@ -61,8 +61,12 @@ func main() {
 		if *final {
 			split = "fit+dev"
 		}
-		pairs, err := corpusPairs(*corpus, split)
-		check(err)
+		var pairs []correct.Pair
+		for _, dir := range strings.Split(*corpus, ",") {
+			p, err := corpusPairs(dir, split)
+			check(err)
+			pairs = append(pairs, p...)
+		}
 		fmt.Fprintf(os.Stderr, "training on %d pages (%s)\n", len(pairs), split)
 		m := correct.Train(pairs, correct.TrainOptions{Prior: correct.Classic, MinCount: *minCount})
 		report(m)

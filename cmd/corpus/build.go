@@ -85,7 +85,7 @@ func runBuild(args []string) error {
 	fs.Uint64Var(&o.Seed, "seed", 1, "corpus `seed`: equal seeds give equal corpora")
 	fs.StringVar(&o.Text, "text", "", "passage `files` (JSON lines, gzipped), comma-separated; default testdata/synth/passages.jsonl.gz of this module")
 	fs.StringVar(&o.Fonts, "fonts", "go", "type: `go` (the Go fonts), debian (15 families of Debian's font packages), fraktur (Debian's blackletter faces)")
-	fs.StringVar(&o.Split, "split", "id", "`split`: id (70 % fit by the page id's hash) or fonttext (held-out pages have fonts and source texts never in fit)")
+	fs.StringVar(&o.Split, "split", "id", "`split`: id (70 % fit by the page id's hash), fonttext (held-out pages have fonts and source texts never in fit), or heldout (a test corpus: every page in the held-out families)")
 	fs.StringVar(&o.Lang, "lang", "", "engine `language`(s) for recognition, e.g. frk (default eng)")
 	fs.BoolVar(&o.LongS, "long-s", false, "set the passages with the long s (Fraktur print)")
 	fs.Float64Var(&o.Spaced, "spaced-punct", 0, "`share` of pages set with a space before , ; : ? ! as older print often is")
@@ -101,8 +101,8 @@ func runBuild(args []string) error {
 		fs.Usage()
 		return errors.New("usage: go run ./tools/corpus -out DIR [-n N] [-seed S]")
 	}
-	if o.Split != "id" && o.Split != "fonttext" {
-		return fmt.Errorf("-split %q: want id or fonttext", o.Split)
+	if o.Split != "id" && o.Split != "fonttext" && o.Split != "heldout" {
+		return fmt.Errorf("-split %q: want id, fonttext or heldout", o.Split)
 	}
 	if o.MaxT <= 0 || o.MaxT > 1 {
 		return fmt.Errorf("-max-severity %g: want a value in (0, 1]", o.MaxT)
@@ -111,8 +111,8 @@ func runBuild(args []string) error {
 	if err != nil {
 		return err
 	}
-	if o.Split == "fonttext" && fams == nil {
-		return errors.New("-split fonttext needs -fonts debian or fraktur (families to hold out)")
+	if o.Split != "id" && fams == nil {
+		return fmt.Errorf("-split %s needs -fonts debian or fraktur (families to hold out)", o.Split)
 	}
 	switch o.OCR {
 	case "auto", "on", "off":

@@ -6,9 +6,11 @@ import (
 	"encoding/json"
 	"flag"
 	"fmt"
+	"html"
 	"io"
 	"os"
 	"path/filepath"
+	"regexp"
 	"sort"
 	"strconv"
 	"strings"
@@ -33,10 +35,19 @@ func runExtract(args []string) error {
 	perSotu := fs.Int("per-address", 2, "passages per address")
 	devil := fs.String("devil", "", "also the Devil's Dictionary (1911, public domain): the `file` of Debian's dict-devil, /usr/share/dictd/devil.dict.dz")
 	fortunes := fs.String("fortunes-de", "", "also German running text: the fortune `dir` of Debian's fortunes-de, /usr/share/games/fortunes/de (GPL-2+; not vendored)")
+	htmlDoc := fs.String("html", "", "also the paragraphs (<p>) of an HTML `file` of running text, e.g. Debian's debian-edu-doc-nb-no manual (Bokmål, GPL-2+; not vendored)")
+	htmlTag := fs.String("html-source", "html", "-html: `name` of the source in the manifest (its parts are NAME/part_K)")
 	if err := fs.Parse(args); err != nil {
 		return err
 	}
 	var all []passage
+	if *htmlDoc != "" {
+		ps, err := htmlPassages(*htmlDoc, *htmlTag)
+		if err != nil {
+			return fmt.Errorf("extract: %w", err)
+		}
+		all = append(all, ps...)
+	}
 	if *devil != "" {
 		ps, err := devilPassages(*devil)
 		if err != nil {
@@ -336,4 +347,52 @@ func readMaybeGzip(path string) ([]byte, error) {
 		return nil, fmt.Errorf("%q: %w", path, err)
 	}
 	return io.ReadAll(zr)
+}
+
+// htmlPassages cuts passages from the paragraphs of an HTML document (the
+// text of each <p> element, tags dropped, entities decoded), in twenty
+// parts of the document (sources NAME/part_1 ... part_20), six passages a
+// part. Paragraphs of fewer than eight words or that look like commands
+// or tables (few letters, program syntax) are left out, and so are
+// paragraphs left in English in a translated manual (englishWords).
+func htmlPassages(path, name string) ([]passage, error) {
+	data, err := readMaybeGzip(path)
+	if err != nil {
+		return nil, err
+	}
+	tag := regexp.MustCompile(`(?s)<[^>]*>`)
+	var paras []string
+	for _, m := range regexp.MustCompile(`(?s)<p[ >].*?</p>`).FindAllString(string(data), -1) {
+		t := strings.Join(strings.Fields(html.UnescapeString(tag.ReplaceAllString(m, " "))), " ")
+		if len(strings.Fields(t)) < 8 || letterShare(t) < 0.85 || strings.ContainsAny(t, "/$<>{}[]=|#~_\\") || englishWords(t) >= 2 {
+			continue
+		}
+		paras = append(paras, t)
+	}
+	if len(paras) == 0 {
+		return nil, fmt.Errorf("%q: no paragraphs", path)
+	}
+	const parts = 20
+	var out []passage
+	for k := 0; k < parts; k++ {
+		part := strings.Join(paras[k*len(paras)/parts:(k+1)*len(paras)/parts], "\n\n")
+		for _, t := range passages(part, 6) {
+			out = append(out, passage{Source: fmt.Sprintf("%s/part_%d", name, k+1), Text: t})
+		}
+	}
+	return out, nil
+}
+
+// englishWords counts the English function words of s that are no words of
+// German or the Scandinavian languages: two or more mark a paragraph a
+// translation left in English (our own rule).
+func englishWords(s string) int {
+	n := 0
+	for _, w := range strings.Fields(strings.ToLower(s)) {
+		switch strings.Trim(w, ".,;:!?()\"'") {
+		case "the", "and", "of", "with", "which", "are", "this", "that", "from", "be":
+			n++
+		}
+	}
+	return n
 }

@@ -86,6 +86,11 @@ func planFontPages(o buildOptions, fams []family, ps []passage) []pagePlan {
 		if o.Split == "id" {
 			p.Split, fset = splitOf(p.ID), fams
 			p.Passage = take("all", allP)
+		} else if o.Split == "heldout" {
+			// A test corpus: every page in the held-out families, every
+			// text taken as held out (a language no model was trained on).
+			p.Split, fset = "heldout", heldF
+			p.Passage = take("all", allP)
 		} else {
 			u := pr.Float64()
 			heldFont, heldText := false, false
@@ -122,7 +127,7 @@ func planFontPages(o buildOptions, fams []family, ps []passage) []pagePlan {
 		}
 		p.Source = ps[p.Passage].Source
 		p.Text = "train"
-		if heldoutText(p.Source) {
+		if heldoutText(p.Source) || o.Split == "heldout" {
 			p.Text = "heldout"
 		}
 		f := fset[pr.IntN(len(fset))]

@@ -54,3 +54,25 @@ func TestFrakturForms(t *testing.T) {
 		t.Errorf("trainForm does not fold the Fraktur forms: %q", trainForm("Wiſſen ﬁnden"))
 	}
 }
+
+// TestModelForLang: --lang frk, Fraktur and script/Fraktur choose the
+// embedded Fraktur model, every other list the default one; the Fraktur
+// model knows the confusion the engine's frk model makes of Blankenburg's
+// ß, which it draws as a long s with a z (`tesseract -l frk` read "daß"
+// as "daſz" on such a page: Tesseract 5.3.0, Debian fonts-blankenburg 0.1-3,
+// checked by hand on 3 Dec 2026), far above the default model.
+func TestModelForLang(t *testing.T) {
+	for _, c := range []struct {
+		lang    string
+		fraktur bool
+	}{{"frk", true}, {"deu+frk", true}, {"Fraktur", true}, {"script/Fraktur", true}, {"deu", false}, {"eng", false}, {"", false}} {
+		m, name := ModelForLang(c.lang)
+		if (m == FrakturModel()) != c.fraktur || (m == DefaultModel()) == c.fraktur || name == "" {
+			t.Errorf("ModelForLang(%q) = %s, want the Fraktur model: %v", c.lang, name, c.fraktur)
+		}
+	}
+	f, d := FrakturModel(), DefaultModel()
+	if pf, pd := f.Prob("ß", "sz"), d.Prob("ß", "sz"); !(pf > 0.05 && pf > 10*pd) {
+		t.Errorf("P(ß→sz): Fraktur model %.4g, default %.4g; want the Fraktur model above 0.05 and 10× the default", pf, pd)
+	}
+}

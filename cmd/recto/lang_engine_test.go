@@ -26,7 +26,7 @@ var (
 	testLexErr  error
 )
 
-// testLexicons builds the nob, nno and deu lexicons once per test process
+// testLexicons builds the nob, nno, deu and deu-1901 lexicons once per test process
 // with 'recto lexicon build --lang' (about 30 s) into a temporary folder
 // and points RECTO_LEXICONS at it.
 func testLexicons(t *testing.T) {
@@ -37,7 +37,7 @@ func testLexicons(t *testing.T) {
 			return
 		}
 		os.Setenv(lexicon.EnvDir, testLexDir)
-		for _, c := range []string{"nob", "nno", "deu"} {
+		for _, c := range []string{"nob", "nno", "deu", "deu-1901"} {
 			if _, stderr, err := runRecto(t, "-q", "lexicon", "build", "--lang", c); err != nil {
 				testLexErr = fmt.Errorf("lexicon build --lang %s: %v\n%s", c, err, stderr)
 				return

@@ -45,6 +45,7 @@ func main() {
 	ocrDir := flag.String("ocr", "", "-eval with -truth: directory of the OCR records (.json) or text, same relative paths")
 	final := flag.Bool("final", false, "train on all of fit, development pages included (once the constants are set on dev)")
 	guard := flag.Bool("guard", false, "-eval: also correct the full source texts of the -corpus heldout pages as clean plain text (use with -lexicon fair, which leaves them out)")
+	alsoSplits := flag.String("also", "", "training: also the pages of these comma-separated splits (e.g. fontonly,textonly,incorpus of a -split fonttext corpus)")
 	minCount := flag.Int("min-count", 0, "training: drop confusions of three or more characters seen fewer times (0 = the default, 2)")
 	keepGlyphs := flag.Bool("map-glyphs", false, "-eval: map punctuation glyphs as the model learned (Config.MapGlyphs)")
 	flag.Parse()
@@ -66,8 +67,16 @@ func main() {
 			p, err := corpusPairs(dir, split)
 			check(err)
 			pairs = append(pairs, p...)
+			for _, more := range strings.Split(*alsoSplits, ",") {
+				if more == "" {
+					continue
+				}
+				p, err := corpusPairs(dir, more)
+				check(err)
+				pairs = append(pairs, p...)
+			}
 		}
-		fmt.Fprintf(os.Stderr, "training on %d pages (%s)\n", len(pairs), split)
+		fmt.Fprintf(os.Stderr, "training on %d pages (%s, also %q)\n", len(pairs), split, *alsoSplits)
 		m := correct.Train(pairs, correct.TrainOptions{Prior: correct.Classic, MinCount: *minCount})
 		report(m)
 		if *out != "" {
@@ -218,7 +227,20 @@ func loadLexicon(which, corpus, data string) (*lexicon.Lexicon, error) {
 		return lexicon.Default(), nil
 	case "fair":
 	default:
-		return lexicon.Load(which)
+		// One file, or several comma-separated, merged (as --lang frk
+		// merges deu and deu-1901).
+		var lexs []*lexicon.Lexicon
+		for _, f := range strings.Split(which, ",") {
+			l, err := lexicon.Load(f)
+			if err != nil {
+				return nil, err
+			}
+			lexs = append(lexs, l)
+		}
+		if len(lexs) == 1 {
+			return lexs[0], nil
+		}
+		return lexicon.Merge(lexs...), nil
 	}
 	held := map[string]bool{}
 	if corpus != "" {

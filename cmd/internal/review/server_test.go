@@ -421,6 +421,15 @@ func TestJudgeAndUndo(t *testing.T) {
 	if r, _ := s.l.ReviewOf(ctx, page.Rel); r.Decision != "accept" {
 		t.Errorf("form post not stored: %+v", r)
 	}
+	// The overview's button rebuilds the reports as recto report does.
+	res = post(t, c, s, ts.URL+"/report", url.Values{})
+	var rep map[string]string
+	json.NewDecoder(res.Body).Decode(&rep)
+	res.Body.Close()
+	pages, _ := os.ReadFile(filepath.Join(dir, "report", "pages.csv"))
+	if res.StatusCode != 200 || rep["report"] != filepath.Join(dir, "report", "report.html") || !strings.Contains(string(pages), ",accept,") || !strings.Contains(string(pages), ",ann,") {
+		t.Errorf("rebuild: %s %v; pages.csv:\n%s", res.Status, rep, pages)
+	}
 }
 
 // TestThumbnailsCached: thumbnails are JPEG renditions of the source made

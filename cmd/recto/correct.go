@@ -223,7 +223,7 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 			return err
 		}
 	}
-	lc, err := chooseLanguage(o.Lang, o.Lexicon, func() string { return recordedCorrectLang(pages) },
+	lc, err := chooseLanguage(o.Lang, o.Lexicon, func() string { return recordedLang(pages) },
 		"correction makes only language-independent fixes (stray marks) and changes no word")
 	if err != nil {
 		return err
@@ -540,21 +540,6 @@ func readUTF8(path string) (string, error) {
 		return "", fmt.Errorf("correct train: %q: not valid UTF-8 text (at byte %d)", path, firstInvalid(data))
 	}
 	return string(data), nil
-}
-
-// recordedCorrectLang returns the language recorded in the first page
-// record under in ("" when none has one).
-func recordedCorrectLang(pages []correctPage) string {
-	for _, p := range pages {
-		if p.JSON == "" {
-			continue
-		}
-		rec, err := ocr.ReadRecord(p.JSON)
-		if err == nil && rec.Lang != "" {
-			return rec.Lang
-		}
-	}
-	return ""
 }
 
 // collectionVocabulary gathers the collection vocabulary of the pages'

@@ -167,12 +167,14 @@ func (p OCRPage) TruthPath(truthDir string) (string, error) {
 }
 
 // LoadSamples pairs every page under ocrDir with its ground truth under
-// truthDir (same relative path, .txt) and measures its CER. Pages that
-// cannot be used are returned as problems, each naming its file, and do not
-// stop the others: a page without ground truth or whose record cannot be read. Pages with empty ground truth are
-// returned as samples with EmptyTruth set. err is non-nil only when ocrDir cannot be
-// listed or truthDir is not a folder.
-func LoadSamples(ocrDir, truthDir string, lex *lexicon.Lexicon) (samples []Sample, problems []error, err error) {
+// truthDir (same relative path, .txt) and measures its CER, reading up to
+// jobs pages at once on the one worker pool (0: one per core). Pages that
+// cannot be used are returned as problems, each naming its file, and do
+// not stop the others: a page without ground truth or whose record cannot
+// be read. Pages with empty ground truth are returned as samples with
+// EmptyTruth set. err is non-nil only when ocrDir cannot be listed,
+// truthDir is not a folder or ctx ends first (its error).
+func LoadSamples(ctx context.Context, ocrDir, truthDir string, lex *lexicon.Lexicon, jobs int) (samples []Sample, problems []error, err error) {
 	pages, err := FindOCRPages(ocrDir)
 	if err != nil {
 		return nil, nil, err
@@ -190,7 +192,7 @@ func LoadSamples(ocrDir, truthDir string, lex *lexicon.Lexicon) (samples []Sampl
 		err error
 	}
 	res := make([]result, len(pages))
-	_ = par.Each(context.Background(), len(pages), 0, func(_, i int) {
+	err = par.Each(ctx, len(pages), jobs, func(_, i int) {
 		p := pages[i]
 		tp, err := p.TruthPath(truthDir)
 		if err != nil {
@@ -203,6 +205,9 @@ func LoadSamples(ocrDir, truthDir string, lex *lexicon.Lexicon) (samples []Sampl
 		}
 		res[i].s, res[i].err = p.Sample(tp, lex)
 	})
+	if err != nil {
+		return nil, nil, err
+	}
 	for _, r := range res {
 		if r.err != nil {
 			problems = append(problems, r.err)

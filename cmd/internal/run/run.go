@@ -371,7 +371,11 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 	if err != nil {
 		return sum, fmt.Errorf("run: %w", err)
 	}
-	if err := buildReports(repDir, st.outDir, root, rows, st.tk.interval); err != nil {
+	reviews, err := l.Reviews(ctx) // what recto review decided (reviewed.go)
+	if err != nil {
+		return sum, fmt.Errorf("run: %w", err)
+	}
+	if err := buildReports(repDir, st.outDir, root, rows, reviews, st.tk.interval); err != nil {
 		return sum, err
 	}
 	sum.Report = filepath.Join(repDir, "report.html")

@@ -359,7 +359,7 @@ svg text{font:10px sans-serif;fill:#444}
 <h1>OCR report: {{.Name}}</h1>
 {{with .Partial}}<p class="partial"><strong>Partial report:</strong> {{.}}</p>
 {{end}}<p>{{.Total.Pages}} pages in {{len .Titles}} titles; {{.Total.Failed}} failed.
-{{range .Decisions}}{{.}}: {{dec $.Total.Decisions .}}. {{end}}
+{{range .Decisions}}{{.}}: {{dec $.Total.Decisions .}}. {{end}}{{with .Total.Reviewed}}{{.}} pages reviewed in recto review. {{end}}
 {{with .Total.CERBefore}}Measured CER on {{.Pages}} pages with ground truth: {{$.Total.BeforeTxt}} before correction, {{$.Total.AfterTxt}} after.{{end}}</p>
 
 <h2>Titles</h2>
@@ -376,7 +376,7 @@ svg text{font:10px sans-serif;fill:#444}
 <table id="worst">
 <thead><tr><th class="l">Page</th><th>CER</th><th class="l">Decision</th><th class="l">Why</th><th class="l">Links</th><th class="l">Start of text</th></tr></thead>
 <tbody>
-{{range .Worst}}<tr><td class="l">{{.Rel}}</td><td>{{pct .Key}} <small>{{.KeyKind}}</small></td><td class="l">{{.Decision}}</td><td class="l">{{reasons .Reasons}}</td><td class="l">{{if .ImageURL}}<a href="{{.ImageURL}}">image</a>{{end}}{{if .TextURL}} <a href="{{.TextURL}}">text</a>{{end}}</td><td class="snip">{{.Snippet}}</td></tr>
+{{range .Worst}}<tr><td class="l">{{.Rel}}</td><td>{{pct .Key}} <small>{{.KeyKind}}</small></td><td class="l">{{.Decision}}{{if .Reviewed}} <small>reviewed</small>{{end}}</td><td class="l">{{reasons .Reasons}}</td><td class="l">{{if .ImageURL}}<a href="{{.ImageURL}}">image</a>{{end}}{{if .TextURL}} <a href="{{.TextURL}}">text</a>{{end}}</td><td class="snip">{{.Snippet}}</td></tr>
 {{else}}<tr><td class="l" colspan="6">No processed pages.</td></tr>
 {{end}}</tbody>
 </table>

@@ -64,6 +64,12 @@ type Page struct {
 	Snippet string // start of the final OCR text, shown for the worst pages
 
 	Warnings []string // what a step said about the page that did not stop it
+
+	// Reviewed is who confirmed or changed the decision, or judged the
+	// corrections, in recto review; "" when nobody did. Decision,
+	// Reasons and Corrections are then the reviewed ones.
+	Reviewed   string
+	ReviewNote string // the reviewer's note, may be ""
 }
 
 // CER returns the page's measured CER before and after correction; ok is
@@ -117,6 +123,7 @@ type Title struct {
 	WERBefore        *Measured      `json:"wer_before,omitempty"`
 	WERAfter         *Measured      `json:"wer_after,omitempty"`
 	Corrections      int            `json:"corrections"`
+	Reviewed         int            `json:"reviewed"` // pages reviewed in recto review
 }
 
 // Summary is the whole report's data.
@@ -161,6 +168,9 @@ func sumTitle(name string, pages []Page, o Options) Title {
 		predSum += p.PredictedCER
 		t.Decisions[p.Decision]++
 		t.Corrections += p.Corrections
+		if p.Reviewed != "" {
+			t.Reviewed++
+		}
 		if p.HasTruth {
 			t.TruthPages++
 			ce, cc, ceA = append(ce, p.CharErrs), append(cc, p.RefChars), append(ceA, p.CharErrsAfter)
@@ -289,7 +299,7 @@ var titleHead = append(append([]string{"title", "pages", "failed"}, Decisions...
 	"mean_predicted_cer", "truth_pages", "chars", "words",
 	"char_errors_before", "cer_before", "cer_low_before", "cer_high_before",
 	"char_errors_after", "cer_after", "cer_low_after", "cer_high_after",
-	"word_errors_before", "wer_before", "word_errors_after", "wer_after", "corrections")
+	"word_errors_before", "wer_before", "word_errors_after", "wer_after", "corrections", "reviewed")
 
 // titleJSON is a Title as titles.json has it: flat, with the column names
 // of titles.csv; a figure without ground truth is null.
@@ -315,6 +325,7 @@ type titleJSON struct {
 	WordErrorsAfter  *int           `json:"word_errors_after"`
 	WERAfter         *float64       `json:"wer_after"`
 	Corrections      int            `json:"corrections"`
+	Reviewed         int            `json:"reviewed"`
 }
 
 // MarshalJSON writes t flat, as titles.json has it.
@@ -323,7 +334,7 @@ func (t Title) MarshalJSON() ([]byte, error) { return json.Marshal(flat(t)) }
 // flat spreads t's measured rates into columns.
 func flat(t Title) titleJSON {
 	j := titleJSON{Title: t.Title, Pages: t.Pages, Failed: t.Failed, Decisions: t.Decisions,
-		MeanPredictedCER: t.MeanPredictedCER, TruthPages: t.TruthPages, Corrections: t.Corrections}
+		MeanPredictedCER: t.MeanPredictedCER, TruthPages: t.TruthPages, Corrections: t.Corrections, Reviewed: t.Reviewed}
 	parts := func(m *Measured) (units, errs *int, rate, lo, hi *float64) {
 		if m == nil {
 			return nil, nil, nil, nil, nil
@@ -358,7 +369,7 @@ func TitlesCSV(s Summary) ([]byte, error) {
 			optInt(j.CharErrorsBefore), optF4(j.CERBefore), optF4(j.CERLowBefore), optF4(j.CERHighBefore),
 			optInt(j.CharErrorsAfter), optF4(j.CERAfter), optF4(j.CERLowAfter), optF4(j.CERHighAfter),
 			optInt(j.WordErrorsBefore), optF4(j.WERBefore), optInt(j.WordErrorsAfter), optF4(j.WERAfter),
-			strconv.Itoa(t.Corrections))
+			strconv.Itoa(t.Corrections), strconv.Itoa(t.Reviewed))
 		rows = append(rows, r)
 	}
 	return writeCSV(rows)
@@ -368,14 +379,14 @@ func TitlesCSV(s Summary) ([]byte, error) {
 func PagesCSV(pages []Page) ([]byte, error) {
 	rows := [][]string{{"title", "page", "image", "status", "decision", "predicted_cer", "reasons",
 		"corrections", "chars", "char_errors_before", "char_errors_after", "cer_before", "cer_after",
-		"words", "word_errors_before", "word_errors_after", "wer_before", "wer_after", "error"}}
+		"words", "word_errors_before", "word_errors_after", "wer_before", "wer_after", "error", "reviewed", "review_note"}}
 	for _, p := range pages {
 		status := quality.StatusOK
 		if p.Failed {
 			status = quality.StatusFailed
 		}
 		r := []string{cell(p.Title), cell(p.Page), cell(p.Rel), status, p.Decision, "", cell(strings.Join(p.Reasons, "; ")),
-			strconv.Itoa(p.Corrections), "", "", "", "", "", "", "", "", "", "", cell(p.Error)}
+			strconv.Itoa(p.Corrections), "", "", "", "", "", "", "", "", "", "", cell(p.Error), cell(p.Reviewed), cell(p.ReviewNote)}
 		if !p.Failed {
 			r[5] = f4(p.PredictedCER)
 		}

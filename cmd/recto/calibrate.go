@@ -67,6 +67,9 @@ OUTPUT (stdout)
 			if o.OCR == "" || o.Truth == "" || o.Out == "" {
 				return usagef("calibrate: --ocr, --truth and --out are required")
 			}
+			if err := checkJobs(o.Jobs); err != nil {
+				return err
+			}
 			if !(o.Holdout > 0 && o.Holdout < 1) {
 				return usagef("--holdout %v: want a share strictly between 0 and 1", o.Holdout)
 			}

@@ -117,8 +117,8 @@ language. Each line of changes.jsonl names the language ("lang").
 			if o.Margin < 0 {
 				return usagef("correct: --margin must not be negative, not %v", o.Margin)
 			}
-			if o.Jobs < 0 {
-				return usagef("correct: --jobs must be positive")
+			if err := checkJobs(o.Jobs); err != nil {
+				return err
 			}
 			return nil
 		},
@@ -127,13 +127,13 @@ language. Each line of changes.jsonl names the language ("lang").
 		},
 	}
 	f := cmd.Flags()
-	f.StringVarP(&o.Out, "out", "o", "", "write corrected pages and changes.jsonl under `dir`")
+	f.StringVarP(&o.Out, "out", "o", "", "write corrected pages and changes.jsonl under `folder`")
 	f.BoolVar(&o.DryRun, "dry-run", false, "list the changes on stdout without writing anything")
 	f.StringVar(&o.Model, "correction-model", "", "error model `file` from 'recto correct train' (default: embedded)")
 	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` (default: the one of --lang)")
 	f.StringVarP(&o.Lang, "lang", "l", "", "engine `languages` of the pages, e.g. nor or eng+deu (default: as recorded by recto ocr, else eng)")
 	f.Float64Var(&o.Margin, "margin", 0, fmt.Sprintf("log-odds `margin` a correction must win by (0 = %g; higher is more cautious)", correct.DefaultMargin))
-	f.IntVarP(&o.Jobs, "jobs", "j", 0, "pages corrected in parallel (`n`; default: number of CPUs)")
+	f.IntVarP(&o.Jobs, "jobs", "j", 0, "correct `n` pages at once (0: one per core)")
 	f.BoolVar(&o.Collection, "collection", false, "use the collection's own vocabulary and counts: words read confidently across the pages are never changed")
 	f.StringVar(&o.Vocab, "vocabulary", "", "saved collection vocabulary `file` (from --save-vocabulary) to add to the pages' own")
 	f.StringVar(&o.SaveVocab, "save-vocabulary", "", "save the collection vocabulary to this lexicon `file` (.gz to compress)")
@@ -178,8 +178,8 @@ The model file (versioned, gzip-compressed JSON) is used with
 		},
 	}
 	f := cmd.Flags()
-	f.StringVar(&o.OCR, "ocr", "", "`dir` of OCR output (.txt)")
-	f.StringVar(&o.Truth, "truth", "", "`dir` of ground truth (.txt, same names)")
+	f.StringVar(&o.OCR, "ocr", "", "`folder` of OCR output (.txt)")
+	f.StringVar(&o.Truth, "truth", "", "`folder` of ground truth (.txt, same names)")
 	f.StringVarP(&o.Out, "out", "o", "", "model `file` to write")
 	f.Int64Var(&o.MinCount, "min-count", 0, "drop confusions of three or more characters seen fewer than `n` times (0 = 2)")
 	return cmd

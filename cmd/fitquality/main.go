@@ -26,6 +26,7 @@ import (
 	"sort"
 	"strings"
 
+	"recto/internal/atomicfile"
 	"recto/lexicon"
 	"recto/quality"
 )
@@ -236,13 +237,13 @@ func vendor(corpus, dir string, held []quality.Sample, n int, w io.Writer) error
 				}
 				data = append(buf.Bytes(), '\n')
 			}
-			if err := os.WriteFile(c[1], data, 0o644); err != nil {
+			if err := atomicfile.Write(c[1], data); err != nil {
 				return err
 			}
 		}
 		count++
 	}
-	if err := os.WriteFile(filepath.Join(dir, "MANIFEST.tsv"), []byte(list.String()), 0o644); err != nil {
+	if err := atomicfile.Write(filepath.Join(dir, "MANIFEST.tsv"), []byte(list.String())); err != nil {
 		return err
 	}
 	fmt.Fprintf(w, "vendored %d held-out pages into %s (CER %s)\n", count, dir, strings.TrimSpace(fmt.Sprintf("%.3f..%.3f", s[0].CER, s[len(s)-1].CER)))

@@ -92,6 +92,10 @@ func TestKeyAndFold(t *testing.T) {
 		{"ÉTÉ", "été", "ete"},
 		{"Straße", "straße", "straße"}, // ß has no decomposition
 		{"Øre", "øre", "øre"},
+		// Fraktur's long s and the ligatures are letter forms (Unicode
+		// code charts U+017F, U+FB01): they key as plain letters.
+		{"Wiſſen", "wissen", "wissen"},
+		{"ﬁnden", "finden", "finden"},
 	}
 	for _, tt := range tests {
 		if got := Key(tt.in); got != tt.key {

@@ -129,7 +129,7 @@ language. Each line of changes.jsonl names the language ("lang").
 	f := cmd.Flags()
 	f.StringVarP(&o.Out, "out", "o", "", "write corrected pages and changes.jsonl under `folder`")
 	f.BoolVar(&o.DryRun, "dry-run", false, "list the changes on stdout without writing anything")
-	f.StringVar(&o.Model, "correction-model", "", "error model `file` from 'recto correct train' (default: embedded)")
+	f.StringVar(&o.Model, "correction-model", "", "error model `file` from 'recto correct train' (default: embedded; the Fraktur one for --lang frk or Fraktur)")
 	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` (default: the one of --lang)")
 	f.StringVarP(&o.Lang, "lang", "l", "", "engine `languages` of the pages, e.g. nor or eng+deu (default: as recorded by recto ocr, else eng)")
 	f.Float64Var(&o.Margin, "margin", 0, fmt.Sprintf("log-odds `margin` a correction must win by (0 = %g; higher is more cautious)", correct.DefaultMargin))
@@ -217,7 +217,7 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 	if err != nil {
 		return fmt.Errorf("correct: %w", err)
 	}
-	m := correct.DefaultModel()
+	var m *correct.Model // nil: the embedded model for the language, once it is known
 	if o.Model != "" {
 		if m, err = correct.LoadModel(o.Model); err != nil {
 			return err
@@ -238,6 +238,9 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 		lex = lexicon.New()
 	}
 	o.Lang = lc.Lang
+	if m == nil {
+		m, _ = correct.ModelForLang(o.Lang) // the Fraktur model for frk, else the default
+	}
 	cfg := correct.Config{Margin: o.Margin, KeepMarks: o.KeepMarks, MapGlyphs: o.MapGlyphs}
 	if o.Collection {
 		cfg.Collection = collectionCounts(pages, lex)

@@ -211,6 +211,8 @@ func runOCR(ctx context.Context, o OCROptions, g GlobalOptions, args []string) e
 	if err != nil {
 		return err // names the engine's problem, e.g. ocr.ErrEngineUnavailable
 	}
+	// "script/Fraktur" is the Fraktur.traineddata Debian installs.
+	cfg.Lang = strings.Join(tesseract.ResolveScripts(strings.Split(cfg.Lang, "+"), have), "+")
 	for _, l := range strings.Split(cfg.Lang, "+") {
 		if !contains(have, l) {
 			return usagef("ocr: --lang %q: language %q is not installed (installed: %s); on Debian install the package %s",

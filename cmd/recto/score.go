@@ -56,7 +56,7 @@ NORMALISATION
     --ignore-punct       delete punctuation (Unicode category P)
     --plain-typography   curly quotes and primes to ' and ", dashes and minus
                          to -, … to ..., ligatures such as "ﬁ" to letters,
-                         long s "ſ" to s
+                         long s "ſ" to s, Fraktur "⸗" "ꝛ" "aͤ" to - r ä
   Every report states the normalisation in force.
 
 RATES

@@ -75,7 +75,7 @@ func newToolkit(o Options) (*toolkit, error) {
 	if err != nil {
 		return nil, fmt.Errorf("--quality-model: %w", err)
 	}
-	cmodel := correct.DefaultModel()
+	cmodel, _ := correct.ModelForLang(o.Lang) // the Fraktur model for frk, else the default
 	if o.CorrectionModel != "" {
 		if cmodel, err = correct.LoadModel(o.CorrectionModel); err != nil {
 			return nil, err

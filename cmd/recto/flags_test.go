@@ -101,8 +101,8 @@ func TestFlagSpelling(t *testing.T) {
 				t.Errorf("%s --%s: value named %q; say folder or file", cmd, f.Name, value)
 			}
 		}
-		if f.Name == "jobs" && !strings.HasSuffix(usage, " n pages at once (0: one per core)") {
-			t.Errorf("%s --jobs: %q; want \"<verb> n pages at once (0: one per core)\"", cmd, usage)
+		if f.Name == "jobs" && (!strings.Contains(usage, " n ") || !strings.HasSuffix(usage, " (0: one per core)")) {
+			t.Errorf("%s --jobs: %q; want \"… n … at once (0: one per core)\"", cmd, usage)
 		}
 	})
 	for _, u := range byName["format"] {

@@ -74,6 +74,8 @@ func buildPartialReports(repDir, outDir, root string, rows []ledger.Page, ci rep
 			Decision: r.Decision, PredictedCER: r.PredictedCER, Reasons: r.Reasons, Corrections: r.Corrections,
 			HasTruth: r.HasTruth, RefChars: r.RefChars, RefWords: r.RefWords,
 			CharErrs: r.CharErrs, WordErrs: r.WordErrs, CharErrsAfter: r.CharErrsAf, WordErrsAfter: r.WordErrsAf,
+			OrderFree: r.FlexErrs >= 0 && r.BagErrs >= 0 && r.FlexErrsAf >= 0 && r.BagErrsAf >= 0,
+			FlexErrs:  r.FlexErrs, FlexErrsAfter: r.FlexErrsAf, BagErrs: r.BagErrs, BagErrsAfter: r.BagErrsAf,
 			Image: relLink(repDir, r.Source),
 		}
 		if t := finalText(r); t != "" && r.State == ledger.StateDone {

@@ -574,6 +574,8 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 		row.RefChars, row.RefWords = before.Chars, before.Words
 		row.CharErrs, row.WordErrs = before.CharErrors, before.WordErrors
 		row.CharErrsAf, row.WordErrsAf = after.CharErrors, after.WordErrors
+		row.FlexErrs, row.BagErrs = before.FlexErrors, before.BagErrors
+		row.FlexErrsAf, row.BagErrsAf = after.FlexErrors, after.BagErrors
 		row.Timings["score"] = ms(time.Since(t4))
 	}
 	row.State, row.Error = ledger.StateDone, ""
@@ -659,9 +661,10 @@ type verdict struct {
 	Reasons      []string
 }
 
-// counts are edit counts against a reference.
+// counts are edit counts against a reference, the order-free ones
+// (flexible character accuracy, bag of words) included.
 type counts struct {
-	Chars, CharErrors, Words, WordErrors int
+	Chars, CharErrors, Words, WordErrors, FlexErrors, BagErrors int
 }
 
 // fingerprint hashes the settings that change a page's results.

@@ -115,7 +115,8 @@ func newToolkit(o Options) (*toolkit, error) {
 		interval:   cerInterval,
 		compare: func(ref, hyp string) counts {
 			c := quality.Compare(ref, hyp, quality.NormOptions{})
-			return counts{Chars: c.Chars, CharErrors: c.CharErrors, Words: c.Words, WordErrors: c.WordErrors}
+			return counts{Chars: c.Chars, CharErrors: c.CharErrors, Words: c.Words, WordErrors: c.WordErrors,
+				FlexErrors: c.FlexErrors, BagErrors: c.BagErrors}
 		},
 		triage: func(r *ocr.Record) verdict {
 			var f quality.Features

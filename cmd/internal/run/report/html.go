@@ -59,7 +59,17 @@ type titleView struct {
 	AfterTxt  string
 	BeforeV   float64
 	AfterV    float64
+	Rates     []rateCell // WER, flex_cer and bag_wer before and after, in the order of rateHeads
 }
+
+// rateCell is one rate of the titles table: its text and sort value.
+type rateCell struct {
+	Txt string
+	V   float64
+}
+
+// rateHeads are the headings of the titles table's further rates.
+var rateHeads = []string{"WER before", "WER after", "flex CER before", "flex CER after", "bag WER before", "bag WER after"}
 
 type pageView struct {
 	Page
@@ -73,6 +83,7 @@ type htmlData struct {
 	Name      string
 	Partial   string
 	Decisions []string
+	RateHeads []string
 	Total     titleView
 	Titles    []titleView
 	Worst     []pageView
@@ -86,7 +97,7 @@ func HTML(s Summary, pages []Page, o Options) ([]byte, error) {
 	for _, p := range pages {
 		by[p.Title] = append(by[p.Title], p)
 	}
-	d := htmlData{Name: Clean(o.Name), Partial: Clean(o.Partial), Decisions: Decisions}
+	d := htmlData{Name: Clean(o.Name), Partial: Clean(o.Partial), Decisions: Decisions, RateHeads: rateHeads}
 	if d.Name == "" {
 		d.Name = "Collection"
 	}
@@ -199,6 +210,11 @@ func makeTitleView(t Title, pages []Page, i int) titleView {
 	}
 	v.BeforeTxt, v.BeforeV = rateText(t.CERBefore)
 	v.AfterTxt, v.AfterV = rateText(t.CERAfter)
+	for _, m := range []*Measured{t.WERBefore, t.WERAfter, t.FlexBefore, t.FlexAfter, t.BagBefore, t.BagAfter} {
+		var c rateCell
+		c.Txt, c.V = rateText(m)
+		v.Rates = append(v.Rates, c)
+	}
 	v.Hist = histogram(pages)
 	v.Scatter = scatter(pages)
 	return v
@@ -365,9 +381,9 @@ svg text{font:10px sans-serif;fill:#444}
 <h2>Titles</h2>
 <p>Click a column heading to sort. Measured CER is pooled over the title's pages with ground truth; brackets give the interval.</p>
 <table class="sortable" id="titles">
-<thead><tr><th class="l">Title</th><th>Pages</th><th>Failed</th>{{range .Decisions}}<th>{{.}}</th>{{end}}<th>Mean predicted CER</th><th>Pages with truth</th><th>CER before</th><th>CER after</th><th>Corrections</th></tr></thead>
+<thead><tr><th class="l">Title</th><th>Pages</th><th>Failed</th>{{range .Decisions}}<th>{{.}}</th>{{end}}<th>Mean predicted CER</th><th>Pages with truth</th><th>CER before</th><th>CER after</th>{{range .RateHeads}}<th>{{.}}</th>{{end}}<th>Corrections</th></tr></thead>
 <tbody>
-{{range .Titles}}<tr><td class="l" data-v="{{.Title.Title}}"><a href="#{{.Anchor}}">{{.Title.Title}}</a></td><td data-v="{{.Pages}}">{{.Pages}}</td><td data-v="{{.Failed}}">{{.Failed}}</td>{{$t := .}}{{range $.Decisions}}<td data-v="{{dec $t.Decisions .}}">{{dec $t.Decisions .}}</td>{{end}}<td data-v="{{f4 .PredSort}}">{{if .MeanPredictedCER}}{{pct .PredSort}}{{else}}–{{end}}</td><td data-v="{{.TruthPages}}">{{.TruthPages}}</td><td data-v="{{f4 .BeforeV}}">{{.BeforeTxt}}</td><td data-v="{{f4 .AfterV}}">{{.AfterTxt}}</td><td data-v="{{.Corrections}}">{{.Corrections}}</td></tr>
+{{range .Titles}}<tr><td class="l" data-v="{{.Title.Title}}"><a href="#{{.Anchor}}">{{.Title.Title}}</a></td><td data-v="{{.Pages}}">{{.Pages}}</td><td data-v="{{.Failed}}">{{.Failed}}</td>{{$t := .}}{{range $.Decisions}}<td data-v="{{dec $t.Decisions .}}">{{dec $t.Decisions .}}</td>{{end}}<td data-v="{{f4 .PredSort}}">{{if .MeanPredictedCER}}{{pct .PredSort}}{{else}}–{{end}}</td><td data-v="{{.TruthPages}}">{{.TruthPages}}</td><td data-v="{{f4 .BeforeV}}">{{.BeforeTxt}}</td><td data-v="{{f4 .AfterV}}">{{.AfterTxt}}</td>{{range .Rates}}<td data-v="{{f4 .V}}">{{.Txt}}</td>{{end}}<td data-v="{{.Corrections}}">{{.Corrections}}</td></tr>
 {{end}}</tbody>
 </table>
 

@@ -59,6 +59,17 @@ type Page struct {
 	CharErrsAfter int  // character edits after correction
 	WordErrsAfter int  // word edits after correction
 
+	// Order-free errors (quality.Counts, see quality/flex.go and bag.go):
+	// errors of the flexible character accuracy over RefChars and
+	// bag-of-words errors over RefWords, before and after correction.
+	// OrderFree says they were measured (pages of ledgers written before
+	// they were lack them).
+	OrderFree     bool
+	FlexErrs      int
+	FlexErrsAfter int
+	BagErrs       int
+	BagErrsAfter  int
+
 	Image   string // link to the page image, relative to the report folder or absolute
 	Text    string // link to the final text, relative to the report folder; "" when none
 	Snippet string // start of the final OCR text, shown for the worst pages
@@ -76,15 +87,15 @@ func (p Page) CER() (before, after float64, ok bool) {
 	return float64(p.CharErrs) / n, float64(p.CharErrsAfter) / n, true
 }
 
-// IntervalFunc returns a confidence interval for a pooled CER, given the
-// character edits and reference characters of each page. ok is false when
-// no interval can be given (e.g. too few pages).
+// IntervalFunc returns a confidence interval for a pooled error rate (CER,
+// WER, flex_cer, bag_wer), given the errors and reference units of each
+// page. ok is false when no interval can be given (e.g. too few pages).
 type IntervalFunc func(errs, chars []int) (lo, hi float64, ok bool)
 
 // Options tune the reports. The zero value is valid.
 type Options struct {
 	Name     string       // collection name shown in the HTML heading; "" means "Collection"
-	Interval IntervalFunc // confidence intervals for measured CER; nil means none
+	Interval IntervalFunc // 95 % confidence intervals for measured rates; nil means none
 	Worst    int          // worst pages listed in the HTML; 0 means 25
 	Partial  string       // when not "", the report covers part of the run: why (shown at the top of the HTML)
 
@@ -117,6 +128,13 @@ type Title struct {
 	WERBefore        *Measured      `json:"wer_before,omitempty"`
 	WERAfter         *Measured      `json:"wer_after,omitempty"`
 	Corrections      int            `json:"corrections"`
+
+	// Order-free rates, pooled like CER and WER; nil without ground truth
+	// or when a page with ground truth lacks them (older ledgers).
+	FlexBefore *Measured `json:"flex_cer_before,omitempty"`
+	FlexAfter  *Measured `json:"flex_cer_after,omitempty"`
+	BagBefore  *Measured `json:"bag_wer_before,omitempty"`
+	BagAfter   *Measured `json:"bag_wer_after,omitempty"`
 }
 
 // Summary is the whole report's data.
@@ -151,7 +169,8 @@ func sumTitle(name string, pages []Page, o Options) Title {
 	}
 	var predSum float64
 	var processed int
-	var ce, cc, ceA, we, wc, weA []int
+	var ce, cc, ceA, we, wc, weA, fe, feA, be, beA []int
+	orderFree := true
 	for _, p := range pages {
 		if p.Failed {
 			t.Failed++
@@ -165,6 +184,9 @@ func sumTitle(name string, pages []Page, o Options) Title {
 			t.TruthPages++
 			ce, cc, ceA = append(ce, p.CharErrs), append(cc, p.RefChars), append(ceA, p.CharErrsAfter)
 			we, wc, weA = append(we, p.WordErrs), append(wc, p.RefWords), append(weA, p.WordErrsAfter)
+			fe, feA = append(fe, p.FlexErrs), append(feA, p.FlexErrsAfter)
+			be, beA = append(be, p.BagErrs), append(beA, p.BagErrsAfter)
+			orderFree = orderFree && p.OrderFree
 		}
 	}
 	if processed > 0 {
@@ -173,8 +195,14 @@ func sumTitle(name string, pages []Page, o Options) Title {
 	}
 	t.CERBefore = measure(ce, cc, o.Interval)
 	t.CERAfter = measure(ceA, cc, o.Interval)
-	t.WERBefore = measure(we, wc, nil)
-	t.WERAfter = measure(weA, wc, nil)
+	t.WERBefore = measure(we, wc, o.Interval)
+	t.WERAfter = measure(weA, wc, o.Interval)
+	if orderFree {
+		t.FlexBefore = measure(fe, cc, o.Interval)
+		t.FlexAfter = measure(feA, cc, o.Interval)
+		t.BagBefore = measure(be, wc, o.Interval)
+		t.BagAfter = measure(beA, wc, o.Interval)
+	}
 	return t
 }
 
@@ -289,7 +317,9 @@ var titleHead = append(append([]string{"title", "pages", "failed"}, Decisions...
 	"mean_predicted_cer", "truth_pages", "chars", "words",
 	"char_errors_before", "cer_before", "cer_low_before", "cer_high_before",
 	"char_errors_after", "cer_after", "cer_low_after", "cer_high_after",
-	"word_errors_before", "wer_before", "word_errors_after", "wer_after", "corrections")
+	"word_errors_before", "wer_before", "word_errors_after", "wer_after", "corrections",
+	"flex_errors_before", "flex_cer_before", "flex_errors_after", "flex_cer_after",
+	"bag_errors_before", "bag_wer_before", "bag_errors_after", "bag_wer_after")
 
 // titleJSON is a Title as titles.json has it: flat, with the column names
 // of titles.csv; a figure without ground truth is null.
@@ -315,6 +345,14 @@ type titleJSON struct {
 	WordErrorsAfter  *int           `json:"word_errors_after"`
 	WERAfter         *float64       `json:"wer_after"`
 	Corrections      int            `json:"corrections"`
+	FlexErrorsBefore *int           `json:"flex_errors_before"`
+	FlexCERBefore    *float64       `json:"flex_cer_before"`
+	FlexErrorsAfter  *int           `json:"flex_errors_after"`
+	FlexCERAfter     *float64       `json:"flex_cer_after"`
+	BagErrorsBefore  *int           `json:"bag_errors_before"`
+	BagWERBefore     *float64       `json:"bag_wer_before"`
+	BagErrorsAfter   *int           `json:"bag_errors_after"`
+	BagWERAfter      *float64       `json:"bag_wer_after"`
 }
 
 // MarshalJSON writes t flat, as titles.json has it.
@@ -335,6 +373,10 @@ func flat(t Title) titleJSON {
 	_, j.CharErrorsAfter, j.CERAfter, j.CERLowAfter, j.CERHighAfter = parts(t.CERAfter)
 	j.Words, j.WordErrorsBefore, j.WERBefore, _, _ = parts(t.WERBefore)
 	_, j.WordErrorsAfter, j.WERAfter, _, _ = parts(t.WERAfter)
+	_, j.FlexErrorsBefore, j.FlexCERBefore, _, _ = parts(t.FlexBefore)
+	_, j.FlexErrorsAfter, j.FlexCERAfter, _, _ = parts(t.FlexAfter)
+	_, j.BagErrorsBefore, j.BagWERBefore, _, _ = parts(t.BagBefore)
+	_, j.BagErrorsAfter, j.BagWERAfter, _, _ = parts(t.BagAfter)
 	return j
 }
 
@@ -358,7 +400,9 @@ func TitlesCSV(s Summary) ([]byte, error) {
 			optInt(j.CharErrorsBefore), optF4(j.CERBefore), optF4(j.CERLowBefore), optF4(j.CERHighBefore),
 			optInt(j.CharErrorsAfter), optF4(j.CERAfter), optF4(j.CERLowAfter), optF4(j.CERHighAfter),
 			optInt(j.WordErrorsBefore), optF4(j.WERBefore), optInt(j.WordErrorsAfter), optF4(j.WERAfter),
-			strconv.Itoa(t.Corrections))
+			strconv.Itoa(t.Corrections),
+			optInt(j.FlexErrorsBefore), optF4(j.FlexCERBefore), optInt(j.FlexErrorsAfter), optF4(j.FlexCERAfter),
+			optInt(j.BagErrorsBefore), optF4(j.BagWERBefore), optInt(j.BagErrorsAfter), optF4(j.BagWERAfter))
 		rows = append(rows, r)
 	}
 	return writeCSV(rows)
@@ -368,14 +412,17 @@ func TitlesCSV(s Summary) ([]byte, error) {
 func PagesCSV(pages []Page) ([]byte, error) {
 	rows := [][]string{{"title", "page", "image", "status", "decision", "predicted_cer", "reasons",
 		"corrections", "chars", "char_errors_before", "char_errors_after", "cer_before", "cer_after",
-		"words", "word_errors_before", "word_errors_after", "wer_before", "wer_after", "error"}}
+		"words", "word_errors_before", "word_errors_after", "wer_before", "wer_after", "error",
+		"flex_errors_before", "flex_errors_after", "flex_cer_before", "flex_cer_after",
+		"bag_errors_before", "bag_errors_after", "bag_wer_before", "bag_wer_after"}}
 	for _, p := range pages {
 		status := quality.StatusOK
 		if p.Failed {
 			status = quality.StatusFailed
 		}
 		r := []string{cell(p.Title), cell(p.Page), cell(p.Rel), status, p.Decision, "", cell(strings.Join(p.Reasons, "; ")),
-			strconv.Itoa(p.Corrections), "", "", "", "", "", "", "", "", "", "", cell(p.Error)}
+			strconv.Itoa(p.Corrections), "", "", "", "", "", "", "", "", "", "", cell(p.Error),
+			"", "", "", "", "", "", "", ""}
 		if !p.Failed {
 			r[5] = f4(p.PredictedCER)
 		}
@@ -388,6 +435,18 @@ func PagesCSV(pages []Page) ([]byte, error) {
 			if p.RefWords > 0 {
 				n := float64(p.RefWords)
 				r[16], r[17] = f4(float64(p.WordErrs)/n), f4(float64(p.WordErrsAfter)/n)
+			}
+			if p.OrderFree {
+				r[19], r[20] = strconv.Itoa(p.FlexErrs), strconv.Itoa(p.FlexErrsAfter)
+				if p.RefChars > 0 {
+					n := float64(p.RefChars)
+					r[21], r[22] = f4(float64(p.FlexErrs)/n), f4(float64(p.FlexErrsAfter)/n)
+				}
+				r[23], r[24] = strconv.Itoa(p.BagErrs), strconv.Itoa(p.BagErrsAfter)
+				if p.RefWords > 0 {
+					n := float64(p.RefWords)
+					r[25], r[26] = f4(float64(p.BagErrs)/n), f4(float64(p.BagErrsAfter)/n)
+				}
 			}
 		}
 		rows = append(rows, r)

@@ -2,6 +2,7 @@ package run
 
 import (
 	"context"
+	"encoding/json"
 	"fmt"
 	"image"
 	"sync"
@@ -19,6 +20,7 @@ import (
 type toolkit struct {
 	fingerprint  string // short hash of settingsJSON
 	settingsJSON string // the settings that change a page's results
+	aboutJSON    string // how the figures are made, for the report's header (about.go)
 
 	newRecogniser func() (recogniser, error)
 	write         func(dir, rel string, rec *ocr.Record, prepared *image.Gray, a ocr.ALTOOptions) error
@@ -139,6 +141,12 @@ func newToolkit(o Options) (*toolkit, error) {
 		return correctorFor(clex, cmodel, ccfg).CorrectRecord(r)
 	}
 	tk.fingerprint, tk.settingsJSON = fingerprint(settings)
+	about, err := describe(o, model, lexFiles, lex)
+	if err != nil {
+		return nil, err
+	}
+	b, _ := json.Marshal(about)
+	tk.aboutJSON = string(b)
 	if custom {
 		tk.newRecogniser = func() (recogniser, error) {
 			e, err := o.NewEngine()

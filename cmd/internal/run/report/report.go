@@ -22,11 +22,13 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
+	"image"
 	"os"
 	"path/filepath"
 	"sort"
 	"strconv"
 	"strings"
+	"time"
 	"unicode/utf8"
 
 	"recto/internal/atomicfile"
@@ -75,6 +77,12 @@ type Page struct {
 	Snippet string // start of the final OCR text, shown for the worst pages
 
 	Warnings []string // what a step said about the page that did not stop it
+
+	// ThumbKey names the page's thumbnail in the report folder
+	// (thumbs/<ThumbKey>.png), made once by Options.Thumb; it must change
+	// when the image does (the run uses the image's SHA-256 and page
+	// number). "" means no thumbnail.
+	ThumbKey string
 }
 
 // CER returns the page's measured CER before and after correction; ok is
@@ -92,12 +100,51 @@ func (p Page) CER() (before, after float64, ok bool) {
 // page. ok is false when no interval can be given (e.g. too few pages).
 type IntervalFunc func(errs, chars []int) (lo, hi float64, ok bool)
 
+// Named is a file the run used, with its SHA-256 (hex).
+type Named struct {
+	Name   string `json:"name"`
+	SHA256 string `json:"sha256,omitempty"`
+}
+
+// About says how the run's figures were made; the HTML report opens with
+// it. Every field may be empty (a ledger written before it was recorded).
+type About struct {
+	Collection   string    `json:"collection,omitempty"`    // the collection folder
+	First        time.Time `json:"first"`                   // first page recorded (UTC); zero when unknown
+	Last         time.Time `json:"last"`                    // last page recorded (UTC)
+	Recto        string    `json:"recto,omitempty"`         // recto version of the run
+	Engine       string    `json:"engine,omitempty"`        // recognition engine and version, "Tesseract 5.3.0"
+	Lang         string    `json:"lang,omitempty"`          // engine languages, "eng+deu"
+	Correct      float64   `json:"correct,omitempty"`       // predicted CER above which a page is corrected
+	Rescan       float64   `json:"rescan,omitempty"`        // predicted CER above which a page is rescanned
+	RescanFactor float64   `json:"rescan_factor,omitempty"` // the quality model's factor on Rescan for page records; 0 or 1 means none
+
+	QualityModel    string  `json:"quality_model,omitempty"` // file name, or "embedded (...)"
+	QualityModelSum string  `json:"quality_model_sha256,omitempty"`
+	Lexicons        []Named `json:"lexicons,omitempty"`
+
+	Normalisation string `json:"normalisation,omitempty"` // of the texts before CER and WER
+	Interval      string `json:"interval,omitempty"`      // how the 95 % intervals are made
+}
+
 // Options tune the reports. The zero value is valid.
 type Options struct {
 	Name     string       // collection name shown in the HTML heading; "" means "Collection"
 	Interval IntervalFunc // 95 % confidence intervals for measured rates; nil means none
 	Worst    int          // worst pages listed in the HTML; 0 means 25
 	Partial  string       // when not "", the report covers part of the run: why (shown at the top of the HTML)
+	About    About        // how the figures were made: the HTML's header
+
+	// TargetCER is the CER (after correction) the institution declared
+	// for each title, in [0, 1]; 0 means none: the HTML says per title
+	// whether its 95 % interval lies below it.
+	TargetCER float64
+
+	// Thumb returns a page's image for its thumbnail; the HTML calls it
+	// only for the pages it lists with a ThumbKey whose thumbnail is not
+	// in the report folder yet. nil means no thumbnails are made (those
+	// already made are still shown).
+	Thumb func(Page) (image.Image, error)
 
 	// Snippet returns the start of a page's final text; the HTML calls it
 	// only for the worst pages it lists whose Snippet is empty. nil means
@@ -241,7 +288,7 @@ func Write(dir string, pages []Page, o Options) error {
 		{"titles.json", func() ([]byte, error) { return TitlesJSON(s) }},
 		{"pages.csv", func() ([]byte, error) { return PagesCSV(pages) }},
 		{"rescan.csv", func() ([]byte, error) { return RescanCSV(pages) }},
-		{"report.html", func() ([]byte, error) { return HTML(s, pages, o) }},
+		{"report.html", func() ([]byte, error) { return htmlIn(dir, s, pages, o) }},
 	}
 	for _, f := range files {
 		data, err := f.build()

@@ -132,8 +132,8 @@ type htmlData struct {
 	Half      string     // SampleHalfWidth in points, "1"
 }
 
-// HTML renders the self-contained report page, with the thumbnails that
-// already exist in no folder (none): Write shows and makes them.
+// HTML renders the self-contained report page without thumbnails (they
+// live in the report folder: Write makes and shows them).
 func HTML(s Summary, pages []Page, o Options) ([]byte, error) { return htmlIn("", s, pages, o) }
 
 // htmlIn renders the report page for the report folder dir, where the

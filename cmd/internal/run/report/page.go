@@ -88,7 +88,7 @@ th[data-dir]::after{content:""}
 
 <section id="titles-section">
 <h2>Titles</h2>
-<p class="hint">Click a column heading to sort. Rates are pooled over each title's pages with ground truth; the intervals are in each title's section below.</p>
+<p class="hint">Click a column heading (or focus it and press Enter) to sort. Rates are pooled over each title's pages with ground truth; the intervals are in each title's section below.</p>
 <table class="sortable" id="titles">
 <caption>Titles at a glance</caption>
 <thead><tr><th scope="col" class="l">Title</th><th scope="col">Pages</th><th scope="col">Failed</th>{{range .Decisions}}<th scope="col">{{.}}</th>{{end}}<th scope="col">Mean predicted CER</th><th scope="col">Pages with truth</th><th scope="col">CER before</th><th scope="col">CER after</th>{{range .RateHeads}}<th scope="col">{{.}}</th>{{end}}<th scope="col">Corrections</th></tr></thead>
@@ -178,10 +178,15 @@ th[data-dir]::after{content:""}
 document.querySelectorAll("table.sortable").forEach(function(table){
   var heads = table.tHead.rows[0].cells;
   Array.prototype.forEach.call(heads, function(th, col){
+    th.tabIndex = 0;
+    th.addEventListener("keydown", function(e){
+      if (e.key === "Enter" || e.key === " ") { e.preventDefault(); th.click(); }
+    });
     th.addEventListener("click", function(){
       var asc = th.getAttribute("data-dir") !== "asc";
-      Array.prototype.forEach.call(heads, function(h){ h.removeAttribute("data-dir"); });
+      Array.prototype.forEach.call(heads, function(h){ h.removeAttribute("data-dir"); h.removeAttribute("aria-sort"); });
       th.setAttribute("data-dir", asc ? "asc" : "desc");
+      th.setAttribute("aria-sort", asc ? "ascending" : "descending");
       var body = table.tBodies[0];
       var rows = Array.prototype.slice.call(body.rows);
       rows.sort(function(a, b){

@@ -108,10 +108,12 @@ type Named struct {
 
 // About says how the run's figures were made; the HTML report opens with
 // it. Every field may be empty (a ledger written before it was recorded).
+// The run keeps it in its ledger as JSON, without the times, which come
+// from the pages.
 type About struct {
 	Collection   string    `json:"collection,omitempty"`    // the collection folder
-	First        time.Time `json:"first"`                   // first page recorded (UTC); zero when unknown
-	Last         time.Time `json:"last"`                    // last page recorded (UTC)
+	First        time.Time `json:"-"`                       // first page recorded (UTC); zero when unknown
+	Last         time.Time `json:"-"`                       // last page recorded (UTC)
 	Recto        string    `json:"recto,omitempty"`         // recto version of the run
 	Engine       string    `json:"engine,omitempty"`        // recognition engine and version, "Tesseract 5.3.0"
 	Lang         string    `json:"lang,omitempty"`          // engine languages, "eng+deu"

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"encoding/json"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -263,5 +264,40 @@ func TestClean(t *testing.T) {
 		if got := Clean(tt.in); got != tt.want {
 			t.Errorf("Clean(%q) = %q, want %q", tt.in, got, tt.want)
 		}
+	}
+}
+
+// TestChartColoursInGreyscale: the two bar series of the charts stay
+// apart when printed in grey. Their fills, read from the page's style
+// sheet, must differ in relative luminance by a contrast ratio of at least
+// 3:1, the figure WCAG 2.1 asks of graphical objects (W3C, Web Content
+// Accessibility Guidelines 2.1, 2018, success criterion 1.4.11, with its
+// definitions of relative luminance and contrast ratio).
+func TestChartColoursInGreyscale(t *testing.T) {
+	fill := func(class string) float64 {
+		i := strings.Index(pageHTML, "."+class+"{fill:#")
+		if i < 0 {
+			t.Fatalf("no fill for .%s in the style sheet", class)
+		}
+		hex := pageHTML[i+len(class)+8 : i+len(class)+14]
+		var rgb [3]float64
+		for k := range rgb {
+			var v int
+			if _, err := fmt.Sscanf(hex[2*k:2*k+2], "%02x", &v); err != nil {
+				t.Fatalf(".%s fill %q: %v", class, hex, err)
+			}
+			c := float64(v) / 255
+			if c <= 0.03928 {
+				rgb[k] = c / 12.92
+			} else {
+				rgb[k] = math.Pow((c+0.055)/1.055, 2.4)
+			}
+		}
+		return 0.2126*rgb[0] + 0.7152*rgb[1] + 0.0722*rgb[2]
+	}
+	a, b := fill("pred"), fill("meas")
+	ratio := (max(a, b) + 0.05) / (min(a, b) + 0.05)
+	if ratio < 3 {
+		t.Errorf("predicted and measured bars: contrast ratio %.2f in greyscale, want at least 3", ratio)
 	}
 }

@@ -231,7 +231,7 @@ func aboutRows(a About, total Title, target string) []aboutRow {
 		switch {
 		case l.Format("20060102") != f.Format("20060102"):
 			when = f.Format("2 January 2006, 15:04") + " to " + l.Format("2 January 2006, 15:04") + " UTC"
-		case !l.Equal(f):
+		case l.Format("15:04") != f.Format("15:04"):
 			when = f.Format("2 January 2006, 15:04") + "–" + l.Format("15:04") + " UTC"
 		}
 		when += " (first and last page recorded)"

@@ -47,7 +47,8 @@ section.title{break-inside:auto}
 a{color:inherit;text-decoration:none}
 th{background:#e6e6e6;-webkit-print-color-adjust:exact;print-color-adjust:exact}
 svg,.key{-webkit-print-color-adjust:exact;print-color-adjust:exact}
-#titles{font-size:7.5pt}#titles th,#titles td{padding:.15em .25em}
+#titles{font-size:7pt}#titles th,#titles td{padding:.15em .2em}#titles td{white-space:nowrap}
+.keep{break-after:avoid;page-break-after:avoid}
 .snip{max-width:18em;font-size:7.5pt}
 img.thumb{width:12mm;height:auto}
 tbody th[scope=row]{background:none}
@@ -100,7 +101,7 @@ th[data-dir]::after{content:""}
 
 <section id="per-title">
 <h2>Each title</h2>
-<p><span class="key pred" aria-hidden="true"></span>predicted CER (every processed page) <span class="key meas" aria-hidden="true"></span>measured CER before correction (pages with ground truth). In the scatter chart each dot is a page with ground truth, its predicted CER across and its measured CER up, in percent; the dashed line is a perfect estimate.</p>
+<p class="keep"><span class="key pred" aria-hidden="true"></span>predicted CER (every processed page) <span class="key meas" aria-hidden="true"></span>measured CER before correction (pages with ground truth). In the scatter chart each dot is a page with ground truth, its predicted CER across and its measured CER up, in percent; the dashed line is a perfect estimate.</p>
 {{range .Titles}}<section class="title" id="{{.Anchor}}">
 <h3>{{.Title.Title}}</h3>
 <table class="facts">

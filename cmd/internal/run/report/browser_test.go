@@ -79,7 +79,8 @@ document.body.appendChild(p);
 
 // TestHTMLPrintsToPDF prints report.html on A4 in headless Chromium
 // (--print-to-pdf) and reads the PDF's text back with pdftotext (Debian's
-// poppler-utils): every title's name, its pages and ground truth, every
+// poppler-utils, -raw: the text in the order it is drawn, so a table
+// cell's lines stay together): every title's name, its pages and ground truth, every
 // rate with its interval before and after correction, the target and
 // sampling sentences, and every listed page with its measured and
 // predicted CER are in the printed document. The page size is A4 (ISO
@@ -105,7 +106,7 @@ func TestHTMLPrintsToPDF(t *testing.T) {
 	if !strings.Contains(string(info), "(A4)") {
 		t.Errorf("PDF is not A4:\n%s", info)
 	}
-	out, err := exec.Command("pdftotext", "-enc", "UTF-8", pdf, "-").Output()
+	out, err := exec.Command("pdftotext", "-raw", "-enc", "UTF-8", pdf, "-").Output()
 	if err != nil {
 		t.Fatalf("pdftotext: %v", err)
 	}

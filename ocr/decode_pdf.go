@@ -55,7 +55,34 @@ func poppler(ctx context.Context, tool string, args ...string) ([]byte, error) {
 		}
 		return nil, fmt.Errorf("%s: %s", tool, msg)
 	}
+	if msg := damagedData(stderr.String()); msg != "" {
+		return nil, fmt.Errorf("%s: the page's image data is damaged: %s", tool, msg)
+	}
 	return stdout.Bytes(), nil
+}
+
+// damagedData returns the first error poppler reported while decoding an
+// image's compressed data, or "". Poppler then still writes an image and
+// exits 0, with a garbled page (a Flate stream overwritten in the middle
+// gives "Syntax Error (102322): Bad uncompressed block length in flate
+// stream"), which must not be read as if it were the scan. Other syntax
+// errors (a damaged cross-reference table that poppler rebuilds) leave the
+// pixels intact and are let pass. The decoders' messages name their filter
+// (poppler's Stream.cc: flate, DCT, CCITTFax, LZW; JBIG2Stream, JPXStream).
+func damagedData(stderr string) string {
+	for line := range strings.Lines(stderr) {
+		line = strings.TrimSpace(line)
+		if !strings.HasPrefix(line, "Syntax Error") {
+			continue
+		}
+		l := strings.ToLower(line)
+		for _, f := range []string{"flate", "dct", "ccitt", "lzw", "jbig2", "jpx", "jpeg"} {
+			if strings.Contains(l, f) {
+				return line
+			}
+		}
+	}
+	return ""
 }
 
 func lastLine(s string) string {

@@ -1,6 +1,9 @@
 package quality
 
-import "slices"
+import (
+	"iter"
+	"slices"
+)
 
 // bitState is the working memory of the bit-vector method.
 type bitState struct {
@@ -45,13 +48,29 @@ func (s *bitState) column(a, b []rune) []int32 {
 // Complexity: O(⌈n/64⌉·m) time and O(σ·⌈n/64⌉) memory, where n = len(a),
 // m = len(b) and σ is the number of distinct symbols of a. For a distance
 // alone callers pass the shorter string as a.
-func (s *bitState) distance(a, b []rune) int {
+func (s *bitState) distance(a, b []rune) int { return bitDistance(s, a, b) }
+
+// bitDistance is bitState.distance over any symbol type (code points, or
+// the bytes of denseCoder for long texts).
+func bitDistance[T symbol](s *bitState, a, b []T) int {
+	d, _ := bitDistanceSeq(s, a, slices.Values(b))
+	return d
+}
+
+// bitDistanceSeq is bitDistance with b given as a sequence, read once, so
+// that a long text can be streamed from its string (longtext.go); it also
+// returns the length of b. Symbols of b that a lacks never match, so b may
+// yield any value for them.
+func bitDistanceSeq[T symbol](s *bitState, a []T, b iter.Seq[T]) (dist, m int) {
 	n := len(a)
 	if n == 0 {
-		return len(b)
+		for range b {
+			m++
+		}
+		return m, m
 	}
 	nb := (n + 63) / 64
-	s.buildPeq(a, nb)
+	buildPeqOf(s, a, nb)
 	if cap(s.pv) < nb {
 		s.pv, s.mv = make([]uint64, nb), make([]uint64, nb)
 	}
@@ -65,8 +84,9 @@ func (s *bitState) distance(a, b []rune) int {
 	zero := s.zero[:nb]
 	lastBit := uint((n - 1) % 64)
 	score := n
-	for _, c := range b {
-		eqs := s.peqOf(c, nb)
+	for c := range b {
+		m++
+		eqs := s.peqOf(rune(c), nb)
 		if eqs == nil {
 			eqs = zero
 		}
@@ -85,7 +105,7 @@ func (s *bitState) distance(a, b []rune) int {
 		hpos, hneg = ph>>lastBit&1, mh>>lastBit&1
 		score += int(hpos) - int(hneg)
 	}
-	return score
+	return score, m
 }
 
 // blockStep advances one 64-row block by one column: eq is the block's
@@ -108,7 +128,9 @@ func blockStep(eq, p, m, hpos, hneg uint64) (np, nm, ph, mh uint64) {
 
 // buildPeq fills the match vectors of a: for each distinct symbol, nb
 // words with bit i%64 of word i/64 set where a[i] is that symbol.
-func (s *bitState) buildPeq(a []rune, nb int) {
+func (s *bitState) buildPeq(a []rune, nb int) { buildPeqOf(s, a, nb) }
+
+func buildPeqOf[T symbol](s *bitState, a []T, nb int) {
 	if s.sym == nil {
 		s.sym = make(map[rune]int32)
 	}
@@ -117,7 +139,8 @@ func (s *bitState) buildPeq(a []rune, nb int) {
 		s.ascii[i] = -1
 	}
 	s.peq = s.peq[:0]
-	for i, r := range a {
+	for i, c := range a {
+		r := rune(c)
 		idx := s.symIndex(r)
 		if idx < 0 {
 			idx = int32(len(s.peq) / nb)
@@ -212,12 +235,12 @@ func bagBound[T symbol](c *bagCounter, a, b []T) int {
 type denseCoder struct {
 	ascii  [128]int16 // code of an ASCII symbol, or -1
 	other  map[rune]uint8
+	next   int // the next code to give
 	da, db []byte
 }
 
-// encode returns the byte forms of a and b, valid until the next call, or
-// false when they use more than 256 distinct symbols. O(len(a)+len(b)).
-func (c *denseCoder) encode(a, b []rune) ([]byte, []byte, bool) {
+// reset forgets every code given.
+func (c *denseCoder) reset() {
 	for i := range c.ascii {
 		c.ascii[i] = -1
 	}
@@ -225,41 +248,62 @@ func (c *denseCoder) encode(a, b []rune) ([]byte, []byte, bool) {
 		c.other = make(map[rune]uint8)
 	}
 	clear(c.other)
-	next := 0
-	code := func(r rune) (byte, bool) {
-		if r >= 0 && r < 128 {
-			if v := c.ascii[r]; v >= 0 {
-				return byte(v), true
-			}
-		} else if v, ok := c.other[r]; ok {
-			return v, true
+	c.next = 0
+}
+
+// code returns r's byte, giving it the next one if it has none, or false
+// when 256 codes are given already.
+func (c *denseCoder) code(r rune) (byte, bool) {
+	if r >= 0 && r < 128 {
+		if v := c.ascii[r]; v >= 0 {
+			return byte(v), true
 		}
-		if next == 256 {
-			return 0, false
-		}
-		v := byte(next)
-		next++
-		if r >= 0 && r < 128 {
-			c.ascii[r] = int16(v)
-		} else {
-			c.other[r] = v
-		}
+	} else if v, ok := c.other[r]; ok {
 		return v, true
 	}
+	if c.next == 256 {
+		return 0, false
+	}
+	v := byte(c.next)
+	c.next++
+	if r >= 0 && r < 128 {
+		c.ascii[r] = int16(v)
+	} else {
+		c.other[r] = v
+	}
+	return v, true
+}
+
+// encode returns the byte forms of a and b, valid until the next call, or
+// false when they use more than 256 distinct symbols. O(len(a)+len(b)).
+func (c *denseCoder) encode(a, b []rune) ([]byte, []byte, bool) {
+	c.reset()
 	var ok bool
 	c.da, c.db = slices.Grow(c.da[:0], len(a)), slices.Grow(c.db[:0], len(b))
-	if c.da, ok = appendCodes(c.da, a, code); !ok {
+	if c.da, ok = c.appendCodes(c.da, a); !ok {
 		return nil, nil, false
 	}
-	if c.db, ok = appendCodes(c.db, b, code); !ok {
+	if c.db, ok = c.appendCodes(c.db, b); !ok {
 		return nil, nil, false
 	}
 	return c.da, c.db, true
 }
 
-func appendCodes(dst []byte, s []rune, code func(rune) (byte, bool)) ([]byte, bool) {
+func (c *denseCoder) appendCodes(dst []byte, s []rune) ([]byte, bool) {
 	for _, r := range s {
-		v, ok := code(r)
+		v, ok := c.code(r)
+		if !ok {
+			return dst, false
+		}
+		dst = append(dst, v)
+	}
+	return dst, true
+}
+
+// appendString is appendCodes over the code points of a UTF-8 string.
+func (c *denseCoder) appendString(dst []byte, s string) ([]byte, bool) {
+	for _, r := range s {
+		v, ok := c.code(r)
 		if !ok {
 			return dst, false
 		}

@@ -167,7 +167,7 @@ func slide[T symbol](a, b []T, row, k int) int {
 
 // trimCommon drops the common prefix and suffix of a and b, which every
 // optimal alignment matches (a classical property of the edit distance).
-func trimCommon(a, b []rune) ([]rune, []rune) {
+func trimCommon[T symbol](a, b []T) ([]T, []T) {
 	p := 0
 	for p < len(a) && p < len(b) && a[p] == b[p] {
 		p++

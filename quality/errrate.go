@@ -13,6 +13,10 @@ type Counts struct {
 	WordErrors int // word edits (Levenshtein distance over words)
 	FlexErrors int // errors of the flexible character accuracy, over Chars (see flex.go)
 	BagErrors  int // reference words missing from the hypothesis plus extra words, as multisets (see bag.go)
+	// FlexSkipped counts the pages whose flexible matching was not run
+	// because of their length (longtext.go); their FlexErrors are their
+	// CharErrors, an upper bound, so FlexCER is then an upper bound too.
+	FlexSkipped int
 }
 
 // Add returns the sum of c and d.
@@ -21,6 +25,7 @@ func (c Counts) Add(d Counts) Counts {
 		Chars: c.Chars + d.Chars, CharErrors: c.CharErrors + d.CharErrors,
 		Words: c.Words + d.Words, WordErrors: c.WordErrors + d.WordErrors,
 		FlexErrors: c.FlexErrors + d.FlexErrors, BagErrors: c.BagErrors + d.BagErrors,
+		FlexSkipped: c.FlexSkipped + d.FlexSkipped,
 	}
 }
 
@@ -52,17 +57,29 @@ func Compare(ref, hyp string, o NormOptions) Counts {
 	return s.Compare(ref, hyp, o)
 }
 
-// Compare is Compare with reusable scratch.
+// Compare is Compare with reusable scratch. Long texts take a path that
+// holds no code point slices (longtext.go), so that scoring costs little
+// more than the normalised texts themselves.
 func (s *Scratch) Compare(ref, hyp string, o NormOptions) Counts {
 	refRaw, hypRaw := ref, hyp
 	ref, hyp = Normalize(ref, o), Normalize(hyp, o)
-	r, h := []rune(ref), []rune(hyp)
-	c := Counts{Chars: len(r), CharErrors: s.Distance(r, h)}
-	rw, hw := WordIDs(ref, hyp)
-	c.Words, c.WordErrors = len(rw), s.Distance(rw, hw)
-	c.BagErrors = bagErrors(rw, hw)
+	var c Counts
+	c.Chars, c.CharErrors = s.textDistance(ref, hyp)
+	var ok bool
+	if len(ref)+len(hyp) >= longText {
+		c.Words, c.WordErrors, c.BagErrors, ok = s.wordErrorsLopsided(ref, hyp)
+	}
+	if !ok {
+		rw, hw := WordIDs(ref, hyp)
+		c.Words, c.WordErrors = len(rw), s.Distance(rw, hw)
+		c.BagErrors = bagErrors(rw, hw)
+	}
 	c.FlexErrors = c.CharErrors
-	if c.CharErrors > 0 {
+	switch {
+	case c.CharErrors == 0:
+	case !flexFits(refRaw, hypRaw):
+		c.FlexSkipped = 1
+	default:
 		c.FlexErrors = min(c.CharErrors, s.flex.errors(flexLines(refRaw, o), flexLines(hypRaw, o)))
 	}
 	return c
@@ -70,12 +87,14 @@ func (s *Scratch) Compare(ref, hyp string, o NormOptions) Counts {
 
 // WordIDs splits normalised ref and hyp at spaces and gives each distinct
 // word a number (from 1, in order of first appearance), so that the edit
-// distance over the numbers is the distance over words.
+// distance over the numbers is the distance over words. The words are
+// counted first, so each slice is allocated once at its size (4 bytes a
+// word) and no slice of the words themselves is made.
 func WordIDs(ref, hyp string) (r, h []rune) {
 	ids := make(map[string]rune)
 	conv := func(s string) []rune {
-		var out []rune
-		for _, w := range strings.Fields(s) {
+		out := make([]rune, 0, wordCount(s))
+		for w := range strings.FieldsSeq(s) {
 			id, ok := ids[w]
 			if !ok {
 				id = rune(len(ids) + 1)

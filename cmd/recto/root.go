@@ -133,6 +133,7 @@ corrects common OCR confusions, and measures CER and WER against ground truth.
 		newCorrectCommand(g),
 		newRunCommand(g),
 		newReportCommand(g),
+		newReviewCommand(g),
 		newMergeCommand(g),
 		newDemoCommand(g),
 		newSampleCommand(g),

@@ -164,6 +164,11 @@ func runScore(ctx context.Context, o ScoreOptions, g GlobalOptions) error {
 		g.printf("hypothesis %q has no reference: not scored",
 			filepath.Join(o.OCR, filepath.FromSlash(u)))
 	}
+	for _, p := range rep.Pages {
+		if p.FlexSkipped > 0 {
+			g.printf("page %q: %s", p.Page, quality.FlexSkippedNote)
+		}
+	}
 	switch o.Format {
 	case "json":
 		err = writeScoreJSON(g.stdout, rep)

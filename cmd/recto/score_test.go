@@ -258,3 +258,28 @@ func write(t testing.TB, path, text string) {
 		t.Fatal(err)
 	}
 }
+
+// TestScoreSaysWhenFlexIsSkipped: a ground truth too long for the
+// order-free matching (a whole volume in one file, issue #16) is scored,
+// and the command says that its flex_cer is only an upper bound.
+func TestScoreSaysWhenFlexIsSkipped(t *testing.T) {
+	truth, ocrDir := t.TempDir(), t.TempDir()
+	line := "The ferry from Halvik left at nine and came back at noon.\n"
+	volume := strings.Repeat(line, (1<<20)/len(line)+100) // more than 1,048,576 characters
+	if err := os.WriteFile(filepath.Join(truth, "volume.txt"), []byte(volume), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(ocrDir, "volume.txt"), []byte("The ferry from Halvik left at nlne."), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out, stderr, err := runRecto(t, "score", "--truth", truth, "--ocr", ocrDir, "--format", "csv")
+	if err != nil {
+		t.Fatalf("score: %v\n%s", err, stderr)
+	}
+	if !strings.Contains(stderr, `page "volume": too long for the order-free matching`) {
+		t.Errorf("stderr does not say the flexible matching was skipped:\n%s", stderr)
+	}
+	if !strings.Contains(out, "volume") {
+		t.Errorf("the page is not in the report:\n%s", out)
+	}
+}

@@ -56,9 +56,10 @@ const suffixChanges = ".changes.jsonl"
 // writeChanges writes dir/changes.jsonl: the change lists of the pages in
 // rows (the files ending in suffixChanges among their outputs, under
 // outDir), joined in the order of their page names, as recto correct
-// orders its pages. A page without such a file adds nothing.
-func writeChanges(dir, outDir string, rows []ledger.Page) error {
-	type part struct{ page, file string }
+// orders its pages. A page without such a file adds nothing; changes
+// rejected in review (reviews) are marked Blocked (markRejected).
+func writeChanges(dir, outDir string, rows []ledger.Page, reviews map[string]ledger.Review) error {
+	type part struct{ page, file, rel string }
 	var parts []part
 	for _, r := range rows {
 		if r.State != ledger.StateDone {
@@ -66,7 +67,7 @@ func writeChanges(dir, outDir string, rows []ledger.Page) error {
 		}
 		for _, o := range r.Outputs {
 			if strings.HasSuffix(o, suffixChanges) {
-				parts = append(parts, part{r.Page, filepath.Join(outDir, filepath.FromSlash(o))})
+				parts = append(parts, part{r.Page, filepath.Join(outDir, filepath.FromSlash(o)), r.Rel})
 			}
 		}
 	}
@@ -75,6 +76,9 @@ func writeChanges(dir, outDir string, rows []ledger.Page) error {
 	for _, p := range parts {
 		data, err := os.ReadFile(p.file)
 		if err != nil {
+			return fmt.Errorf("changes of page %q: %w", p.page, err)
+		}
+		if data, err = markRejected(data, reviews[p.rel]); err != nil {
 			return fmt.Errorf("changes of page %q: %w", p.page, err)
 		}
 		buf.Write(data)

@@ -170,11 +170,15 @@ func Merge(ctx context.Context, o MergeOptions) (MergeSummary, error) {
 	if err := l.SetMeta(ctx, metaPartial, sum.Partial); err != nil {
 		return sum, fmt.Errorf("merge: %w", err)
 	}
+	reviews, err := l.Reviews(ctx)
+	if err != nil {
+		return sum, fmt.Errorf("merge: %w", err)
+	}
 	m, err := readReportMeta(ctx, l)
 	if err != nil {
 		return sum, fmt.Errorf("merge: %w", err)
 	}
-	if err := buildPartialReports(repDir, dst, root, rows, cerInterval, sum.Partial, m); err != nil {
+	if err := buildPartialReports(repDir, dst, root, rows, reviews, cerInterval, sum.Partial, m); err != nil {
 		return sum, err
 	}
 	sum.Ledgers, sum.Taken, sum.Pages = len(paths), n, len(rows)

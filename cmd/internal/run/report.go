@@ -75,7 +75,11 @@ func ReportWith(ctx context.Context, dir string, o ReportOptions) (string, error
 	if o.TargetCER > 0 {
 		m.Target = o.TargetCER
 	}
-	if err := buildPartialReports(repDir, abs, root, rows, cerInterval, partial, m); err != nil {
+	reviews, err := l.Reviews(ctx)
+	if err != nil {
+		return "", fmt.Errorf("report: %w", err)
+	}
+	if err := buildPartialReports(repDir, abs, root, rows, reviews, cerInterval, partial, m); err != nil {
 		return "", err
 	}
 	return filepath.Join(repDir, "report.html"), nil
@@ -113,16 +117,17 @@ func readReportMeta(ctx context.Context, l *ledger.Ledger) (reportMeta, error) {
 	return m, nil
 }
 
-// buildReports writes the reports of rows into repDir. Links to images and
-// texts are relative to repDir where possible, so a copied run folder and
-// collection keep working.
-func buildReports(repDir, outDir, root string, rows []ledger.Page, ci report.IntervalFunc, m reportMeta) error {
-	return buildPartialReports(repDir, outDir, root, rows, ci, "", m)
+// buildReports writes the reports of rows into repDir, with the decisions
+// and corrections of reviews (reviewed.go) applied, and the run's
+// description m. Links to images and texts are relative to repDir where
+// possible, so a copied run folder and collection keep working.
+func buildReports(repDir, outDir, root string, rows []ledger.Page, reviews map[string]ledger.Review, ci report.IntervalFunc, m reportMeta) error {
+	return buildPartialReports(repDir, outDir, root, rows, reviews, ci, "", m)
 }
 
 // buildPartialReports is buildReports for a report that covers part of a
 // run; partial says why (a merge without all its shards).
-func buildPartialReports(repDir, outDir, root string, rows []ledger.Page, ci report.IntervalFunc, partial string, m reportMeta) error {
+func buildPartialReports(repDir, outDir, root string, rows []ledger.Page, reviews map[string]ledger.Review, ci report.IntervalFunc, partial string, m reportMeta) error {
 	rows = present(rows) // pages gone from the collection are left out
 	if err := writeFailureReports(repDir, rows); err != nil {
 		return err
@@ -149,6 +154,16 @@ func buildPartialReports(repDir, outDir, root string, rows []ledger.Page, ci rep
 			full := filepath.Join(outDir, filepath.FromSlash(t))
 			p.Text = relLink(repDir, full)
 			texts[p.Rel] = full
+		}
+		if rev, ok := reviews[r.Rel]; ok {
+			full, err := applyReview(&p, r, rev, outDir)
+			if err != nil {
+				return err
+			}
+			if full != "" {
+				p.Text = relLink(repDir, full)
+				texts[p.Rel] = full
+			}
 		}
 		pages[i] = p
 	}
@@ -178,7 +193,7 @@ func buildPartialReports(repDir, outDir, root string, rows []ledger.Page, ci rep
 	}
 	// corrected/changes.jsonl beside the report folder, as recto correct
 	// writes it in its --out folder.
-	if err := writeChanges(filepath.Join(filepath.Dir(repDir), correctedDir), outDir, rows); err != nil {
+	if err := writeChanges(filepath.Join(filepath.Dir(repDir), correctedDir), outDir, rows, reviews); err != nil {
 		return fmt.Errorf("run: %w", err)
 	}
 	return nil

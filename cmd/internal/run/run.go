@@ -380,11 +380,15 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 	if err != nil {
 		return sum, fmt.Errorf("run: %w", err)
 	}
+	reviews, err := l.Reviews(ctx) // what recto review decided (reviewed.go)
+	if err != nil {
+		return sum, fmt.Errorf("run: %w", err)
+	}
 	m, err := readReportMeta(ctx, l)
 	if err != nil {
 		return sum, fmt.Errorf("run: %w", err)
 	}
-	if err := buildReports(repDir, st.outDir, root, rows, st.tk.interval, m); err != nil {
+	if err := buildReports(repDir, st.outDir, root, rows, reviews, st.tk.interval, m); err != nil {
 		return sum, err
 	}
 	sum.Report = filepath.Join(repDir, "report.html")

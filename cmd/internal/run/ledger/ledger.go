@@ -229,7 +229,10 @@ func OpenReadOnly(path string) (*Ledger, error) {
 	return openDB(path, true)
 }
 
-func openDB(path string, readOnly bool) (*Ledger, error) {
+// dsn is the database/sql name of the ledger at path: a 10 s busy
+// timeout; read-only, or WAL with a sync per commit; with immediate,
+// every transaction takes the write lock when it begins.
+func dsn(path string, readOnly, immediate bool) string {
 	q := url.Values{}
 	q.Add("_pragma", "busy_timeout(10000)")
 	if readOnly {
@@ -237,8 +240,15 @@ func openDB(path string, readOnly bool) (*Ledger, error) {
 	} else {
 		q.Add("_pragma", "journal_mode(WAL)")
 		q.Add("_pragma", "synchronous(FULL)")
+		if immediate {
+			q.Add("_txlock", "immediate")
+		}
 	}
-	db, err := sql.Open("sqlite", "file:"+path+"?"+q.Encode())
+	return "file:" + path + "?" + q.Encode()
+}
+
+func openDB(path string, readOnly bool) (*Ledger, error) {
+	db, err := sql.Open("sqlite", dsn(path, readOnly, false))
 	if err != nil {
 		return nil, fmt.Errorf("ledger: %q: %w", path, err)
 	}

@@ -61,7 +61,7 @@ th[data-dir]::after{content:""}
 <h1>OCR quality report: {{.Name}}</h1>
 {{with .Partial}}<p class="partial"><strong>Partial report:</strong> {{.}}</p>
 {{end}}<p>{{count .Total.Pages}} pages in {{len .Titles}} titles; {{.Total.Failed}} failed.
-{{range .Decisions}}{{.}}: {{dec $.Total.Decisions .}}. {{end}}</p>
+{{range .Decisions}}{{.}}: {{dec $.Total.Decisions .}}. {{end}}{{with .Total.Reviewed}}{{.}} pages reviewed in recto review. {{end}}</p>
 </header>
 
 <section id="about">
@@ -129,7 +129,7 @@ th[data-dir]::after{content:""}
 <table id="worst">
 <thead><tr><th scope="col" class="l">Page</th><th scope="col" class="l">Scan</th><th scope="col">Measured CER after correction</th><th scope="col">Measured CER before correction</th><th scope="col">Predicted CER</th><th scope="col" class="l">Decision</th><th scope="col" class="l">Why</th><th scope="col" class="l">Files</th><th scope="col" class="l">Start of text</th></tr></thead>
 <tbody>
-{{range .Worst}}<tr><th scope="row" class="l">{{.Rel}}</th><td class="l">{{template "thumb" .}}</td><td>{{.Measured}}</td><td>{{.MeasBefore}}</td><td>{{.Predicted}}</td><td class="l">{{.Decision}}</td><td class="l">{{reasons .Reasons}}</td><td class="l">{{template "files" .}}</td><td class="snip">{{.Snippet}}</td></tr>
+{{range .Worst}}<tr><th scope="row" class="l">{{.Rel}}</th><td class="l">{{template "thumb" .}}</td><td>{{.Measured}}</td><td>{{.MeasBefore}}</td><td>{{.Predicted}}</td><td class="l">{{.Decision}}{{if .Reviewed}} <small>reviewed</small>{{end}}</td><td class="l">{{reasons .Reasons}}</td><td class="l">{{template "files" .}}</td><td class="snip">{{.Snippet}}</td></tr>
 {{else}}<tr><td class="l" colspan="9">No processed pages with text.</td></tr>
 {{end}}</tbody>
 </table>
@@ -140,7 +140,7 @@ th[data-dir]::after{content:""}
 <table id="notext">
 <thead><tr><th scope="col" class="l">Page</th><th scope="col" class="l">Scan</th><th scope="col" class="l">Decision</th><th scope="col">Predicted CER</th><th scope="col" class="l">Why</th><th scope="col" class="l">Files</th></tr></thead>
 <tbody>
-{{range .NoText}}<tr><th scope="row" class="l">{{.Rel}}</th><td class="l">{{template "thumb" .}}</td><td class="l">{{.Decision}}</td><td>{{.Predicted}}</td><td class="l">{{reasons .Reasons}}</td><td class="l">{{template "files" .}}</td></tr>
+{{range .NoText}}<tr><th scope="row" class="l">{{.Rel}}</th><td class="l">{{template "thumb" .}}</td><td class="l">{{.Decision}}{{if .Reviewed}} <small>reviewed</small>{{end}}</td><td>{{.Predicted}}</td><td class="l">{{reasons .Reasons}}</td><td class="l">{{template "files" .}}</td></tr>
 {{end}}</tbody>
 </table>
 </section>

@@ -83,6 +83,12 @@ type Page struct {
 	// when the image does (the run uses the image's SHA-256 and page
 	// number). "" means no thumbnail.
 	ThumbKey string
+
+	// Reviewed is who confirmed or changed the decision, or judged the
+	// corrections, in recto review; "" when nobody did. Decision,
+	// Reasons and Corrections are then the reviewed ones.
+	Reviewed   string
+	ReviewNote string // the reviewer's note, may be ""
 }
 
 // CER returns the page's measured CER before and after correction; ok is
@@ -177,6 +183,7 @@ type Title struct {
 	WERBefore        *Measured      `json:"wer_before,omitempty"`
 	WERAfter         *Measured      `json:"wer_after,omitempty"`
 	Corrections      int            `json:"corrections"`
+	Reviewed         int            `json:"reviewed"` // pages reviewed in recto review
 
 	// Order-free rates, pooled like CER and WER; nil without ground truth
 	// or when a page with ground truth lacks them (older ledgers).
@@ -229,6 +236,9 @@ func sumTitle(name string, pages []Page, o Options) Title {
 		predSum += p.PredictedCER
 		t.Decisions[p.Decision]++
 		t.Corrections += p.Corrections
+		if p.Reviewed != "" {
+			t.Reviewed++
+		}
 		if p.HasTruth {
 			t.TruthPages++
 			ce, cc, ceA = append(ce, p.CharErrs), append(cc, p.RefChars), append(ceA, p.CharErrsAfter)
@@ -366,7 +376,7 @@ var titleHead = append(append([]string{"title", "pages", "failed"}, Decisions...
 	"mean_predicted_cer", "truth_pages", "chars", "words",
 	"char_errors_before", "cer_before", "cer_low_before", "cer_high_before",
 	"char_errors_after", "cer_after", "cer_low_after", "cer_high_after",
-	"word_errors_before", "wer_before", "word_errors_after", "wer_after", "corrections",
+	"word_errors_before", "wer_before", "word_errors_after", "wer_after", "corrections", "reviewed",
 	"flex_errors_before", "flex_cer_before", "flex_errors_after", "flex_cer_after",
 	"bag_errors_before", "bag_wer_before", "bag_errors_after", "bag_wer_after")
 
@@ -394,6 +404,7 @@ type titleJSON struct {
 	WordErrorsAfter  *int           `json:"word_errors_after"`
 	WERAfter         *float64       `json:"wer_after"`
 	Corrections      int            `json:"corrections"`
+	Reviewed         int            `json:"reviewed"`
 	FlexErrorsBefore *int           `json:"flex_errors_before"`
 	FlexCERBefore    *float64       `json:"flex_cer_before"`
 	FlexErrorsAfter  *int           `json:"flex_errors_after"`
@@ -410,7 +421,7 @@ func (t Title) MarshalJSON() ([]byte, error) { return json.Marshal(flat(t)) }
 // flat spreads t's measured rates into columns.
 func flat(t Title) titleJSON {
 	j := titleJSON{Title: t.Title, Pages: t.Pages, Failed: t.Failed, Decisions: t.Decisions,
-		MeanPredictedCER: t.MeanPredictedCER, TruthPages: t.TruthPages, Corrections: t.Corrections}
+		MeanPredictedCER: t.MeanPredictedCER, TruthPages: t.TruthPages, Corrections: t.Corrections, Reviewed: t.Reviewed}
 	parts := func(m *Measured) (units, errs *int, rate, lo, hi *float64) {
 		if m == nil {
 			return nil, nil, nil, nil, nil
@@ -449,7 +460,7 @@ func TitlesCSV(s Summary) ([]byte, error) {
 			optInt(j.CharErrorsBefore), optF4(j.CERBefore), optF4(j.CERLowBefore), optF4(j.CERHighBefore),
 			optInt(j.CharErrorsAfter), optF4(j.CERAfter), optF4(j.CERLowAfter), optF4(j.CERHighAfter),
 			optInt(j.WordErrorsBefore), optF4(j.WERBefore), optInt(j.WordErrorsAfter), optF4(j.WERAfter),
-			strconv.Itoa(t.Corrections),
+			strconv.Itoa(t.Corrections), strconv.Itoa(t.Reviewed),
 			optInt(j.FlexErrorsBefore), optF4(j.FlexCERBefore), optInt(j.FlexErrorsAfter), optF4(j.FlexCERAfter),
 			optInt(j.BagErrorsBefore), optF4(j.BagWERBefore), optInt(j.BagErrorsAfter), optF4(j.BagWERAfter))
 		rows = append(rows, r)
@@ -461,7 +472,7 @@ func TitlesCSV(s Summary) ([]byte, error) {
 func PagesCSV(pages []Page) ([]byte, error) {
 	rows := [][]string{{"title", "page", "image", "status", "decision", "predicted_cer", "reasons",
 		"corrections", "chars", "char_errors_before", "char_errors_after", "cer_before", "cer_after",
-		"words", "word_errors_before", "word_errors_after", "wer_before", "wer_after", "error",
+		"words", "word_errors_before", "word_errors_after", "wer_before", "wer_after", "error", "reviewed", "review_note",
 		"flex_errors_before", "flex_errors_after", "flex_cer_before", "flex_cer_after",
 		"bag_errors_before", "bag_errors_after", "bag_wer_before", "bag_wer_after"}}
 	for _, p := range pages {
@@ -470,7 +481,7 @@ func PagesCSV(pages []Page) ([]byte, error) {
 			status = quality.StatusFailed
 		}
 		r := []string{cell(p.Title), cell(p.Page), cell(p.Rel), status, p.Decision, "", cell(strings.Join(p.Reasons, "; ")),
-			strconv.Itoa(p.Corrections), "", "", "", "", "", "", "", "", "", "", cell(p.Error),
+			strconv.Itoa(p.Corrections), "", "", "", "", "", "", "", "", "", "", cell(p.Error), cell(p.Reviewed), cell(p.ReviewNote),
 			"", "", "", "", "", "", "", ""}
 		if !p.Failed {
 			r[5] = f4(p.PredictedCER)
@@ -486,15 +497,15 @@ func PagesCSV(pages []Page) ([]byte, error) {
 				r[16], r[17] = f4(float64(p.WordErrs)/n), f4(float64(p.WordErrsAfter)/n)
 			}
 			if p.OrderFree {
-				r[19], r[20] = strconv.Itoa(p.FlexErrs), strconv.Itoa(p.FlexErrsAfter)
+				r[21], r[22] = strconv.Itoa(p.FlexErrs), strconv.Itoa(p.FlexErrsAfter)
 				if p.RefChars > 0 {
 					n := float64(p.RefChars)
-					r[21], r[22] = f4(float64(p.FlexErrs)/n), f4(float64(p.FlexErrsAfter)/n)
+					r[23], r[24] = f4(float64(p.FlexErrs)/n), f4(float64(p.FlexErrsAfter)/n)
 				}
-				r[23], r[24] = strconv.Itoa(p.BagErrs), strconv.Itoa(p.BagErrsAfter)
+				r[25], r[26] = strconv.Itoa(p.BagErrs), strconv.Itoa(p.BagErrsAfter)
 				if p.RefWords > 0 {
 					n := float64(p.RefWords)
-					r[25], r[26] = f4(float64(p.BagErrs)/n), f4(float64(p.BagErrsAfter)/n)
+					r[27], r[28] = f4(float64(p.BagErrs)/n), f4(float64(p.BagErrsAfter)/n)
 				}
 			}
 		}

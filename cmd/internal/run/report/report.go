@@ -487,31 +487,27 @@ func PagesCSV(pages []Page) ([]byte, error) {
 			r[5] = f4(p.PredictedCER)
 		}
 		if p.HasTruth {
-			r[8], r[9], r[10] = strconv.Itoa(p.RefChars), strconv.Itoa(p.CharErrs), strconv.Itoa(p.CharErrsAfter)
-			if b, a, ok := p.CER(); ok {
-				r[11], r[12] = f4(b), f4(a)
-			}
-			r[13], r[14], r[15] = strconv.Itoa(p.RefWords), strconv.Itoa(p.WordErrs), strconv.Itoa(p.WordErrsAfter)
-			if p.RefWords > 0 {
-				n := float64(p.RefWords)
-				r[16], r[17] = f4(float64(p.WordErrs)/n), f4(float64(p.WordErrsAfter)/n)
-			}
+			r[8], r[13] = strconv.Itoa(p.RefChars), strconv.Itoa(p.RefWords)
+			errRates(r[9:], p.CharErrs, p.CharErrsAfter, p.RefChars)
+			errRates(r[14:], p.WordErrs, p.WordErrsAfter, p.RefWords)
 			if p.OrderFree {
-				r[21], r[22] = strconv.Itoa(p.FlexErrs), strconv.Itoa(p.FlexErrsAfter)
-				if p.RefChars > 0 {
-					n := float64(p.RefChars)
-					r[23], r[24] = f4(float64(p.FlexErrs)/n), f4(float64(p.FlexErrsAfter)/n)
-				}
-				r[25], r[26] = strconv.Itoa(p.BagErrs), strconv.Itoa(p.BagErrsAfter)
-				if p.RefWords > 0 {
-					n := float64(p.RefWords)
-					r[27], r[28] = f4(float64(p.BagErrs)/n), f4(float64(p.BagErrsAfter)/n)
-				}
+				errRates(r[21:], p.FlexErrs, p.FlexErrsAfter, p.RefChars)
+				errRates(r[25:], p.BagErrs, p.BagErrsAfter, p.RefWords)
 			}
 		}
 		rows = append(rows, r)
 	}
 	return writeCSV(rows)
+}
+
+// errRates fills four cells of a pages.csv row: errors before and after
+// correction, then both as rates over units (empty when units is 0).
+func errRates(r []string, before, after, units int) {
+	r[0], r[1] = strconv.Itoa(before), strconv.Itoa(after)
+	if units > 0 {
+		n := float64(units)
+		r[2], r[3] = f4(float64(before)/n), f4(float64(after)/n)
+	}
 }
 
 // RescanHead is the header of every rescan list recto writes (the run's

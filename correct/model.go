@@ -11,6 +11,7 @@ import (
 	"math"
 	"os"
 	"sort"
+	"strings"
 	"sync"
 	"unicode/utf8"
 
@@ -125,6 +126,45 @@ func DefaultModel() *Model {
 		defaultModel = m
 	})
 	return defaultModel
+}
+
+//go:embed frk.model
+var frakturModelData []byte
+
+var (
+	frakturOnce  sync.Once
+	frakturModel *Model
+)
+
+// FrakturModel returns the embedded error model for German print in
+// Fraktur, trained on pages set in the Blankenburg blackletter (Debian
+// fonts-blankenburg, OFL-1.1) and read by Tesseract's frk model (see
+// docs/readme-languages.md). It panics only if the embedded file is broken,
+// which the package tests rule out.
+func FrakturModel() *Model {
+	frakturOnce.Do(func() {
+		m, err := readModel(bytes.NewReader(frakturModelData))
+		if err != nil {
+			panic("correct: embedded Fraktur model: " + err.Error())
+		}
+		frakturModel = m
+	})
+	return frakturModel
+}
+
+// ModelForLang returns the embedded error model for an engine language
+// list ("eng", "deu+frk", "script/Fraktur") and its name: the Fraktur
+// model when the list holds one of the engine's Fraktur models (frk,
+// Fraktur, script/Fraktur), else the default model, whose confusions are
+// those of Tesseract on Roman type.
+func ModelForLang(lang string) (*Model, string) {
+	for _, c := range strings.Split(lang, "+") {
+		switch strings.TrimSpace(c) {
+		case "frk", "Fraktur", "script/Fraktur":
+			return FrakturModel(), "embedded Fraktur (frk.model)"
+		}
+	}
+	return DefaultModel(), "embedded (default.model)"
 }
 
 // LoadModel reads a model written by Save. A file that is not a model, is

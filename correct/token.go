@@ -7,6 +7,8 @@ import (
 	"unicode/utf8"
 
 	"golang.org/x/text/unicode/norm"
+
+	"recto/lexicon"
 )
 
 // token is one whitespace-separated piece of a page.
@@ -309,12 +311,13 @@ func misreadOrdinal(core string) bool {
 
 // lookupForm is the lower-case form a core is looked up and scored in:
 // composed (Unicode normalisation form C, as the lexicon's words are), with
-// typographic apostrophes made ASCII ones.
+// typographic apostrophes made ASCII ones, the long s and ligatures as
+// plain letters (lexicon.FoldForms).
 func lookupForm(core string) string {
 	if !norm.NFC.IsNormalString(core) {
 		core = norm.NFC.String(core)
 	}
-	s := strings.ToLower(core)
+	s := lexicon.FoldForms(strings.ToLower(core))
 	if strings.ContainsAny(s, "’‘") {
 		s = strings.NewReplacer("’", "'", "‘", "'").Replace(s)
 	}
@@ -323,9 +326,14 @@ func lookupForm(core string) string {
 
 // inPageForm writes the replacement w (composed, as the lexicon has it) in
 // the normalisation form of the core it replaces: decomposed when the page
-// wrote that word decomposed, so a correction does not change how the rest
-// of the page is encoded.
+// wrote that word decomposed, and with the long s when the page's word had
+// one, so a correction does not change how the rest of the page is
+// encoded.
 func inPageForm(core, w string) string {
+	if strings.Contains(core, "ſ") {
+		// A page set with the long s gets it in the replacement too.
+		w = LongS(w)
+	}
 	if norm.NFC.IsNormalString(core) {
 		return w
 	}

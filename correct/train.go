@@ -7,6 +7,7 @@ import (
 
 	"golang.org/x/text/unicode/norm"
 
+	"recto/lexicon"
 	"recto/quality"
 )
 
@@ -156,9 +157,11 @@ func Train(pairs []Pair, o TrainOptions) *Model {
 
 // trainForm is the form texts are compared in: NFC, lower case, white space
 // runs collapsed to one space, except that line breaks are kept (as "\n",
-// read as spaces by learnOps).
+// read as spaces by learnOps), and the long s and ligatures folded to plain
+// letters as words are looked up (lexicon.FoldForms): on a Fraktur page "ſ" read
+// as "f" is learned as s→f, the confusion the corrector meets.
 func trainForm(s string) string {
-	s = strings.ToLower(norm.NFC.String(s))
+	s = lexicon.FoldForms(strings.ToLower(norm.NFC.String(s)))
 	var b strings.Builder
 	b.Grow(len(s))
 	space, nl := false, false

@@ -1,6 +1,7 @@
 package lexicon
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"os"
@@ -9,14 +10,16 @@ import (
 	"sort"
 	"strings"
 	"sync"
+
+	"recto/ocr/par"
 )
 
 // Languages. The option --lang takes the engine's language codes, "+"
 // between several ("nor", "deu", "eng+deu"): Tesseract's codes, which are
 // ISO 639-2/T codes with a few of the engine's own ("frk" for German set in
-// Fraktur). Each engine code names the lexicons that judge its words:
+// Fraktur, "Fraktur" for the Fraktur script model). Each engine code names the lexicons that judge its words:
 // "eng" the embedded English one, "nor" (Tesseract's one Norwegian model)
-// both Bokmål ("nob") and Nynorsk ("nno"), "frk" German; any other code
+// both Bokmål ("nob") and Nynorsk ("nno"), "frk" and "Fraktur" German; any other code
 // names itself. Every lexicon but English's is a file <code>.lex.gz in the
 // lexicon folder (Dir), built by `recto lexicon build --lang CODE` from the
 // Debian packages of Recipes, or by hand for any other language.
@@ -30,6 +33,34 @@ const EmbeddedEnglish = "embedded English (en.lex.gz)"
 var engineLexicons = map[string][]string{
 	"nor": {"nob", "nno"},
 	"frk": {"deu"},
+	// The engine's Fraktur script model (Debian tesseract-ocr-script-frak)
+	// reads German print in Fraktur above all.
+	"Fraktur":        {"deu"},
+	"script/Fraktur": {"deu"},
+}
+
+// optionalLexicons are used beside an engine code's lexicons when they
+// have been built, and left out silently when not: German in the
+// traditional spelling of 1901–1996 ("daß", "muß"), which print in
+// Fraktur uses, for the Fraktur codes.
+var optionalLexicons = map[string][]string{
+	"frk":            {"deu-1901"},
+	"Fraktur":        {"deu-1901"},
+	"script/Fraktur": {"deu-1901"},
+}
+
+// Optional returns the lexicon codes an engine language list uses when
+// they are there (optionalLexicons), in order, without repeats.
+func Optional(lang string) []string {
+	var out []string
+	for _, c := range splitLang(lang) {
+		for _, x := range optionalLexicons[c] {
+			if !slices.Contains(out, x) {
+				out = append(out, x)
+			}
+		}
+	}
+	return out
 }
 
 // LexiconCodes returns the lexicon codes an engine language list needs, in
@@ -88,7 +119,7 @@ func Path(code string) string { return filepath.Join(Dir(), code+".lex.gz") }
 // Selection is the lexicon chosen for a --lang value.
 type Selection struct {
 	Lang    string   // the engine language list as given, "eng" when empty
-	Codes   []string // the lexicon codes it needs (LexiconCodes)
+	Codes   []string // the lexicon codes it needs (LexiconCodes), and the optional ones found (Optional)
 	Files   []string // the lexicons loaded: EmbeddedEnglish or a file path
 	Missing []string // lexicon codes with no lexicon file; Lexicon is nil then
 
@@ -160,22 +191,21 @@ func ForLang(lang string) (*Selection, error) {
 	if len(s.Missing) > 0 {
 		return s, nil
 	}
+	for _, c := range Optional(lang) {
+		if p := Path(c); fileExists(p) && !slices.Contains(s.Files, p) {
+			s.Codes, s.Files = append(s.Codes, c), append(s.Files, p)
+		}
+	}
 	// The files are independent: read them side by side.
 	lexs := make([]*Lexicon, len(s.Files))
 	errs := make([]error, len(s.Files))
-	var wg sync.WaitGroup
-	for i, p := range s.Files {
-		if p == EmbeddedEnglish {
+	_ = par.Each(context.Background(), len(s.Files), 0, func(_, i int) { // the one worker pool
+		if p := s.Files[i]; p == EmbeddedEnglish {
 			lexs[i] = Default()
-			continue
-		}
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
+		} else {
 			lexs[i], errs[i] = loadCached(p)
-		}()
-	}
-	wg.Wait()
+		}
+	})
 	if err := errors.Join(errs...); err != nil {
 		return nil, err
 	}
@@ -279,6 +309,14 @@ var Recipes = map[string]Recipe{
 		Code: "deu", Name: "German",
 		Words:    []Input{{Path: "/usr/share/dict/ngerman", Package: "wngerman", Licence: "GPL-2+"}},
 		Hunspell: []Input{{Path: "/usr/share/hunspell/de_DE.dic", Package: "hunspell-de-de", Licence: "GPL-2+"}},
+		Catalogs: CatalogSet{Dir: "/usr/share/locale/de/LC_MESSAGES", HeldOut: []string{"bash.mo"}},
+	},
+	// German in the traditional spelling (before the 1996 reform), for
+	// Fraktur print: --lang frk and Fraktur use it beside deu.
+	"deu-1901": {
+		Code: "deu-1901", Name: "German, traditional spelling",
+		Words:    []Input{{Path: "/usr/share/dict/ogerman", Package: "wogerman", Licence: "GPL-2+"}},
+		Hunspell: []Input{{Path: "/usr/share/hunspell/de_DE-1901.dic", Package: "myspell-de-de-1901", Licence: "GPL-2+"}},
 		Catalogs: CatalogSet{Dir: "/usr/share/locale/de/LC_MESSAGES", HeldOut: []string{"bash.mo"}},
 	},
 }

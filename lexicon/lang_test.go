@@ -19,11 +19,20 @@ func TestLexiconCodes(t *testing.T) {
 		{"nor", "nob nno"},
 		{"eng+nor+deu", "eng nob nno deu"},
 		{"deu+frk", "deu"}, // Fraktur is judged as German
+		{"Fraktur", "deu"},
 		{"fra", "fra"},
 	} {
 		if got := strings.Join(LexiconCodes(c.lang), " "); got != c.want {
 			t.Errorf("LexiconCodes(%q) = %q, want %q", c.lang, got, c.want)
 		}
+	}
+	// Fraktur print uses the traditional spelling: its lexicon is used
+	// when built, never required.
+	if got := strings.Join(Optional("eng+frk"), " "); got != "deu-1901" {
+		t.Errorf("Optional(eng+frk) = %q, want deu-1901", got)
+	}
+	if got := Optional("deu"); len(got) != 0 {
+		t.Errorf("Optional(deu) = %q, want none", got)
 	}
 }
 
@@ -81,6 +90,19 @@ func TestForLang(t *testing.T) {
 	if again, _ := ForLang("eng+nor"); again.Lexicon != l {
 		t.Error("a second ForLang did not reuse the merged lexicon")
 	}
+	// Fraktur: German alone until the traditional-spelling lexicon is
+	// built, then both.
+	fdir := t.TempDir()
+	t.Setenv(EnvDir, fdir)
+	writeLex(t, fdir, "deu", "dass", "und")
+	if s, err := ForLang("frk"); err != nil || !s.Complete() || len(s.Files) != 1 || s.Lexicon.Has("daß") {
+		t.Fatalf("ForLang(frk) without deu-1901: %+v, %v; want deu alone", s, err)
+	}
+	writeLex(t, fdir, "deu-1901", "daß", "und")
+	if s, err := ForLang("frk"); err != nil || !s.Complete() || len(s.Files) != 2 || !s.Lexicon.Has("daß") || !s.Lexicon.Has("dass") {
+		t.Fatalf("ForLang(frk) with deu-1901: %+v, %v; want both", s, err)
+	}
+	t.Setenv(EnvDir, dir)
 	// A lexicon file that is not one is an error naming it, not "missing".
 	if err := os.WriteFile(filepath.Join(dir, "deu.lex.gz"), []byte("not a lexicon\n"), 0o644); err != nil {
 		t.Fatal(err)

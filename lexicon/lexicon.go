@@ -47,11 +47,34 @@ func New() *Lexicon {
 // Key is the lookup form of a word: Unicode NFC, then lower case (Unicode
 // simple case mapping, so "Straße" keys as "straße" and "ÉTÉ" as "été").
 // Diacritics are kept ("café" and "cafe" are different keys); see Fold for
-// the accent-blind form. Every lookup (Has, Count, Bigram) and the lexicon
-// file use Key.
+// the accent-blind form. The long s and the Latin ligatures U+FB00–U+FB06
+// of old print are letter forms, not other letters: they key as their plain
+// letters ("Wiſſen" as "wissen", "ﬁnden" as "finden"), so Fraktur pages are
+// judged by the same lexicon. Every lookup (Has, Count, Bigram) and the
+// lexicon file use Key.
 func Key(word string) string {
-	return strings.ToLower(norm.NFC.String(word))
+	return FoldForms(strings.ToLower(norm.NFC.String(word)))
 }
+
+// FoldForms returns s with the long s and the ligatures U+FB00–U+FB06 as
+// their plain letters.
+func FoldForms(s string) string {
+	// Every form's UTF-8 starts with byte 0xC5 (U+017F) or 0xEF
+	// (U+FB00–U+FB06): two byte scans keep the common case cheap.
+	if strings.IndexByte(s, 0xC5) < 0 && strings.IndexByte(s, 0xEF) < 0 {
+		return s
+	}
+	if strings.ContainsAny(s, letterForms) {
+		s = formFold.Replace(s)
+	}
+	return s
+}
+
+// letterForms are the long s and the ligatures Key folds (Unicode code
+// charts: U+017F, U+FB00–U+FB06).
+const letterForms = "ſﬀﬁﬂﬃﬄﬅﬆ"
+
+var formFold = strings.NewReplacer("ſ", "s", "ﬀ", "ff", "ﬁ", "fi", "ﬂ", "fl", "ﬃ", "ffi", "ﬄ", "ffl", "ﬅ", "st", "ﬆ", "st")
 
 // Fold is the accent-blind lookup form of a word: Key with combining marks
 // removed (NFD, drop Unicode category Mn, NFC), so "Café", "CAFE" and "café"

@@ -2,9 +2,11 @@ package lexicon
 
 import (
 	"errors"
+	"maps"
 	"os"
 	"path/filepath"
 	"reflect"
+	"slices"
 	"sort"
 	"strings"
 	"testing"
@@ -90,6 +92,10 @@ func TestKeyAndFold(t *testing.T) {
 		{"ÉTÉ", "été", "ete"},
 		{"Straße", "straße", "straße"}, // ß has no decomposition
 		{"Øre", "øre", "øre"},
+		// Fraktur's long s and the ligatures are letter forms (Unicode
+		// code charts U+017F, U+FB01): they key as plain letters.
+		{"Wiſſen", "wissen", "wissen"},
+		{"ﬁnden", "finden", "finden"},
 	}
 	for _, tt := range tests {
 		if got := Key(tt.in); got != tt.key {
@@ -173,7 +179,7 @@ func uniq(ws []string) []string {
 	for _, w := range ws {
 		m[w] = true
 	}
-	return sortedKeys(m)
+	return slices.Sorted(maps.Keys(m))
 }
 
 // The example affix and dictionary pair of the hunspell(5) manual page

@@ -107,6 +107,9 @@ func TestSkewAgreesWithLeptonica(t *testing.T) {
 // denoised nor binarised again; it goes to the engine as it came, clean-up
 // aside. Before, witten.tif (1-bit) was Sauvola-binarised.
 func TestBilevelNotRebinarised(t *testing.T) {
+	if testing.Short() {
+		t.Skip(longSequential)
+	}
 	dir := realPages(t)
 	for _, name := range []string{"leptonica/witten.tif", "leptonica/pageseg3.tif", "leptonica/rabi.png"} {
 		d, err := DecodeFile(filepath.Join(dir, name), DecodeOptions{})

@@ -34,6 +34,9 @@ func TestSkewRecovered(t *testing.T) {
 // TestSkewDegradedPages: the skew is found within 0.1° on noisy and
 // unevenly lit pages too (the latter takes the half-size Sauvola path).
 func TestSkewDegradedPages(t *testing.T) {
+	if testing.Short() {
+		t.Skip(longSequential)
+	}
 	page := drawPage(t, 1240, 1754, 150, pageText, 235, 30)
 	for _, tc := range []struct {
 		name  string
@@ -56,6 +59,9 @@ func TestSkewDegradedPages(t *testing.T) {
 // TestSkewAuto checks the Auto decisions: no rotation for an upright page
 // or one below MinSkew, rotation for a clear skew, and the search range.
 func TestSkewAuto(t *testing.T) {
+	if testing.Short() {
+		t.Skip(longSequential)
+	}
 	page := drawPage(t, 1240, 1754, 150, pageText, 235, 30)
 	for _, tc := range []struct {
 		angle   float64
@@ -192,3 +198,9 @@ func TestRotateMatchesImaging(t *testing.T) {
 		t.Errorf("only %d angles compared", compared)
 	}
 }
+
+// longSequential is the reason long single-threaded checks give for
+// skipping under -short: scripts/test runs the race detector with -short
+// (it makes image work about ten times slower and finds nothing in code
+// without goroutines), then the whole suite without it.
+const longSequential = "long sequential image work: runs in the pass of scripts/test without -short and the race detector"

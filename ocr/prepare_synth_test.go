@@ -16,6 +16,9 @@ import (
 // (rendered and spoilt by the synth package, independently of this one) and
 // checks what the automatic mode decided for each.
 func TestSynthKinds(t *testing.T) {
+	if testing.Short() {
+		t.Skip(longSequential)
+	}
 	const text = `The harbour board of Kestrel Point met in the customs house on the
 first Monday of March. The clerk reported that the north mole had settled
 by a hand's breadth since the autumn gales, that the light on the south

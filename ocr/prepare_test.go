@@ -72,6 +72,9 @@ var plain = PrepOptions{Denoise: Off, Deskew: Off, Cleanup: Off, Binarize: "otsu
 // and that its result is no worse than the plain greyscale-plus-Otsu
 // baseline — and clearly better where a step is meant to help.
 func TestStepsEarnTheirPlace(t *testing.T) {
+	if testing.Short() {
+		t.Skip(longSequential)
+	}
 	const w, h, dpi = 1240, 1754, 300 // the top half of an A4 page at 300 dpi
 	clean := drawPage(t, w, h, dpi, pageText, 235, 30)
 	truth := toGray(clean)

@@ -55,6 +55,9 @@ func prepareUntagged(t *testing.T, path string, tag float64) *ocr.Prepared {
 // guidance: an x-height of about 20 pixels at 10 points and 300 dpi), so
 // pages in larger type (the early printed books at 150 dpi) read high.
 func TestEstimateDPIRealPages(t *testing.T) {
+	if testing.Short() {
+		t.Skip(longSequential)
+	}
 	dir := filepath.Join(ocrtest.RealPages(t), "leptonica")
 	var errs []float64
 	within := 0
@@ -92,6 +95,9 @@ func TestEstimateDPIRealPages(t *testing.T) {
 // 600 dpi tag on type scanned at 100-150 dpi): the estimate is used, within
 // 15 % of the true resolution. Tags that fit are kept.
 func TestMisfitTagRealPages(t *testing.T) {
+	if testing.Short() {
+		t.Skip(longSequential)
+	}
 	dir := filepath.Join(ocrtest.RealPages(t), "leptonica")
 	for _, c := range []struct {
 		file      string
@@ -120,6 +126,9 @@ func TestMisfitTagRealPages(t *testing.T) {
 // a 75 dpi breviary and a faint page) and the ink of photographs,
 // paintings, drawings and engravings does not.
 func TestInkShapeRealPages(t *testing.T) {
+	if testing.Short() {
+		t.Skip(longSequential)
+	}
 	dir := filepath.Join(ocrtest.RealPages(t), "leptonica")
 	text := []string{"feyn.tif", "pageseg2.tif", "tribune-page-4x.png", "table.15.tif", "brev.56.75.jpg", "toc.99.tif",
 		"lapide.052.100.jpg", "lighttext.jpg", "words.44.tif", "breviar.38.150.jpg", "cat.007.jpg", "zanotti-78.jpg"}
@@ -139,3 +148,9 @@ func TestInkShapeRealPages(t *testing.T) {
 		}
 	}
 }
+
+// longSequential is the reason long single-threaded checks give for
+// skipping under -short: scripts/test runs the race detector with -short
+// (it makes image work about ten times slower and finds nothing in code
+// without goroutines), then the whole suite without it.
+const longSequential = "long sequential image work: runs in the pass of scripts/test without -short and the race detector"

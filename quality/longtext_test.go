@@ -16,6 +16,9 @@ import (
 // a general-purpose library directly, github.com/agnivade/levenshtein
 // v1.2.2 (counts code points).
 func TestLongTextPath(t *testing.T) {
+	if testing.Short() {
+		t.Skip(longSequential)
+	}
 	rng := rand.New(rand.NewPCG(20261203, 3))
 	words := strings.Fields("the harbour master of Wrenmouth noted that northern quay was mended ærlig søndag Grüße ſtadt 語 😀")
 	text := func(n int) string {
@@ -110,3 +113,9 @@ func TestFlexSkippedOverLimit(t *testing.T) {
 		t.Fatalf("Add: FlexSkipped = %d, want 2", sum.FlexSkipped)
 	}
 }
+
+// longSequential is the reason long single-threaded checks give for
+// skipping under -short: scripts/test runs the race detector with -short
+// (it makes image work about ten times slower and finds nothing in code
+// without goroutines), then the whole suite without it.
+const longSequential = "long sequential image work: runs in the pass of scripts/test without -short and the race detector"

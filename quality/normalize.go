@@ -35,8 +35,10 @@ type NormOptions struct {
 	// low single quotes and primes to "'", curly and low double quotes to
 	// '"', hyphen, dash and minus variants to "-", the ellipsis to "...",
 	// the Latin ligatures U+FB00–U+FB06 ("ﬁ", "ﬂ", "ﬀ", "ﬃ", "ﬄ", "ﬅ", "ﬆ")
-	// to their letters and the long s "ſ" to "s". The full table is
-	// typographyMap.
+	// to their letters and the long s "ſ" to "s"; and the Fraktur forms: the
+	// double oblique hyphen "⸗" to "-", the r rotunda "ꝛ" to "r", and the
+	// combining small e written over a vowel for the old umlaut ("aͤ") to
+	// the diaeresis ("ä"). The full table is typographyMap.
 	PlainTypography bool
 }
 
@@ -49,6 +51,11 @@ var typographyMap = map[rune]string{
 	'\u2026': "...",
 	'\uFB00': "ff", '\uFB01': "fi", '\uFB02': "fl", '\uFB03': "ffi", '\uFB04': "ffl", '\uFB05': "st", '\uFB06': "st",
 	'\u017F': "s",
+	// Fraktur print: the double oblique hyphen, r rotunda, and the small e
+	// above a vowel, the umlaut's older form (Unicode code charts U+2E17,
+	// U+A75A/B, U+0364; that these stand for "-", "r" and the diaeresis is
+	// common practice in transcribing Fraktur, from memory).
+	'\u2E17': "-", '\uA75A': "R", '\uA75B': "r", '\u0364': "\u0308",
 }
 
 // String describes the active normalisation in words, for reports.

@@ -34,6 +34,7 @@ func TestNormalize(t *testing.T) {
 		{"punct joins marks", "e.\u0301", NormOptions{IgnorePunct: true}, "é"},
 		{"punct alone", "a - b", NormOptions{IgnorePunct: true}, "a b"},
 		{"typography", "‘ſo’ “fine”—ﬁnal… ﬂ ﬀ ﬃ ﬄ ﬅ ﬆ", NormOptions{PlainTypography: true}, `'so' "fine"-final... fl ff ffi ffl st st`},
+		{"Fraktur forms", "Haus⸗\nthür woꝛt ſchoͤn Aͤrger", NormOptions{PlainTypography: true}, "Haus- thür wort schön Ärger"},
 		{"typography with punct off", "ﬁnal—“ſo”", all, "finalso"},
 		{"all", "  The  ‘Œuvre’\r\n", all, "the œuvre"},
 		// U+0149 folds to U+02BC + "n" (CaseFolding.txt); the apostrophe is

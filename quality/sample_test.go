@@ -57,6 +57,9 @@ func makeTitle(rng *rand.Rand, name string, n int, bad float64) synthTitle {
 // varies too much with the few very bad pages; it is held to 85 % here
 // and the limit is stated in docs/readme-quality.md.
 func TestSampleSimulation(t *testing.T) {
+	if testing.Short() {
+		t.Skip(longSequential)
+	}
 	sims := 1000
 	rng := rand.New(rand.NewPCG(14, 3))
 	for _, tc := range []struct {

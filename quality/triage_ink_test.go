@@ -28,6 +28,9 @@ func (failedEngine) Close() error                                               
 // of the same folder are decided picture (their scans are clean); a blank
 // synth page is blank.
 func TestTriageFromTheImage(t *testing.T) {
+	if testing.Short() {
+		t.Skip(longSequential)
+	}
 	decide := func(img image.Image, dpi float64) Verdict {
 		rec, _, err := ocr.Process(context.Background(), failedEngine{}, img, dpi, ocr.Options{})
 		if err != nil {

@@ -17,6 +17,7 @@ import (
 	"sync/atomic"
 	"time"
 
+	"recto/correct"
 	"recto/ocr/par"
 	"recto/ocr/synth"
 )
@@ -47,12 +48,16 @@ type pagePlan struct {
 	Kind     string  // a synth.Kinds name, or "level"
 	Severity float64 // t for kind "level"; -1 for named kinds
 	Seed     uint64  // the page's Degradation seed
-	Font     string
+	Font     string  // Go font name, or "<family> <style>" for a font file
+	FontFile string  // the face's file (-fonts debian/fraktur); "" for the Go fonts
+	Family   string  // type family: "go" for the Go fonts
+	Text     string  // "train" or "heldout": the passage's source is held out of training (-split fonttext)
 	SizePt   float64
 	Passage  int // index into the passage list
 	Source   string
 	D        synth.Degradation
 	Blank    bool
+	Spaced   bool // a space before , ; : ? ! (spacePunct)
 }
 
 type buildOptions struct {
@@ -64,6 +69,12 @@ type buildOptions struct {
 	Force   bool
 	OCR     string
 	DPI     int
+	Fonts   string  // "go", "debian" or "fraktur" (fontSet)
+	Split   string  // "id" (by the page id's hash) or "fonttext" (by font family and source text)
+	Lang    string  // engine language(s) for recognition; "" means eng
+	LongS   bool    // set the text with the long s (correct.LongS), as Fraktur print
+	Spaced  float64 // share of pages set with a space before , ; : ? ! (spacePunct)
+	MaxT    float64 // highest Level severity; 0 means 1
 }
 
 func runBuild(args []string) error {
@@ -72,7 +83,13 @@ func runBuild(args []string) error {
 	fs.StringVar(&o.Out, "out", "", "output `dir` (required)")
 	fs.IntVar(&o.N, "n", 300, "number of pages")
 	fs.Uint64Var(&o.Seed, "seed", 1, "corpus `seed`: equal seeds give equal corpora")
-	fs.StringVar(&o.Text, "text", "", "passage `file` (JSON lines, gzipped); default testdata/synth/passages.jsonl.gz of this module")
+	fs.StringVar(&o.Text, "text", "", "passage `files` (JSON lines, gzipped), comma-separated; default testdata/synth/passages.jsonl.gz of this module")
+	fs.StringVar(&o.Fonts, "fonts", "go", "type: `go` (the Go fonts), debian (15 families of Debian's font packages), fraktur (Debian's blackletter faces)")
+	fs.StringVar(&o.Split, "split", "id", "`split`: id (70 % fit by the page id's hash), fonttext (held-out pages have fonts and source texts never in fit), or heldout (a test corpus: every page in the held-out families)")
+	fs.StringVar(&o.Lang, "lang", "", "engine `language`(s) for recognition, e.g. frk (default eng)")
+	fs.BoolVar(&o.LongS, "long-s", false, "set the passages with the long s (Fraktur print)")
+	fs.Float64Var(&o.Spaced, "spaced-punct", 0, "`share` of pages set with a space before , ; : ? ! as older print often is")
+	fs.Float64Var(&o.MaxT, "max-severity", 1, "highest Level severity `t` (1 = unreadable)")
 	fs.IntVar(&o.Workers, "workers", 2, "pages rendered or recognised at once")
 	fs.BoolVar(&o.Force, "force", false, "write into an output dir that already holds a corpus")
 	fs.StringVar(&o.OCR, "ocr", "auto", "recognise the pages: `auto` (when the engine is available), on, off")
@@ -83,6 +100,19 @@ func runBuild(args []string) error {
 	if o.Out == "" || fs.NArg() > 0 || o.N < 1 || o.Workers < 1 || o.DPI < 50 || o.DPI > 1200 {
 		fs.Usage()
 		return errors.New("usage: go run ./tools/corpus -out DIR [-n N] [-seed S]")
+	}
+	if o.Split != "id" && o.Split != "fonttext" && o.Split != "heldout" {
+		return fmt.Errorf("-split %q: want id, fonttext or heldout", o.Split)
+	}
+	if o.MaxT <= 0 || o.MaxT > 1 {
+		return fmt.Errorf("-max-severity %g: want a value in (0, 1]", o.MaxT)
+	}
+	fams, err := fontSet(o.Fonts)
+	if err != nil {
+		return err
+	}
+	if o.Split != "id" && fams == nil {
+		return fmt.Errorf("-split %s needs -fonts debian or fraktur (families to hold out)", o.Split)
 	}
 	switch o.OCR {
 	case "auto", "on", "off":
@@ -99,14 +129,21 @@ func runBuild(args []string) error {
 	if _, err := os.Stat(filepath.Join(o.Out, "MANIFEST.tsv")); err == nil && !o.Force {
 		return fmt.Errorf("%q already holds a corpus (MANIFEST.tsv); choose another -out or pass -force", o.Out)
 	}
-	ps, err := loadPassages(o.Text)
-	if err != nil {
-		return err
+	var ps []passage
+	for _, f := range strings.Split(o.Text, ",") {
+		p, err := loadPassages(f)
+		if err != nil {
+			return err
+		}
+		ps = append(ps, p...)
 	}
 
 	start := time.Now()
 	plans := planPages(o.N, o.Seed, ps)
-	for _, split := range []string{"fit", "heldout"} {
+	if fams != nil {
+		plans = planFontPages(o, fams, ps)
+	}
+	for _, split := range splitsOf(plans) {
 		for _, sub := range []string{"truth", "images"} {
 			if err := os.MkdirAll(filepath.Join(o.Out, sub, split), 0o755); err != nil {
 				return err
@@ -115,6 +152,11 @@ func runBuild(args []string) error {
 	}
 	if err := writeManifest(filepath.Join(o.Out, "MANIFEST.tsv"), plans); err != nil {
 		return err
+	}
+	if o.LongS {
+		for i := range ps {
+			ps[i].Text = correct.LongS(ps[i].Text)
+		}
 	}
 	failed := renderAll(o, plans, ps)
 	renderTime := time.Since(start)
@@ -250,6 +292,7 @@ func planPages(n int, seed uint64, ps []passage) []pagePlan {
 		pr := rand.New(rand.NewPCG(splitmix64(seed^uint64(i)<<20), uint64(i)))
 		p := pagePlan{ID: fmt.Sprintf("s%05d", i), Seed: splitmix64(seed*1_000_003 + uint64(i))}
 		p.Split = splitOf(p.ID)
+		p.Family, p.Text = "go", "-"
 		p.Passage = perm[i%len(perm)]
 		p.Source = ps[p.Passage].Source
 		w := pr.IntN(total)
@@ -276,13 +319,17 @@ func planPages(n int, seed uint64, ps []passage) []pagePlan {
 
 func writeManifest(path string, plans []pagePlan) error {
 	var b strings.Builder
-	b.WriteString("id\tsplit\tkind\tseverity\tseed\tfont\tsize_pt\tsource\n")
+	b.WriteString("id\tsplit\tkind\tseverity\tseed\tfont\tsize_pt\tsource\tfamily\ttext\tpunct\n")
 	for _, p := range plans {
 		sev := "-"
 		if p.Severity >= 0 {
 			sev = fmt.Sprintf("%.4f", p.Severity)
 		}
-		fmt.Fprintf(&b, "%s\t%s\t%s\t%s\t%d\t%s\t%.1f\t%s\n", p.ID, p.Split, p.Kind, sev, p.Seed, p.Font, p.SizePt, p.Source)
+		punct := "-"
+		if p.Spaced {
+			punct = "spaced"
+		}
+		fmt.Fprintf(&b, "%s\t%s\t%s\t%s\t%d\t%s\t%.1f\t%s\t%s\t%s\t%s\n", p.ID, p.Split, p.Kind, sev, p.Seed, p.Font, p.SizePt, p.Source, p.Family, p.Text, punct)
 	}
 	return os.WriteFile(path, []byte(b.String()), 0o644)
 }
@@ -313,7 +360,18 @@ func renderOne(out string, dpi int, p pagePlan, ps []passage) error {
 	if p.Blank {
 		text = ""
 	}
-	page, _, err := synth.Render(text, synth.Layout{DPI: dpi, WidthMM: pageWidthMM, HeightMM: pageHeightMM, MarginMM: marginMM, FontSizePt: p.SizePt, Font: p.Font})
+	if p.Spaced {
+		text = spacePunct(text)
+	}
+	font := p.Font
+	if p.FontFile != "" {
+		font = p.FontFile
+		var err error
+		if text, err = drawable(text, font); err != nil {
+			return err
+		}
+	}
+	page, _, err := synth.Render(text, synth.Layout{DPI: dpi, WidthMM: pageWidthMM, HeightMM: pageHeightMM, MarginMM: marginMM, FontSizePt: p.SizePt, Font: font})
 	if err != nil {
 		return err
 	}

@@ -113,3 +113,88 @@ func TestPassagesCut(t *testing.T) {
 		}
 	}
 }
+
+// TestFontTextSplit: with -split fonttext a heldout page has a family and
+// a source text that no fit page has, the cells are the declared ones, and
+// a page's plan does not depend on -n.
+func TestFontTextSplit(t *testing.T) {
+	ps := testPassages(t)
+	ps = append(ps, passage{Source: "devil/part_1", Text: "ABATIS, n. Rubbish in front of a fort."})
+	o := buildOptions{N: 600, Seed: 5, Split: "fonttext", MaxT: 1}
+	plans := planFontPages(o, latinFamilies, ps)
+	fitFam, fitText := map[string]bool{}, map[string]bool{}
+	count := map[string]int{}
+	for _, p := range plans {
+		count[p.Split]++
+		if p.Split == "fit" || p.Split == "incorpus" {
+			fitFam[p.Family], fitText[p.Source] = true, true
+		}
+	}
+	for _, p := range plans {
+		if p.Split != "heldout" {
+			continue
+		}
+		if fitFam[p.Family] || fitText[p.Source] {
+			t.Errorf("heldout page %s: family %q or text %q also in fit", p.ID, p.Family, p.Source)
+		}
+		if p.Text != "heldout" {
+			t.Errorf("heldout page %s: text column %q", p.ID, p.Text)
+		}
+	}
+	// Shares 0.55 (fit and incorpus), 0.30, 0.075, 0.075 of 600 pages:
+	// binomial four-sd bands (common practice).
+	for _, c := range []struct {
+		split  string
+		lo, hi int
+	}{{"heldout", 135, 225}, {"fontonly", 20, 70}, {"textonly", 20, 70}, {"incorpus", 40, 100}} {
+		if n := count[c.split]; n < c.lo || n > c.hi {
+			t.Errorf("%d %s pages of 600, want %d-%d", n, c.split, c.lo, c.hi)
+		}
+	}
+	// At least eight training families, and every class among them
+	// (issue 12 part 5: serif, sans, a period book face, a typewriter face).
+	classes := map[string]bool{}
+	for _, f := range latinFamilies {
+		if !f.Heldout {
+			classes[f.Class] = true
+		}
+	}
+	if len(fitFam) < 8 || len(classes) < 4 {
+		t.Errorf("%d training families in use, classes %v; want at least 8 and 4 classes", len(fitFam), classes)
+	}
+	o.N = 40
+	if short := planFontPages(o, latinFamilies, ps); !reflect.DeepEqual(short, plans[:40]) {
+		t.Error("plans of the first 40 pages change with -n")
+	}
+}
+
+// TestFontFamiliesDraw renders a passage in every face of the Debian font
+// families (scripts/setup --test installs them) and checks that each can
+// draw the English passages' letters and the German letters of the
+// Fraktur pages, with plain replacements for quotes and dashes only.
+func TestFontFamiliesDraw(t *testing.T) {
+	text := testPassages(t)[0].Text + " Straße über Öl Ärger Jäger"
+	for _, set := range []string{"debian", "fraktur"} {
+		fams, err := fontSet(set)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, f := range fams {
+			for style, path := range f.Faces {
+				if _, err := drawable(text, path); err != nil {
+					t.Errorf("%s %s: %v", f.Name, style, err)
+				}
+			}
+		}
+	}
+}
+
+// TestSpacePunct: the period's spacing before marks (Leptonica's
+// prog/german.png sets "kund , das den , der drein").
+func TestSpacePunct(t *testing.T) {
+	got := spacePunct("kund, das den, der drein: nur? Ja! 1,5 (so), \"gut\", ...")
+	want := "kund , das den , der drein : nur ? Ja ! 1,5 (so), \"gut\", ..."
+	if got != want {
+		t.Errorf("spacePunct = %q\nwant %q", got, want)
+	}
+}

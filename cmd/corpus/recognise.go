@@ -63,7 +63,7 @@ func recogniseAll(ctx context.Context, o buildOptions, plans []pagePlan, sum *su
 	results, err := ocr.RunBatch(ctx, paths, ocr.BatchConfig{
 		Jobs: o.Workers,
 		NewEngine: func() (ocr.Engine, error) {
-			e, err := tesseract.New(tesseract.Config{})
+			e, err := tesseract.New(tesseract.Config{Lang: o.Lang})
 			if errors.Is(err, ocr.ErrEngineUnavailable) {
 				return nil, fmt.Errorf("%w: %v", errNoEngine, err)
 			}

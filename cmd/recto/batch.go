@@ -29,7 +29,7 @@ func addRunFlags(cmd *cobra.Command, o *run.Options, prep *prepFlags) {
 	f.Float64Var(&o.Rescan, "rescan", 0, "mark a page rescan when its predicted `CER` is above this (default 0.10)")
 	f.Float64Var(&o.Correct, "correct", 0, "correct a page when its predicted `CER` is above this (default 0.02)")
 	f.StringVar(&o.Model, "quality-model", "", "quality model `file` from 'recto calibrate' for triage (default: embedded)")
-	f.StringVar(&o.CorrectionModel, "correction-model", "", "error model `file` from 'recto correct train' (default: embedded)")
+	f.StringVar(&o.CorrectionModel, "correction-model", "", "error model `file` from 'recto correct train' (default: embedded; the Fraktur one for --lang frk or Fraktur)")
 	f.BoolVar(&o.KeepMarks, "keep-marks", false, "leave stray marks (tokens with no letter or digit) in the text")
 	f.BoolVar(&o.MapGlyphs, "map-glyphs", false, "rewrite punctuation glyphs as the correction model's ground truth has them")
 	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` for triage and correction (default: built in)")

@@ -13,7 +13,8 @@ const langHelp = `
 deu, eng+deu...; as 'recto ocr --lang'); without it the language recorded
 in the page records by 'recto ocr' is used, else eng. It chooses the
 lexicon: eng is embedded; nor uses the Bokmål and Nynorsk lexicons (nob,
-nno), deu and frk the German one (deu), each built once with 'recto
+nno), deu, frk and Fraktur the German one (deu; Fraktur also the
+traditional spelling's, deu-1901, when built), each built once with 'recto
 lexicon build --lang CODE' from the installed Debian packages. When a
 language has no lexicon the command says so once on stderr, and works
 without one rather than with another language's: --lexicon FILE overrides

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strings"
 	"sync"
@@ -25,7 +26,7 @@ var (
 	testLexErr  error
 )
 
-// testLexicons builds the nob, nno and deu lexicons once per test process
+// testLexicons builds the nob, nno, deu and deu-1901 lexicons once per test process
 // with 'recto lexicon build --lang' (about 30 s) into a temporary folder
 // and points RECTO_LEXICONS at it.
 func testLexicons(t *testing.T) {
@@ -36,7 +37,7 @@ func testLexicons(t *testing.T) {
 			return
 		}
 		os.Setenv(lexicon.EnvDir, testLexDir)
-		for _, c := range []string{"nob", "nno", "deu"} {
+		for _, c := range []string{"nob", "nno", "deu", "deu-1901"} {
 			if _, stderr, err := runRecto(t, "-q", "lexicon", "build", "--lang", c); err != nil {
 				testLexErr = fmt.Errorf("lexicon build --lang %s: %v\n%s", c, err, stderr)
 				return
@@ -319,6 +320,62 @@ func TestLangEurotext(t *testing.T) {
 	a, _ := os.ReadFile(filepath.Join(cor, "eurotext.txt"))
 	b4, af := quality.Compare(string(want), string(o), quality.NormOptions{}), quality.Compare(string(want), string(a), quality.NormOptions{})
 	t.Logf("eurotext eng+deu: %+v; correction %d wrong, %d right %v; CER %d/%d -> %d/%d", rep.Pages, wrong, right, wrongs, b4.CharErrors, b4.Chars, af.CharErrors, af.Chars)
+	if wrong > 0 {
+		t.Errorf("%d wrong changes: %v", wrong, wrongs)
+	}
+}
+
+// TestFrakturRealPage: a real Fraktur page (Leptonica's prog/german.png, an
+// 18th-century page of epigrams, photographed; leptonlib 1.82.0, BSD-2; our
+// transcription testdata/realpages/leptonica-german.txt, see its
+// SOURCES.md) read with --lang frk and corrected with the Fraktur model
+// that --lang frk chooses. Scored with --plain-typography (the long s as
+// s). Corrected text must be no worse than recto's reading and than the
+// plain `tesseract -l frk` command (issue 12 part 3; "never worse than the
+// engine alone"), and no change may touch a word or mark the page has.
+func TestFrakturRealPage(t *testing.T) {
+	if testing.Short() {
+		t.Skip("builds the lexicons and runs the engine")
+	}
+	needEngine(t, "frk")
+	src := filepath.Join(ocrtest.RealPages(t), "leptonica", "german.png")
+	want, err := os.ReadFile(filepath.Join("..", "..", "testdata", "realpages", "leptonica-german.txt"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	testLexicons(t)
+	in, ocrDir, cor := t.TempDir(), t.TempDir(), t.TempDir()
+	data, err := os.ReadFile(src)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(in, "german.png"), data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if _, stderr, err := runRecto(t, "-q", "ocr", in, "--out", ocrDir, "--lang", "frk", "--jobs", "1"); err != nil {
+		t.Fatalf("ocr: %v\n%s", err, stderr)
+	}
+	if _, stderr, err := runRecto(t, "-q", "correct", ocrDir, "--out", cor); err != nil {
+		t.Fatalf("correct: %v\n%s", err, stderr)
+	}
+	plainCmd := exec.Command("tesseract", src, "-", "-l", "frk")
+	plainCmd.Env = append(os.Environ(), "OMP_THREAD_LIMIT=1")
+	plain, err := plainCmd.Output()
+	if err != nil {
+		t.Fatalf("tesseract -l frk: %v", err)
+	}
+	norm := quality.NormOptions{PlainTypography: true}
+	o, _ := os.ReadFile(filepath.Join(ocrDir, "german.txt"))
+	a, _ := os.ReadFile(filepath.Join(cor, "german.txt"))
+	pl := quality.Compare(string(want), string(plain), norm)
+	b4 := quality.Compare(string(want), string(o), norm)
+	af := quality.Compare(string(want), string(a), norm)
+	wrong, right, wrongs := judge(t, cor, truthWords(string(want)), rawTokens(string(want)))
+	t.Logf("german.png --lang frk: CER plain tesseract %d/%d, recto ocr %d/%d, corrected %d/%d; %d wrong, %d right changes %v",
+		pl.CharErrors, pl.Chars, b4.CharErrors, b4.Chars, af.CharErrors, af.Chars, wrong, right, wrongs)
+	if af.CharErrors > b4.CharErrors || af.CharErrors > pl.CharErrors {
+		t.Errorf("corrected text has %d character errors, more than recto's reading (%d) or the plain engine's (%d)", af.CharErrors, b4.CharErrors, pl.CharErrors)
+	}
 	if wrong > 0 {
 		t.Errorf("%d wrong changes: %v", wrong, wrongs)
 	}

@@ -32,6 +32,10 @@ used by triage (lexicon hit rate) and correction.
 
 recto embeds an English lexicon; build your own for other languages or
 for the vocabulary of your collection with 'recto lexicon build'.`,
+		// An unknown subcommand is a usage error (exit 2), as at the top
+		// level; cobra would print the help and exit 0.
+		Args: cobra.NoArgs,
+		RunE: func(cmd *cobra.Command, args []string) error { return cmd.Help() },
 	}
 	cmd.AddCommand(newLexiconBuildCommand(g), newLexiconLookupCommand(g))
 	return cmd
@@ -62,14 +66,17 @@ NFC, lower case, diacritics kept. Output ending in .gz is compressed.
   --lang CODE      build the lexicon of a language from the installed Debian
                    packages: nob (Norwegian Bokmål: wnorwegian, hunspell-no),
                    nno (Norwegian Nynorsk: the same packages), deu (German:
-                   wngerman, hunspell-de-de). Word lists and the dictionary's
+                   wngerman, hunspell-de-de), deu-1901 (German in the
+                   traditional spelling, for Fraktur: wogerman,
+                   myspell-de-de-1901). Word lists and the dictionary's
                    compounding rules give the words; the translated messages
                    of the gettext catalogs under /usr/share/locale/LL give the
                    counts. Without --out it is written where --lang finds it
                    ($RECTO_LEXICONS, else ~/.local/share/recto/lexicons), with
                    CODE.sources.md beside it (packages, versions, licences,
                    how much text was counted). --lang nor on the other
-                   commands uses both nob and nno; deu serves frk too.
+                   commands uses both nob and nno; deu serves frk and
+                   Fraktur too, with deu-1901 beside it when built.
 
 Example (the Norwegian and German lexicons):
   recto lexicon build --lang nob && recto lexicon build --lang nno && recto lexicon build --lang deu
@@ -90,7 +97,7 @@ lexicon/data/SOURCES.md of the source tree.)` + exitStatusHelp,
 	f.StringArrayVar(&o.Hunspell, "hunspell", nil, "Hunspell `dic` file, .aff beside it, or DIC:AFF (repeatable)")
 	f.StringArrayVar(&o.Text, "text", nil, "`folder` of .txt running text to count (repeatable)")
 	f.StringVarP(&o.Out, "out", "o", "", "output lexicon `file` (.gz to compress)")
-	f.StringVar(&o.Lang, "lang", "", "build the lexicon of language `code` (nob, nno, deu) from the installed Debian packages")
+	f.StringVar(&o.Lang, "lang", "", "build the lexicon of language `code` (nob, nno, deu, deu-1901) from the installed Debian packages")
 	f.Int64Var(&o.MinText, "min-count", 0, "occurrences a text-only word needs to be kept (0: 3 with a list, else 1)")
 	f.Int64Var(&o.MinPair, "min-pair", 0, "occurrences a word pair needs to be kept (0: 2)")
 	return cmd

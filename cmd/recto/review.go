@@ -40,6 +40,12 @@ given. Thumbnails are made once and kept in RUNDIR/review. Stop it with
 Ctrl-C.
 ` + exitStatusHelp,
 		Args: cobra.ExactArgs(1),
+		PreRunE: func(cmd *cobra.Command, args []string) error {
+			if o.Jobs < 0 {
+				return &usageError{Err: fmt.Errorf("--jobs %d: must be 0 (all CPUs) or more", o.Jobs)}
+			}
+			return nil
+		},
 		RunE: func(cmd *cobra.Command, args []string) error {
 			o.Dir = args[0]
 			s, err := review.New(cmd.Context(), o)
@@ -68,5 +74,6 @@ Ctrl-C.
 	}
 	cmd.Flags().StringVar(&o.Listen, "listen", "", "listen on `address` host:port instead of 127.0.0.1 and a free port (warns: others may reach it)")
 	cmd.Flags().BoolVar(&o.ReadOnly, "read-only", false, "show the pages without allowing any change")
+	cmd.Flags().IntVarP(&o.Jobs, "jobs", "j", 0, "make thumbnails `n` at a time in the background (0: one per core)")
 	return cmd
 }

@@ -27,7 +27,7 @@ import (
 )
 
 func main() {
-	corpus := flag.String("corpus", "", "corpus directory (truth/ and ocr/ with fit and heldout splits)")
+	corpus := flag.String("corpus", "", "corpus directory (truth/ and ocr/ with fit and heldout splits); for training, several comma-separated")
 	plant := flag.String("plant", "", "directory of clean .txt files to plant confusions in (instead of -corpus)")
 	out := flag.String("out", "", "write the trained model here")
 	eval := flag.Bool("eval", false, "measure the corrector on the heldout split of -corpus (or on planted text)")
@@ -40,11 +40,12 @@ func main() {
 	flag.StringVar(&dumpDir, "dump", "", "-eval: write each corrected page here as <id>.txt")
 	flag.BoolVar(&normOpts.PlainTypography, "plain", false, "-eval: compare with quality's PlainTypography normalisation (curly quotes, dashes as plain)")
 	cpuprofile := flag.String("cpuprofile", "", "write a CPU profile of the evaluation here")
-	split := flag.String("split", "heldout", "-eval: pages to measure: \"heldout\", or \"dev\" (the development fifth of fit, left out of training)")
+	split := flag.String("split", "heldout", "-eval: pages to measure: \"heldout\", \"dev\" (the development fifth of fit, left out of training), or any other split of the corpus (-split fonttext: incorpus, fontonly, textonly)")
 	truthDir := flag.String("truth", "", "-eval: measure the pages with ground truth under this directory instead of -corpus (OCR under -ocr)")
 	ocrDir := flag.String("ocr", "", "-eval with -truth: directory of the OCR records (.json) or text, same relative paths")
 	final := flag.Bool("final", false, "train on all of fit, development pages included (once the constants are set on dev)")
 	guard := flag.Bool("guard", false, "-eval: also correct the full source texts of the -corpus heldout pages as clean plain text (use with -lexicon fair, which leaves them out)")
+	alsoSplits := flag.String("also", "", "training: also the pages of these comma-separated splits (e.g. fontonly,textonly,incorpus of a -split fonttext corpus)")
 	minCount := flag.Int("min-count", 0, "training: drop confusions of three or more characters seen fewer times (0 = the default, 2)")
 	keepGlyphs := flag.Bool("map-glyphs", false, "-eval: map punctuation glyphs as the model learned (Config.MapGlyphs)")
 	flag.Parse()
@@ -61,9 +62,21 @@ func main() {
 		if *final {
 			split = "fit+dev"
 		}
-		pairs, err := corpusPairs(*corpus, split)
-		check(err)
-		fmt.Fprintf(os.Stderr, "training on %d pages (%s)\n", len(pairs), split)
+		var pairs []correct.Pair
+		for _, dir := range strings.Split(*corpus, ",") {
+			p, err := corpusPairs(dir, split)
+			check(err)
+			pairs = append(pairs, p...)
+			for _, more := range strings.Split(*alsoSplits, ",") {
+				if more == "" {
+					continue
+				}
+				p, err := corpusPairs(dir, more)
+				check(err)
+				pairs = append(pairs, p...)
+			}
+		}
+		fmt.Fprintf(os.Stderr, "training on %d pages (%s, also %q)\n", len(pairs), split, *alsoSplits)
 		m := correct.Train(pairs, correct.TrainOptions{Prior: correct.Classic, MinCount: *minCount})
 		report(m)
 		if *out != "" {
@@ -214,7 +227,20 @@ func loadLexicon(which, corpus, data string) (*lexicon.Lexicon, error) {
 		return lexicon.Default(), nil
 	case "fair":
 	default:
-		return lexicon.Load(which)
+		// One file, or several comma-separated, merged (as --lang frk
+		// merges deu and deu-1901).
+		var lexs []*lexicon.Lexicon
+		for _, f := range strings.Split(which, ",") {
+			l, err := lexicon.Load(f)
+			if err != nil {
+				return nil, err
+			}
+			lexs = append(lexs, l)
+		}
+		if len(lexs) == 1 {
+			return lexs[0], nil
+		}
+		return lexicon.Merge(lexs...), nil
 	}
 	held := map[string]bool{}
 	if corpus != "" {
@@ -223,7 +249,7 @@ func loadLexicon(which, corpus, data string) (*lexicon.Lexicon, error) {
 			return nil, err
 		}
 		for _, r := range rows {
-			if r["split"] == "heldout" {
+			if heldText(r) {
 				held[r["source"]] = true
 			}
 		}
@@ -250,7 +276,19 @@ func loadLexicon(which, corpus, data string) (*lexicon.Lexicon, error) {
 	return lex, nil
 }
 
-// heldoutSources returns the source texts of the corpus's heldout pages.
+// heldText reports whether a manifest row's source text is held out of
+// training: its "text" column (corpora built with -split fonttext), else
+// its page's split (the id split: every text of a heldout page).
+func heldText(r map[string]string) bool {
+	if t, ok := r["text"]; ok && t != "-" && t != "" {
+		return t == "heldout"
+	}
+	return r["split"] == "heldout"
+}
+
+// heldoutSources returns the source texts of the corpus's heldout pages
+// that are files under data (Moby-Dick chapters and addresses; the
+// Devil's Dictionary parts are not, and are left out).
 func heldoutSources(corpus, data string) ([]string, error) {
 	rows, err := manifest(corpus)
 	if err != nil {
@@ -265,7 +303,7 @@ func heldoutSources(corpus, data string) ([]string, error) {
 		}
 		seen[src] = true
 		set, name, ok := strings.Cut(src, "/")
-		if !ok {
+		if !ok || (set != "moby" && set != "sotu") {
 			continue
 		}
 		names = append(names, filepath.Join(data, set, "package", "data", name+".txt"))

@@ -217,6 +217,9 @@ func variants(real string) []variant {
 // decoders read the file too, they are what ocr uses, and Leptonica must
 // agree with them.
 func TestDecodeVariants(t *testing.T) {
+	if testing.Short() {
+		t.Skip(longSequential)
+	}
 	real := ocrtest.RealPages(t)
 	for _, v := range variants(real) {
 		t.Run(v.name, func(t *testing.T) {
@@ -293,3 +296,9 @@ func TestMultiPageTIFFThroughLeptonica(t *testing.T) {
 		}
 	}
 }
+
+// longSequential is the reason long single-threaded checks give for
+// skipping under -short: scripts/test runs the race detector with -short
+// (it makes image work about ten times slower and finds nothing in code
+// without goroutines), then the whole suite without it.
+const longSequential = "long sequential image work: runs in the pass of scripts/test without -short and the race detector"

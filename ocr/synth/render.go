@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"image"
 	"math"
+	"os"
+	"path/filepath"
 	"sort"
 	"strings"
 	"sync"
@@ -34,7 +36,14 @@ type Layout struct {
 	MarginMM    float64 // margin on all four sides, millimetres; 0 means 20
 	FontSizePt  float64 // type size, points (1/72 inch); 0 means 11
 	LineSpacing float64 // baseline-to-baseline distance as a multiple of the type size; 0 means 1.35
-	Font        string  // a Go font: "regular" (default), "bold", "italic", "bolditalic", "medium", "mediumitalic", "mono", "monobold", "monoitalic", "smallcaps"
+	Font        string  // a Go font: "regular" (default), "bold", "italic", "bolditalic", "medium", "mediumitalic", "mono", "monobold", "monoitalic", "smallcaps"; or the path of a TrueType/OpenType file (IsFontFile), e.g. one of Debian's fonts-* packages
+}
+
+// IsFontFile reports whether a Layout.Font names a font file rather than a
+// Go font: a name ending in .ttf or .otf (any case).
+func IsFontFile(name string) bool {
+	ext := strings.ToLower(filepath.Ext(name))
+	return ext == ".ttf" || ext == ".otf"
 }
 
 // Fonts lists the names Layout.Font accepts, sorted.
@@ -75,8 +84,13 @@ func parsedFont(name string) (*opentype.Font, error) {
 		return f, nil
 	}
 	data, ok := fontData[name]
-	if !ok {
-		return nil, fmt.Errorf("synth: unknown font %q (have %s)", name, strings.Join(Fonts(), ", "))
+	if !ok && IsFontFile(name) {
+		var err error
+		if data, err = os.ReadFile(name); err != nil {
+			return nil, fmt.Errorf("synth: font file: %w", err)
+		}
+	} else if !ok {
+		return nil, fmt.Errorf("synth: unknown font %q (have %s, or a .ttf/.otf file)", name, strings.Join(Fonts(), ", "))
 	}
 	f, err := opentype.Parse(data)
 	if err != nil {

@@ -18,6 +18,7 @@ package tesseract
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 )
 
@@ -65,9 +66,41 @@ func (e *MissingLanguageError) Error() string {
 // DebianPackage returns the name of the Debian package that holds the
 // trained data for a Tesseract language code, e.g. "tesseract-ocr-deu"
 // for "deu" and "tesseract-ocr-chi-sim" for "chi_sim" (Debian's naming,
-// common practice).
+// common practice). The script models (Tesseract's script/<Name>, which
+// Debian 12 installs as <Name>.traineddata in the tessdata folder) are
+// packaged as tesseract-ocr-script-<abbreviation>: "Fraktur" and
+// "script/Fraktur" give "tesseract-ocr-script-frak".
 func DebianPackage(lang string) string {
+	name := strings.TrimPrefix(lang, "script/")
+	if p, ok := scriptPackages[name]; ok {
+		return p
+	}
 	return "tesseract-ocr-" + strings.ReplaceAll(strings.ToLower(lang), "_", "-")
+}
+
+// scriptPackages names the Debian packages of the script models recto
+// documents (Debian 12 package list: tesseract-ocr-script-frak holds
+// Fraktur.traineddata, tesseract-ocr-script-latn Latin.traineddata).
+var scriptPackages = map[string]string{
+	"Fraktur": "tesseract-ocr-script-frak",
+	"Latin":   "tesseract-ocr-script-latn",
+}
+
+// ResolveScripts returns want with each script model written as Tesseract's
+// own tessdata has it ("script/Fraktur") replaced by the name it is
+// installed under when only that is installed: Debian 12's
+// tesseract-ocr-script-frak puts Fraktur.traineddata beside the languages,
+// so "script/Fraktur" and "Fraktur" both mean that file.
+func ResolveScripts(want, have []string) []string {
+	out := make([]string, len(want))
+	for i, l := range want {
+		out[i] = l
+		name, ok := strings.CutPrefix(l, "script/")
+		if ok && !slices.Contains(have, l) && slices.Contains(have, name) {
+			out[i] = name
+		}
+	}
+	return out
 }
 
 // checkLangs reports the first of want that is not in have.

@@ -100,7 +100,7 @@ func New(cfg Config) (ocr.Engine, error) {
 	if err != nil {
 		return nil, err
 	}
-	langs := cfg.langs()
+	langs := ResolveScripts(cfg.langs(), have)
 	if err := checkLangs(langs, have); err != nil {
 		return nil, err
 	}

@@ -15,10 +15,31 @@ func TestDebianPackage(t *testing.T) {
 		{"deu", "tesseract-ocr-deu"},
 		{"chi_sim", "tesseract-ocr-chi-sim"},
 		{"deu_latf", "tesseract-ocr-deu-latf"},
+		// The script model: dpkg -L tesseract-ocr-script-frak (Debian 12,
+		// 1:4.1.0-2) lists /usr/share/tesseract-ocr/5/tessdata/Fraktur.traineddata.
+		{"Fraktur", "tesseract-ocr-script-frak"},
+		{"script/Fraktur", "tesseract-ocr-script-frak"},
 	} {
 		if got := DebianPackage(c.lang); got != c.want {
 			t.Errorf("DebianPackage(%q) = %q, want %q", c.lang, got, c.want)
 		}
+	}
+}
+
+func TestResolveScripts(t *testing.T) {
+	// Debian 12 installs the Fraktur script model as Fraktur.traineddata
+	// (dpkg -L tesseract-ocr-script-frak); Tesseract's tessdata repository
+	// keeps it as script/Fraktur.traineddata.
+	debian := []string{"Fraktur", "deu", "eng"}
+	if got := ResolveScripts([]string{"script/Fraktur", "deu"}, debian); got[0] != "Fraktur" || got[1] != "deu" {
+		t.Errorf("Debian layout: %v, want [Fraktur deu]", got)
+	}
+	upstream := []string{"deu", "eng", "script/Fraktur"}
+	if got := ResolveScripts([]string{"script/Fraktur"}, upstream); got[0] != "script/Fraktur" {
+		t.Errorf("upstream layout: %v, want [script/Fraktur]", got)
+	}
+	if got := ResolveScripts([]string{"script/Latin"}, debian); got[0] != "script/Latin" {
+		t.Errorf("missing script: %v, want it kept (and then reported missing)", got)
 	}
 }
 

@@ -136,8 +136,9 @@ func fetch(b *testing.B, c *http.Client, u string) int {
 // card), and the rescan filter sorted by predicted CER.
 func BenchmarkOverview(b *testing.B) {
 	_, ts, c, _ := benchServer(b)
-	for _, u := range []string{"/", "/?decision=rescan&sort=predicted"} {
-		b.Run(strings.Trim(u, "/?"), func(b *testing.B) {
+	for _, v := range []struct{ name, u string }{{"all", "/"}, {"rescan-by-predicted", "/?decision=rescan&sort=predicted"}} {
+		u := v.u
+		b.Run(v.name, func(b *testing.B) {
 			size := 0
 			for b.Loop() {
 				size = fetch(b, c, ts.URL+u)
@@ -149,15 +150,50 @@ func BenchmarkOverview(b *testing.B) {
 }
 
 // BenchmarkPageView serves page views (320 words, 12 corrections on a
-// third of them) of pages in turn.
+// third of them) of 50 pages in turn, each with its page image from the
+// cache (an A4 page at 300 dpi shown 2000 pixels wide, as the server makes
+// it of a TIFF): the HTML and the image, what the browser asks for.
 func BenchmarkPageView(b *testing.B) {
-	_, ts, c, rels := benchServer(b)
+	s, ts, c, rels := benchServer(b)
+	view := a4View(b)
+	for _, rel := range rels[:50] {
+		row, _, _ := s.page(context.Background(), rel)
+		mustFile(row.Source, []byte("II*\x00")) // the source must exist in the collection; its image is cached
+		s.imgs.store("pages", imageKey(row.Rel, row.SHA256), view)
+	}
 	i := 0
 	for b.Loop() {
-		fetch(b, c, ts.URL+"/page?p="+url.QueryEscape(rels[i%len(rels)])+"&decision=rescan")
-		i += 7
+		rel := url.QueryEscape(rels[i%50])
+		fetch(b, c, ts.URL+"/page?p="+rel+"&decision=rescan")
+		fetch(b, c, ts.URL+"/image?p="+rel)
+		i++
 	}
 	b.ReportMetric(float64(b.Elapsed().Microseconds())/1e3/float64(b.N), "ms/page")
+	b.ReportMetric(float64(len(view))/1e3, "kB-image")
+}
+
+// a4 writes one rendered A4 page at 300 dpi (2480 × 3508) as a PNG file.
+func a4(b *testing.B, name, text string) {
+	p, _, err := synth.Render(strings.Repeat(text, 60), synth.Layout{})
+	if err != nil {
+		b.Fatal(err)
+	}
+	var buf bytes.Buffer
+	if err := synth.WritePNG(&buf, p.Image, 300); err != nil {
+		b.Fatal(err)
+	}
+	mustFile(name, buf.Bytes())
+}
+
+// a4View is the page image the server makes of an A4 page.
+func a4View(b *testing.B) []byte {
+	name := filepath.Join(b.TempDir(), "a4.png")
+	a4(b, name, "The harbour master of Wrenmouth reported that the northern quay was mended. ")
+	view, err := makeImage(context.Background(), pageSource{Rel: name, Path: name}, ViewWidth)
+	if err != nil {
+		b.Fatal(err)
+	}
+	return view
 }
 
 // BenchmarkDecision stores decisions (a committed, synced transaction
@@ -177,39 +213,48 @@ func BenchmarkDecision(b *testing.B) {
 	b.ReportMetric(float64(b.Elapsed().Microseconds())/1e3/float64(b.N), "ms/decision")
 }
 
-// BenchmarkThumbnails makes the thumbnail and page image of A4 pages at
-// 300 dpi (2480 × 3508, rendered text, PNG), GOMAXPROCS at a time, as the
-// server's background pass does.
+// BenchmarkThumbnails makes thumbnails of A4 pages at 300 dpi (2480 ×
+// 3508, rendered text, PNG), GOMAXPROCS at a time, as the server's
+// background pass does; /views also makes the 2000-pixel page image that
+// a source the browser cannot show (TIFF, PDF, ...) needs, in the pass's
+// second phase.
 func BenchmarkThumbnails(b *testing.B) {
 	dir := b.TempDir()
 	var srcs []pageSource
 	for i := range 4 {
-		p, _, err := synth.Render(strings.Repeat(fmt.Sprintf("The harbour master of Wrenmouth reported on page %d that the northern quay was mended. ", i), 60), synth.Layout{})
-		if err != nil {
-			b.Fatal(err)
-		}
-		var buf bytes.Buffer
-		if err := synth.WritePNG(&buf, p.Image, 300); err != nil {
-			b.Fatal(err)
-		}
 		name := filepath.Join(dir, fmt.Sprintf("p%d.png", i))
-		mustFile(name, buf.Bytes())
+		a4(b, name, fmt.Sprintf("The harbour master of Wrenmouth reported on page %d that the northern quay was mended. ", i))
 		srcs = append(srcs, pageSource{Rel: name, SHA256: fmt.Sprint(i), Path: name})
 	}
 	workers := runtime.GOMAXPROCS(0)
-	pages := 0
-	for b.Loop() {
-		err := par.EachErr(context.Background(), len(srcs), workers, func(_, i int) error {
-			_, _, err := makeImages(context.Background(), srcs[i])
-			return err
+	for _, c := range []struct {
+		name  string
+		width int
+	}{{"thumbs", ThumbWidth}, {"views", ViewWidth}} {
+		b.Run(c.name, func(b *testing.B) {
+			pages := 0
+			cpu0 := cpuSeconds()
+			for b.Loop() {
+				err := par.EachErr(context.Background(), len(srcs), workers, func(_, i int) error {
+					_, err := makeImage(context.Background(), srcs[i], c.width)
+					return err
+				})
+				if err != nil {
+					b.Fatal(err)
+				}
+				pages += len(srcs)
+			}
+			b.ReportMetric(float64(pages)/b.Elapsed().Seconds(), "pages/s")
+			if cpu := cpuSeconds() - cpu0; cpu > 0 {
+				// what 2 idle cores would make: twice the pages per CPU-second
+				b.ReportMetric(2*float64(pages)/cpu, "pages/s-2-idle-cores")
+			}
+			b.ReportMetric(float64(workers), "workers")
+			var m runtime.MemStats
+			runtime.ReadMemStats(&m)
+			b.ReportMetric(float64(m.Sys)/(1<<20), "MB-sys")
 		})
-		if err != nil {
-			b.Fatal(err)
-		}
-		pages += len(srcs)
 	}
-	b.ReportMetric(float64(pages)/b.Elapsed().Seconds(), "pages/s")
-	b.ReportMetric(float64(workers), "workers")
 }
 
 // BenchmarkServerMemory reports the memory the Go runtime holds from the

@@ -7,6 +7,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 	"time"
@@ -146,6 +147,17 @@ func TestReviewInBrowser(t *testing.T) {
 		t.Fatalf("page %s shows decision %q, want rescan", rel, got)
 	}
 	step("press a", chromedp.KeyEvent("a"), until(`document.getElementById("decision").textContent === "accept"`))
+	// j and k walk the overview's selection (the page just accepted stays in it).
+	step("press j", chromedp.KeyEvent("j"), until(`document.readyState === "complete" && document.body.dataset.rel && document.body.dataset.rel !== `+strconv.Quote(rel)))
+	if next := eval(`document.body.dataset.rel`); !strings.Contains(eval(`location.search`), "decision=rescan") || len(cards) < 2 {
+		t.Errorf("j went to %s (%s), want the next rescan page", next, eval(`location.search`))
+	}
+	step("press k", chromedp.KeyEvent("k"), until(`document.readyState === "complete" && document.body.dataset.rel === `+strconv.Quote(rel)))
+	// g shows the ground truth beside the text.
+	step("press g", chromedp.KeyEvent("g"), until(`document.getElementById("truth").textContent.length > 100`), shot("truth.png"))
+	if gt := text("#truth"); !strings.HasPrefix(gt, strings.SplitN(truthOf(t, dir, rel), "\n", 2)[0]) {
+		t.Errorf("ground truth shown %.60q, want the page's", gt)
+	}
 
 	// Another page: rescan by keyboard, reject its first correction, and
 	// click a word.
@@ -157,7 +169,8 @@ func TestReviewInBrowser(t *testing.T) {
 	key := eval(`document.querySelector(".chg").dataset.key`)
 	step("reject a correction",
 		chromedp.Click(css(`.chg button[value=rejected]`)),
-		until(`document.querySelector(".chg").dataset.state === "rejected"`))
+		until(`document.querySelector(".chg").dataset.state === "rejected"`),
+		until(`document.getElementById("history").textContent.indexOf("rejected") >= 0`)) // the history follows
 	step("click a word",
 		until(`document.getElementById("pg").complete && document.getElementById("pg").naturalWidth > 0`),
 		chromedp.Click(css(`#text .w`)),
@@ -206,4 +219,14 @@ func TestReviewInBrowser(t *testing.T) {
 		t.Errorf("ledger: correction %q not rejected: %+v", key, rev)
 	}
 	t.Logf("screenshots in %s; %d rescan pages shown; box %s", shots, len(cards), box)
+}
+
+// truthOf reads page rel's ground truth as the run found it.
+func truthOf(t *testing.T, dir, rel string) string {
+	t.Helper()
+	data, err := os.ReadFile(filepath.Join(filepath.Dir(dir), "truth", strings.TrimSuffix(rel, ".png")+".txt"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return string(data)
 }

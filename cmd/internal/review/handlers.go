@@ -150,12 +150,19 @@ func (s *Server) image(kind string) http.HandlerFunc {
 			refuse(w, err)
 			return
 		}
-		data, err := s.imgs.get(r.Context(), kind, src)
+		ctype := "image/jpeg"
+		var data []byte
+		if kind == "pages" && src.Direct != "" {
+			ctype = src.Direct // a PNG or JPEG the browser shows as it is
+			data, err = readLimited(src.Path, 1<<30)
+		} else {
+			data, err = s.imgs.get(r.Context(), kind, src)
+		}
 		if err != nil {
 			http.Error(w, "recto review: "+err.Error(), http.StatusInternalServerError)
 			return
 		}
-		w.Header().Set("Content-Type", "image/jpeg")
+		w.Header().Set("Content-Type", ctype)
 		w.Header().Set("Cache-Control", "private, max-age=3600")
 		_, _ = w.Write(data)
 	}
@@ -256,7 +263,7 @@ type state struct {
 	Note        string            `json:"note"`
 	Last        int64             `json:"last"`
 	Corrections map[string]string `json:"corrections"`
-	Undone      bool              `json:"undone,omitempty"`
+	History     []entryView       `json:"history"`
 }
 
 func (s *Server) answer(w http.ResponseWriter, r *http.Request, row ledger.Page) {
@@ -279,6 +286,10 @@ func (s *Server) answer(w http.ResponseWriter, r *http.Request, row ledger.Page)
 	}
 	if st.Corrections == nil {
 		st.Corrections = map[string]string{}
+	}
+	if st.History, err = s.history(r.Context(), row.Rel); err != nil {
+		s.fail(w, r, http.StatusInternalServerError, err.Error())
+		return
 	}
 	writeJSON(w, http.StatusOK, st)
 }

@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"image"
 	"image/jpeg"
+	"io"
 	"os"
 	"path/filepath"
 	"sync"
@@ -54,28 +55,29 @@ func (c *imageCache) path(kind, key string) string {
 }
 
 // get returns the cached image of kind ("thumbs" or "pages") for src,
-// making both images of the page first when missing. Concurrent requests
-// for one page wait for one making.
+// making it first when missing. Concurrent requests for one image wait
+// for one making.
 func (c *imageCache) get(ctx context.Context, kind string, src pageSource) ([]byte, error) {
 	key := imageKey(src.Rel, src.SHA256)
+	id := kind + "/" + key
 	for {
 		if data, err := os.ReadFile(c.path(kind, key)); err == nil {
 			return data, nil
 		}
 		c.mu.Lock()
-		if data, ok := c.mem[kind+key]; ok {
+		if data, ok := c.mem[id]; ok {
 			c.mu.Unlock()
 			return data, nil
 		}
-		if wg, ok := c.pending[key]; ok {
+		if wg, ok := c.pending[id]; ok {
 			c.mu.Unlock()
 			wg.Wait()
 			if _, err := os.Stat(c.path(kind, key)); err != nil {
 				c.mu.Lock()
-				data, ok := c.mem[kind+key]
+				data, ok := c.mem[id]
 				c.mu.Unlock()
 				if !ok {
-					return nil, fmt.Errorf("review: images of %q could not be made", src.Rel)
+					return nil, fmt.Errorf("review: the image of %q could not be made", src.Rel)
 				}
 				return data, nil
 			}
@@ -83,33 +85,28 @@ func (c *imageCache) get(ctx context.Context, kind string, src pageSource) ([]by
 		}
 		wg := &sync.WaitGroup{}
 		wg.Add(1)
-		c.pending[key] = wg
+		c.pending[id] = wg
 		c.mu.Unlock()
-		thumb, view, err := makeImages(ctx, src)
+		width := ThumbWidth
+		if kind == "pages" {
+			width = ViewWidth
+		}
+		data, err := makeImage(ctx, src, width)
 		if err == nil {
-			c.store("thumbs", key, thumb)
-			c.store("pages", key, view)
+			c.store(kind, key, data)
 		}
 		c.mu.Lock()
-		delete(c.pending, key)
+		delete(c.pending, id)
 		c.mu.Unlock()
 		wg.Done()
-		if err != nil {
-			return nil, err
-		}
-		if kind == "thumbs" {
-			return thumb, nil
-		}
-		return view, nil
+		return data, err
 	}
 }
 
-// has reports whether both images of src are cached.
-func (c *imageCache) has(src pageSource) bool {
-	key := imageKey(src.Rel, src.SHA256)
-	_, err1 := os.Stat(c.path("thumbs", key))
-	_, err2 := os.Stat(c.path("pages", key))
-	return err1 == nil && err2 == nil
+// has reports whether the image of kind for src is cached.
+func (c *imageCache) has(kind string, src pageSource) bool {
+	_, err := os.Stat(c.path(kind, imageKey(src.Rel, src.SHA256)))
+	return err == nil
 }
 
 func (c *imageCache) store(kind, key string, data []byte) {
@@ -120,7 +117,7 @@ func (c *imageCache) store(kind, key string, data []byte) {
 		}
 	}
 	c.mu.Lock()
-	c.mem[kind+key] = data
+	c.mem[kind+"/"+key] = data
 	c.mu.Unlock()
 }
 
@@ -129,26 +126,45 @@ type pageSource struct {
 	Rel, SHA256 string
 	Path        string // checked source image path
 	FilePage    int    // page in a multi-page file, from 1; 0 for a single image
+	// Direct is the content type when the source itself can be shown
+	// (a single PNG or JPEG page of at most maxDirect pixels); "" when
+	// a rendition must be made. The page shows it with CSS
+	// image-orientation: none, in its stored pixels as recto decodes it
+	// (an EXIF orientation is not applied), so the boxes fit.
+	Direct string
 }
 
-// makeImages decodes the page once and returns its thumbnail and the
-// page image shown, both JPEG.
-func makeImages(ctx context.Context, src pageSource) (thumb, view []byte, err error) {
+// maxDirect bounds the pixels of a source shown as it is (A4 at 400 dpi
+// is 15.6 million).
+const maxDirect = 16_000_000
+
+// directType returns the content type of a PNG or JPEG file, "" for any
+// other.
+func directType(name string) string {
+	f, err := os.Open(name)
+	if err != nil {
+		return ""
+	}
+	defer f.Close()
+	var head [8]byte
+	n, _ := io.ReadFull(f, head[:])
+	switch {
+	case n == 8 && string(head[:]) == "\x89PNG\r\n\x1a\n":
+		return "image/png"
+	case n >= 3 && head[0] == 0xff && head[1] == 0xd8 && head[2] == 0xff:
+		return "image/jpeg"
+	}
+	return ""
+}
+
+// makeImage decodes the page and returns it scaled to width w (or less
+// when smaller) as JPEG.
+func makeImage(ctx context.Context, src pageSource, w int) ([]byte, error) {
 	img, err := decodePage(ctx, src)
 	if err != nil {
-		return nil, nil, err
+		return nil, err
 	}
-	v := img
-	if img.Bounds().Dx() > ViewWidth {
-		v = shrink(img, ViewWidth)
-	}
-	if view, err = encodeJPEG(v); err != nil {
-		return nil, nil, err
-	}
-	if thumb, err = encodeJPEG(shrink(v, ThumbWidth)); err != nil {
-		return nil, nil, err
-	}
-	return thumb, view, nil
+	return encodeJPEG(shrink(img, w))
 }
 
 func decodePage(ctx context.Context, src pageSource) (image.Image, error) {
@@ -197,34 +213,35 @@ func shrink(img image.Image, w int) image.Image {
 }
 
 // shrinkGray is the area average of g at w×h: target column x covers
-// source columns [x·W/w, (x+1)·W/w), likewise for rows.
+// source columns [x·W/w, (x+1)·W/w), likewise for rows. Each source row
+// is added into per-column sums in one pass (col maps a source column to
+// its target column), so the work is one addition per source pixel.
 func shrinkGray(g *image.Gray, w, h int) *image.Gray {
 	sw, sh := g.Rect.Dx(), g.Rect.Dy()
 	out := image.NewGray(image.Rect(0, 0, w, h))
-	x0 := make([]int, w+1)
-	for x := 0; x <= w; x++ {
-		x0[x] = x * sw / w
+	col := make([]int32, sw)
+	span := make([]uint32, w) // source columns per target column
+	for x := 0; x < w; x++ {
+		x0, x1 := x*sw/w, (x+1)*sw/w
+		for sx := x0; sx < x1; sx++ {
+			col[sx] = int32(x)
+		}
+		span[x] = uint32(x1 - x0)
 	}
 	sums := make([]uint32, w)
 	for y := 0; y < h; y++ {
 		y0, y1 := y*sh/h, (y+1)*sh/h
-		if y1 == y0 {
-			y1 = y0 + 1
-		}
 		clear(sums)
 		for sy := y0; sy < y1; sy++ {
 			row := g.Pix[sy*g.Stride : sy*g.Stride+sw]
-			for x := 0; x < w; x++ {
-				var s uint32
-				for _, v := range row[x0[x]:max(x0[x+1], x0[x]+1)] {
-					s += uint32(v)
-				}
-				sums[x] += s
+			for sx, v := range row {
+				sums[col[sx]] += uint32(v)
 			}
 		}
 		dst := out.Pix[y*out.Stride : y*out.Stride+w]
+		rows := uint32(y1 - y0)
 		for x := range dst {
-			n := uint32(max(x0[x+1]-x0[x], 1) * (y1 - y0))
+			n := span[x] * rows
 			dst[x] = uint8((sums[x] + n/2) / n)
 		}
 	}

@@ -205,8 +205,10 @@ func (s *Server) Serve(ctx context.Context, ln net.Listener) error {
 	}
 }
 
-// Warm makes the missing thumbnails and page images of every done page,
-// Options.Jobs at a time, until ctx is done. It returns the number made.
+// Warm makes the missing thumbnails of every done page, Options.Jobs at a
+// time, then the missing page images of those whose source cannot be
+// shown as it is, until ctx is done. It returns the number of images
+// made.
 func (s *Server) Warm(ctx context.Context) int {
 	if s.o.Jobs < 0 {
 		return 0
@@ -215,26 +217,32 @@ func (s *Server) Warm(ctx context.Context) int {
 	if err != nil {
 		return 0
 	}
-	var todo []pageSource
+	var srcs []pageSource
 	for _, r := range rows {
 		if r.State != ledger.StateDone {
 			continue
 		}
-		src, err := s.source(r)
-		if err != nil || s.imgs.has(src) {
-			continue
+		if src, err := s.source(r); err == nil {
+			srcs = append(srcs, src)
 		}
-		todo = append(todo, src)
 	}
 	var mu sync.Mutex
 	made := 0
-	_ = par.Each(ctx, len(todo), par.Workers(s.o.Jobs, len(todo)), func(_, i int) {
-		if _, err := s.imgs.get(ctx, "thumbs", todo[i]); err == nil {
-			mu.Lock()
-			made++
-			mu.Unlock()
+	for _, kind := range []string{"thumbs", "pages"} {
+		var todo []pageSource
+		for _, src := range srcs {
+			if (kind == "thumbs" || src.Direct == "") && !s.imgs.has(kind, src) {
+				todo = append(todo, src)
+			}
 		}
-	})
+		_ = par.Each(ctx, len(todo), par.Workers(s.o.Jobs, len(todo)), func(_, i int) {
+			if _, err := s.imgs.get(ctx, kind, todo[i]); err == nil {
+				mu.Lock()
+				made++
+				mu.Unlock()
+			}
+		})
+	}
 	return made
 }
 
@@ -347,8 +355,12 @@ func (s *Server) source(r ledger.Page) (pageSource, error) {
 		return pageSource{}, err
 	}
 	src := pageSource{Rel: r.Rel, SHA256: r.SHA256, Path: p}
-	if rec, err := s.record(r); err == nil && rec != nil {
+	rec, err := s.record(r)
+	if err == nil && rec != nil {
 		src.FilePage = rec.FilePage
+		if rec.FilePages <= 1 && rec.Width > 0 && rec.Width*rec.Height <= maxDirect {
+			src.Direct = directType(p)
+		}
 	}
 	return src, nil
 }

@@ -12,7 +12,7 @@ import (
 	"context"
 	"encoding/json"
 	"image"
-	"image/jpeg"
+	_ "image/jpeg" // image.DecodeConfig of the thumbnails
 	"image/png"
 	"io"
 	"net"
@@ -29,6 +29,8 @@ import (
 	"recto/cmd/internal/run/ledger"
 	"recto/cmd/internal/run/runtest"
 	"recto/ocr/synth"
+
+	"golang.org/x/image/tiff"
 )
 
 func get(t testing.TB, c *http.Client, u string) (*http.Response, string) {
@@ -419,33 +421,63 @@ func TestJudgeAndUndo(t *testing.T) {
 	if r, _ := s.l.ReviewOf(ctx, page.Rel); r.Decision != "accept" {
 		t.Errorf("form post not stored: %+v", r)
 	}
+	// The overview's button rebuilds the reports as recto report does.
+	res = post(t, c, s, ts.URL+"/report", url.Values{})
+	var rep map[string]string
+	json.NewDecoder(res.Body).Decode(&rep)
+	res.Body.Close()
+	pages, _ := os.ReadFile(filepath.Join(dir, "report", "pages.csv"))
+	if res.StatusCode != 200 || rep["report"] != filepath.Join(dir, "report", "report.html") || !strings.Contains(string(pages), ",accept,") || !strings.Contains(string(pages), ",ann,") {
+		t.Errorf("rebuild: %s %v; pages.csv:\n%s", res.Status, rep, pages)
+	}
 }
 
-// TestThumbnailsCached: thumbnails and page images are JPEG renditions
-// of the source made once and kept in RUNDIR/review; the background pass
-// makes the missing ones only.
+// TestThumbnailsCached: thumbnails are JPEG renditions of the source made
+// once and kept in RUNDIR/review, and so are the page images of sources a
+// browser cannot show (here a TIFF); a PNG page is shown as it is. The
+// background pass makes the missing ones only.
 func TestThumbnailsCached(t *testing.T) {
 	ctx := context.Background()
-	_, dir, rows := testRun(t, 1, 3, nil)
+	_, dir, rows := testRun(t, 1, 3, func(coll string) {
+		f, _ := os.Open(filepath.Join(coll, "Title A", "p000.png"))
+		img, _ := png.Decode(f)
+		f.Close()
+		g := img.(*image.Gray)
+		g.Pix[2] ^= 0x33
+		var buf bytes.Buffer
+		if err := tiff.Encode(&buf, g, nil); err != nil {
+			t.Fatal(err)
+		}
+		fake, _ := os.ReadFile(filepath.Join(coll, "Title A", "p000.png") + runtest.FakeSuffix)
+		runtest.MustWrite(t, filepath.Join(coll, "Title A", "scan.tif"), buf.Bytes())
+		runtest.MustWrite(t, filepath.Join(coll, "Title A", "scan.tif")+runtest.FakeSuffix, fake)
+	})
 	s, ts, c := testServer(t, Options{Dir: dir, Jobs: 2})
-	if n := s.Warm(ctx); n != len(rows) {
-		t.Fatalf("first pass made %d, want %d", n, len(rows))
+	if n := s.Warm(ctx); n != len(rows)+1 {
+		t.Fatalf("first pass made %d, want %d thumbnails and 1 page image", n, len(rows))
 	}
 	if n := s.Warm(ctx); n != 0 {
 		t.Errorf("second pass made %d, want 0 (cached)", n)
 	}
 	files, _ := filepath.Glob(filepath.Join(dir, cacheDir, "*", "*", "*.jpg"))
-	if len(files) != 2*len(rows) {
-		t.Errorf("%d cached files, want %d", len(files), 2*len(rows))
+	if len(files) != len(rows)+1 {
+		t.Errorf("%d cached files, want %d", len(files), len(rows)+1)
 	}
-	for kind, want := range map[string]int{"thumb": ThumbWidth, "image": 620} {
-		res, body := get(t, c, ts.URL+"/"+kind+"?p="+url.QueryEscape(rows[0].Rel))
-		if res.Header.Get("Content-Type") != "image/jpeg" {
-			t.Fatalf("%s: %s", kind, res.Header.Get("Content-Type"))
+	for _, c2 := range []struct {
+		kind, rel, ctype string
+		width            int
+	}{
+		{"thumb", "Title A/p000.png", "image/jpeg", ThumbWidth},
+		{"image", "Title A/p000.png", "image/png", 620},
+		{"image", "Title A/scan.tif", "image/jpeg", 620},
+	} {
+		res, body := get(t, c, ts.URL+"/"+c2.kind+"?p="+url.QueryEscape(c2.rel))
+		if ct := res.Header.Get("Content-Type"); ct != c2.ctype {
+			t.Fatalf("%s of %s: %s %s, want %s", c2.kind, c2.rel, res.Status, ct, c2.ctype)
 		}
-		cfg, err := jpeg.DecodeConfig(strings.NewReader(body))
-		if err != nil || cfg.Width != want {
-			t.Errorf("%s: %v, width %d, want %d", kind, err, cfg.Width, want)
+		cfg, _, err := image.DecodeConfig(strings.NewReader(body))
+		if err != nil || cfg.Width != c2.width {
+			t.Errorf("%s of %s: %v, width %d, want %d", c2.kind, c2.rel, err, cfg.Width, c2.width)
 		}
 	}
 }
@@ -459,5 +491,22 @@ func TestShrinkGrayAverages(t *testing.T) {
 	got := shrinkGray(g, 2, 1)
 	if want := []uint8{15, 139}; !bytes.Equal(got.Pix, want) { // (0+10+20+30)/4, (200+255+100+0)/4 = 138.75
 		t.Errorf("halved: %v, want %v", got.Pix, want)
+	}
+}
+
+// TestMissingOutputsShown: a page whose record was deleted from the run
+// folder is still shown, saying what is missing, and can be decided.
+func TestMissingOutputsShown(t *testing.T) {
+	_, dir, rows := testRun(t, 1, 1, nil)
+	if err := os.Remove(filepath.Join(dir, "ocr", "Title A", "p000.png.json")); err != nil {
+		t.Fatal(err)
+	}
+	s, ts, c := testServer(t, Options{Dir: dir})
+	res, body := get(t, c, ts.URL+"/page?p="+url.QueryEscape(rows[0].Rel))
+	if res.StatusCode != 200 || !strings.Contains(body, "Cannot show the page") || !strings.Contains(body, "text and boxes: ") {
+		t.Errorf("page without its record: %s\n%.300s", res.Status, body)
+	}
+	if res := post(t, c, s, ts.URL+"/decide", url.Values{"p": {rows[0].Rel}, "decision": {"rescan"}}); res.StatusCode != 200 {
+		t.Errorf("deciding it: %s", res.Status)
 	}
 }

@@ -28,7 +28,7 @@ form.filters{display:flex;gap:.8em;align-items:center;margin:1em 0;flex-wrap:wra
 .card .nm{font-size:.85em;overflow-wrap:anywhere}.card .fig{font-size:.8em;color:var(--mute)}
 .cols{display:grid;grid-template-columns:minmax(0,1.1fr) minmax(0,1fr);gap:1em}
 #view{position:relative;overflow:hidden;height:78vh;background:#3a4148;border-radius:.3em;cursor:grab;touch-action:none}
-#stage{position:absolute;left:0;top:0;transform-origin:0 0}#stage img{display:block;user-select:none;-webkit-user-drag:none}
+#stage{position:absolute;left:0;top:0;transform-origin:0 0}#stage img{display:block;user-select:none;-webkit-user-drag:none;image-orientation:none}
 #box{position:absolute;border:3px solid #ff3d7f;background:rgba(255,61,127,.12);pointer-events:none}
 #text{background:var(--card);border:1px solid var(--line);padding:.6em .8em;max-height:60vh;overflow:auto;font-family:ui-serif,Georgia,serif}
 #text p{margin:0 0 .8em}.w{cursor:pointer;border-radius:.15em}.w:hover{background:#e3eef7}
@@ -41,8 +41,9 @@ button.on{background:#24313d;color:#fff;border-color:#24313d}
 .chg[data-state=rejected] .aft{text-decoration:line-through;color:var(--mute)}
 .chg[data-state=blocked]{color:var(--mute)}
 .state{font-size:.85em;color:var(--mute)}
-#msg.good{color:var(--acc)}#msg.bad{color:var(--res);font-weight:600}
-#truth{white-space:pre-wrap;background:#fbfbf3;border:1px dashed var(--line);padding:.5em;max-height:40vh;overflow:auto}
+#msg.good{color:var(--acc)}#msg.bad,.bad{color:var(--res);font-weight:600}
+#truth{white-space:pre-wrap;background:#fbfbf3;border:1px dashed var(--line);padding:.6em .8em;max-height:60vh;overflow:auto;font-family:ui-serif,Georgia,serif}
+#pair.two{display:grid;grid-template-columns:1fr 1fr;gap:.5em}
 kbd{border:1px solid #999;border-bottom-width:2px;border-radius:.2em;padding:0 .3em;font-size:.85em;background:#fff}
 ul.keys{columns:2;font-size:.88em;padding-left:1em}
 .hist{font-size:.85em}.hist .undone{text-decoration:line-through;color:var(--mute)}
@@ -95,6 +96,7 @@ ul.keys{columns:2;font-size:.88em;padding-left:1em}
 {{if .ReadOnly}}<span class="ro">read-only</span>{{end}}</header>
 <main>
 {{if .Failed}}<div class="panel"><h2>This page failed in the run</h2><p>{{.Error}}</p><p>Problem: {{.Problem}}. A failed page has nothing to review; its file is listed in failures.csv or rescan.csv.</p></div>{{else}}
+{{range .Missing}}<div class="panel"><span class="bad">Cannot show the page's {{.}}</span></div>{{end}}
 <div class="cols">
 <div>
 <div id="view"><div id="stage"><img id="pg" src="/image?p={{.Key}}" data-w="{{.Width}}" data-h="{{.Height}}" alt="page image" draggable="false"><div id="box" hidden></div></div></div>
@@ -110,17 +112,17 @@ ul.keys{columns:2;font-size:.88em;padding-left:1em}
 <form method="post" action="/undo" id="undoform"><input type="hidden" name="csrf" value="{{.CSRF}}"><input type="hidden" name="p" value="{{.Key}}"><input type="hidden" name="seen" value="{{.Last}}"><button id="undo">undo last change</button></form>{{end}}
 <div id="msg"></div>
 </div>
-<div class="panel"><h2>Text <span class="state">({{.Words}} words, {{.LowWords}} read with low confidence, marked)</span>{{if .HasTruth}} <button id="gt" type="button">ground truth</button>{{end}}</h2>
-<div id="text">{{range .Paras}}<p>{{range .}}{{range .}}<span class="w{{if .Low}} low{{end}}{{if .Changed}} fix{{end}}" data-b="{{.Box}}" data-c="{{.Conf}}"{{if .Changed}} title="corrected to: {{.Changed}}"{{end}}>{{.Text}}</span> {{end}}<br>{{end}}</p>{{else}}<p class="state">No text was read on this page.</p>{{end}}</div>
-<div id="truthbox" hidden><h2>Ground truth</h2><div id="truth"></div></div>
+<div class="panel"><h2>Text <span class="state">({{.Words}} words, {{.LowWords}} read with low confidence, marked)</span>{{if .HasTruth}} <button id="gt" type="button" title="show the ground truth beside the text (g)">ground truth</button>{{end}}</h2>
+<div id="pair"><div id="text">{{range .Paras}}<p>{{range .}}{{range .}}<span class="w{{if .Low}} low{{end}}{{if .Changed}} fix{{end}}" data-b="{{.Box}}" data-c="{{.Conf}}"{{if .Changed}} title="corrected to: {{.Changed}}"{{end}}>{{.Text}}</span> {{end}}<br>{{end}}</p>{{else}}<p class="state">No text was read on this page.</p>{{end}}</div>
+<div id="truthbox" hidden><div id="truth"></div></div></div>
 </div>
 <div class="panel"><h2>Corrections ({{len .Changes}})</h2>
 {{if .Changes}}<table id="changes"><thead><tr><th>Before</th><th>After</th><th>Where</th><th>Score</th><th>State</th><th></th></tr></thead><tbody>
-{{range .Changes}}<tr class="chg" data-key="{{.Key}}" data-state="{{.State}}"><td>{{.Before}}</td><td class="aft">{{.After}}</td><td>{{.Where}}</td><td>{{.Score}}</td><td class="state">{{if eq .State "blocked"}}not made: {{.Why}}{{else}}{{.State}}{{end}}</td>
+{{range .Changes}}<tr class="chg" data-key="{{.Key}}" data-state="{{.State}}"><td>{{.Before}}</td><td class="aft">{{if .After}}{{.After}}{{else}}<i>removed</i>{{end}}</td><td>{{.Where}}</td><td>{{.Score}}</td><td class="state">{{if eq .State "blocked"}}not made: {{.Why}}{{else}}{{.State}}{{end}}</td>
 <td>{{if and (ne .State "blocked") (not $.ReadOnly)}}<form method="post" action="/correction"><input type="hidden" name="csrf" value="{{$.CSRF}}"><input type="hidden" name="p" value="{{$.Key}}"><input type="hidden" name="seen" value="{{$.Last}}"><input type="hidden" name="key" value="{{.Key}}"><button name="value" value="accepted">accept</button> <button name="value" value="rejected">reject</button></form>{{end}}</td></tr>{{end}}
 </tbody></table>{{else}}<p class="state">No correction was made on this page.</p>{{end}}
 </div>
-<div class="panel hist"><h2>History</h2>{{range .History}}<div{{if .Undone}} class="undone"{{end}}>{{.When}} {{.Who}}: {{.What}}{{if .Note}} — {{.Note}}{{end}}</div>{{else}}<div class="state">No change yet.</div>{{end}}
+<div class="panel hist"><h2>History</h2><div id="history">{{range .History}}<div{{if .Undone}} class="undone"{{end}}>{{.When}} {{.Who}}: {{.What}}{{if .Note}} — {{.Note}}{{end}}</div>{{else}}<div class="state">No change yet.</div>{{end}}</div>
 <h2>Files</h2>{{range .Outputs}}<a href="{{.Link}}">{{.Name}}</a><br>{{end}}</div>
 <div class="panel"><h2>Keyboard</h2><ul class="keys">{{range .Keys}}<li><kbd>{{.Key}}</kbd> {{.What}}</li>{{end}}</ul></div>
 </div></div>{{end}}
@@ -172,6 +174,16 @@ ul.keys{columns:2;font-size:.88em;padding-left:1em}
     document.querySelectorAll("[data-decision]").forEach(function (b) { b.classList.toggle("on", b.dataset.decision === st.decision); });
     var d = document.getElementById("decision"); d.textContent = st.decision; d.className = "dec " + st.decision;
     document.getElementById("revmark").textContent = st.reviewed ? "reviewed by " + st.who : "not reviewed (triage)";
+    var h = document.getElementById("history");
+    if (h && st.history) {
+      h.textContent = "";
+      st.history.forEach(function (e) {
+        var div = document.createElement("div");
+        if (e.undone) div.className = "undone";
+        div.textContent = e.when + " " + e.who + ": " + e.what + (e.note ? " — " + e.note : "");
+        h.appendChild(div);
+      });
+    }
     document.querySelectorAll(".chg").forEach(function (row) {
       if (row.dataset.state === "blocked") return;
       var v = st.corrections[row.dataset.key] || "accepted"; row.dataset.state = v; row.querySelector(".state").textContent = v;
@@ -201,7 +213,7 @@ ul.keys{columns:2;font-size:.88em;padding-left:1em}
   var shown = false;
   function truth() {
     var tb = document.getElementById("truthbox"); if (!tb) return;
-    shown = !shown; tb.hidden = !shown; if (!shown) return;
+    shown = !shown; tb.hidden = !shown; document.getElementById("pair").classList.toggle("two", shown); if (!shown) return;
     fetch("/truth?p=" + body.dataset.relq, {headers: {"Accept": "application/json"}}).then(function (r) { return r.json(); }).then(function (j) {
       document.getElementById("truth").textContent = j.text !== undefined ? j.text : j.error;
     });

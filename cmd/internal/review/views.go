@@ -105,9 +105,11 @@ func items(rows []ledger.Page, revs map[string]ledger.Review) []item {
 }
 
 // choose returns the items f selects, in f's order; keep is always
-// included (the page being looked at, even once its decision has left
-// the filter).
-func choose(all []item, f filter, keep string) []item {
+// included (the page being looked at). With walk, a decision filter also
+// takes the pages triage decided so: the walk from page to page does not
+// change under the reviewer's feet when a page's decision leaves the
+// filter.
+func choose(all []item, f filter, keep string, walk bool) []item {
 	var out []item
 	for _, it := range all {
 		if it.Row.Rel != keep {
@@ -125,7 +127,7 @@ func choose(all []item, f filter, keep string) []item {
 					continue
 				}
 			default:
-				if it.Decision != f.Decision {
+				if it.Decision != f.Decision && !(walk && it.Row.Decision == f.Decision && it.Row.State == ledger.StateDone) {
 					continue
 				}
 			}
@@ -134,10 +136,10 @@ func choose(all []item, f filter, keep string) []item {
 	}
 	less := func(a, b item) bool { return a.Row.Rel < b.Row.Rel }
 	switch f.Sort {
-	case "predicted":
-		less = func(a, b item) bool { return a.Row.PredictedCER > b.Row.PredictedCER }
+	case "predicted": // failed pages (no prediction) last
+		less = func(a, b item) bool { return done(a) && (!done(b) || a.Row.PredictedCER > b.Row.PredictedCER) }
 	case "predicted-asc":
-		less = func(a, b item) bool { return a.Row.PredictedCER < b.Row.PredictedCER }
+		less = func(a, b item) bool { return done(a) && (!done(b) || a.Row.PredictedCER < b.Row.PredictedCER) }
 	case "measured": // pages without ground truth last
 		less = func(a, b item) bool { return a.CER > b.CER }
 	case "measured-asc":
@@ -146,6 +148,8 @@ func choose(all []item, f filter, keep string) []item {
 	sort.SliceStable(out, func(i, j int) bool { return less(out[i], out[j]) })
 	return out
 }
+
+func done(it item) bool { return it.Row.State == ledger.StateDone }
 
 func pct(x float64) string { return strconv.FormatFloat(100*x, 'f', 1, 64) + " %" }
 
@@ -194,7 +198,7 @@ func (s *Server) overview(w http.ResponseWriter, r *http.Request) {
 		Filters: append(append([]string{}, report.Decisions...), "failed", "reviewed", "unreviewed")}
 	d.Titles, d.Total = titles(all)
 	fq := f.query()
-	for _, it := range choose(all, f, "") {
+	for _, it := range choose(all, f, "", false) {
 		c := card{Rel: it.Row.Rel, Name: report.Clean(run.EscapeName(it.Row.Page)), Title: report.Clean(run.EscapeName(it.Row.Title)),
 			Decision: it.Decision, Reviewed: it.Reviewed, Failed: it.Row.State != ledger.StateDone,
 			Link: "/page?p=" + url.QueryEscape(it.Row.Rel) + amp(fq)}
@@ -321,8 +325,11 @@ type changeView struct {
 }
 
 type entryView struct {
-	When, Who, What, Note string
-	Undone                bool
+	When   string `json:"when"`
+	Who    string `json:"who"`
+	What   string `json:"what"`
+	Note   string `json:"note"`
+	Undone bool   `json:"undone"`
 }
 
 type pageData struct {
@@ -355,6 +362,7 @@ type pageData struct {
 	MeanConf                 string
 	LowWords, Words, Blocked int
 	Problem                  string
+	Missing                  []string // what of the page could not be read, and why
 }
 
 // keys are the keyboard shortcuts, listed on the page.
@@ -380,7 +388,7 @@ func (s *Server) pageView(w http.ResponseWriter, r *http.Request) {
 	}
 	f := filterOf(r)
 	fq := f.query()
-	list := choose(all, f, row.Rel)
+	list := choose(all, f, row.Rel, true)
 	d := pageData{Nonce: randomHex(16), CSRF: s.csrf, Name: s.name(), Rel: report.Clean(run.EscapeName(row.Rel)),
 		Page: report.Clean(run.EscapeName(row.Page)), Title: report.Clean(run.EscapeName(row.Title)),
 		RelQ: url.QueryEscape(row.Rel), Key: row.Rel, Self: "/page?p=" + url.QueryEscape(row.Rel) + amp(fq), Count: len(list), Back: "/" + q(fq), Decisions: Decisions,
@@ -423,8 +431,7 @@ func (s *Server) pageView(w http.ResponseWriter, r *http.Request) {
 		}
 		changes, err := s.changes(row)
 		if err != nil {
-			http.Error(w, "recto review: "+err.Error(), http.StatusInternalServerError)
-			return
+			d.Missing = append(d.Missing, "corrections: "+report.Clean(err.Error()))
 		}
 		at := map[[2]int]run.ChangeLine{}
 		for _, c := range changes {
@@ -445,8 +452,7 @@ func (s *Server) pageView(w http.ResponseWriter, r *http.Request) {
 		}
 		rec, err := s.record(row)
 		if err != nil {
-			http.Error(w, "recto review: "+err.Error(), http.StatusInternalServerError)
-			return
+			d.Missing = append(d.Missing, "text and boxes: "+report.Clean(err.Error()))
 		}
 		if rec != nil {
 			d.Width, d.Height = rec.Width, rec.Height
@@ -459,12 +465,21 @@ func (s *Server) pageView(w http.ResponseWriter, r *http.Request) {
 			}
 		}
 	}
-	log, err := s.l.ReviewLog(ctx, row.Rel)
-	if err != nil {
+	if d.History, err = s.history(ctx, row.Rel); err != nil {
 		http.Error(w, "recto review: "+err.Error(), http.StatusInternalServerError)
 		return
 	}
-	for i := len(log) - 1; i >= 0 && len(d.History) < 20; i-- {
+	s.render(w, "page", d, d.Nonce)
+}
+
+// history returns the page's last 20 review entries, newest first.
+func (s *Server) history(ctx context.Context, rel string) ([]entryView, error) {
+	log, err := s.l.ReviewLog(ctx, rel)
+	if err != nil {
+		return nil, err
+	}
+	var out []entryView
+	for i := len(log) - 1; i >= 0 && len(out) < 20; i-- {
 		e := log[i]
 		what := e.Kind + ": " + e.Old + " → " + e.New
 		if e.Kind == ledger.KindCorrection {
@@ -477,10 +492,10 @@ func (s *Server) pageView(w http.ResponseWriter, r *http.Request) {
 		if e.Undoes != 0 {
 			what = "undo (" + what + ")"
 		}
-		d.History = append(d.History, entryView{When: e.At.Local().Format(time.DateTime), Who: e.Who,
+		out = append(out, entryView{When: e.At.Local().Format(time.DateTime), Who: e.Who,
 			What: report.Clean(what), Note: report.Clean(e.Note), Undone: e.UndoneBy != 0})
 	}
-	s.render(w, "page", d, d.Nonce)
+	return out, nil
 }
 
 func q(s string) string {

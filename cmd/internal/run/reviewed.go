@@ -193,6 +193,9 @@ func ReviewedText(outDir string, p ledger.Page, rev ledger.Review) (text string,
 // of its corrections were rejected, writes DIR/reviewed/<page>.txt and
 // returns its path ("" otherwise).
 func applyReview(p *report.Page, r ledger.Page, rev ledger.Review, outDir string) (string, error) {
+	if r.State != ledger.StateDone {
+		return "", nil // a page that failed since it was reviewed has no decision to replace
+	}
 	if rev.Decision != "" {
 		why := "reviewed by " + rev.Who
 		if rev.Note != "" {
@@ -210,7 +213,7 @@ func applyReview(p *report.Page, r ledger.Page, rev ledger.Review, outDir string
 		}
 		p.Decision, p.Reasons, p.Reviewed, p.ReviewNote = rev.Decision, reasons, rev.Who, rev.Note
 	}
-	if len(rev.Corrections) == 0 || r.State != ledger.StateDone {
+	if len(rev.Corrections) == 0 {
 		return "", nil
 	}
 	text, rejected, err := ReviewedText(outDir, r, rev)

@@ -214,3 +214,43 @@ func TestReviewedDecisionsReachReports(t *testing.T) {
 	}
 	check("after the image changed", false)
 }
+
+// TestReviewOfFailedPageIgnored: a page reviewed while done that fails in
+// a later run (here a set-up failure, not the scan's fault) is reported as
+// failed, not with the reviewed decision.
+func TestReviewOfFailedPageIgnored(t *testing.T) {
+	ctx := context.Background()
+	coll, _ := testCollection(t, 1, 2, false)
+	out := filepath.Join(t.TempDir(), "out")
+	if _, se, err := runTest(t, Options{Collection: coll, Out: out}); err != nil {
+		t.Fatal(err, se)
+	}
+	rows := ledgerRows(t, out)
+	l, err := ledger.OpenReview(filepath.Join(out, ledger.FileName), false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := l.Record(ctx, ledger.ReviewEntry{Rel: rows[0].Rel, Kind: ledger.KindDecision, New: "rescan", Who: "ann"}, -1); err != nil {
+		t.Fatal(err)
+	}
+	l.Close()
+	w, err := ledger.Open(filepath.Join(out, ledger.FileName))
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := rows[0]
+	f.State, f.Problem, f.Error, f.Decision = ledger.StateFailed, ledger.ProblemSetup, "disk full", ""
+	if err := w.Put(ctx, f); err != nil {
+		t.Fatal(err)
+	}
+	w.Close()
+	if _, err := Report(ctx, out); err != nil {
+		t.Fatal(err)
+	}
+	if r := csvRow(readCSV(t, filepath.Join(out, reportDir, "rescan.csv")), "image", f.Rel); r != nil {
+		t.Errorf("failed page listed for rescan with its old review: %v", r)
+	}
+	if p := csvRow(readCSV(t, filepath.Join(out, reportDir, "pages.csv")), "image", f.Rel); p["status"] != "failed" || p["decision"] != "" || p["reviewed"] != "" {
+		t.Errorf("pages.csv row %v", p)
+	}
+}

@@ -102,7 +102,7 @@ func (o Options) Validate() error {
 	case o.Out == "":
 		return usagef("run: --out DIR is required")
 	case o.Jobs < 0:
-		return usagef("run: --jobs %d: must be 0 (all CPUs) or more", o.Jobs)
+		return cli.CheckJobs(o.Jobs)
 	case o.Rescan < 0 || o.Rescan > 1:
 		return usagef("run: --rescan %g: a CER threshold must be in [0, 1]", o.Rescan)
 	case o.Correct < 0 || o.Correct > 1:

@@ -11,6 +11,7 @@ import (
 	"recto/correct"
 	"recto/lexicon"
 	"recto/ocr"
+	"recto/ocr/estimate"
 	"recto/ocr/tesseract"
 	"recto/quality"
 )
@@ -77,7 +78,7 @@ func newToolkit(o Options) (*toolkit, error) {
 	if err != nil {
 		return nil, fmt.Errorf("--quality-model: %w", err)
 	}
-	cmodel := correct.DefaultModel()
+	cmodel, _ := correct.ModelForLang(o.Lang) // the Fraktur model for frk, else the default
 	if o.CorrectionModel != "" {
 		if cmodel, err = correct.LoadModel(o.CorrectionModel); err != nil {
 			return nil, err
@@ -92,7 +93,8 @@ func newToolkit(o Options) (*toolkit, error) {
 		return nil, fmt.Errorf("--lexicon: %w", err)
 	}
 	custom := o.NewEngine != nil
-	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare, Lang: o.Lang, MaxPixels: o.MaxPixels, Prep: o.Prep}
+	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare, Lang: o.Lang, MaxPixels: o.MaxPixels, Prep: o.Prep,
+		PredictCER: estimate.PredictCER(model, lex)} // the self-check records triage's estimate of both readings
 	cfg := tesseract.Config{Lang: o.Lang, PSM: o.PSM}
 	settings := map[string]any{"lang": o.Lang, "psm": o.PSM, "dpi": o.DPI, "rescan": o.Rescan, "correct": o.Correct,
 		"model": modelSum, "lexicon": lexSum, "margin": o.Margin, "fake_engine": custom, "record": ocr.RecordVersion}

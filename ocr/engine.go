@@ -45,6 +45,19 @@ type Options struct {
 	// (Orienter): Auto when the page's first reading looks poor, On
 	// before every reading, Off never (see processOriented).
 	Orient Mode
+
+	// SelfCheck is the self-check of a prepared page (selfCheck): Auto
+	// reads the original page too when the prepared page's reading looks
+	// poor by the engine's confidences, On always, Off never. Ignored with
+	// NoPrepare.
+	SelfCheck Mode
+
+	// PredictCER, when set, is the quality estimate the self-check records
+	// for both readings (Reading.PreparedPredictedCER and
+	// OriginalPredictedCER) and uses to choose between readings with as
+	// many confidently read words. Package ocr/estimate makes one from
+	// package quality's model.
+	PredictCER PredictCER
 }
 
 func (o Options) dpi() float64 {

@@ -77,9 +77,9 @@ func unturnBox(b Box, q, w, h int) Box {
 
 // processOriented is Process with orientation detection (issue 11 part 3),
 // for engines that have it (Orienter) and unless o.NoPrepare. With
-// o.Orient Auto the page is read first as it is; only when that reading
-// looks poor (the self-check read the original page too: a turned page
-// reads as a few unsure words) is the orientation detected, so that
+// o.Orient Auto the page is read first as it is; only when the reading
+// kept looks poor (ReadingLooksPoor, after the self-check: a turned page
+// reads as a few unsure words both ways) is the orientation detected, so that
 // upright pages, nearly all of a collection, cost nothing more. With On it
 // is detected before every reading; Off never. A page found turned with
 // confidence MinOrientConfidence or more is turned upright (exactly, by
@@ -98,7 +98,7 @@ func processOriented(ctx context.Context, eng Engine, src image.Image, dpi float
 	var firstImg *image.Gray
 	if o.Orient != On {
 		rec, img, err := process(ctx, eng, src, dpi, o)
-		if err != nil || rec.Reading == nil {
+		if err != nil || rec.Blank || !ReadingLooksPoor(rec.Words) {
 			return rec, img, err
 		}
 		first, firstImg = rec, img

@@ -13,7 +13,6 @@ import (
 	"path/filepath"
 	"strings"
 	"time"
-	"unicode"
 )
 
 // Process prepares src (unless o.NoPrepare), recognises it with eng and
@@ -120,49 +119,15 @@ func process(ctx context.Context, eng Engine, src image.Image, dpi float64, o Op
 		if toOrig == nil {
 			toOrig = func(b Box) Box { return b }
 		}
-		if !o.NoPrepare && readingLooksPoor(words) {
-			// Self-check: preparation may have done harm (a phantom
-			// rotation, type binarised away). Read the page as the engine
-			// alone would and keep the reading the engine itself is surer of.
-			// The engine alone knows only the file's own resolution; recto's
-			// adapter reads an untagged page as at DefaultDPI. With the
-			// estimate (400 dpi) the original of 1555.003.jpg gave 7
-			// confident words, at 300 dpi 14, the plain engine 13.
-			t := time.Now()
-			orig := toGray(src)
-			odpi := tag
-			if odpi <= 0 {
-				odpi = DefaultDPI
-			}
-			owords, err := eng.Recognize(ctx, orig, int(math.Round(odpi)))
-			rec.TimingsMS["engine_original"] = ms(time.Since(t))
+		rec.Words, rec.MeanConfidence = placeWords(words, toOrig, rec.Width, rec.Height)
+		if !o.NoPrepare && o.SelfCheck != Off {
+			kept, err := selfCheck(ctx, eng, src, tag, rec, o)
 			if err != nil {
 				return nil, nil, err
 			}
-			r := &Reading{Kept: "prepared", PreparedScore: confidentLetters(words), OriginalScore: confidentLetters(owords),
-				PreparedWords: ConfidentWords(words), OriginalWords: ConfidentWords(owords)}
-			// More confidently read words (of three letters or more)
-			// first, the figure the real-page check compares with the
-			// plain engine (issue 10 part 1); on a tie, more confident
-			// letters. Letters alone kept 11 words of 1555.003.jpg
-			// (51 letters) over the original's 37 letters.
-			if r.OriginalWords > r.PreparedWords || (r.OriginalWords == r.PreparedWords && r.OriginalScore > r.PreparedScore) {
-				r.Kept = "original"
-				words = owords
-				toOrig = func(b Box) Box { return b }
-				p = &Prepared{Image: orig, Binarization: "none"}
-				rec.Skew, rec.Binarization, rec.Threshold = 0, "none", 0
+			if kept != nil {
+				p = &Prepared{Image: kept, Binarization: "none"}
 			}
-			rec.Reading = r
-		}
-		sum := 0.0
-		for _, w := range words {
-			w.Box = clip(toOrig(w.Box), rec.Width, rec.Height)
-			sum += w.Conf
-			rec.Words = append(rec.Words, w)
-		}
-		if len(words) > 0 {
-			rec.MeanConfidence = sum / float64(len(words))
 		}
 	}
 	if !o.KeepImage {
@@ -293,68 +258,4 @@ func nameFile(path string, err error) error {
 		return err
 	}
 	return fmt.Errorf("ocr: %q: %w", path, err)
-}
-
-// Self-check thresholds (common practice for the engine's word
-// confidences, chosen here, not fitted): a reading is poor when fewer than
-// half of its words are read with confidence ConfidentWord or more, or
-// when it has no word at all.
-const (
-	ConfidentWord  = 0.8 // word confidence counted as "read confidently"
-	poorReadingMax = 0.5 // share of confident words at or below which the original is read too
-)
-
-// readingLooksPoor reports whether a reading of a page that was not found
-// blank looks failed by the engine's own confidences.
-func readingLooksPoor(words []Word) bool {
-	if len(words) == 0 {
-		return true
-	}
-	n := 0
-	for _, w := range words {
-		if w.Conf >= ConfidentWord {
-			n++
-		}
-	}
-	return float64(n) <= poorReadingMax*float64(len(words))
-}
-
-// ConfidentWords counts the words read with confidence ConfidentWord (0.8)
-// or more that have at least three letters: the real-scans issue's figure
-// for a reading without a transcription (issue 10 part 1), and the
-// self-check's.
-func ConfidentWords(words []Word) int {
-	n := 0
-	for _, w := range words {
-		if w.Conf < ConfidentWord {
-			continue
-		}
-		letters := 0
-		for _, r := range w.Text {
-			if unicode.IsLetter(r) {
-				letters++
-			}
-		}
-		if letters >= 3 {
-			n++
-		}
-	}
-	return n
-}
-
-// confidentLetters counts the letters and digits of the words read with
-// confidence ConfidentWord or more: how much text the engine is sure of.
-func confidentLetters(words []Word) int {
-	n := 0
-	for _, w := range words {
-		if w.Conf < ConfidentWord {
-			continue
-		}
-		for _, r := range w.Text {
-			if unicode.IsLetter(r) || unicode.IsDigit(r) {
-				n++
-			}
-		}
-	}
-	return n
 }

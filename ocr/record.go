@@ -86,18 +86,27 @@ type Record struct {
 	Engine *EngineInfo `json:"engine,omitempty"`
 }
 
-// Reading records the self-check of one page: both readings' scores (the
-// letters and digits, and the words of three letters or more, read with
-// confidence ConfidentWord or more) and which reading was kept.
+// Reading records the self-check of one page (Options.SelfCheck): why
+// the original page was read too, both readings' scores (the letters and
+// digits, and the words of three letters or more, read with confidence
+// ConfidentWord or more), the quality estimate of each when there was one
+// (Options.PredictCER) and which reading was kept.
 type Reading struct {
-	Kept          string `json:"kept"`           // "prepared" or "original" (no preparation)
-	PreparedScore int    `json:"prepared_score"` // confident letters in the prepared page's reading
-	OriginalScore int    `json:"original_score"` // confident letters in the original page's reading
+	Kept          string `json:"kept"`             // "prepared" or "original" (no preparation)
+	Reason        string `json:"reason,omitempty"` // why the original page was read too
+	PreparedScore int    `json:"prepared_score"`   // confident letters in the prepared page's reading
+	OriginalScore int    `json:"original_score"`   // confident letters in the original page's reading
 
 	// Confidently read words of three letters or more in each reading:
-	// the reading with more is kept, on a tie the one with more letters.
+	// the reading with more is kept; on a tie the one with the lower
+	// predicted CER, else the one with more confident letters.
 	PreparedWords int `json:"prepared_words"`
 	OriginalWords int `json:"original_words"`
+
+	// The quality estimate (predicted CER, a fraction) of each reading;
+	// absent when the caller gave no estimate (Options.PredictCER).
+	PreparedPredictedCER *float64 `json:"prepared_predicted_cer,omitempty"`
+	OriginalPredictedCER *float64 `json:"original_predicted_cer,omitempty"`
 }
 
 // Word is one recognised word.

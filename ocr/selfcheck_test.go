@@ -94,3 +94,88 @@ func TestSelfCheckKeepsSurerReading(t *testing.T) {
 		t.Errorf("NoPrepare: engine called %d times, want 1", e.Calls())
 	}
 }
+
+// words returns n words of five letters read with confidence conf.
+func words(n int, conf float64) []ocr.Word {
+	out := make([]ocr.Word, n)
+	for i := range out {
+		out[i] = ocr.Word{Text: "quays", Conf: conf, Line: i / 8}
+	}
+	return out
+}
+
+// TestSelfCheckChoice: which reading is kept (the real-scans issue, part
+// 4): the original's only with more confident words than the prepared
+// page's by more than a twentieth; with as many, the lower quality
+// estimate (Options.PredictCER), which is recorded for both readings;
+// the self-check always or never with SelfCheck On or Off.
+func TestSelfCheckChoice(t *testing.T) {
+	// A poor first reading: 20 confident words among 40.
+	poor := append(words(20, 0.9), words(20, 0.3)...)
+	cases := []struct {
+		name      string
+		mode      ocr.Mode
+		first     []ocr.Word
+		second    []ocr.Word
+		estimate  bool
+		calls     int
+		kept      string
+		estimates int
+	}{
+		{"21 against 20: within a twentieth, prepared kept", ocr.Auto, poor, words(21, 0.9), false, 2, "prepared", 0},
+		{"22 against 20: original kept", ocr.Auto, poor, words(22, 0.9), false, 2, "original", 0},
+		{"19 against 20: prepared kept", ocr.Auto, poor, words(19, 0.95), false, 2, "prepared", 0},
+		{"as many, original estimated lower", ocr.Auto, poor, append(words(20, 0.9), words(1, 0.5)...), true, 2, "original", 2},
+		{"as many, no estimate: more confident letters", ocr.Auto, poor, words(20, 0.9), false, 2, "prepared", 0},
+		{"self-check off", ocr.Off, poor, words(40, 0.9), true, 1, "", 0},
+		{"self-check on, good first reading", ocr.On, words(30, 0.95), append(words(30, 0.95), words(1, 0.5)...), true, 2, "original", 2},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			var n int
+			e := &ocrtest.Engine{Func: func(ctx context.Context, img *image.Gray, dpi int) ([]ocr.Word, error) {
+				n++
+				if n == 1 {
+					return append([]ocr.Word(nil), c.first...), nil
+				}
+				return append([]ocr.Word(nil), c.second...), nil
+			}}
+			o := ocr.Options{SelfCheck: c.mode}
+			var asked []int
+			if c.estimate {
+				// A stand-in estimate: the prepared page's reading (as
+				// many words as the first) 0.30, the original's 0.05.
+				o.PredictCER = func(r *ocr.Record) float64 {
+					asked = append(asked, len(r.Words))
+					if len(r.Words) == len(c.first) {
+						return 0.30
+					}
+					return 0.05
+				}
+			}
+			rec, _, err := ocr.Process(context.Background(), e, textPage(), 300, o)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if e.Calls() != c.calls {
+				t.Errorf("engine called %d times, want %d", e.Calls(), c.calls)
+			}
+			kept := ""
+			if r := rec.Reading; r != nil {
+				kept = r.Kept
+				if r.Reason == "" {
+					t.Error("no reason recorded for the second reading")
+				}
+				if c.estimate && (r.PreparedPredictedCER == nil || *r.PreparedPredictedCER != 0.30 || r.OriginalPredictedCER == nil || *r.OriginalPredictedCER != 0.05) {
+					t.Errorf("estimates not recorded: %+v", r)
+				}
+			}
+			if kept != c.kept {
+				t.Errorf("kept %q, want %q (reading %+v)", kept, c.kept, rec.Reading)
+			}
+			if len(asked) != c.estimates || (len(asked) == 2 && (asked[0] != len(c.first) || asked[1] != len(c.second))) {
+				t.Errorf("estimate asked about readings of %v words, want %d readings (prepared, then original)", asked, c.estimates)
+			}
+		})
+	}
+}

@@ -106,7 +106,12 @@ func WriteALTOWith(w io.Writer, rec *Record, o ALTOOptions) error {
 	// Preparation.
 	prep := ALTOStep{Settings: "binarization=" + orNone(rec.Binarization) + " threshold=" + strconv.Itoa(rec.Threshold) +
 		" skew_degrees=" + strconv.FormatFloat(rec.Skew, 'f', 2, 64) + " dpi=" + strconv.FormatFloat(rec.DPI, 'f', -1, 64) +
+		" dpi_source=" + orNone(rec.DPISource) + " dpi_tagged=" + strconv.FormatFloat(rec.TaggedDPI, 'f', -1, 64) +
+		" dpi_estimated=" + strconv.FormatFloat(rec.EstimatedDPI, 'f', -1, 64) +
 		" noise=" + strconv.FormatFloat(rec.Noise, 'f', 2, 64)}
+	if d := resolutionDescription(rec); d != "" {
+		prep.Description = append(prep.Description, d)
+	}
 	if rec.Binarization != "" && rec.Binarization != "none" {
 		prep.Description = append(prep.Description, "binarisation ("+rec.Binarization+")")
 	}
@@ -134,9 +139,7 @@ func WriteALTOWith(w io.Writer, rec *Record, o ALTOOptions) error {
 		}
 	}
 	if r := rec.Reading; r != nil {
-		recog.Description = append(recog.Description, "self-check: the reading of the "+r.Kept+" page was kept (kept="+r.Kept+
-			" prepared_score="+strconv.Itoa(r.PreparedScore)+" original_score="+strconv.Itoa(r.OriginalScore)+
-			": letters and digits in confidently read words)")
+		recog.Description = append(recog.Description, readingDescription(r))
 		settings += " self_check=on"
 	}
 	recog.Settings = settings
@@ -231,6 +234,51 @@ func WriteALTOWith(w io.Writer, rec *Record, o ALTOOptions) error {
 		return a.err
 	}
 	return bw.Flush()
+}
+
+// resolutionDescription says where the page's resolution came from
+// (Record.DPISource), with the tag and the estimate beside it; "" in
+// records that do not say.
+func resolutionDescription(rec *Record) string {
+	d := strconv.FormatFloat(rec.DPI, 'f', -1, 64) + " dpi"
+	est := ""
+	if rec.EstimatedDPI > 0 {
+		est = "; estimated from the size of the text: " + strconv.FormatFloat(rec.EstimatedDPI, 'f', -1, 64) + " dpi"
+	}
+	tag := "the file has no resolution tag"
+	if rec.TaggedDPI > 0 {
+		tag = "the file's tag says " + strconv.FormatFloat(rec.TaggedDPI, 'f', -1, 64) + " dpi"
+	}
+	switch rec.DPISource {
+	case DPIFromTag:
+		return "resolution " + d + " from the file's tag" + est
+	case DPIFromEstimate:
+		return "resolution " + d + " estimated from the size of the text (" + tag + ")"
+	case DPIFromOption:
+		return "resolution " + d + " as given for files without a tag (--dpi; " + tag + est + ")"
+	case DPIDefault:
+		return "resolution " + d + " assumed (" + tag + est + ")"
+	}
+	return ""
+}
+
+// readingDescription describes the self-check of a page: which reading
+// was kept, why the original page was read too, and both readings'
+// figures, quality estimates included when there were any.
+func readingDescription(r *Reading) string {
+	d := "self-check: the reading of the " + r.Kept + " page was kept (kept=" + r.Kept +
+		" prepared_score=" + strconv.Itoa(r.PreparedScore) + " original_score=" + strconv.Itoa(r.OriginalScore) +
+		": letters and digits in confidently read words; prepared_words=" + strconv.Itoa(r.PreparedWords) +
+		" original_words=" + strconv.Itoa(r.OriginalWords) + ": confidently read words of three letters or more"
+	if r.PreparedPredictedCER != nil && r.OriginalPredictedCER != nil {
+		d += "; prepared_predicted_cer=" + strconv.FormatFloat(*r.PreparedPredictedCER, 'f', 4, 64) +
+			" original_predicted_cer=" + strconv.FormatFloat(*r.OriginalPredictedCER, 'f', 4, 64) + ": the quality estimate of each reading"
+	}
+	d += ")"
+	if r.Reason != "" {
+		d += "; the original page was read too: " + r.Reason
+	}
+	return d
 }
 
 // step writes one Processing element; an empty software name is recto.

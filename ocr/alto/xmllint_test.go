@@ -55,7 +55,10 @@ func documents(t *testing.T) map[string][]byte {
 	write("empty", &ocr.Record{Width: 10, Height: 10, Words: []ocr.Word{}}, alto.Options{})
 	write("blank", &ocr.Record{Width: 10, Height: 10, Blank: true, Binarization: "none"}, alto.Options{HasAccuracy: true, Accuracy: 100})
 	kept := record()
-	kept.Reading = &ocr.Reading{Kept: "original", PreparedScore: 12, OriginalScore: 40}
+	pc, oc := 0.35, 0.041
+	kept.Reading = &ocr.Reading{Kept: "original", Reason: "no word read", PreparedScore: 12, OriginalScore: 40,
+		PreparedWords: 2, OriginalWords: 9, PreparedPredictedCER: &pc, OriginalPredictedCER: &oc}
+	kept.TaggedDPI, kept.EstimatedDPI, kept.DPISource = 72, 300, ocr.DPIFromEstimate
 	kept.Engine = &ocr.EngineInfo{Name: "Tesseract", Version: "5.3.0", Settings: "lang=eng psm=3 oem=default"}
 	write("self-check", kept, alto.Options{})
 	write("corrected", kept, alto.Options{HasAccuracy: true, Accuracy: 92.25,
@@ -125,6 +128,18 @@ func TestProcessingAndEstimate(t *testing.T) {
 	if rec.Name != "Tesseract" || rec.Version != "5.3.0" || !strings.Contains(rec.Settings, "psm=3") ||
 		!strings.Contains(strings.Join(rec.Desc, " "), "kept=original prepared_score=12 original_score=40") {
 		t.Errorf("recognition step %+v", rec)
+	}
+	// Both readings' quality estimates and why the original was read
+	// (issue 10 part 4), the resolution's source (part 3).
+	for _, want := range []string{"prepared_words=2 original_words=9", "prepared_predicted_cer=0.3500 original_predicted_cer=0.0410",
+		"read too: no word read"} {
+		if !strings.Contains(strings.Join(rec.Desc, " "), want) {
+			t.Errorf("recognition step does not say %q: %+v", want, rec.Desc)
+		}
+	}
+	if p := d.Steps[0]; !strings.Contains(p.Settings, "dpi=300 dpi_source=estimate dpi_tagged=72 dpi_estimated=300") ||
+		!strings.Contains(strings.Join(p.Desc, " "), "resolution 300 dpi estimated from the size of the text (the file's tag says 72 dpi)") {
+		t.Errorf("preparation step does not give the resolution's source: %+v", p)
 	}
 	if c := d.Steps[2]; c.Category != "contentModification" || c.Name != "recto" || c.Version == "" || c.Settings != "margin=0 keep_marks=false <&>" {
 		t.Errorf("correction step %+v", c)

@@ -118,7 +118,7 @@ ul.keys{columns:2;font-size:.88em;padding-left:1em}
 </div>
 <div class="panel"><h2>Corrections ({{len .Changes}})</h2>
 {{if .Changes}}<table id="changes"><thead><tr><th>Before</th><th>After</th><th>Where</th><th>Score</th><th>State</th><th></th></tr></thead><tbody>
-{{range .Changes}}<tr class="chg" data-key="{{.Key}}" data-state="{{.State}}"><td>{{.Before}}</td><td class="aft">{{.After}}</td><td>{{.Where}}</td><td>{{.Score}}</td><td class="state">{{if eq .State "blocked"}}not made: {{.Why}}{{else}}{{.State}}{{end}}</td>
+{{range .Changes}}<tr class="chg" data-key="{{.Key}}" data-state="{{.State}}"><td>{{.Before}}</td><td class="aft">{{if .After}}{{.After}}{{else}}<i>removed</i>{{end}}</td><td>{{.Where}}</td><td>{{.Score}}</td><td class="state">{{if eq .State "blocked"}}not made: {{.Why}}{{else}}{{.State}}{{end}}</td>
 <td>{{if and (ne .State "blocked") (not $.ReadOnly)}}<form method="post" action="/correction"><input type="hidden" name="csrf" value="{{$.CSRF}}"><input type="hidden" name="p" value="{{$.Key}}"><input type="hidden" name="seen" value="{{$.Last}}"><input type="hidden" name="key" value="{{.Key}}"><button name="value" value="accepted">accept</button> <button name="value" value="rejected">reject</button></form>{{end}}</td></tr>{{end}}
 </tbody></table>{{else}}<p class="state">No correction was made on this page.</p>{{end}}
 </div>

@@ -10,6 +10,7 @@ import (
 	"recto/correct"
 	"recto/lexicon"
 	"recto/ocr"
+	"recto/ocr/estimate"
 	"recto/ocr/tesseract"
 	"recto/quality"
 )
@@ -90,7 +91,8 @@ func newToolkit(o Options) (*toolkit, error) {
 		return nil, fmt.Errorf("--lexicon: %w", err)
 	}
 	custom := o.NewEngine != nil
-	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare, Lang: o.Lang, MaxPixels: o.MaxPixels, Prep: o.Prep}
+	opts := ocr.Options{DPI: o.DPI, NoPrepare: o.NoPrepare, Lang: o.Lang, MaxPixels: o.MaxPixels, Prep: o.Prep,
+		PredictCER: estimate.PredictCER(model, lex)} // the self-check records triage's estimate of both readings
 	cfg := tesseract.Config{Lang: o.Lang, PSM: o.PSM}
 	settings := map[string]any{"lang": o.Lang, "psm": o.PSM, "dpi": o.DPI, "rescan": o.Rescan, "correct": o.Correct,
 		"model": modelSum, "lexicon": lexSum, "margin": o.Margin, "fake_engine": custom, "record": ocr.RecordVersion}

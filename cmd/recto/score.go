@@ -112,8 +112,8 @@ func newScoreCommand(g *GlobalOptions) *cobra.Command {
 		},
 	}
 	f := cmd.Flags()
-	f.StringVar(&o.Truth, "truth", "", "ground-truth `dir` (reference *.txt pages, searched recursively)")
-	f.StringVar(&o.OCR, "ocr", "", "OCR output `dir` (hypothesis *.txt pages at the same relative paths)")
+	f.StringVar(&o.Truth, "truth", "", "ground-truth `folder` (reference *.txt pages, searched recursively)")
+	f.StringVar(&o.OCR, "ocr", "", "OCR output `folder` (hypothesis *.txt pages at the same relative paths)")
 	f.StringVar(&o.Format, "format", "table", "output `format`: table, json or csv")
 	f.IntVar(&o.Confusions, "confusions", 0, "list the `n` most frequent confusions")
 	f.BoolVar(&o.FoldCase, "fold-case", false, "fold case before scoring")
@@ -137,7 +137,7 @@ func runScore(ctx context.Context, o ScoreOptions, g GlobalOptions) error {
 	case o.Confusions > 0 && o.Format == "csv":
 		return usagef("score: --confusions is not available with --format csv")
 	case o.Jobs < 0:
-		return usagef("score: --jobs %d: want 0 or more", o.Jobs)
+		return checkJobs(o.Jobs)
 	}
 	for _, d := range [][2]string{{"--truth", o.Truth}, {"--ocr", o.OCR}} {
 		if err := checkDir(d[0], d[1]); err != nil {

@@ -89,8 +89,8 @@ page's reasons say so.` + exitStatusHelp,
 			if err := (quality.Thresholds{Rescan: o.Rescan, Correct: o.Correct}).Validate(); err != nil {
 				return usagef("%v", err)
 			}
-			if o.Jobs < 0 {
-				return usagef("--jobs %d: want 0 (one per core) or more", o.Jobs)
+			if err := checkJobs(o.Jobs); err != nil {
+				return err
 			}
 			return nil
 		},

@@ -5,13 +5,13 @@ import (
 	"bytes"
 	"fmt"
 	"io"
-	"io/fs"
 	"os"
 	"path/filepath"
-	"sort"
 	"strings"
 	"unicode"
 	"unicode/utf8"
+
+	"recto/internal/walk"
 )
 
 // Tokens splits running text into words as the lexicon counts them: maximal
@@ -171,26 +171,22 @@ func (b *Builder) AddTextFile(path string) error {
 	return b.AddText(f, path)
 }
 
-// AddTextDir counts the words of every file named *.txt under dir (walked
-// in lexical order, following no symbolic links). Other files are ignored.
-// It returns an error when dir holds no .txt file.
+// AddTextDir counts the words of every file named *.txt (any case) under
+// dir, listed by the one walker (internal/walk: in lexical order, hidden
+// files and folders left out, no symbolic link to a folder followed).
+// Other files are ignored. It returns an error when dir holds no .txt file.
 func (b *Builder) AddTextDir(dir string) error {
-	n := 0
-	err := filepath.WalkDir(dir, func(p string, d fs.DirEntry, err error) error {
-		if err != nil {
-			return fmt.Errorf("lexicon: %w", err)
-		}
-		if d.IsDir() || !strings.EqualFold(filepath.Ext(p), ".txt") || !d.Type().IsRegular() {
-			return nil
-		}
-		n++
-		return b.AddTextFile(p)
-	})
+	files, _, err := walk.Files(dir, walk.Options{Match: func(name string) bool { return strings.EqualFold(filepath.Ext(name), ".txt") }})
 	if err != nil {
-		return err
+		return fmt.Errorf("lexicon: %w", err)
 	}
-	if n == 0 {
+	if len(files) == 0 {
 		return fmt.Errorf("lexicon: no .txt files in %q", dir)
+	}
+	for _, f := range files {
+		if err := b.AddTextFile(filepath.Join(dir, filepath.FromSlash(f))); err != nil {
+			return err
+		}
 	}
 	return nil
 }
@@ -287,9 +283,22 @@ func (b *Builder) Lexicon() *Lexicon {
 // eachLine calls fn for every line of the file at path, checking UTF-8, and
 // wraps fn's errors in a ParseError naming the file and line.
 func eachLine(path string, fn func(n int, line []byte) error) error {
+	_, err := scanLines(path, func(n int, line []byte) error {
+		if !utf8.Valid(line) {
+			return fmt.Errorf("%w (convert the file with iconv first)", ErrNotUTF8)
+		}
+		return fn(n, line)
+	})
+	return err
+}
+
+// scanLines calls fn for every line of the file at path (lines up to 1 MiB,
+// bytes as they are) and returns how many lines it read; fn's errors and
+// read errors come wrapped in a ParseError naming the file and line.
+func scanLines(path string, fn func(n int, line []byte) error) (int, error) {
 	f, err := os.Open(path)
 	if err != nil {
-		return fmt.Errorf("lexicon: %w", err)
+		return 0, fmt.Errorf("lexicon: %w", err)
 	}
 	defer f.Close()
 	sc := bufio.NewScanner(f)
@@ -297,18 +306,14 @@ func eachLine(path string, fn func(n int, line []byte) error) error {
 	n := 0
 	for sc.Scan() {
 		n++
-		line := sc.Bytes()
-		if !utf8.Valid(line) {
-			return &ParseError{File: path, Line: n, Err: fmt.Errorf("%w (convert the file with iconv first)", ErrNotUTF8)}
-		}
-		if err := fn(n, line); err != nil {
-			return &ParseError{File: path, Line: n, Err: err}
+		if err := fn(n, sc.Bytes()); err != nil {
+			return n, &ParseError{File: path, Line: n, Err: err}
 		}
 	}
 	if err := sc.Err(); err != nil {
-		return &ParseError{File: path, Line: n + 1, Err: err}
+		return n, &ParseError{File: path, Line: n + 1, Err: err}
 	}
-	return nil
+	return n, nil
 }
 
 // badLine returns the 1-based line of the first invalid UTF-8 byte in data.
@@ -325,14 +330,4 @@ func badLine(data []byte) int {
 		data = data[size:]
 	}
 	return line
-}
-
-// sortedKeys returns the keys of m, sorted.
-func sortedKeys[V any](m map[string]V) []string {
-	ks := make([]string, 0, len(m))
-	for k := range m {
-		ks = append(ks, k)
-	}
-	sort.Strings(ks)
-	return ks
 }

@@ -7,8 +7,10 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"maps"
 	"os"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -367,7 +369,7 @@ func (l *Lexicon) write(w *bufio.Writer) error {
 			checks = "-"
 		}
 		fmt.Fprintf(w, "%%compound\t%d\t%d\t%s\n", c.min, c.max, checks)
-		for _, k := range sortedKeys(c.parts) {
+		for _, k := range slices.Sorted(maps.Keys(c.parts)) {
 			if _, err := fmt.Fprintf(w, "%%p\t%s\t%d\n", k, c.parts[k]); err != nil {
 				return err
 			}

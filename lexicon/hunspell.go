@@ -208,17 +208,11 @@ func (a *Affixes) directive(f []string, pending map[string]int) error {
 			return err
 		}
 		a.aliases = append(a.aliases, fl)
-	case "NEEDAFFIX", "PSEUDOROOT":
+	case "NEEDAFFIX", "PSEUDOROOT", "FORBIDDENWORD", "ONLYINCOMPOUND":
 		if len(f) >= 2 {
-			a.needAffix = f[1]
-		}
-	case "FORBIDDENWORD":
-		if len(f) >= 2 {
-			a.forbidden = f[1]
-		}
-	case "ONLYINCOMPOUND":
-		if len(f) >= 2 {
-			a.onlyCompound = f[1]
+			p := map[string]*string{"NEEDAFFIX": &a.needAffix, "PSEUDOROOT": &a.needAffix,
+				"FORBIDDENWORD": &a.forbidden, "ONLYINCOMPOUND": &a.onlyCompound}[f[0]]
+			*p = f[1]
 		}
 	case "COMPOUNDFLAG", "COMPOUNDBEGIN", "COMPOUNDMIDDLE", "COMPOUNDEND", "COMPOUNDLAST",
 		"COMPOUNDPERMITFLAG", "COMPOUNDFORBIDFLAG", "CIRCUMFIX":
@@ -449,39 +443,28 @@ func (a *Affixes) ReadDic(path string, fn func(form string)) error {
 // every entry, with where it may stand (ExpandForms). The first line (the
 // approximate entry count) is required.
 func (a *Affixes) ReadDicForms(path string, fn func(Form)) error {
-	f, err := os.Open(path)
-	if err != nil {
-		return fmt.Errorf("lexicon: %w", err)
-	}
-	defer f.Close()
-	sc := bufio.NewScanner(f)
-	sc.Buffer(make([]byte, 0, 1<<16), 1<<20)
-	n := 0
-	for sc.Scan() {
-		n++
-		line, err := a.decode(sc.Bytes())
+	n, err := scanLines(path, func(n int, raw []byte) error {
+		line, err := a.decode(raw)
 		if err != nil {
-			return &ParseError{File: path, Line: n, Err: err}
+			return err
 		}
 		if n == 1 {
 			if _, err := strconv.Atoi(strings.TrimSpace(line)); err != nil {
-				return &ParseError{File: path, Line: n, Err: fmt.Errorf("%w: first line must be the entry count, found %q", ErrHunspell, line)}
+				return fmt.Errorf("%w: first line must be the entry count, found %q", ErrHunspell, line)
 			}
-			continue
+			return nil
 		}
 		stem, flags, err := a.dicEntry(line)
-		if err != nil {
-			return &ParseError{File: path, Line: n, Err: err}
-		}
-		if stem == "" {
-			continue
+		if err != nil || stem == "" {
+			return err
 		}
 		for _, f := range a.ExpandForms(stem, flags) {
 			fn(f)
 		}
-	}
-	if err := sc.Err(); err != nil {
-		return &ParseError{File: path, Line: n + 1, Err: err}
+		return nil
+	})
+	if err != nil {
+		return err
 	}
 	if n == 0 {
 		return &ParseError{File: path, Err: fmt.Errorf("%w: empty dictionary", ErrHunspell)}

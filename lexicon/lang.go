@@ -1,6 +1,7 @@
 package lexicon
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"os"
@@ -9,6 +10,8 @@ import (
 	"sort"
 	"strings"
 	"sync"
+
+	"recto/ocr/par"
 )
 
 // Languages. The option --lang takes the engine's language codes, "+"
@@ -196,19 +199,13 @@ func ForLang(lang string) (*Selection, error) {
 	// The files are independent: read them side by side.
 	lexs := make([]*Lexicon, len(s.Files))
 	errs := make([]error, len(s.Files))
-	var wg sync.WaitGroup
-	for i, p := range s.Files {
-		if p == EmbeddedEnglish {
+	_ = par.Each(context.Background(), len(s.Files), 0, func(_, i int) { // the one worker pool
+		if p := s.Files[i]; p == EmbeddedEnglish {
 			lexs[i] = Default()
-			continue
-		}
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
+		} else {
 			lexs[i], errs[i] = loadCached(p)
-		}()
-	}
-	wg.Wait()
+		}
+	})
 	if err := errors.Join(errs...); err != nil {
 		return nil, err
 	}

@@ -2,9 +2,11 @@ package lexicon
 
 import (
 	"errors"
+	"maps"
 	"os"
 	"path/filepath"
 	"reflect"
+	"slices"
 	"sort"
 	"strings"
 	"testing"
@@ -177,7 +179,7 @@ func uniq(ws []string) []string {
 	for _, w := range ws {
 		m[w] = true
 	}
-	return sortedKeys(m)
+	return slices.Sorted(maps.Keys(m))
 }
 
 // The example affix and dictionary pair of the hunspell(5) manual page

@@ -12,6 +12,7 @@ import (
 	"strings"
 	"unicode/utf8"
 
+	"recto/internal/walk"
 	"recto/ocr/par"
 )
 
@@ -196,6 +197,9 @@ func ScoreDirs(ctx context.Context, truth, ocr string, cfg DirConfig) (*Report, 
 		rel := refs[i]
 		res := &results[i]
 		title, page := TitlePage(rel, rootName)
+		if !strings.Contains(rel, "/") { // a loose page: named after its image's folder (sourcetitle.go)
+			title = recordTitle(filepath.Join(ocr, filepath.FromSlash(strings.TrimSuffix(rel, ".txt"))+".json"), title)
+		}
 		res.page = PageScore{Title: title, Page: page, Status: StatusOK}
 		refPath := filepath.Join(truth, filepath.FromSlash(refFiles[i]))
 		t, err := ReadTruth(refPath)
@@ -301,44 +305,18 @@ func listText(root, skip string, bad func(*FileError)) ([]string, error) {
 	return listFiles(root, skip, func(name string) bool { return strings.HasSuffix(name, ".txt") }, bad)
 }
 
-// listFiles is listText for the files whose names match.
+// listFiles is listText for the files whose names match, on the one walker
+// (internal/walk: hidden entries and odd file types are left out).
 func listFiles(root, skip string, match func(name string) bool, bad func(*FileError)) ([]string, error) {
-	var out []string
-	skipInfo, skipErr := os.Stat(skip)
-	err := filepath.WalkDir(root, func(p string, d fs.DirEntry, err error) error {
-		if err == nil && d.IsDir() && p != root && skipErr == nil {
-			if fi, err := os.Stat(p); err == nil && os.SameFile(fi, skipInfo) {
-				return fs.SkipDir
-			}
+	out, _, err := walk.Files(root, walk.Options{Match: match, Skip: skip, Bad: func(p string, err error) {
+		if errors.Is(err, walk.ErrIsFolder) {
+			err = ErrIsDirectory
 		}
-		if err != nil {
-			if p == root {
-				return fmt.Errorf("quality: %w", err)
-			}
-			bad(&FileError{File: p, Offset: -1, Err: unwrapPath(err)})
-			if d != nil && d.IsDir() {
-				return fs.SkipDir
-			}
-			return nil
-		}
-		if !match(d.Name()) || p == root {
-			return nil
-		}
-		if d.IsDir() {
-			bad(&FileError{File: p, Offset: -1, Err: ErrIsDirectory})
-			return nil // its contents may still hold pages
-		}
-		rel, err := filepath.Rel(root, p)
-		if err != nil {
-			return err
-		}
-		out = append(out, filepath.ToSlash(rel))
-		return nil
-	})
+		bad(&FileError{File: p, Offset: -1, Err: unwrapPath(err)})
+	}})
 	if err != nil {
-		return nil, err
+		return nil, fmt.Errorf("quality: %w", err)
 	}
-	slices.Sort(out)
 	return out, nil
 }
 

@@ -4,7 +4,6 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"io/fs"
 	"os"
 	"path"
 	"path/filepath"
@@ -12,27 +11,46 @@ import (
 	"strings"
 	"unicode/utf8"
 
+	"recto/internal/walk"
 	"recto/lexicon"
 	"recto/ocr"
 	"recto/ocr/par"
 )
 
 // OCRPage is one page found in a folder written by `recto ocr`: its page
-// record (<name>.json) and/or its text (<name>.txt).
+// record (<name>.json), its text (<name>.txt) and its ALTO
+// (<name>.alto.xml). A page has a record or a text, or both.
 type OCRPage struct {
 	Rel  string // path under the folder, '/'-separated, without extension ("ledger-1841/p0007")
 	JSON string // path of the page record; "" when there is none
 	Text string // path of the plain text; "" when there is none
+	ALTO string // path of the ALTO file; "" when there is none
 }
 
 // ErrNoPages is returned by FindOCRPages when a folder holds no page.
 var ErrNoPages = errors.New("no OCR pages (.json or .txt) found")
 
-// FindOCRPages lists the pages under dir, sorted by Rel. A page is a
-// <name>.json or <name>.txt file (both when both exist); other files, such
-// as <name>.alto.xml, are ignored, and so are files and folders whose names
-// start with ".". It returns an error naming dir when dir cannot be read or
-// holds no page (wrapping ErrNoPages).
+// ocrSuffixes are the endings FindOCRPages looks for, matched in any case;
+// ".alto.xml" before the others, which it does not end in.
+var ocrSuffixes = []string{ocr.SuffixALTO, ocr.SuffixRecord, ocr.SuffixText}
+
+// ocrSuffix returns the ending of name among ocrSuffixes, "" for none.
+func ocrSuffix(name string) string {
+	for _, s := range ocrSuffixes {
+		if len(name) > len(s) && strings.EqualFold(name[len(name)-len(s):], s) {
+			return s
+		}
+	}
+	return ""
+}
+
+// FindOCRPages lists the pages under dir, sorted by Rel, with the one
+// walker (internal/walk: files and folders whose names start with "." are
+// left out). A page is a <name>.json or <name>.txt file, or both, with
+// the <name>.alto.xml beside them when there is one; endings match in any
+// case. Other files are ignored, and so is an ALTO file with neither
+// record nor text. It returns an error naming dir when dir or a folder
+// under it cannot be read or when it holds no page (wrapping ErrNoPages).
 func FindOCRPages(dir string) ([]OCRPage, error) {
 	st, err := os.Stat(dir)
 	if err != nil {
@@ -41,54 +59,42 @@ func FindOCRPages(dir string) ([]OCRPage, error) {
 	if !st.IsDir() {
 		return nil, fmt.Errorf("quality: %q is not a folder", dir)
 	}
+	rels, _, err := walk.Files(dir, walk.Options{Match: func(name string) bool { return ocrSuffix(name) != "" }})
+	if err != nil {
+		return nil, fmt.Errorf("quality: %w", err)
+	}
 	byRel := map[string]*OCRPage{}
-	err = filepath.WalkDir(dir, func(p string, d fs.DirEntry, err error) error {
-		if err != nil {
-			return fmt.Errorf("quality: %w", err)
-		}
-		name := d.Name()
-		if strings.HasPrefix(name, ".") && p != dir {
-			if d.IsDir() {
-				return filepath.SkipDir
-			}
-			return nil
-		}
-		if d.IsDir() {
-			return nil
-		}
-		ext := strings.ToLower(filepath.Ext(name))
-		if ext != ".json" && ext != ".txt" {
-			return nil
-		}
-		r, err := filepath.Rel(dir, p)
-		if err != nil {
-			return err
-		}
-		rel := filepath.ToSlash(strings.TrimSuffix(r, filepath.Ext(r)))
+	var out []*OCRPage
+	for _, r := range rels {
+		suffix := ocrSuffix(r)
+		rel := r[:len(r)-len(suffix)]
 		pg := byRel[rel]
 		if pg == nil {
 			pg = &OCRPage{Rel: rel}
 			byRel[rel] = pg
+			out = append(out, pg)
 		}
-		if ext == ".json" {
+		p := filepath.Join(dir, filepath.FromSlash(r))
+		switch suffix {
+		case ocr.SuffixALTO:
+			pg.ALTO = p
+		case ocr.SuffixRecord:
 			pg.JSON = p
-		} else {
+		default:
 			pg.Text = p
 		}
-		return nil
-	})
-	if err != nil {
-		return nil, err
 	}
-	if len(byRel) == 0 {
+	pages := make([]OCRPage, 0, len(out))
+	for _, p := range out {
+		if p.JSON != "" || p.Text != "" {
+			pages = append(pages, *p)
+		}
+	}
+	if len(pages) == 0 {
 		return nil, fmt.Errorf("quality: %q: %w", dir, ErrNoPages)
 	}
-	out := make([]OCRPage, 0, len(byRel))
-	for _, p := range byRel {
-		out = append(out, *p)
-	}
-	sort.Slice(out, func(i, j int) bool { return out[i].Rel < out[j].Rel })
-	return out, nil
+	sort.Slice(pages, func(i, j int) bool { return pages[i].Rel < pages[j].Rel })
+	return pages, nil
 }
 
 // TitlePage names the page as `recto score` does (see TitlePage);
@@ -161,12 +167,14 @@ func (p OCRPage) TruthPath(truthDir string) (string, error) {
 }
 
 // LoadSamples pairs every page under ocrDir with its ground truth under
-// truthDir (same relative path, .txt) and measures its CER. Pages that
-// cannot be used are returned as problems, each naming its file, and do not
-// stop the others: a page without ground truth or whose record cannot be read. Pages with empty ground truth are
-// returned as samples with EmptyTruth set. err is non-nil only when ocrDir cannot be
-// listed or truthDir is not a folder.
-func LoadSamples(ocrDir, truthDir string, lex *lexicon.Lexicon) (samples []Sample, problems []error, err error) {
+// truthDir (same relative path, .txt) and measures its CER, reading up to
+// jobs pages at once on the one worker pool (0: one per core). Pages that
+// cannot be used are returned as problems, each naming its file, and do
+// not stop the others: a page without ground truth or whose record cannot
+// be read. Pages with empty ground truth are returned as samples with
+// EmptyTruth set. err is non-nil only when ocrDir cannot be listed,
+// truthDir is not a folder or ctx ends first (its error).
+func LoadSamples(ctx context.Context, ocrDir, truthDir string, lex *lexicon.Lexicon, jobs int) (samples []Sample, problems []error, err error) {
 	pages, err := FindOCRPages(ocrDir)
 	if err != nil {
 		return nil, nil, err
@@ -184,7 +192,7 @@ func LoadSamples(ocrDir, truthDir string, lex *lexicon.Lexicon) (samples []Sampl
 		err error
 	}
 	res := make([]result, len(pages))
-	_ = par.Each(context.Background(), len(pages), 0, func(_, i int) {
+	err = par.Each(ctx, len(pages), jobs, func(_, i int) {
 		p := pages[i]
 		tp, err := p.TruthPath(truthDir)
 		if err != nil {
@@ -197,6 +205,9 @@ func LoadSamples(ocrDir, truthDir string, lex *lexicon.Lexicon) (samples []Sampl
 		}
 		res[i].s, res[i].err = p.Sample(tp, lex)
 	})
+	if err != nil {
+		return nil, nil, err
+	}
 	for _, r := range res {
 		if r.err != nil {
 			problems = append(problems, r.err)

@@ -231,22 +231,8 @@ func (f *flexState) addGT(g []rune) {
 	seg := &f.gt[n]
 	seg.r, seg.alive, seg.d = g, true, seg.d[:0]
 	built := false
-	for _, h := range f.hy {
-		d := int32(-1)
-		switch {
-		case !h.alive:
-		case len(g) <= len(h.r):
-			if !built { // g is the pattern: its match vectors serve every such h
-				f.bv.buildPeq(g, (len(g)+63)/64)
-				built = true
-			}
-			b, _ := f.bv.scanBuilt(len(g), h.r, false)
-			d = int32(b)
-		default:
-			d = f.distOf(g, h.r)
-			built = false
-		}
-		seg.d = append(seg.d, d)
+	for i := range f.hy {
+		seg.d = append(seg.d, f.newDist(g, &f.hy[i], true, &built))
 	}
 }
 
@@ -260,22 +246,33 @@ func (f *flexState) addHyp(h []rune) {
 	built := false
 	for i := range f.gt {
 		g := &f.gt[i]
-		d := int32(-1)
-		switch {
-		case !g.alive:
-		case len(h) < len(g.r):
-			if !built { // h is the pattern: its match vectors serve every such g
-				f.bv.buildPeq(h, (len(h)+63)/64)
-				built = true
-			}
-			b, _ := f.bv.scanBuilt(len(h), g.r, false)
-			d = int32(b)
-		default:
-			d = f.distOf(g.r, h)
-			built = false
-		}
-		g.d = append(g.d, d)
+		g.d = append(g.d, f.newDist(h, g, false, &built))
 	}
+}
+
+// newDist returns the distance between a new piece p and the piece q of
+// the other side, -1 when q is not alive; isRef says p is the reference
+// piece. The shorter piece is the pattern, the reference one when both are
+// as long (as in distOf). p's match vectors are built once for every q it
+// is the pattern for: *built says they are in place, and is cleared when
+// another pattern's replace them.
+func (f *flexState) newDist(p []rune, q *flexSeg, isRef bool, built *bool) int32 {
+	switch {
+	case !q.alive:
+		return -1
+	case len(p) < len(q.r) || isRef && len(p) == len(q.r):
+		if !*built {
+			f.bv.buildPeq(p, (len(p)+63)/64)
+			*built = true
+		}
+		d, _ := f.bv.scanBuilt(len(p), q.r, false)
+		return int32(d)
+	}
+	*built = false
+	if isRef {
+		return f.distOf(p, q.r)
+	}
+	return f.distOf(q.r, p)
 }
 
 // scan runs the bit-vector method (see distance) with pat as the rows and

@@ -1,19 +1,20 @@
 package quality
 
 import (
+	"context"
 	"testing"
 )
 
 // TestEmbeddedModelOnHeldOutSample judges the embedded model on the
 // vendored sample in testdata/triage: 40 held-out pages of the project's
-// synthetic corpus (rendered by tools/corpus from public-domain running
+// synthetic corpus (rendered by cmd/corpus from public-domain running
 // text, recognised by Tesseract 5.3.0 through recto ocr, never used for
 // fitting), spread evenly over measured CER from 0 to 140 % (CER exceeds
 // 100 % when the engine reads more noise than the page has text). The targets
 // are those of the project: Spearman ≥ 0.9; recall of pages above 10 % CER
 // ≥ 0.95 with precision ≥ 0.85; clean pages (CER < 1 %) accepted ≥ 95 %.
 func TestEmbeddedModelOnHeldOutSample(t *testing.T) {
-	samples, problems, err := LoadSamples("../testdata/triage/ocr", "../testdata/triage/truth", nil)
+	samples, problems, err := LoadSamples(context.Background(), "../testdata/triage/ocr", "../testdata/triage/truth", nil, 0)
 	if err != nil {
 		t.Fatal(err)
 	}

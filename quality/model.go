@@ -128,7 +128,7 @@ var (
 )
 
 // DefaultModel returns the embedded model, fitted on the project's
-// synthetic corpus by tools/fitquality. The result is shared: callers must
+// synthetic corpus by cmd/fitquality. The result is shared: callers must
 // not modify it.
 func DefaultModel() *Model {
 	defaultModelOnce.Do(func() {

@@ -284,7 +284,7 @@ func TestLoadSamplesTruthReader(t *testing.T) {
 	a, _ := os.ReadFile(filepath.Join(truthFixtures, "alto2.xml"))
 	mustWrite(t, filepath.Join(gt, "v", "p1.xml"), string(a))
 	mustWrite(t, filepath.Join(gt, "v", "p2.txt"), string(encode(t, charmap.ISO8859_1, "Ærøy kirke")))
-	samples, problems, err := LoadSamples(hyp, gt, nil)
+	samples, problems, err := LoadSamples(context.Background(), hyp, gt, nil, 0)
 	if err != nil {
 		t.Fatal(err)
 	}

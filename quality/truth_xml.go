@@ -157,14 +157,14 @@ func parseXML(src string) (*xnode, string, error) {
 	return root, ns, nil
 }
 
-// walk calls f on every element under n in document order (n included);
+// walkNodes calls f on every element under n in document order (n included);
 // f returns false to skip an element's children.
-func walk(n *xnode, f func(*xnode) bool) {
+func walkNodes(n *xnode, f func(*xnode) bool) {
 	if !f(n) {
 		return
 	}
 	for _, k := range n.kids {
-		walk(k, f)
+		walkNodes(k, f)
 	}
 }
 
@@ -173,7 +173,7 @@ func altoText(root *xnode) string {
 	var blocks []*xnode
 	byID := map[string]*xnode{}
 	if layout := root.child("Layout"); layout != nil {
-		walk(layout, func(n *xnode) bool {
+		walkNodes(layout, func(n *xnode) bool {
 			if id := n.attr["ID"]; id != "" {
 				byID[id] = n
 			}
@@ -193,13 +193,13 @@ func altoText(root *xnode) string {
 		}
 	}
 	if ro := root.child("ReadingOrder"); ro != nil {
-		walk(ro, func(n *xnode) bool {
+		walkNodes(ro, func(n *xnode) bool {
 			if n.name != "ElementRef" {
 				return true
 			}
 			for _, id := range strings.Fields(n.attr["REF"]) {
 				if e := byID[id]; e != nil {
-					walk(e, func(m *xnode) bool {
+					walkNodes(e, func(m *xnode) bool {
 						if m.name == "TextBlock" {
 							add(m)
 							return false
@@ -280,7 +280,7 @@ func pageText(root *xnode) string {
 	}
 	var regions []*xnode
 	byID := map[string]*xnode{}
-	walk(page, func(n *xnode) bool {
+	walkNodes(page, func(n *xnode) bool {
 		if n.name == "TextRegion" {
 			regions = append(regions, n)
 			if id := n.attr["id"]; id != "" {

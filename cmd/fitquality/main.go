@@ -3,8 +3,8 @@
 // on the corpus's held-out pages, and can vendor a small held-out sample
 // for the regression test in package quality.
 //
-//	go run ./tools/corpus -out /work/corpus            # the corpus (see docs/dev-synth.md)
-//	go run ./tools/fitquality -corpus /work/corpus \
+//	go run ./cmd/corpus -out /work/corpus            # the corpus (see docs/dev-synth.md)
+//	go run ./cmd/fitquality -corpus /work/corpus \
 //	    -out quality/model/default.json -sample testdata/triage
 //
 // The corpus layout is DIR/ocr/{fit,heldout}/<id>.json (page records from
@@ -15,6 +15,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"flag"
 	"fmt"
@@ -25,6 +26,7 @@ import (
 	"sort"
 	"strings"
 
+	"recto/internal/atomicfile"
 	"recto/lexicon"
 	"recto/quality"
 )
@@ -38,7 +40,7 @@ func main() {
 
 func run(args []string, stdout, stderr io.Writer) error {
 	fs := flag.NewFlagSet("fitquality", flag.ContinueOnError)
-	corpus := fs.String("corpus", "/work/corpus", "corpus `folder` written by tools/corpus")
+	corpus := fs.String("corpus", "/work/corpus", "corpus `folder` written by cmd/corpus")
 	out := fs.String("out", "", "write the fitted model to this `file` (e.g. quality/model/default.json)")
 	seed := fs.Int64("seed", 1, "`seed` of the cross-validation folds")
 	sample := fs.String("sample", "", "vendor a held-out sample (page .json + truth .txt) into this `folder`")
@@ -50,7 +52,7 @@ func run(args []string, stdout, stderr io.Writer) error {
 	}
 	lex := lexicon.Default()
 	load := func(split string) ([]quality.Sample, error) {
-		s, problems, err := quality.LoadSamples(filepath.Join(*corpus, "ocr", split), filepath.Join(*corpus, "truth", split), lex)
+		s, problems, err := quality.LoadSamples(context.Background(), filepath.Join(*corpus, "ocr", split), filepath.Join(*corpus, "truth", split), lex, 0)
 		for _, p := range problems {
 			fmt.Fprintf(stderr, "skipped: %v\n", p)
 		}
@@ -64,12 +66,12 @@ func run(args []string, stdout, stderr io.Writer) error {
 	if err != nil {
 		return err
 	}
-	m, err := quality.Fit(fit, quality.FitOptions{Seed: *seed, Offset: *offset, Source: "recto synthetic corpus (tools/corpus), split \"fit\""})
+	m, err := quality.Fit(fit, quality.FitOptions{Seed: *seed, Offset: *offset, Source: "recto synthetic corpus (cmd/corpus), split \"fit\""})
 	if err != nil {
 		return err
 	}
 	m.Fit.HeldOut = len(held)
-	m.Fit.Command = fmt.Sprintf("go run ./tools/fitquality -corpus CORPUS -out quality/model/default.json -seed %d", *seed)
+	m.Fit.Command = fmt.Sprintf("go run ./cmd/fitquality -corpus CORPUS -out quality/model/default.json -seed %d", *seed)
 	fmt.Fprintf(stdout, "fitted on %d pages (%d as text), judged on %d held-out pages\n", m.Fit.Pages, m.Fit.TextPages, len(held))
 	fmt.Fprintf(stdout, "ridge penalty: record %.3g, text %.3g\n", m.Record.Lambda, m.Text.Lambda)
 	fmt.Fprintf(stdout, "rescan cut (chosen on out-of-fold predictions for the fit pages, recall goal %.2f): estimate above %.1f%% with a page record, %.1f%% as text\n\n",
@@ -235,13 +237,13 @@ func vendor(corpus, dir string, held []quality.Sample, n int, w io.Writer) error
 				}
 				data = append(buf.Bytes(), '\n')
 			}
-			if err := os.WriteFile(c[1], data, 0o644); err != nil {
+			if err := atomicfile.Write(c[1], data); err != nil {
 				return err
 			}
 		}
 		count++
 	}
-	if err := os.WriteFile(filepath.Join(dir, "MANIFEST.tsv"), []byte(list.String()), 0o644); err != nil {
+	if err := atomicfile.Write(filepath.Join(dir, "MANIFEST.tsv"), []byte(list.String())); err != nil {
 		return err
 	}
 	fmt.Fprintf(w, "vendored %d held-out pages into %s (CER %s)\n", count, dir, strings.TrimSpace(fmt.Sprintf("%.3f..%.3f", s[0].CER, s[len(s)-1].CER)))

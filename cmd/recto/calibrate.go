@@ -25,6 +25,7 @@ type CalibrateOptions struct {
 	Rescan, Correct float64 // thresholds declared before fitting
 	Targets         quality.Targets
 	Format          string
+	Jobs            int // pages read at once; 0: one per core
 }
 
 func newCalibrateCommand(g *GlobalOptions) *cobra.Command {
@@ -66,6 +67,9 @@ OUTPUT (stdout)
 			if o.OCR == "" || o.Truth == "" || o.Out == "" {
 				return usagef("calibrate: --ocr, --truth and --out are required")
 			}
+			if err := checkJobs(o.Jobs); err != nil {
+				return err
+			}
 			if !(o.Holdout > 0 && o.Holdout < 1) {
 				return usagef("--holdout %v: want a share strictly between 0 and 1", o.Holdout)
 			}
@@ -95,6 +99,7 @@ OUTPUT (stdout)
 	f.Float64Var(&o.Targets.Precision, "target-precision", 0.85, "declared target: minimum precision of rescan")
 	f.Float64Var(&o.Targets.CleanAccept, "target-clean", 0.95, "declared target: minimum share of clean pages accepted")
 	f.StringVar(&o.Format, "format", "table", "report `format`: table, json or csv")
+	f.IntVarP(&o.Jobs, "jobs", "j", 0, "read `n` pages at once (0: one per core)")
 	return cmd
 }
 
@@ -125,7 +130,7 @@ func runCalibrate(ctx context.Context, o CalibrateOptions, g GlobalOptions) erro
 			return err
 		}
 	}
-	samples, problems, err := quality.LoadSamples(o.OCR, o.Truth, lex)
+	samples, problems, err := quality.LoadSamples(ctx, o.OCR, o.Truth, lex, o.Jobs)
 	if err != nil {
 		return err
 	}

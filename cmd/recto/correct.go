@@ -19,6 +19,7 @@ import (
 	"recto/cmd/internal/run"
 	"recto/correct"
 	"recto/internal/atomicfile"
+	"recto/internal/walk"
 	"recto/lexicon"
 	"recto/ocr"
 	"recto/ocr/alto"
@@ -116,8 +117,8 @@ language. Each line of changes.jsonl names the language ("lang").
 			if o.Margin < 0 {
 				return usagef("correct: --margin must not be negative, not %v", o.Margin)
 			}
-			if o.Jobs < 0 {
-				return usagef("correct: --jobs must be positive")
+			if err := checkJobs(o.Jobs); err != nil {
+				return err
 			}
 			return nil
 		},
@@ -126,13 +127,13 @@ language. Each line of changes.jsonl names the language ("lang").
 		},
 	}
 	f := cmd.Flags()
-	f.StringVarP(&o.Out, "out", "o", "", "write corrected pages and changes.jsonl under `dir`")
+	f.StringVarP(&o.Out, "out", "o", "", "write corrected pages and changes.jsonl under `folder`")
 	f.BoolVar(&o.DryRun, "dry-run", false, "list the changes on stdout without writing anything")
 	f.StringVar(&o.Model, "correction-model", "", "error model `file` from 'recto correct train' (default: embedded; the Fraktur one for --lang frk or Fraktur)")
 	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` (default: the one of --lang)")
 	f.StringVarP(&o.Lang, "lang", "l", "", "engine `languages` of the pages, e.g. nor or eng+deu (default: as recorded by recto ocr, else eng)")
 	f.Float64Var(&o.Margin, "margin", 0, fmt.Sprintf("log-odds `margin` a correction must win by (0 = %g; higher is more cautious)", correct.DefaultMargin))
-	f.IntVarP(&o.Jobs, "jobs", "j", 0, "pages corrected in parallel (`n`; default: number of CPUs)")
+	f.IntVarP(&o.Jobs, "jobs", "j", 0, "correct `n` pages at once (0: one per core)")
 	f.BoolVar(&o.Collection, "collection", false, "use the collection's own vocabulary and counts: words read confidently across the pages are never changed")
 	f.StringVar(&o.Vocab, "vocabulary", "", "saved collection vocabulary `file` (from --save-vocabulary) to add to the pages' own")
 	f.StringVar(&o.SaveVocab, "save-vocabulary", "", "save the collection vocabulary to this lexicon `file` (.gz to compress)")
@@ -177,25 +178,22 @@ The model file (versioned, gzip-compressed JSON) is used with
 		},
 	}
 	f := cmd.Flags()
-	f.StringVar(&o.OCR, "ocr", "", "`dir` of OCR output (.txt)")
-	f.StringVar(&o.Truth, "truth", "", "`dir` of ground truth (.txt, same names)")
+	f.StringVar(&o.OCR, "ocr", "", "`folder` of OCR output (.txt)")
+	f.StringVar(&o.Truth, "truth", "", "`folder` of ground truth (.txt, same names)")
 	f.StringVarP(&o.Out, "out", "o", "", "model `file` to write")
 	f.Int64Var(&o.MinCount, "min-count", 0, "drop confusions of three or more characters seen fewer than `n` times (0 = 2)")
 	return cmd
 }
 
-// correctPage is one page to correct: its name relative to IN, without
-// suffix, and which inputs it has.
-type correctPage struct {
-	rel     string // slash-separated, no suffix
-	txt     bool
-	json    bool
-	altoXML bool
-}
+// correctPage is one page to correct, as the one walker finds it
+// (quality.FindOCRPages): its name relative to IN without suffix, and the
+// paths of its record, text and ALTO ("" for those it lacks).
+type correctPage = quality.OCRPage
 
 // correctResult is what correcting one page gave.
 type correctResult struct {
 	changes []correct.Change
+	source  string // the page image its record names, "" for a text page
 	err     error
 }
 
@@ -213,12 +211,12 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 			return usagef("correct: --out %q is %q or inside it; originals are never modified, choose another folder", o.Out, in)
 		}
 	}
-	pages, err := findCorrectPages(in)
-	if err != nil {
-		return err
-	}
-	if len(pages) == 0 {
+	pages, err := quality.FindOCRPages(in)
+	if errors.Is(err, quality.ErrNoPages) {
 		return fmt.Errorf("correct: no .txt or .json pages under %q", in)
+	}
+	if err != nil {
+		return fmt.Errorf("correct: %w", err)
 	}
 	var m *correct.Model // nil: the embedded model for the language, once it is known
 	if o.Model != "" {
@@ -226,7 +224,7 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 			return err
 		}
 	}
-	lc, err := chooseLanguage(o.Lang, o.Lexicon, func() string { return recordedCorrectLang(in, pages) },
+	lc, err := chooseLanguage(o.Lang, o.Lexicon, func() string { return recordedLang(pages) },
 		"correction makes only language-independent fixes (stray marks) and changes no word")
 	if err != nil {
 		return err
@@ -246,10 +244,10 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 	}
 	cfg := correct.Config{Margin: o.Margin, KeepMarks: o.KeepMarks, MapGlyphs: o.MapGlyphs}
 	if o.Collection {
-		cfg.Collection = collectionCounts(in, pages, lex)
+		cfg.Collection = collectionCounts(pages, lex)
 	}
 	if o.Collection || o.Vocab != "" || o.SaveVocab != "" {
-		vocab, err := collectionVocabulary(in, pages, o)
+		vocab, err := collectionVocabulary(pages, o)
 		if err != nil {
 			return err
 		}
@@ -269,7 +267,7 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 	results := make([]correctResult, len(pages))
 	var mu sync.Mutex // serialises messages on stderr
 	if err := par.Each(ctx, len(pages), o.Jobs, func(_, i int) {
-		results[i] = correctOne(c, in, o, pages[i], g, &mu)
+		results[i] = correctOne(c, o, pages[i], g, &mu)
 	}); err != nil {
 		return err
 	}
@@ -287,8 +285,11 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 			continue
 		}
 		total += correct.Made(r.changes)
-		title, _ := quality.TitlePage(pages[i].rel, rootName)
-		run.AppendChanges(&lines, title, pages[i].rel, o.Lang, r.changes)
+		title, _ := quality.TitlePage(pages[i].Rel, rootName)
+		if !strings.Contains(pages[i].Rel, "/") { // as triage names a loose page (issue 17 part 3)
+			title = quality.SourceTitle(r.source, title)
+		}
+		run.AppendChanges(&lines, title, pages[i].Rel, o.Lang, r.changes)
 	}
 	if o.DryRun {
 		if _, err := g.stdout.Write(lines.Bytes()); err != nil {
@@ -334,65 +335,9 @@ func within(dir, base string) (bool, error) {
 	return rel == "." || (rel != ".." && !strings.HasPrefix(rel, ".."+string(filepath.Separator))), nil
 }
 
-// findCorrectPages lists the pages under dir, sorted by name: every
-// <name>.txt, and every <name>.json page record without a .txt twin.
-func findCorrectPages(dir string) ([]correctPage, error) {
-	byRel := map[string]*correctPage{}
-	err := filepath.WalkDir(dir, func(path string, d fs.DirEntry, err error) error {
-		if err != nil {
-			return fmt.Errorf("correct: %w", err)
-		}
-		if d.IsDir() {
-			return nil
-		}
-		name := d.Name()
-		var suffix string
-		switch {
-		case strings.HasSuffix(name, ocr.SuffixALTO):
-			suffix = ocr.SuffixALTO
-		case strings.HasSuffix(name, ocr.SuffixRecord):
-			suffix = ocr.SuffixRecord
-		case strings.HasSuffix(name, ocr.SuffixText):
-			suffix = ocr.SuffixText
-		default:
-			return nil
-		}
-		rel, err := filepath.Rel(dir, path)
-		if err != nil {
-			return err
-		}
-		rel = filepath.ToSlash(strings.TrimSuffix(rel, suffix))
-		p := byRel[rel]
-		if p == nil {
-			p = &correctPage{rel: rel}
-			byRel[rel] = p
-		}
-		switch suffix {
-		case ocr.SuffixALTO:
-			p.altoXML = true
-		case ocr.SuffixRecord:
-			p.json = true
-		default:
-			p.txt = true
-		}
-		return nil
-	})
-	if err != nil {
-		return nil, err
-	}
-	var pages []correctPage
-	for _, p := range byRel {
-		if p.txt || p.json {
-			pages = append(pages, *p)
-		}
-	}
-	sort.Slice(pages, func(i, j int) bool { return pages[i].rel < pages[j].rel })
-	return pages, nil
-}
-
 // correctOne corrects one page and, unless this is a dry run, writes its
 // outputs. Errors name the file.
-func correctOne(c *correct.Corrector, in string, o CorrectOptions, p correctPage, g GlobalOptions, mu *sync.Mutex) correctResult {
+func correctOne(c *correct.Corrector, o CorrectOptions, p correctPage, g GlobalOptions, mu *sync.Mutex) correctResult {
 	warn := func(format string, args ...any) {
 		if !g.Quiet {
 			mu.Lock()
@@ -400,27 +345,26 @@ func correctOne(c *correct.Corrector, in string, o CorrectOptions, p correctPage
 			mu.Unlock()
 		}
 	}
-	base := filepath.Join(in, filepath.FromSlash(p.rel))
-	outBase := filepath.Join(o.Out, filepath.FromSlash(p.rel))
-	if p.json {
-		rec, err := ocr.ReadRecord(base + ocr.SuffixRecord)
+	outBase := filepath.Join(o.Out, filepath.FromSlash(p.Rel))
+	if p.JSON != "" {
+		rec, err := ocr.ReadRecord(p.JSON)
 		if err != nil {
 			return correctResult{err: err}
 		}
 		for i, w := range rec.Words {
 			if !utf8.ValidString(w.Text) {
-				return correctResult{err: fmt.Errorf("correct: %q: word %d is not valid UTF-8", base+ocr.SuffixRecord, i+1)}
+				return correctResult{err: fmt.Errorf("correct: %q: word %d is not valid UTF-8", p.JSON, i+1)}
 			}
 		}
 		if len(rec.Words) == 0 {
-			warn("%q: empty page, copied as it is", base+ocr.SuffixRecord)
+			warn("%q: empty page, copied as it is", p.JSON)
 		}
 		out, changes := c.CorrectRecord(rec)
 		if out.Lang == "" {
 			out.Lang = o.Lang
 		}
 		if o.DryRun {
-			return correctResult{changes: changes}
+			return correctResult{changes: changes, source: rec.Source}
 		}
 		if err := writeFileAtomic(outBase+ocr.SuffixText, []byte(out.Text())); err != nil {
 			return correctResult{err: err}
@@ -435,7 +379,7 @@ func correctOne(c *correct.Corrector, in string, o CorrectOptions, p correctPage
 		if err := writeFileAtomic(outBase+ocr.SuffixRecord, buf.Bytes()); err != nil {
 			return correctResult{err: err}
 		}
-		if p.altoXML {
+		if p.ALTO != "" {
 			buf.Reset()
 			step, err := run.CorrectionStep(out.Lang, o.Lexicon, o.Model, o.Margin, o.KeepMarks, o.MapGlyphs)
 			if err != nil {
@@ -448,17 +392,17 @@ func correctOne(c *correct.Corrector, in string, o CorrectOptions, p correctPage
 				return correctResult{err: err}
 			}
 		}
-		return correctResult{changes: changes}
+		return correctResult{changes: changes, source: rec.Source}
 	}
-	data, err := os.ReadFile(base + ocr.SuffixText)
+	data, err := os.ReadFile(p.Text)
 	if err != nil {
 		return correctResult{err: fmt.Errorf("correct: %w", err)}
 	}
 	if !utf8.Valid(data) {
-		return correctResult{err: fmt.Errorf("correct: %q: not valid UTF-8 text (at byte %d)", base+ocr.SuffixText, firstInvalid(data))}
+		return correctResult{err: fmt.Errorf("correct: %q: not valid UTF-8 text (at byte %d)", p.Text, firstInvalid(data))}
 	}
 	if len(bytes.TrimSpace(data)) == 0 {
-		warn("%q: empty page, copied as it is", base+ocr.SuffixText)
+		warn("%q: empty page, copied as it is", p.Text)
 	}
 	out, changes := c.CorrectText(string(data))
 	if !o.DryRun {
@@ -486,18 +430,17 @@ func writeFileAtomic(path string, data []byte) error { return atomicfile.Write(p
 // collectionCounts counts the words the lexicon knows, and pairs of them,
 // over the pages' text. Unknown words are not counted: an OCR error that
 // recurs across the collection must not gain weight from its own repeats.
-func collectionCounts(in string, pages []correctPage, lex *lexicon.Lexicon) *lexicon.Lexicon {
+func collectionCounts(pages []correctPage, lex *lexicon.Lexicon) *lexicon.Lexicon {
 	coll := lexicon.New()
 	for _, p := range pages {
-		base := filepath.Join(in, filepath.FromSlash(p.rel))
 		var text string
-		if p.txt {
-			data, err := os.ReadFile(base + ocr.SuffixText)
+		if p.Text != "" {
+			data, err := os.ReadFile(p.Text)
 			if err != nil || !utf8.Valid(data) {
 				continue
 			}
 			text = string(data)
-		} else if rec, err := ocr.ReadRecord(base + ocr.SuffixRecord); err == nil {
+		} else if rec, err := ocr.ReadRecord(p.JSON); err == nil {
 			text = rec.Text()
 		}
 		correct.CountText(coll, lex, text)
@@ -508,40 +451,31 @@ func collectionCounts(in string, pages []correctPage, lex *lexicon.Lexicon) *lex
 func runCorrectTrain(ctx context.Context, o CorrectTrainOptions, g GlobalOptions) error {
 	var pairs []correct.Pair
 	missing := 0
-	err := filepath.WalkDir(o.Truth, func(path string, d fs.DirEntry, err error) error {
-		if err != nil {
-			return fmt.Errorf("correct train: %w", err)
-		}
-		if d.IsDir() || !strings.HasSuffix(d.Name(), ocr.SuffixText) {
-			return nil
-		}
+	rels, _, err := walk.Files(o.Truth, walk.Options{Match: func(name string) bool { return strings.HasSuffix(name, ocr.SuffixText) }})
+	if err != nil {
+		return fmt.Errorf("correct train: %w", err)
+	}
+	for _, rel := range rels {
 		if err := ctx.Err(); err != nil {
 			return err
 		}
-		rel, err := filepath.Rel(o.Truth, path)
-		if err != nil {
-			return err
-		}
+		path := filepath.Join(o.Truth, filepath.FromSlash(rel))
 		ref, err := readUTF8(path)
 		if err != nil {
 			return err
 		}
-		hyp, err := readUTF8(filepath.Join(o.OCR, rel))
+		hyp, err := readUTF8(filepath.Join(o.OCR, filepath.FromSlash(rel)))
 		if errors.Is(err, fs.ErrNotExist) {
 			missing++
 			if !g.Quiet {
 				g.printf("no OCR twin for %q, skipped", path)
 			}
-			return nil
+			continue
 		}
 		if err != nil {
 			return err
 		}
 		pairs = append(pairs, correct.Pair{Ref: ref, Hyp: hyp})
-		return nil
-	})
-	if err != nil {
-		return err
 	}
 	if len(pairs) == 0 {
 		return fmt.Errorf("correct train: no page of %q has an OCR twin under %q", o.Truth, o.OCR)
@@ -615,32 +549,17 @@ func readUTF8(path string) (string, error) {
 	return string(data), nil
 }
 
-// recordedCorrectLang returns the language recorded in the first page
-// record under in ("" when none has one).
-func recordedCorrectLang(in string, pages []correctPage) string {
-	for _, p := range pages {
-		if !p.json {
-			continue
-		}
-		rec, err := ocr.ReadRecord(filepath.Join(in, filepath.FromSlash(p.rel)) + ocr.SuffixRecord)
-		if err == nil && rec.Lang != "" {
-			return rec.Lang
-		}
-	}
-	return ""
-}
-
 // collectionVocabulary gathers the collection vocabulary of the pages'
 // records (correct.VocabularyCounter) with a saved one (o.Vocab) and saves
 // it when asked (o.SaveVocab). Pages whose record cannot be read are
 // skipped here; correcting them reports the error.
-func collectionVocabulary(in string, pages []correctPage, o CorrectOptions) (*lexicon.Lexicon, error) {
+func collectionVocabulary(pages []correctPage, o CorrectOptions) (*lexicon.Lexicon, error) {
 	vc := correct.NewVocabularyCounter()
 	for _, p := range pages {
-		if !p.json {
+		if p.JSON == "" {
 			continue
 		}
-		rec, err := ocr.ReadRecord(filepath.Join(in, filepath.FromSlash(p.rel)) + ocr.SuffixRecord)
+		rec, err := ocr.ReadRecord(p.JSON)
 		if err != nil {
 			continue
 		}

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"context"
+	"os"
 	"path/filepath"
 	"regexp"
 	"strings"
@@ -38,6 +39,15 @@ func TestErrorLines(t *testing.T) {
 		{[]string{"run", dir, "-o", filepath.Join(dir, "run"), "--jobs", "-2"}, "recto run: --jobs", exitUsage},
 		{[]string{"merge"}, "recto merge: ", exitUsage},
 		{[]string{"lexicon", "build"}, "recto lexicon build: ", exitUsage},
+		{[]string{"lexicon", "bogus"}, "recto lexicon: unknown command", exitUsage},
+		{[]string{"lexicon", "lookup"}, "recto lexicon lookup: ", exitUsage},
+		{[]string{"score", "--bogus"}, "recto score: unknown flag: --bogus", exitUsage},
+		{[]string{"report"}, "recto report: ", exitUsage},
+		{[]string{"report", none}, "recto report: ", exitFailure},
+		{[]string{"sample"}, "recto sample: --estimates", exitUsage},
+		{[]string{"demo", "-o", filepath.Join(dir, "demo"), "--jobs", "-1"}, "recto demo: --jobs", exitUsage},
+		{[]string{"version", "extra"}, "recto version: ", exitUsage},
+		{[]string{"calibrate", "--ocr", dir, "--truth", dir, "-o", filepath.Join(dir, "m.json"), "-j", "-1"}, "recto calibrate: --jobs", exitUsage},
 	} {
 		root := newRootCommand()
 		var out, errb bytes.Buffer
@@ -56,6 +66,9 @@ func TestErrorLines(t *testing.T) {
 			t.Errorf("recto %s: exit %d, %q; want exit %d and a line starting %q without package names",
 				strings.Join(tc.args, " "), code, line, tc.code, tc.prefix)
 		}
+	}
+	if _, err := os.Stat(filepath.Join(dir, "demo")); err == nil {
+		t.Error("recto demo --jobs -1 wrote its folder before refusing the flag")
 	}
 }
 

@@ -92,6 +92,19 @@ func TestFlagSpelling(t *testing.T) {
 			}
 		}
 	}
+	// One word for each kind of value in the help's placeholders, and one
+	// wording for the default of --jobs (common practice, as above).
+	eachFlag(newRootCommand(), func(cmd string, f *pflag.Flag) {
+		value, usage := pflag.UnquoteUsage(f)
+		for _, avoid := range []string{"dir", "directory", "path", "folders"} {
+			if strings.EqualFold(value, avoid) {
+				t.Errorf("%s --%s: value named %q; say folder or file", cmd, f.Name, value)
+			}
+		}
+		if f.Name == "jobs" && (!strings.Contains(usage, " n ") || !strings.HasSuffix(usage, " (0: one per core)")) {
+			t.Errorf("%s --jobs: %q; want \"… n … at once (0: one per core)\"", cmd, usage)
+		}
+	})
 	for _, u := range byName["format"] {
 		f := findCommand(t, u.cmd).Flags().Lookup("format")
 		if !strings.Contains(f.Usage, "table") || f.DefValue != "table" {

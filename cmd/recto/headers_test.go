@@ -120,6 +120,7 @@ func TestOutputHeaders(t *testing.T) {
 	model := filepath.Join(t.TempDir(), "m.json")
 	add("calibrate --format json", jsonKeys(t, "calibrate json", must(runRecto(t, "calibrate", "--ocr", ocrDir, "--truth", truthDir, "-o", model, "--format", "json"))))
 	add("calibrate --format csv", csvHeader(t, "calibrate csv", must(runRecto(t, "calibrate", "--ocr", ocrDir, "--truth", truthDir, "-o", model, "--format", "csv"))))
+	add("calibrate --out (model)", jsonKeys(t, "calibrate model", readFile(t, model)))
 
 	// correct
 	in := correctFixture(t)
@@ -141,6 +142,7 @@ func TestOutputHeaders(t *testing.T) {
 	sc := bufio.NewScanner(strings.NewReader(readFile(t, filepath.Join(text, "failures.tsv"))))
 	sc.Scan()
 	add("ocr failures.tsv", strings.ReplaceAll(sc.Text(), "\t", ","))
+	add("ocr <page>.json (page record)", jsonKeys(t, "page record", readFile(t, filepath.Join(text, "p2.json"))))
 
 	// run: its reports
 	coll, truth := runtest.Collection(t, 2, 3, true)
@@ -149,10 +151,15 @@ func TestOutputHeaders(t *testing.T) {
 	defer func() { testEngine = saved }()
 	runDir := filepath.Join(t.TempDir(), "run")
 	must(runRecto(t, "-q", "run", coll, "-o", runDir, "--truth", truth))
-	for _, name := range []string{"titles.csv", "pages.csv", "rescan.csv"} {
+	for _, name := range []string{"titles.csv", "pages.csv", "rescan.csv", "failures.csv", "warnings.csv"} {
 		add("run report/"+name, csvHeader(t, name, readFile(t, filepath.Join(runDir, "report", name))))
 	}
 	add("run report/titles.json", jsonKeys(t, "titles.json", readFile(t, filepath.Join(runDir, "report", "titles.json"))))
+
+	// sample: its plan, from the run's pages.csv
+	plan := filepath.Join(t.TempDir(), "plan.csv")
+	must(runRecto(t, "sample", "--estimates", filepath.Join(runDir, "report", "pages.csv"), "-o", plan))
+	add("sample --out (plan)", csvHeader(t, "plan", readFile(t, plan)))
 
 	got := strings.Join(lines, "\n") + "\n"
 	path := filepath.Join("..", "..", "testdata", "headers", "outputs.txt")

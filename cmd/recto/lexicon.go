@@ -32,6 +32,10 @@ used by triage (lexicon hit rate) and correction.
 
 recto embeds an English lexicon; build your own for other languages or
 for the vocabulary of your collection with 'recto lexicon build'.`,
+		// An unknown subcommand is a usage error (exit 2), as at the top
+		// level; cobra would print the help and exit 0.
+		Args: cobra.NoArgs,
+		RunE: func(cmd *cobra.Command, args []string) error { return cmd.Help() },
 	}
 	cmd.AddCommand(newLexiconBuildCommand(g), newLexiconLookupCommand(g))
 	return cmd

@@ -96,7 +96,7 @@ func (o *prepFlags) options() (ocr.PrepOptions, error) {
 // AddFlags registers the options on fs.
 func (o *OCROptions) AddFlags(c *cobra.Command) {
 	f := c.Flags()
-	f.StringVarP(&o.Out, "out", "o", "", "write outputs under `dir` (required)")
+	f.StringVarP(&o.Out, "out", "o", "", "write outputs under `folder` (required)")
 	f.StringVarP(&o.Lang, "lang", "l", "eng", "Tesseract `languages`, e.g. eng or eng+deu")
 	f.IntVarP(&o.Jobs, "jobs", "j", 0, "recognise `n` pages at once (0: one per core)")
 	f.IntVar(&o.PSM, "psm", 0, "Tesseract page segmentation `mode` 1-13 (0: Tesseract's default, 3)")
@@ -114,7 +114,7 @@ func (o *OCROptions) options() (ocr.Options, tesseract.Config, error) {
 		return ocr.Options{}, tesseract.Config{}, err
 	}
 	if o.Jobs < 0 {
-		return ocr.Options{}, tesseract.Config{}, usagef("--jobs %d: want 0 (one per core) or more", o.Jobs)
+		return ocr.Options{}, tesseract.Config{}, checkJobs(o.Jobs)
 	}
 	if o.Jobs == 0 {
 		o.Jobs = runtime.GOMAXPROCS(0)

@@ -98,6 +98,9 @@ type (
 
 var usagef = cli.Usagef
 
+// checkJobs checks --jobs as every command does (cli.CheckJobs).
+var checkJobs = cli.CheckJobs
+
 // errNotImplemented is returned by commands whose capability has not landed.
 var errNotImplemented = errors.New("not implemented yet")
 

@@ -40,8 +40,10 @@ PAIRS
   PAGE XML (2010-2019), told apart by the content. Its hypothesis is the .txt
   file at the same relative path, without the ending, under --ocr. A page
   found in two files (p1.txt and p1.xml) is reported and not scored. A title
-  is the first folder under --truth; pages lying directly in --truth form one
-  title named after that folder. A missing hypothesis is scored as empty text
+  is the first folder under --truth; a page lying directly in --truth takes
+  the name of the folder its image lies in, from the page record (.json)
+  'recto ocr' wrote beside its hypothesis, as 'recto run' names it, else the
+  name of --truth itself. A missing hypothesis is scored as empty text
   and listed as missing; a hypothesis that cannot be read is scored as empty
   text and reported; a *.txt under --ocr with no reference is listed as
   unmatched and not scored. If one folder lies inside the other, it is left
@@ -112,8 +114,8 @@ func newScoreCommand(g *GlobalOptions) *cobra.Command {
 		},
 	}
 	f := cmd.Flags()
-	f.StringVar(&o.Truth, "truth", "", "ground-truth `dir` (reference *.txt pages, searched recursively)")
-	f.StringVar(&o.OCR, "ocr", "", "OCR output `dir` (hypothesis *.txt pages at the same relative paths)")
+	f.StringVar(&o.Truth, "truth", "", "ground-truth `folder` (reference *.txt pages, searched recursively)")
+	f.StringVar(&o.OCR, "ocr", "", "OCR output `folder` (hypothesis *.txt pages at the same relative paths)")
 	f.StringVar(&o.Format, "format", "table", "output `format`: table, json or csv")
 	f.IntVar(&o.Confusions, "confusions", 0, "list the `n` most frequent confusions")
 	f.BoolVar(&o.FoldCase, "fold-case", false, "fold case before scoring")
@@ -137,7 +139,7 @@ func runScore(ctx context.Context, o ScoreOptions, g GlobalOptions) error {
 	case o.Confusions > 0 && o.Format == "csv":
 		return usagef("score: --confusions is not available with --format csv")
 	case o.Jobs < 0:
-		return usagef("score: --jobs %d: want 0 or more", o.Jobs)
+		return checkJobs(o.Jobs)
 	}
 	for _, d := range [][2]string{{"--truth", o.Truth}, {"--ocr", o.OCR}} {
 		if err := checkDir(d[0], d[1]); err != nil {

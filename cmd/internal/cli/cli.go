@@ -42,6 +42,15 @@ func Usagef(format string, args ...any) error {
 	return &UsageError{fmt.Errorf(format, args...)}
 }
 
+// CheckJobs checks the value of --jobs, the same in every command: 0 or
+// more, 0 meaning one worker per core.
+func CheckJobs(n int) error {
+	if n < 0 {
+		return Usagef("--jobs %d: want 0 (one per core) or more", n)
+	}
+	return nil
+}
+
 // PartialError marks a job in which some inputs failed while the others
 // were processed (exit status 3).
 type PartialError struct {

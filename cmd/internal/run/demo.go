@@ -12,6 +12,7 @@ import (
 	"path/filepath"
 	"strings"
 
+	"recto/cmd/internal/cli"
 	"recto/ocr"
 	"recto/ocr/par"
 	"recto/ocr/synth"
@@ -93,7 +94,7 @@ func claimDemoFolder(dir string) error {
 			return fmt.Errorf("demo: %q already exists and was not made by 'recto demo'; choose another --out (nothing was changed)", dir)
 		}
 	}
-	return os.WriteFile(filepath.Join(dir, demoMarker), []byte("made by recto demo; safe to delete with the folder\n"), 0o644)
+	return writeAtomic(filepath.Join(dir, demoMarker), []byte("made by recto demo; safe to delete with the folder\n"))
 }
 
 // Demo writes the demo collection under o.Out and runs the job on it. The
@@ -110,6 +111,9 @@ func Demo(ctx context.Context, o DemoOptions) (Summary, error) {
 	}
 	if o.Command == "" {
 		o.Command = "recto demo"
+	}
+	if err := cli.CheckJobs(o.Jobs); err != nil { // before anything is written
+		return Summary{}, err
 	}
 	if err := claimDemoFolder(dir); err != nil {
 		return Summary{}, err

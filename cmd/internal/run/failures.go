@@ -73,7 +73,7 @@ func isSetup(r ledger.Page) bool {
 // failuresCSV lists the pages that failed for a set-up or system reason
 // (not the scan's fault), with the message that says how to fix it.
 func failuresCSV(rows []ledger.Page) ([]byte, error) {
-	return namesCSV([]string{"title", "page", "image", "problem"}, rows, func(r ledger.Page) []string {
+	return namesCSV([]string{"title", "page", "image", "error"}, rows, func(r ledger.Page) []string {
 		if !isSetup(r) {
 			return nil
 		}

@@ -189,7 +189,7 @@ func TestSetupFailuresNotRescan(t *testing.T) {
 	fails := readCSV(t, filepath.Join(out, reportDir, "failures.csv"))
 	got := map[string]string{}
 	for _, r := range fails[1:] {
-		got[path.Base(r[2])] = r[3] // title, page, image, problem
+		got[path.Base(r[2])] = r[3] // title, page, image, error
 	}
 	if !strings.Contains(got["big.png"], "--max-pixels") || got["gt.png"] == "" || len(got) != 2 {
 		t.Errorf("failures.csv: %v", got)

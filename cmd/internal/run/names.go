@@ -5,7 +5,6 @@ import (
 	"os"
 	"path"
 	"path/filepath"
-	"sort"
 	"strings"
 
 	"recto/cmd/internal/run/fname"
@@ -118,13 +117,3 @@ func EscapeName(s string) string { return fname.Escape(s) }
 
 // UnescapeName reverses EscapeName.
 func UnescapeName(s string) (string, error) { return fname.Unescape(s) }
-
-// sortedKeys returns m's keys in order.
-func sortedKeys[V any](m map[string]V) []string {
-	k := make([]string, 0, len(m))
-	for s := range m {
-		k = append(k, s)
-	}
-	sort.Strings(k)
-	return k
-}

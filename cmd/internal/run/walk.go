@@ -1,13 +1,13 @@
 package run
 
 import (
+	"errors"
 	"fmt"
-	"io/fs"
 	"path"
 	"path/filepath"
-	"sort"
 	"strings"
 
+	"recto/internal/walk"
 	"recto/ocr"
 	"recto/quality"
 )
@@ -20,11 +20,11 @@ type Image struct {
 	Title string // first folder of Rel, or the root folder's name for a file in the root (as in recto score)
 }
 
-// FindImages is recto's one page walker: it searches root for page files
-// (ocr.IsPageFile: one list of formats for every command), skipping hidden
-// files and folders (names starting with "."), the folder skip (a run or
-// output folder inside root; "" for none) and anything but regular files
-// and symbolic links. An unreadable sub-folder does not stop the walk. It
+// FindImages lists the page files under root for recto ocr and recto run:
+// the one walker (internal/walk: hidden files and folders, the folder skip
+// — a run or output folder inside root, "" for none — and anything but
+// regular files and symbolic links left out) with the one list of formats
+// (ocr.IsPageFile). An unreadable sub-folder does not stop the walk. It
 // returns the files sorted by Rel and the number of other entries
 // ignored; only an unreadable root is an error.
 func FindImages(root, skip string) ([]Image, int, error) {
@@ -32,55 +32,21 @@ func FindImages(root, skip string) ([]Image, int, error) {
 	if abs, err := filepath.Abs(root); err == nil {
 		rootName = filepath.Base(abs)
 	}
-	var absSkip string
-	if skip != "" {
-		absSkip, _ = filepath.Abs(skip)
-	}
-	var found []Image
 	ignored := 0
-	err := filepath.WalkDir(root, func(p string, d fs.DirEntry, err error) error {
-		if err != nil {
-			if p == root {
-				return err
-			}
+	rels, n, err := walk.Files(root, walk.Options{Match: ocr.IsPageFile, Skip: skip, Bad: func(_ string, err error) {
+		if !errors.Is(err, walk.ErrIsFolder) {
 			ignored++ // an unreadable sub-folder must not stop the batch
-			if d != nil && d.IsDir() {
-				return fs.SkipDir
-			}
-			return nil
 		}
-		name := d.Name()
-		if p != root && strings.HasPrefix(name, ".") {
-			if d.IsDir() {
-				return fs.SkipDir
-			}
-			return nil
-		}
-		if d.IsDir() {
-			if absSkip != "" {
-				if abs, err := filepath.Abs(p); err == nil && abs == absSkip {
-					return fs.SkipDir
-				}
-			}
-			return nil
-		}
-		if !d.Type().IsRegular() && d.Type()&fs.ModeSymlink == 0 || !ocr.IsPageFile(name) {
-			ignored++
-			return nil
-		}
-		rel, err := filepath.Rel(root, p)
-		if err != nil {
-			return err
-		}
-		rel = filepath.ToSlash(rel)
-		title, _ := quality.TitlePage(rel, rootName)
-		found = append(found, Image{Rel: rel, Path: p, Title: title})
-		return nil
-	})
+	}})
 	if err != nil {
 		return nil, 0, fmt.Errorf("%q: %w", root, err)
 	}
-	sort.Slice(found, func(i, j int) bool { return found[i].Rel < found[j].Rel })
+	ignored += n
+	found := make([]Image, len(rels))
+	for i, rel := range rels {
+		title, _ := quality.TitlePage(rel, rootName)
+		found[i] = Image{Rel: rel, Path: filepath.Join(root, filepath.FromSlash(rel)), Title: title}
+	}
 	stems := map[string]int{}
 	for _, f := range found {
 		stems[strings.TrimSuffix(f.Rel, path.Ext(f.Rel))]++

@@ -287,7 +287,7 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 		total += correct.Made(r.changes)
 		title, _ := quality.TitlePage(pages[i].Rel, rootName)
 		if !strings.Contains(pages[i].Rel, "/") { // as triage names a loose page (issue 17 part 3)
-			title = looseTitle(r.source, title)
+			title = quality.SourceTitle(r.source, title)
 		}
 		run.AppendChanges(&lines, title, pages[i].Rel, o.Lang, r.changes)
 	}

@@ -593,6 +593,9 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 		row.CharErrsAf, row.WordErrsAf = after.CharErrors, after.WordErrors
 		row.FlexErrs, row.BagErrs = before.FlexErrors, before.BagErrors
 		row.FlexErrsAf, row.BagErrsAf = after.FlexErrors, after.BagErrors
+		if before.FlexSkipped || after.FlexSkipped {
+			row.Warnings = append(row.Warnings, "ground truth "+quality.FlexSkippedNote)
+		}
 		row.Timings["score"] = ms(time.Since(t4))
 	}
 	row.State, row.Error = ledger.StateDone, ""
@@ -682,6 +685,7 @@ type verdict struct {
 // (flexible character accuracy, bag of words) included.
 type counts struct {
 	Chars, CharErrors, Words, WordErrors, FlexErrors, BagErrors int
+	FlexSkipped                                                 bool // FlexErrors is CharErrors, an upper bound (quality.Counts.FlexSkipped)
 }
 
 // fingerprint hashes the settings that change a page's results.

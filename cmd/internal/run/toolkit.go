@@ -120,7 +120,7 @@ func newToolkit(o Options) (*toolkit, error) {
 		compare: func(ref, hyp string) counts {
 			c := quality.Compare(ref, hyp, quality.NormOptions{})
 			return counts{Chars: c.Chars, CharErrors: c.CharErrors, Words: c.Words, WordErrors: c.WordErrors,
-				FlexErrors: c.FlexErrors, BagErrors: c.BagErrors}
+				FlexErrors: c.FlexErrors, BagErrors: c.BagErrors, FlexSkipped: c.FlexSkipped > 0}
 		},
 		triage: func(r *ocr.Record) verdict {
 			var f quality.Features

@@ -144,7 +144,7 @@ func TestTextPicturesRealEngine(t *testing.T) {
 			v := quality.Triage(quality.PageFeatures(rec, lex), nil, quality.Thresholds{})
 			textLike := rec.Ink.LooksLikeText()
 			fmt.Fprintf(&b, "| %s | %v | %d | %d | %.1f | %s | %s |\n", f, textLike, len(rec.Words), ocr.ConfidentWords(rec.Words), rec.Noise, v.Decision, strings.Join(v.Reasons, "; "))
-			failed := strings.Contains(strings.Join(v.Reasons, " "), "shape of text")
+			failed := strings.Contains(strings.Join(v.Reasons, " "), "ink has the shape of text")
 			var bad string
 			switch {
 			case set.print && (v.Decision == quality.DecisionPicture || v.Decision == quality.DecisionBlank):

@@ -109,48 +109,44 @@ type modelFile struct {
 //go:embed default.model
 var defaultModelData []byte
 
+//go:embed frk.model
+var frakturModelData []byte
+
+// embedded reads an embedded model file once.
+type embedded struct {
+	name string
+	data []byte
+	once sync.Once
+	m    *Model
+}
+
+func (e *embedded) model() *Model {
+	e.once.Do(func() {
+		m, err := readModel(bytes.NewReader(e.data))
+		if err != nil {
+			panic("correct: embedded " + e.name + ": " + err.Error())
+		}
+		e.m = m
+	})
+	return e.m
+}
+
 var (
-	defaultOnce  sync.Once
-	defaultModel *Model
+	defaultEmbedded = &embedded{name: "model", data: defaultModelData}
+	frakturEmbedded = &embedded{name: "Fraktur model", data: frakturModelData}
 )
 
 // DefaultModel returns the model embedded in the binary, trained on the
 // project's synthetic corpus. It panics only if the embedded file is broken,
 // which the package tests rule out.
-func DefaultModel() *Model {
-	defaultOnce.Do(func() {
-		m, err := readModel(bytes.NewReader(defaultModelData))
-		if err != nil {
-			panic("correct: embedded model: " + err.Error())
-		}
-		defaultModel = m
-	})
-	return defaultModel
-}
-
-//go:embed frk.model
-var frakturModelData []byte
-
-var (
-	frakturOnce  sync.Once
-	frakturModel *Model
-)
+func DefaultModel() *Model { return defaultEmbedded.model() }
 
 // FrakturModel returns the embedded error model for German print in
 // Fraktur, trained on pages set in the Blankenburg blackletter (Debian
 // fonts-blankenburg, OFL-1.1) and read by Tesseract's frk model (see
 // docs/readme-languages.md). It panics only if the embedded file is broken,
 // which the package tests rule out.
-func FrakturModel() *Model {
-	frakturOnce.Do(func() {
-		m, err := readModel(bytes.NewReader(frakturModelData))
-		if err != nil {
-			panic("correct: embedded Fraktur model: " + err.Error())
-		}
-		frakturModel = m
-	})
-	return frakturModel
-}
+func FrakturModel() *Model { return frakturEmbedded.model() }
 
 // ModelForLang returns the embedded error model for an engine language
 // list ("eng", "deu+frk", "script/Fraktur") and its name: the Fraktur

@@ -124,6 +124,20 @@ func WriteALTOWith(w io.Writer, rec *Record, o ALTOOptions) error {
 	if rec.Blank {
 		prep.Description = append(prep.Description, "no ink worth recognising was found (blank page)")
 	}
+	if ori := rec.Orientation; ori != nil {
+		conf := strconv.FormatFloat(ori.Confidence, 'f', 1, 64)
+		switch {
+		case !ori.Decided:
+			prep.Description = append(prep.Description, "orientation undecided (confidence "+conf+"): read as it is")
+		case ori.Degrees != 0:
+			prep.Description = append(prep.Description, "orientation: text found turned "+strconv.Itoa(ori.Degrees)+
+				" degrees clockwise (confidence "+conf+"); read upright, positions given on the original image")
+		default:
+			prep.Description = append(prep.Description, "orientation: upright (confidence "+conf+")")
+		}
+		prep.Settings += " orientation_degrees=" + strconv.Itoa(ori.Degrees) + " orientation_confidence=" + conf +
+			" orientation_decided=" + strconv.FormatBool(ori.Decided)
+	}
 	a.step("preparation", "preOperation", prep)
 
 	// Recognition.
@@ -157,6 +171,11 @@ func WriteALTOWith(w io.Writer, rec *Record, o ALTOOptions) error {
 	a.s(` PROCESSINGREFS="` + strings.Join(refs, " ") + `"`)
 	if len(rec.Words) > 0 {
 		a.attrConf("PC", rec.MeanConfidence)
+	}
+	if ori := rec.Orientation; ori != nil && ori.Decided && ori.Degrees%360 != 0 {
+		// ALTO 4.4 Page@ROTATION: the default rotation of the text on the
+		// page, in degrees counter-clockwise; Degrees is clockwise.
+		a.attrInt("ROTATION", (360-ori.Degrees%360)%360)
 	}
 	if o.HasAccuracy {
 		v := o.Accuracy

@@ -197,6 +197,9 @@ func ScoreDirs(ctx context.Context, truth, ocr string, cfg DirConfig) (*Report, 
 		rel := refs[i]
 		res := &results[i]
 		title, page := TitlePage(rel, rootName)
+		if !strings.Contains(rel, "/") { // a loose page: named after its image's folder (sourcetitle.go)
+			title = recordTitle(filepath.Join(ocr, filepath.FromSlash(strings.TrimSuffix(rel, ".txt"))+".json"), title)
+		}
 		res.page = PageScore{Title: title, Page: page, Status: StatusOK}
 		refPath := filepath.Join(truth, filepath.FromSlash(refFiles[i]))
 		t, err := ReadTruth(refPath)

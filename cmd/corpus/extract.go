@@ -363,7 +363,9 @@ func htmlPassages(path, name string) ([]passage, error) {
 	tag := regexp.MustCompile(`(?s)<[^>]*>`)
 	var paras []string
 	for _, m := range regexp.MustCompile(`(?s)<p[ >].*?</p>`).FindAllString(string(data), -1) {
-		t := strings.Join(strings.Fields(html.UnescapeString(tag.ReplaceAllString(m, " "))), " ")
+		// Tags go without a trace: a link or a code span inside a sentence
+		// ("hovedtjener</a>.") must not leave a space before the mark.
+		t := strings.Join(strings.Fields(html.UnescapeString(tag.ReplaceAllString(m, ""))), " ")
 		if len(strings.Fields(t)) < 8 || letterShare(t) < 0.85 || strings.ContainsAny(t, "/$<>{}[]=|#~_\\") || englishWords(t) >= 2 {
 			continue
 		}

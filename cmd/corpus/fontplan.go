@@ -171,7 +171,7 @@ func drawable(text, font string) (string, error) {
 	if err != nil || len(miss) == 0 {
 		return text, err
 	}
-	plain := map[rune]string{'„': `"`, '“': `"`, '”': `"`, '‚': "'", '‘': "'", '’': "'", '–': "-", '—': "-", '…': "..."}
+	plain := map[rune]string{'„': `"`, '“': `"`, '”': `"`, '«': `"`, '»': `"`, '‚': "'", '‘': "'", '’': "'", '‹': "'", '›': "'", '–': "-", '—': "-", '…': "..."}
 	var pairs []string
 	for _, r := range miss {
 		if s, ok := plain[r]; ok {

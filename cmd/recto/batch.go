@@ -33,6 +33,7 @@ func addRunFlags(cmd *cobra.Command, o *run.Options, prep *prepFlags) {
 	f.BoolVar(&o.KeepMarks, "keep-marks", false, "leave stray marks (tokens with no letter or digit) in the text")
 	f.BoolVar(&o.MapGlyphs, "map-glyphs", false, "rewrite punctuation glyphs as the correction model's ground truth has them")
 	f.StringVar(&o.Lexicon, "lexicon", "", "lexicon `file` for triage and correction (default: built in)")
+	f.Float64Var(&o.TargetCER, "target-cer", 0, "CER after correction each title should reach, e.g. 0.03; report.html says per title whether it does (default: none)")
 	f.Float64Var(&o.Margin, "margin", 0, fmt.Sprintf("correct a word only when the candidate is e^`m` times likelier (default %g)", correct.DefaultMargin))
 	f.StringVar(&o.Shard, "shard", "", "process only share `i/n` of the pages (default: from JOB_COMPLETION_INDEX or SLURM_ARRAY_TASK_ID, else all)")
 	f.IntVar(&o.ShardCount, "shard-count", 0, "number of shards when the index comes from JOB_COMPLETION_INDEX (default: $RECTO_SHARDS)")
@@ -176,16 +177,18 @@ it is done in more than one, the most recent wins. The sources are only read.
 }
 
 func newReportCommand(g *GlobalOptions) *cobra.Command {
-	return &cobra.Command{
+	var o run.ReportOptions
+	cmd := &cobra.Command{
 		Use:   "report DIR",
 		Short: "Rebuild the reports of a run from its ledger",
 		Long: `Report rebuilds DIR/report (titles.csv, titles.json, pages.csv, rescan.csv,
 report.html) from the ledger of the run in DIR, without recognising anything.
 It may run while a run is still writing DIR: it shows the pages committed so far.
+--target-cer replaces the run's own target for this report.
 ` + exitStatusHelp,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			page, err := run.Report(cmd.Context(), args[0])
+			page, err := run.ReportWith(cmd.Context(), args[0], o)
 			if err != nil {
 				return err
 			}
@@ -193,4 +196,6 @@ It may run while a run is still writing DIR: it shows the pages committed so far
 			return nil
 		},
 	}
+	cmd.Flags().Float64Var(&o.TargetCER, "target-cer", 0, "CER after correction each title should reach, e.g. 0.03 (default: the run's --target-cer)")
+	return cmd
 }

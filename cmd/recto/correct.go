@@ -193,6 +193,7 @@ type correctPage = quality.OCRPage
 // correctResult is what correcting one page gave.
 type correctResult struct {
 	changes []correct.Change
+	source  string // the page image its record names, "" for a text page
 	err     error
 }
 
@@ -285,6 +286,9 @@ func runCorrect(ctx context.Context, o CorrectOptions, g GlobalOptions, in strin
 		}
 		total += correct.Made(r.changes)
 		title, _ := quality.TitlePage(pages[i].Rel, rootName)
+		if !strings.Contains(pages[i].Rel, "/") { // as triage names a loose page (issue 17 part 3)
+			title = quality.SourceTitle(r.source, title)
+		}
 		run.AppendChanges(&lines, title, pages[i].Rel, o.Lang, r.changes)
 	}
 	if o.DryRun {
@@ -360,7 +364,7 @@ func correctOne(c *correct.Corrector, o CorrectOptions, p correctPage, g GlobalO
 			out.Lang = o.Lang
 		}
 		if o.DryRun {
-			return correctResult{changes: changes}
+			return correctResult{changes: changes, source: rec.Source}
 		}
 		if err := writeFileAtomic(outBase+ocr.SuffixText, []byte(out.Text())); err != nil {
 			return correctResult{err: err}
@@ -388,7 +392,7 @@ func correctOne(c *correct.Corrector, o CorrectOptions, p correctPage, g GlobalO
 				return correctResult{err: err}
 			}
 		}
-		return correctResult{changes: changes}
+		return correctResult{changes: changes, source: rec.Source}
 	}
 	data, err := os.ReadFile(p.Text)
 	if err != nil {

@@ -40,8 +40,10 @@ PAIRS
   PAGE XML (2010-2019), told apart by the content. Its hypothesis is the .txt
   file at the same relative path, without the ending, under --ocr. A page
   found in two files (p1.txt and p1.xml) is reported and not scored. A title
-  is the first folder under --truth; pages lying directly in --truth form one
-  title named after that folder. A missing hypothesis is scored as empty text
+  is the first folder under --truth; a page lying directly in --truth takes
+  the name of the folder its image lies in, from the page record (.json)
+  'recto ocr' wrote beside its hypothesis, as 'recto run' names it, else the
+  name of --truth itself. A missing hypothesis is scored as empty text
   and listed as missing; a hypothesis that cannot be read is scored as empty
   text and reported; a *.txt under --ocr with no reference is listed as
   unmatched and not scored. If one folder lies inside the other, it is left

@@ -279,7 +279,7 @@ func triageOne(p quality.OCRPage, root string, lex *lexicon.Lexicon, m *quality.
 		f = quality.PageFeatures(rec, fl)
 		r.Image = rec.Source
 		if !strings.Contains(p.Rel, "/") {
-			r.Title = looseTitle(rec.Source, r.Title)
+			r.Title = quality.SourceTitle(rec.Source, r.Title)
 		}
 	} else {
 		f = quality.TextFeatures(text, fl)
@@ -320,23 +320,6 @@ func writeColumns(w io.Writer, rows [][]string, text int) {
 		}
 		fmt.Fprintln(w, b.String())
 	}
-}
-
-// looseTitle names the title of a page lying directly in the folder given
-// to triage: as the README's convention names the pages of a collection,
-// after the folder its image lies in (a page in the root of the collection
-// `harbour-gazette` belongs to the title `harbour-gazette`), not after the
-// output folder holding its record ("ocr"). It returns fallback when the
-// record names no folder.
-func looseTitle(source, fallback string) string {
-	if source == "" {
-		return fallback
-	}
-	b := filepath.Base(filepath.Dir(source))
-	if b == "." || b == ".." || b == string(filepath.Separator) || b == "" {
-		return fallback
-	}
-	return b
 }
 
 func writeTriageText(w io.Writer, rep triageReport, th quality.Thresholds) {

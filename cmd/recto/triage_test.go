@@ -174,3 +174,28 @@ func TestTriageLoosePagesAndSummary(t *testing.T) {
 		t.Errorf("numbers not right-aligned:\n%s", strings.Join(summary, "\n"))
 	}
 }
+
+// TestCorrectLoosePagesTitle (issue 17 part 3): in changes.jsonl a page
+// lying directly in the folder given to recto correct takes the title of
+// the folder its image lies in, as triage and the README name it, not the
+// OCR folder's name ("ocr"); a page in a sub-folder keeps that folder.
+func TestCorrectLoosePagesTitle(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "ocr")
+	writeRecord(t, filepath.Join(dir, "p0001.json"), badText, 0.45, false) // image scans/p0001.json.tif
+	writeRecord(t, filepath.Join(dir, "harbour-gazette", "p0002.json"), badText, 0.45, false)
+	out, _, err := runRecto(t, "correct", dir, "--dry-run")
+	if err != nil {
+		t.Fatal(err)
+	}
+	titles := map[string]string{}
+	for _, line := range strings.Split(strings.TrimSpace(out), "\n") {
+		var c struct{ Title, Page string }
+		if err := json.Unmarshal([]byte(line), &c); err != nil {
+			t.Fatalf("line %q: %v", line, err)
+		}
+		titles[c.Page] = c.Title
+	}
+	if len(titles) != 2 || titles["p0001"] != "scans" || titles["harbour-gazette/p0002"] != "harbour-gazette" {
+		t.Errorf("titles by page = %v, want p0001 in scans, harbour-gazette/p0002 in harbour-gazette", titles)
+	}
+}

@@ -45,6 +45,7 @@ func main() {
 	ocrDir := flag.String("ocr", "", "-eval with -truth: directory of the OCR records (.json) or text, same relative paths")
 	final := flag.Bool("final", false, "train on all of fit, development pages included (once the constants are set on dev)")
 	guard := flag.Bool("guard", false, "-eval: also correct the full source texts of the -corpus heldout pages as clean plain text (use with -lexicon fair, which leaves them out)")
+	merge := flag.String("merge", "", "merge these comma-separated model files (\"default\": the embedded one) into -out, as if trained on all their pages (correct.MergeModels)")
 	alsoSplits := flag.String("also", "", "training: also the pages of these comma-separated splits (e.g. fontonly,textonly,incorpus of a -split fonttext corpus)")
 	minCount := flag.Int("min-count", 0, "training: drop confusions of three or more characters seen fewer times (0 = the default, 2)")
 	keepGlyphs := flag.Bool("map-glyphs", false, "-eval: map punctuation glyphs as the model learned (Config.MapGlyphs)")
@@ -57,6 +58,25 @@ func main() {
 	}
 
 	switch {
+	case *merge != "":
+		var m *correct.Model
+		for _, f := range strings.Split(*merge, ",") {
+			x := correct.DefaultModel()
+			if f != "default" {
+				var err error
+				x, err = correct.LoadModel(f)
+				check(err)
+			}
+			if m == nil {
+				m = x
+			} else {
+				m = correct.MergeModels(m, x)
+			}
+		}
+		report(m)
+		if *out != "" {
+			check(m.Save(*out))
+		}
 	case *corpus != "" && !*eval:
 		split := "fit"
 		if *final {

@@ -64,7 +64,49 @@ func documents(t *testing.T) map[string][]byte {
 	write("corrected", kept, alto.Options{HasAccuracy: true, Accuracy: 92.25,
 		Correction: &alto.Step{Description: []string{"lexicon-based correction of OCR confusions"}, Settings: "margin=0 keep_marks=false <&>"}})
 	write("estimate out of range", record(), alto.Options{HasAccuracy: true, Accuracy: 140})
+	turned := record()
+	turned.Orientation = &ocr.Orientation{Degrees: 90, Confidence: 9.3, Decided: true}
+	write("turned", turned, alto.Options{})
+	undecided := record()
+	undecided.Orientation = &ocr.Orientation{Degrees: 180, Confidence: 1.2}
+	write("orientation undecided", undecided, alto.Options{})
 	return out
+}
+
+// TestOrientationInALTO: a page found turned carries the text's rotation
+// where ALTO 4.4 puts it, Page@ROTATION ("Default rotation for text or
+// illustrations on this page. The value is in degree counterclockwise",
+// alto-4-4.xsd), and the preparation step says what was found (issue 11
+// part 3). recto's Orientation.Degrees is the clockwise turn of the text,
+// so 90 clockwise is ROTATION 270. An undecided page has no ROTATION.
+func TestOrientationInALTO(t *testing.T) {
+	var d struct {
+		Steps []struct {
+			Desc     []string `xml:"processingStepDescription"`
+			Settings string   `xml:"processingStepSettings"`
+		} `xml:"Description>Processing"`
+		Page struct {
+			Rotation string `xml:"ROTATION,attr"`
+		} `xml:"Layout>Page"`
+	}
+	docs := documents(t)
+	if err := xml.Unmarshal(docs["turned"], &d); err != nil {
+		t.Fatal(err)
+	}
+	if d.Page.Rotation != "270" {
+		t.Errorf("ROTATION %q, want 270 (text turned 90 degrees clockwise)", d.Page.Rotation)
+	}
+	if p := d.Steps[0]; !strings.Contains(p.Settings, "orientation_degrees=90 orientation_confidence=9.3 orientation_decided=true") ||
+		!strings.Contains(strings.Join(p.Desc, " "), "turned 90 degrees clockwise") {
+		t.Errorf("preparation step does not give the orientation: %+v", p)
+	}
+	d.Steps, d.Page.Rotation = nil, "" // Unmarshal appends to slices
+	if err := xml.Unmarshal(docs["orientation undecided"], &d); err != nil {
+		t.Fatal(err)
+	}
+	if d.Page.Rotation != "" || !strings.Contains(strings.Join(d.Steps[0].Desc, " "), "orientation undecided (confidence 1.2): read as it is") {
+		t.Errorf("undecided page: ROTATION %q, preparation %+v", d.Page.Rotation, d.Steps[0].Desc)
+	}
 }
 
 // TestWriteValidatesALTO44: every kind of document written validates

@@ -122,7 +122,7 @@ func BenchmarkAfterRecognition10k(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		if err := buildReports(filepath.Join(dir, reportDir), dir, "/bench", rows, nil, tk.interval); err != nil {
+		if err := buildReports(filepath.Join(dir, reportDir), dir, "/bench", rows, nil, tk.interval, reportMeta{}); err != nil {
 			b.Fatal(err)
 		}
 		l.Close()

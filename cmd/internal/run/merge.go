@@ -122,7 +122,7 @@ func Merge(ctx context.Context, o MergeOptions) (MergeSummary, error) {
 	defer l.Close()
 
 	var paths []string
-	meta := map[string]map[string]bool{"collection": {}, "settings": {}, "truth": {}}
+	meta := map[string]map[string]bool{"collection": {}, "settings": {}, "truth": {}, metaAbout: {}, metaTarget: {}}
 	for _, s := range srcs {
 		if s.ledger == dstLedger {
 			continue // the destination itself
@@ -174,7 +174,11 @@ func Merge(ctx context.Context, o MergeOptions) (MergeSummary, error) {
 	if err != nil {
 		return sum, fmt.Errorf("merge: %w", err)
 	}
-	if err := buildPartialReports(repDir, dst, root, rows, reviews, cerInterval, sum.Partial); err != nil {
+	m, err := readReportMeta(ctx, l)
+	if err != nil {
+		return sum, fmt.Errorf("merge: %w", err)
+	}
+	if err := buildPartialReports(repDir, dst, root, rows, reviews, cerInterval, sum.Partial, m); err != nil {
 		return sum, err
 	}
 	sum.Ledgers, sum.Taken, sum.Pages = len(paths), n, len(rows)

@@ -18,6 +18,7 @@ import (
 	"os"
 	"path"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"sync"
 	"sync/atomic"
@@ -49,6 +50,7 @@ type Options struct {
 	Model      string  // quality model file for triage (recto calibrate); "" means the embedded one
 	Lexicon    string  // lexicon file; "" means the built-in lexicon
 	Margin     float64 // correction margin, natural-log odds; 0 means correct.DefaultMargin
+	TargetCER  float64 // CER after correction each title should reach, in [0, 1], for report.html; 0 means none
 
 	CorrectionModel string // error model file (recto correct train); "" means the embedded one
 	KeepMarks       bool   // leave stray marks in (correct.Config.KeepMarks)
@@ -109,6 +111,8 @@ func (o Options) Validate() error {
 		return usagef("run: --correct %g is above --rescan %g: pages worse than the rescan threshold are not corrected", o.Correct, o.Rescan)
 	case o.ShardCount < 0:
 		return usagef("run: --shard-count %d: must be 1 or more", o.ShardCount)
+	case o.TargetCER < 0 || o.TargetCER > 1:
+		return usagef("run: --target-cer %g: a CER must be in [0, 1] (0.03 is 3 %%)", o.TargetCER)
 	case o.Margin < 0:
 		return usagef("run: --margin %g: must be 0 (default) or more", o.Margin)
 	case o.MaxPixels < 0:
@@ -296,7 +300,12 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 	if err := checkCollection(ctx, l, root, o.Out, o.NewCollection); err != nil {
 		return sum, err
 	}
-	for k, v := range map[string]string{"collection": root, "truth": st.truthDir, "settings": st.tk.settingsJSON, "shard": st.sh.String()} {
+	target := ""
+	if o.TargetCER > 0 {
+		target = strconv.FormatFloat(o.TargetCER, 'g', -1, 64)
+	}
+	for k, v := range map[string]string{"collection": root, "truth": st.truthDir, "settings": st.tk.settingsJSON, "shard": st.sh.String(),
+		metaAbout: st.tk.aboutJSON, metaTarget: target} { // about.go
 		if err := l.SetMeta(ctx, k, v); err != nil {
 			return sum, fmt.Errorf("run: %w", err)
 		}
@@ -375,7 +384,11 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 	if err != nil {
 		return sum, fmt.Errorf("run: %w", err)
 	}
-	if err := buildReports(repDir, st.outDir, root, rows, reviews, st.tk.interval); err != nil {
+	m, err := readReportMeta(ctx, l)
+	if err != nil {
+		return sum, fmt.Errorf("run: %w", err)
+	}
+	if err := buildReports(repDir, st.outDir, root, rows, reviews, st.tk.interval, m); err != nil {
 		return sum, err
 	}
 	sum.Report = filepath.Join(repDir, "report.html")
@@ -578,6 +591,11 @@ func (st *runState) onePage(ctx context.Context, rec recogniser, p pageJob) (row
 		row.RefChars, row.RefWords = before.Chars, before.Words
 		row.CharErrs, row.WordErrs = before.CharErrors, before.WordErrors
 		row.CharErrsAf, row.WordErrsAf = after.CharErrors, after.WordErrors
+		row.FlexErrs, row.BagErrs = before.FlexErrors, before.BagErrors
+		row.FlexErrsAf, row.BagErrsAf = after.FlexErrors, after.BagErrors
+		if before.FlexSkipped || after.FlexSkipped {
+			row.Warnings = append(row.Warnings, "ground truth "+quality.FlexSkippedNote)
+		}
 		row.Timings["score"] = ms(time.Since(t4))
 	}
 	row.State, row.Error = ledger.StateDone, ""
@@ -663,9 +681,11 @@ type verdict struct {
 	Reasons      []string
 }
 
-// counts are edit counts against a reference.
+// counts are edit counts against a reference, the order-free ones
+// (flexible character accuracy, bag of words) included.
 type counts struct {
-	Chars, CharErrors, Words, WordErrors int
+	Chars, CharErrors, Words, WordErrors, FlexErrors, BagErrors int
+	FlexSkipped                                                 bool // FlexErrors is CharErrors, an upper bound (quality.Counts.FlexSkipped)
 }
 
 // fingerprint hashes the settings that change a page's results.

@@ -2,6 +2,7 @@ package run
 
 import (
 	"context"
+	"encoding/json"
 	"fmt"
 	"image"
 	"sync"
@@ -20,6 +21,7 @@ import (
 type toolkit struct {
 	fingerprint  string // short hash of settingsJSON
 	settingsJSON string // the settings that change a page's results
+	aboutJSON    string // how the figures are made, for the report's header (about.go)
 
 	newRecogniser func() (recogniser, error)
 	write         func(dir, rel string, rec *ocr.Record, prepared *image.Gray, a ocr.ALTOOptions) error
@@ -117,7 +119,8 @@ func newToolkit(o Options) (*toolkit, error) {
 		interval:   cerInterval,
 		compare: func(ref, hyp string) counts {
 			c := quality.Compare(ref, hyp, quality.NormOptions{})
-			return counts{Chars: c.Chars, CharErrors: c.CharErrors, Words: c.Words, WordErrors: c.WordErrors}
+			return counts{Chars: c.Chars, CharErrors: c.CharErrors, Words: c.Words, WordErrors: c.WordErrors,
+				FlexErrors: c.FlexErrors, BagErrors: c.BagErrors, FlexSkipped: c.FlexSkipped > 0}
 		},
 		triage: func(r *ocr.Record) verdict {
 			var f quality.Features
@@ -140,6 +143,12 @@ func newToolkit(o Options) (*toolkit, error) {
 		return correctorFor(clex, cmodel, ccfg).CorrectRecord(r)
 	}
 	tk.fingerprint, tk.settingsJSON = fingerprint(settings)
+	about, err := describe(o, model, lexFiles, lex)
+	if err != nil {
+		return nil, err
+	}
+	b, _ := json.Marshal(about)
+	tk.aboutJSON = string(b)
 	if custom {
 		tk.newRecogniser = func() (recogniser, error) {
 			e, err := o.NewEngine()

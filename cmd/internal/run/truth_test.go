@@ -1,6 +1,8 @@
 package run
 
 import (
+	"bytes"
+	"context"
 	"os"
 	"path/filepath"
 	"strings"
@@ -9,6 +11,7 @@ import (
 	"golang.org/x/text/encoding/charmap"
 	"golang.org/x/text/encoding/unicode"
 
+	"recto/cmd/internal/run/runtest"
 	"recto/quality"
 )
 
@@ -78,5 +81,28 @@ func TestRunTruthReader(t *testing.T) {
 	want4 := quality.Compare(string(ref4), string(hypText), quality.NormOptions{}).CharErrors
 	if alto4 == nil || want4 <= 0 || *alto4 != want4 {
 		t.Errorf("ALTO page: run counted %v character errors, the .txt gives %d", alto4, want4)
+	}
+}
+
+// TestVolumeTruthSaysFlexIsABound: a page whose ground truth is a whole
+// volume (more than a million characters, issue #16) is scored, and the
+// run says on stderr and in warnings.csv that its flex_cer is only the
+// CER's upper bound (quality.FlexSkippedNote).
+func TestVolumeTruthSaysFlexIsABound(t *testing.T) {
+	coll, truth := runtest.Collection(t, 1, 1, false)
+	line := "The harbour master of Wrenmouth noted that the northern quay was mended.\n"
+	runtest.MustWrite(t, filepath.Join(truth, "Title A", "p000.txt"), []byte(strings.Repeat(line, (1<<20)/len(line)+50)))
+	out := filepath.Join(t.TempDir(), "run")
+	var stderr bytes.Buffer
+	o := Options{Collection: coll, Out: out, Truth: truth, NewEngine: runtest.Engine(coll, 0), NoPrepare: true, Stderr: &stderr, Correct: 1, Rescan: 1}
+	if _, err := Run(context.Background(), o); err != nil {
+		t.Fatal(err, stderr.String())
+	}
+	if !strings.Contains(stderr.String(), "too long for the order-free matching") {
+		t.Errorf("stderr does not say flex_cer is a bound:\n%s", stderr.String())
+	}
+	w, err := os.ReadFile(filepath.Join(out, reportDir, "warnings.csv"))
+	if err != nil || !strings.Contains(string(w), "Title A/p000") || !strings.Contains(string(w), "order-free") {
+		t.Errorf("warnings.csv (%v):\n%s", err, w)
 	}
 }

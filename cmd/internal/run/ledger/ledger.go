@@ -21,9 +21,12 @@ import (
 const FileName = "ledger.db"
 
 // SchemaVersion is the version of the tables written by this build.
-// Version 2 added the problem column and the state gone; a version 1
-// ledger is upgraded in place when opened for writing.
-const SchemaVersion = 2
+// Version 2 added the problem column and the state gone; version 3 the
+// order-free error counts (flex_errs, bag_errs and their _after). An older
+// ledger is upgraded in place when opened for writing; its pages keep -1 in
+// the new counts (not measured), and those with ground truth get another
+// settings fingerprint, so the next run does them again and measures them.
+const SchemaVersion = 3
 
 // ErrLocked is returned by Open when another process holds the ledger's lock.
 var ErrLocked = errors.New("ledger: in use by another recto process")
@@ -88,6 +91,15 @@ type Page struct {
 	WordErrs   int  // word edits, engine output against the reference
 	CharErrsAf int  // character edits after correction (equal to CharErrs when not corrected)
 	WordErrsAf int  // word edits after correction
+
+	// Order-free errors (quality.Counts): errors of the flexible character
+	// accuracy over RefChars and bag-of-words errors over RefWords, before
+	// and after correction; -1 in rows written before they were measured
+	// (schema 2 and older).
+	FlexErrs   int
+	BagErrs    int
+	FlexErrsAf int
+	BagErrsAf  int
 
 	Outputs []string           // files written, relative to the run folder, slash-separated
 	Timings map[string]float64 // milliseconds per step
@@ -154,7 +166,11 @@ CREATE TABLE IF NOT EXISTS pages (
 	timings       TEXT NOT NULL,
 	done_at       TEXT NOT NULL,
 	problem       TEXT NOT NULL DEFAULT '',
-	warnings      TEXT NOT NULL DEFAULT '[]'
+	warnings      TEXT NOT NULL DEFAULT '[]',
+	flex_errs     INTEGER NOT NULL DEFAULT -1,
+	bag_errs      INTEGER NOT NULL DEFAULT -1,
+	flex_errs_after INTEGER NOT NULL DEFAULT -1,
+	bag_errs_after  INTEGER NOT NULL DEFAULT -1
 );`
 
 // upgrades take a ledger from the version in their key to the next.
@@ -162,6 +178,12 @@ var upgrades = map[string]string{
 	"1": `ALTER TABLE pages ADD COLUMN problem TEXT NOT NULL DEFAULT '';
 		ALTER TABLE pages ADD COLUMN warnings TEXT NOT NULL DEFAULT '[]';
 		UPDATE meta SET value = '2' WHERE key = 'schema';`,
+	"2": `ALTER TABLE pages ADD COLUMN flex_errs INTEGER NOT NULL DEFAULT -1;
+		ALTER TABLE pages ADD COLUMN bag_errs INTEGER NOT NULL DEFAULT -1;
+		ALTER TABLE pages ADD COLUMN flex_errs_after INTEGER NOT NULL DEFAULT -1;
+		ALTER TABLE pages ADD COLUMN bag_errs_after INTEGER NOT NULL DEFAULT -1;
+		UPDATE pages SET config = config || '+scored-before-v3' WHERE has_truth = 1;
+		UPDATE meta SET value = '3' WHERE key = 'schema';`,
 }
 
 // Open opens the ledger at path for writing, creating it (and its folder)
@@ -246,11 +268,16 @@ func openDB(path string, readOnly bool) (*Ledger, error) {
 		switch {
 		case errors.Is(err, sql.ErrNoRows):
 			_, err = db.Exec(`INSERT INTO meta(key, value) VALUES('schema', ?)`, fmt.Sprint(SchemaVersion))
-		case err == nil && v != fmt.Sprint(SchemaVersion):
-			if up, ok := upgrades[v]; ok {
-				_, err = db.Exec(up)
-			} else {
-				err = fmt.Errorf("schema version %s, this build writes version %d: use the recto that wrote it, or start a new --out folder", v, SchemaVersion)
+		case err == nil:
+			for err == nil && v != fmt.Sprint(SchemaVersion) { // one upgrade after the other
+				up, ok := upgrades[v]
+				if !ok {
+					err = fmt.Errorf("schema version %s, this build writes version %d: use the recto that wrote it, or start a new --out folder", v, SchemaVersion)
+					break
+				}
+				if _, err = db.Exec(up); err == nil {
+					err = db.QueryRow(`SELECT value FROM meta WHERE key = 'schema'`).Scan(&v)
+				}
 			}
 		}
 		if err != nil {
@@ -332,7 +359,8 @@ func (l *Ledger) PutAll(ctx context.Context, ps []Page) error {
 const insertSQL = `INSERT OR REPLACE INTO pages(rel, title, page, source, sha256, size, config, shard,
 	state, error, decision, predicted_cer, reasons, mean_conf, words, corrections,
 	has_truth, ref_chars, ref_words, char_errs, word_errs, char_errs_after, word_errs_after,
-	outputs, timings, done_at, problem, warnings) VALUES(?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)`
+	outputs, timings, done_at, problem, warnings, flex_errs, bag_errs, flex_errs_after, bag_errs_after)
+	VALUES(?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)`
 
 func putTx(ctx context.Context, tx *sql.Tx, p Page) error {
 	reasons, _ := json.Marshal(nonNil(p.Reasons))
@@ -355,7 +383,8 @@ func putTx(ctx context.Context, tx *sql.Tx, p Page) error {
 	_, err = tx.ExecContext(ctx, insertSQL, p.Rel, p.Title, p.Page, p.Source, p.SHA256, p.Size, p.Config, p.Shard,
 		string(p.State), p.Error, p.Decision, p.PredictedCER, string(reasons), p.MeanConf, p.Words, p.Corrections,
 		p.HasTruth, p.RefChars, p.RefWords, p.CharErrs, p.WordErrs, p.CharErrsAf, p.WordErrsAf,
-		string(outputs), string(timings), done.UTC().Format(time.RFC3339Nano), string(p.Problem), string(warnings))
+		string(outputs), string(timings), done.UTC().Format(time.RFC3339Nano), string(p.Problem), string(warnings),
+		p.FlexErrs, p.BagErrs, p.FlexErrsAf, p.BagErrsAf)
 	if err != nil {
 		return fmt.Errorf("ledger: write %q: %w", p.Rel, err)
 	}
@@ -374,7 +403,8 @@ func (l *Ledger) Pages(ctx context.Context) ([]Page, error) {
 	rows, err := l.db.QueryContext(ctx, `SELECT rel, title, page, source, sha256, size, config, shard,
 		state, error, decision, predicted_cer, reasons, mean_conf, words, corrections,
 		has_truth, ref_chars, ref_words, char_errs, word_errs, char_errs_after, word_errs_after,
-		outputs, timings, done_at, problem, warnings FROM pages ORDER BY rel`)
+		outputs, timings, done_at, problem, warnings, flex_errs, bag_errs, flex_errs_after, bag_errs_after
+		FROM pages ORDER BY rel`)
 	if err != nil {
 		return nil, fmt.Errorf("ledger: %q: %w", l.path, err)
 	}
@@ -386,7 +416,7 @@ func (l *Ledger) Pages(ctx context.Context) ([]Page, error) {
 		if err := rows.Scan(&p.Rel, &p.Title, &p.Page, &p.Source, &p.SHA256, &p.Size, &p.Config, &p.Shard,
 			&state, &p.Error, &p.Decision, &p.PredictedCER, &reasons, &p.MeanConf, &p.Words, &p.Corrections,
 			&p.HasTruth, &p.RefChars, &p.RefWords, &p.CharErrs, &p.WordErrs, &p.CharErrsAf, &p.WordErrsAf,
-			&outputs, &timings, &done, &problem, &warnings); err != nil {
+			&outputs, &timings, &done, &problem, &warnings, &p.FlexErrs, &p.BagErrs, &p.FlexErrsAf, &p.BagErrsAf); err != nil {
 			return nil, fmt.Errorf("ledger: %q: %w", l.path, err)
 		}
 		p.State, p.Problem = State(state), Problem(problem)

@@ -19,7 +19,7 @@ func samplePage(rel string) Page {
 		Rel: rel, Title: "t", Page: rel, Source: "/in/" + rel, SHA256: "abc", Size: 10, Config: "cfg",
 		State: StateDone, Decision: "accept", PredictedCER: 0.03, Reasons: []string{"low noise"},
 		MeanConf: 0.91, Words: 120, Corrections: 2, HasTruth: true, RefChars: 600, RefWords: 110,
-		CharErrs: 12, WordErrs: 5, CharErrsAf: 10, WordErrsAf: 4,
+		CharErrs: 12, WordErrs: 5, CharErrsAf: 10, WordErrsAf: 4, FlexErrs: 9, BagErrs: 7, FlexErrsAf: 8, BagErrsAf: 6,
 		Outputs: []string{"ocr/" + rel + ".txt"}, Timings: map[string]float64{"engine": 1234.5},
 		Done: time.Date(2026, 1, 2, 3, 4, 5, 0, time.UTC),
 	}
@@ -148,19 +148,21 @@ func TestMergePrefersDoneThenLater(t *testing.T) {
 }
 
 // TestUpgradeFromVersion1: a ledger written by schema version 1 opens,
-// keeps its rows and gains the problem and warnings columns.
+// keeps its rows and gains the problem and warnings columns (version 2)
+// and the order-free counts, -1 for not measured (version 3).
 func TestUpgradeFromVersion1(t *testing.T) {
 	path := filepath.Join(t.TempDir(), FileName)
 	db, err := sql.Open("sqlite", "file:"+path)
 	if err != nil {
 		t.Fatal(err)
 	}
-	v1 := strings.Replace(schema, ",\n\tproblem       TEXT NOT NULL DEFAULT '',\n\twarnings      TEXT NOT NULL DEFAULT '[]'", "", 1)
-	if v1 == schema {
+	v1, _, _ := strings.Cut(schema, ",\n\tproblem ")
+	v1 += "\n);"
+	if !strings.Contains(v1, "word_errs_after") {
 		t.Fatal("could not make the version 1 schema")
 	}
 	for _, q := range []string{v1, `INSERT INTO meta VALUES('schema', '1')`,
-		`INSERT INTO pages VALUES('T/a.png','T','a.png','/c/T/a.png','00',1,'c','','done','','accept',0.1,'[]',0.9,3,0,0,0,0,0,0,0,0,'["ocr/T/a.txt"]','{}','2024-01-01T00:00:00Z')`} {
+		`INSERT INTO pages VALUES('T/a.png','T','a.png','/c/T/a.png','00',1,'c','','done','','accept',0.1,'[]',0.9,3,0,1,9,2,1,1,1,1,'["ocr/T/a.txt"]','{}','2024-01-01T00:00:00Z')`} {
 		if _, err := db.Exec(q); err != nil {
 			t.Fatal(q, err)
 		}
@@ -175,8 +177,14 @@ func TestUpgradeFromVersion1(t *testing.T) {
 	if err != nil || len(rows) != 1 || rows[0].Outputs[0] != "ocr/T/a.txt" || rows[0].Problem != "" {
 		t.Fatalf("rows %+v, %v", rows, err)
 	}
-	if v, _ := l.Meta(context.Background(), "schema"); v != "2" {
-		t.Errorf("schema %q after upgrade, want 2", v)
+	if r := rows[0]; r.FlexErrs != -1 || r.BagErrs != -1 || r.FlexErrsAf != -1 || r.BagErrsAf != -1 {
+		t.Errorf("order-free counts of an upgraded row = %d %d %d %d, want -1 (not measured)", r.FlexErrs, r.BagErrs, r.FlexErrsAf, r.BagErrsAf)
+	}
+	if r := rows[0]; r.Config == "c" || r.CharErrs != 1 {
+		t.Errorf("upgraded row with ground truth: config %q (want changed, so the next run measures it), char errors %d (want 1 kept)", r.Config, r.CharErrs)
+	}
+	if v, _ := l.Meta(context.Background(), "schema"); v != "3" {
+		t.Errorf("schema %q after upgrade, want 3", v)
 	}
 }
 

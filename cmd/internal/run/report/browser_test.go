@@ -55,7 +55,7 @@ func TestHTMLInBrowser(t *testing.T) {
 	probe := `<script>
 var th = document.querySelectorAll("#titles th")[1]; th.click(); th.click();
 var p = document.createElement("p"); p.id = "probe";
-p.textContent = "first=" + document.querySelector("#titles tbody tr td").textContent +
+p.textContent = "first=" + document.querySelector("#titles tbody tr th").textContent +
   ";scripts=" + document.scripts.length + ";bold=" + document.getElementsByTagName("b").length +
   ";svg=" + document.getElementsByTagName("svg").length;
 document.body.appendChild(p);
@@ -74,5 +74,81 @@ document.body.appendChild(p);
 	}
 	if os.Getenv("RECTO_SCREENSHOT") != "" { // for a person to look at
 		headless(t, bin, "--screenshot="+os.Getenv("RECTO_SCREENSHOT"), "--window-size=1280,2000", "file://"+filepath.Join(dir, "report.html"))
+	}
+}
+
+// TestHTMLPrintsToPDF prints report.html on A4 in headless Chromium
+// (--print-to-pdf) and reads the PDF's text back with pdftotext (Debian's
+// poppler-utils, -raw: the text in the order it is drawn, so a table
+// cell's lines stay together): every title's name, its pages and ground truth, every
+// rate with its interval before and after correction, the target and
+// sampling sentences, and every listed page with its measured and
+// predicted CER are in the printed document. The page size is A4 (ISO
+// 216), as pdfinfo names it.
+func TestHTMLPrintsToPDF(t *testing.T) {
+	bin := chromium(t)
+	for _, tool := range []string{"pdftotext", "pdfinfo"} {
+		if _, err := exec.LookPath(tool); err != nil {
+			t.Skipf("no %s on PATH (apt-get install poppler-utils): print check skipped", tool)
+		}
+	}
+	dir := t.TempDir()
+	pages, o := documentPages(), documentOptions()
+	if err := Write(dir, pages, o); err != nil {
+		t.Fatal(err)
+	}
+	pdf := filepath.Join(dir, "report.pdf")
+	headless(t, bin, "--no-pdf-header-footer", "--print-to-pdf="+pdf, "file://"+filepath.Join(dir, "report.html"))
+	info, err := exec.Command("pdfinfo", pdf).Output()
+	if err != nil {
+		t.Fatalf("pdfinfo: %v", err)
+	}
+	if !strings.Contains(string(info), "(A4)") {
+		t.Errorf("PDF is not A4:\n%s", info)
+	}
+	out, err := exec.Command("pdftotext", "-raw", "-enc", "UTF-8", pdf, "-").Output()
+	if err != nil {
+		t.Fatalf("pdftotext: %v", err)
+	}
+	text := strings.Join(strings.Fields(string(out)), " ")
+	s := Summarise(sortedPages(pages), o)
+	var want []string
+	for _, tt := range append([]Title{s.Total}, s.Titles...) {
+		v := makeTitleView(tt, nil, 1, o, -1)
+		if tt.Title != "(all)" {
+			want = append(want, tt.Title, v.Target)
+		}
+		want = append(want, v.Truth, v.Decided)
+		for _, r := range v.Rows {
+			want = append(want, r.Before, r.After)
+		}
+	}
+	planned := plannedPages(pages)
+	for _, tt := range s.Titles {
+		want = append(want, sampleSentence(tt, planned[tt.Title]))
+	}
+	for _, p := range pages {
+		v := makePageView(p)
+		if p.Failed {
+			want = append(want, p.Rel, p.Error)
+			continue
+		}
+		if p.Decision == "blank" || p.Decision == "picture" {
+			want = append(want, p.Rel, v.Predicted)
+			continue
+		}
+		want = append(want, p.Rel+" ", v.Measured, v.MeasBefore, v.Predicted)
+	}
+	for _, r := range aboutRows(o.About, s.Total, pct(o.TargetCER)) {
+		want = append(want, r.Value, r.Code)
+	}
+	for _, w := range want {
+		w = strings.Join(strings.Fields(w), " ")
+		if w != "" && !strings.Contains(text, w) {
+			t.Errorf("printed report lacks %q", w)
+		}
+	}
+	if t.Failed() {
+		t.Logf("PDF text:\n%s", out)
 	}
 }

@@ -6,10 +6,13 @@ import (
 	"html/template"
 	"math"
 	"net/url"
+	"path"
 	"path/filepath"
 	"sort"
 	"strings"
 	"unicode/utf8"
+
+	"recto/quality"
 )
 
 // Chart geometry, in SVG user units (CSS pixels at 100 %).
@@ -20,7 +23,13 @@ const (
 	histBins       = 15   // bins of histStep, plus one overflow bin
 	histStep       = 0.02 // CER per bin
 	snippetRunes   = 160
+	descPoints     = 40 // pages named in a scatter chart's text alternative; the rest are counted
 )
+
+// SampleHalfWidth is the half-width, as a CER fraction, to which the
+// report says how many more transcribed pages would narrow a title's
+// interval: ±1 point, the target the issue that asked for it names.
+const SampleHalfWidth = 0.01
 
 type barView struct {
 	X, Y, W, H float64
@@ -39,6 +48,9 @@ type pointView struct {
 }
 
 type chartView struct {
+	ID             string // element id of its title, for aria-labelledby
+	Title          string // what it shows
+	Desc           string // its numbers, as text: the chart's text alternative
 	W, H           float64
 	X0, Y0, X1, Y1 float64 // plot area corners: (X0, Y1) top-left, (X1, Y0) bottom-right
 	Bars           []barView
@@ -49,50 +61,106 @@ type chartView struct {
 	Empty          string // message when there is nothing to draw
 }
 
+// rateCell is one rate of the titles table: its text and sort value.
+type rateCell struct {
+	Txt string
+	V   float64
+}
+
+// rateRow is one measure of a title's rates table, before and after
+// correction, each with its interval.
+type rateRow struct {
+	Name, Over    string // "CER", "characters"
+	Before, After string
+}
+
 type titleView struct {
 	Title
 	Anchor    string
 	Hist      chartView
 	Scatter   chartView
 	PredSort  float64
-	BeforeTxt string
+	BeforeTxt string // CER before, without interval (titles table)
 	AfterTxt  string
 	BeforeV   float64
 	AfterV    float64
+	Rates     []rateCell // WER, flex_cer and bag_wer before and after, in the order of rateHeads
+	Rows      []rateRow  // CER, WER, flex CER, bag WER with intervals
+	Decided   string     // "accept 3, correct 2, …"
+	Truth     string     // "4 pages, 5,210 characters"
+	Target    string     // sentence on --target-cer; "" when none was given
+	Sample    string     // sentence on the pages still to transcribe for ±1 point
 }
+
+// rateHeads are the headings of the titles table's further rates.
+var rateHeads = []string{"WER before", "WER after", "flex CER before", "flex CER after", "bag WER before", "bag WER after"}
 
 type pageView struct {
 	Page
-	Key      float64
-	KeyKind  string // "measured" or "predicted"
-	ImageURL template.URL
-	TextURL  template.URL
+	Key        float64
+	KeyKind    string // "measured" or "predicted"
+	Measured   string // measured CER after correction, "–" without ground truth
+	MeasBefore string // measured CER before correction
+	Predicted  string
+	ImageURL   template.URL
+	TextURL    template.URL
+	ImageName  string // link text: the file's name
+	TextName   string
+	Thumb      template.URL // thumbnail, relative to the report; "" when none
+}
+
+type aboutRow struct {
+	Name   string
+	Value  string
+	Code   string // a checksum or similar, set in monospace after Value
+	Varies bool   // differs between runs with the same results (the times)
 }
 
 type htmlData struct {
 	Name      string
 	Partial   string
+	About     []aboutRow
 	Decisions []string
+	RateHeads []string
 	Total     titleView
 	Titles    []titleView
 	Worst     []pageView
+	NoText    []pageView // blank and picture pages
 	Failed    []pageView
 	Warned    []pageView // pages with warnings
+	Target    string     // the target CER, "" when none
+	Half      string     // SampleHalfWidth in points, "1"
 }
 
-// HTML renders the self-contained report page.
-func HTML(s Summary, pages []Page, o Options) ([]byte, error) {
+// HTML renders the self-contained report page without thumbnails (they
+// live in the report folder: Write makes and shows them).
+func HTML(s Summary, pages []Page, o Options) ([]byte, error) { return htmlIn("", s, pages, o) }
+
+// htmlIn renders the report page for the report folder dir, where the
+// thumbnails of the pages it lists are kept ("" for none).
+func htmlIn(dir string, s Summary, pages []Page, o Options) ([]byte, error) {
 	by := make(map[string][]Page)
 	for _, p := range pages {
 		by[p.Title] = append(by[p.Title], p)
 	}
-	d := htmlData{Name: Clean(o.Name), Partial: Clean(o.Partial), Decisions: Decisions}
+	d := htmlData{Name: Clean(o.Name), Partial: Clean(o.Partial), Decisions: Decisions, RateHeads: rateHeads,
+		Half: fmt.Sprintf("%g", 100*SampleHalfWidth)}
 	if d.Name == "" {
 		d.Name = "Collection"
 	}
-	d.Total = makeTitleView(s.Total, pages, 0)
+	if o.TargetCER > 0 {
+		d.Target = pct(o.TargetCER)
+	}
+	d.About = aboutRows(o.About, s.Total, d.Target)
+	planned := plannedPages(pages)
+	d.Total = makeTitleView(s.Total, pages, 0, o, -1)
+	d.Total.Target, d.Total.Sample = "", ""
 	for i, t := range s.Titles {
-		d.Titles = append(d.Titles, makeTitleView(t, by[t.Title], i+1))
+		n, ok := planned[t.Title]
+		if !ok {
+			n = -1
+		}
+		d.Titles = append(d.Titles, makeTitleView(t, by[t.Title], i+1, o, n))
 	}
 	worst := o.Worst
 	if worst == 0 {
@@ -104,9 +172,12 @@ func HTML(s Summary, pages []Page, o Options) ([]byte, error) {
 		if len(v.Warnings) > 0 {
 			d.Warned = append(d.Warned, v)
 		}
-		if p.Failed {
+		switch {
+		case p.Failed:
 			d.Failed = append(d.Failed, v)
-		} else {
+		case p.Decision == "blank" || p.Decision == "picture":
+			d.NoText = append(d.NoText, v)
+		default:
 			ok = append(ok, v)
 		}
 	}
@@ -127,11 +198,126 @@ func HTML(s Summary, pages []Page, o Options) ([]byte, error) {
 		}
 	}
 	d.Worst = ok
+	if dir != "" {
+		for _, list := range [][]pageView{d.Worst, d.NoText} {
+			for i := range list {
+				list[i].Thumb = thumbnail(dir, list[i].Page, o.Thumb)
+			}
+		}
+	}
 	var buf bytes.Buffer
 	if err := pageTmpl.Execute(&buf, d); err != nil {
 		return nil, err
 	}
 	return buf.Bytes(), nil
+}
+
+// aboutRows is the header block: how the figures were made.
+func aboutRows(a About, total Title, target string) []aboutRow {
+	unknown := "not recorded"
+	or := func(s string) string {
+		if s == "" {
+			return unknown
+		}
+		return Clean(s)
+	}
+	var rows []aboutRow
+	add := func(name, value, code string) { rows = append(rows, aboutRow{Name: name, Value: value, Code: code}) }
+	add("Collection", or(a.Collection), "")
+	when := unknown
+	if !a.First.IsZero() {
+		f, l := a.First.UTC(), a.Last.UTC()
+		when = f.Format("2 January 2006, 15:04") + " UTC"
+		switch {
+		case l.Format("20060102") != f.Format("20060102"):
+			when = f.Format("2 January 2006, 15:04") + " to " + l.Format("2 January 2006, 15:04") + " UTC"
+		case l.Format("15:04") != f.Format("15:04"):
+			when = f.Format("2 January 2006, 15:04") + "–" + l.Format("15:04") + " UTC"
+		}
+		when += " (first and last page recorded)"
+	}
+	add("Run", when, "")
+	rows[len(rows)-1].Varies = true
+	add("recto version", or(a.Recto), "")
+	add("Engine", or(a.Engine), "")
+	add("Languages", or(a.Lang), "")
+	th := unknown
+	if a.Correct > 0 || a.Rescan > 0 {
+		th = fmt.Sprintf("correct when the predicted CER is above %s, rescan when above %s", pct(a.Correct), pct(a.Rescan))
+		if a.RescanFactor > 0 && a.RescanFactor != 1 {
+			th += fmt.Sprintf(" (the quality model lowers the rescan threshold to %s for pages read by the engine)", pct(a.RescanFactor*a.Rescan))
+		}
+	}
+	add("Thresholds", th, "")
+	add("Quality model", or(a.QualityModel), sumText(a.QualityModelSum))
+	if len(a.Lexicons) == 0 {
+		add("Lexicon", unknown, "")
+	}
+	for _, l := range a.Lexicons {
+		add("Lexicon", or(l.Name), sumText(l.SHA256))
+	}
+	add("Normalisation for CER and WER", or(a.Normalisation), "")
+	gt := "none: no page has ground truth"
+	if total.CERBefore != nil {
+		gt = fmt.Sprintf("%s of %s pages, %s reference characters, %s words", count(total.TruthPages), count(total.Pages),
+			count(total.CERBefore.Units), count(wordsOf(total)))
+	}
+	add("Ground-truth sample", gt, "")
+	if a.Interval != "" {
+		add("Intervals", "95 %, "+Clean(a.Interval), "")
+	}
+	if target != "" {
+		add("Target CER", target+" after correction, for each title (--target-cer)", "")
+	}
+	return rows
+}
+
+func wordsOf(t Title) int {
+	if t.WERBefore == nil {
+		return 0
+	}
+	return t.WERBefore.Units
+}
+
+func sumText(s string) string {
+	if s == "" {
+		return ""
+	}
+	return "SHA-256 " + Clean(s)
+}
+
+// count writes n with a comma between thousands: 12,345.
+func count(n int) string {
+	s := fmt.Sprint(n)
+	if n < 0 {
+		return s
+	}
+	for i := len(s) - 3; i > 0; i -= 3 {
+		s = s[:i] + "," + s[i:]
+	}
+	return s
+}
+
+// plannedPages returns, per title, the pages to transcribe for a 95 %
+// interval of ±SampleHalfWidth as recto sample plans them
+// (quality.PlanSample, from the predicted CER of the title's processed
+// pages; see quality/sample.go for the rule and its source).
+func plannedPages(pages []Page) map[string]int {
+	var est []quality.PageEstimate
+	for _, p := range pages {
+		if !p.Failed && !math.IsNaN(p.PredictedCER) && p.PredictedCER >= 0 {
+			est = append(est, quality.PageEstimate{Title: p.Title, Page: p.Rel, PredictedCER: p.PredictedCER})
+		}
+	}
+	out := map[string]int{}
+	plan, err := quality.PlanSample(est, quality.PlanOptions{HalfWidth: SampleHalfWidth})
+	if err != nil {
+		return out
+	}
+	for _, t := range plan.Titles {
+		out[t.Title] = t.Planned
+	}
+	return out
 }
 
 func makePageView(p Page) pageView {
@@ -147,13 +333,25 @@ func makePageView(p Page) pageView {
 	}
 	p.Warnings = warnings
 	p.Snippet = Clean(truncate(p.Snippet, snippetRunes))
-	v := pageView{Page: p, Key: p.PredictedCER, KeyKind: "predicted"}
-	if _, after, ok := p.CER(); ok {
-		v.Key, v.KeyKind = after, "measured"
+	v := pageView{Page: p, Key: p.PredictedCER, KeyKind: "predicted", Measured: "–", MeasBefore: "–", Predicted: "–"}
+	if !p.Failed {
+		v.Predicted = pct(p.PredictedCER)
 	}
-	v.ImageURL = fileURL(p.Image)
-	v.TextURL = fileURL(p.Text)
+	if before, after, ok := p.CER(); ok {
+		v.Key, v.KeyKind = after, "measured"
+		v.Measured, v.MeasBefore = pct(after), pct(before)
+	}
+	v.ImageURL, v.ImageName = fileURL(p.Image), fileName(p.Image)
+	v.TextURL, v.TextName = fileURL(p.Text), fileName(p.Text)
 	return v
+}
+
+// fileName is the last element of a link's path, as the link's text.
+func fileName(p string) string {
+	if p == "" {
+		return ""
+	}
+	return Clean(path.Base(filepath.ToSlash(p)))
 }
 
 func truncate(s string, n int) string {
@@ -191,7 +389,10 @@ func fileURL(path string) template.URL {
 	return template.URL(joined)
 }
 
-func makeTitleView(t Title, pages []Page, i int) titleView {
+// makeTitleView prepares one title (i from 1) or, with i = 0, the whole
+// collection; planned is the sampling plan's size for the title, -1 for
+// none.
+func makeTitleView(t Title, pages []Page, i int, o Options, planned int) titleView {
 	t.Title = Clean(t.Title)
 	v := titleView{Title: t, Anchor: fmt.Sprintf("t%d", i), PredSort: -1, BeforeV: -1, AfterV: -1}
 	if t.MeanPredictedCER != nil {
@@ -199,22 +400,115 @@ func makeTitleView(t Title, pages []Page, i int) titleView {
 	}
 	v.BeforeTxt, v.BeforeV = rateText(t.CERBefore)
 	v.AfterTxt, v.AfterV = rateText(t.CERAfter)
-	v.Hist = histogram(pages)
-	v.Scatter = scatter(pages)
+	for _, m := range []*Measured{t.WERBefore, t.WERAfter, t.FlexBefore, t.FlexAfter, t.BagBefore, t.BagAfter} {
+		var c rateCell
+		c.Txt, c.V = rateText(m)
+		v.Rates = append(v.Rates, c)
+	}
+	v.Rows = []rateRow{
+		{"CER", "characters", intervalText(t.CERBefore), intervalText(t.CERAfter)},
+		{"WER", "words", intervalText(t.WERBefore), intervalText(t.WERAfter)},
+		{"flex CER", "characters", intervalText(t.FlexBefore), intervalText(t.FlexAfter)},
+		{"bag WER", "words", intervalText(t.BagBefore), intervalText(t.BagAfter)},
+	}
+	var dec []string
+	for _, d := range Decisions {
+		if n := t.Decisions[d]; n > 0 {
+			dec = append(dec, fmt.Sprintf("%s %d", d, n))
+		}
+	}
+	if t.Failed > 0 {
+		dec = append(dec, fmt.Sprintf("failed %d", t.Failed))
+	}
+	v.Decided = strings.Join(dec, ", ")
+	if v.Decided == "" {
+		v.Decided = "none"
+	}
+	v.Truth = "none"
+	if t.CERBefore != nil {
+		v.Truth = fmt.Sprintf("%s, %s characters, %s words", plural(t.TruthPages, "page", "pages"), count(t.CERBefore.Units), count(wordsOf(t)))
+	}
+	v.Target = targetSentence(t.CERAfter, o.TargetCER)
+	v.Sample = sampleSentence(t, planned)
+	v.Hist = histogram(pages, v.Anchor+"-hist")
+	v.Scatter = scatter(pages, v.Anchor+"-scatter")
 	return v
+}
+
+func plural(n int, one, many string) string {
+	if n == 1 {
+		return "1 " + one
+	}
+	return count(n) + " " + many
 }
 
 func pct(x float64) string { return fmt.Sprintf("%.1f %%", 100*x) }
 
+// rateText is a rate without its interval, for the titles table.
 func rateText(m *Measured) (string, float64) {
 	if m == nil {
 		return "–", -1
 	}
+	return pct(m.Rate), m.Rate
+}
+
+// intervalText writes a rate with its interval: "2.3 % (95 % interval
+// 1.1–4.0 %)"; "–" without a measure.
+func intervalText(m *Measured) string {
+	if m == nil {
+		return "–"
+	}
 	s := pct(m.Rate)
 	if m.Lo != nil && m.Hi != nil {
-		s += fmt.Sprintf(" [%.1f, %.1f]", 100**m.Lo, 100**m.Hi)
+		s += fmt.Sprintf(" (95 %% interval %.1f–%.1f %%)", 100**m.Lo, 100**m.Hi)
+	} else {
+		s += " (no interval: too few pages)"
 	}
-	return s, m.Rate
+	return s
+}
+
+// targetSentence says whether a title's CER after correction meets the
+// declared target: met when the whole 95 % interval lies at or below it,
+// missed when the whole interval lies above it, undecided otherwise.
+func targetSentence(m *Measured, target float64) string {
+	if target <= 0 {
+		return ""
+	}
+	tg := pct(target)
+	switch {
+	case m == nil:
+		return fmt.Sprintf("Target CER %s: no page of this title has ground truth, so it cannot be checked.", tg)
+	case m.Lo == nil || m.Hi == nil:
+		side := "below"
+		if m.Rate > target {
+			side = "above"
+		}
+		return fmt.Sprintf("Target CER %s: the measured CER after correction, %s, is %s it, but on too few pages for an interval; the target is neither confirmed nor ruled out.", tg, pct(m.Rate), side)
+	case *m.Hi <= target:
+		return fmt.Sprintf("Target CER %s: met. The whole 95 %% interval of the CER after correction (%.1f–%.1f %%) lies at or below it.", tg, 100**m.Lo, 100**m.Hi)
+	case *m.Lo > target:
+		return fmt.Sprintf("Target CER %s: not met. The whole 95 %% interval of the CER after correction (%.1f–%.1f %%) lies above it.", tg, 100**m.Lo, 100**m.Hi)
+	}
+	return fmt.Sprintf("Target CER %s: not yet decided. The 95 %% interval of the CER after correction (%.1f–%.1f %%) contains the target; more pages with ground truth would narrow it.", tg, 100**m.Lo, 100**m.Hi)
+}
+
+// sampleSentence says how many more transcribed pages would bring the
+// title's CER to ±SampleHalfWidth at 95 %: the size of recto sample's
+// plan (planned) less the pages with ground truth it has.
+func sampleSentence(t Title, planned int) string {
+	if planned < 0 {
+		return ""
+	}
+	half := fmt.Sprintf("±%g point", 100*SampleHalfWidth)
+	if m := t.CERAfter; m != nil && m.Lo != nil && m.Hi != nil && (*m.Hi-*m.Lo)/2 <= SampleHalfWidth {
+		return fmt.Sprintf("The 95 %% interval of its CER after correction is ±%.2f points, within %s: no more pages need transcribing for that.", 50*(*m.Hi-*m.Lo), half)
+	}
+	if more := planned - t.TruthPages; more > 0 {
+		return fmt.Sprintf("For a 95 %% interval of %s, the sampling plan of recto sample asks for %s with ground truth out of its %s; it has %d: transcribe about %s more, drawn at random within bands of predicted CER (recto sample --half-width %g chooses them).",
+			half, plural(planned, "page", "pages"), plural(t.Pages, "page", "pages"), t.TruthPages, plural(more, "page", "pages"), 100*SampleHalfWidth)
+	}
+	return fmt.Sprintf("It has %s with ground truth, as many as the sampling plan of recto sample asks for a 95 %% interval of %s (%d), yet the interval is wider: its pages vary more than their predicted CER suggests, and more transcribed pages will narrow it.",
+		plural(t.TruthPages, "page", "pages"), half, planned)
 }
 
 func plotArea(c *chartView) {
@@ -225,8 +519,8 @@ func plotArea(c *chartView) {
 
 // histogram draws the distribution of predicted CER (all processed pages)
 // beside measured CER before correction (pages with ground truth).
-func histogram(pages []Page) chartView {
-	var c chartView
+func histogram(pages []Page, id string) chartView {
+	c := chartView{ID: id, Title: "Pages by CER band: predicted CER of every processed page beside measured CER before correction of the pages with ground truth"}
 	plotArea(&c)
 	var pred, meas [histBins + 1]int
 	n := 0
@@ -242,6 +536,7 @@ func histogram(pages []Page) chartView {
 	}
 	if n == 0 {
 		c.Empty = "no processed pages"
+		c.Desc = c.Empty + "."
 		return c
 	}
 	top := 1
@@ -250,6 +545,7 @@ func histogram(pages []Page) chartView {
 	}
 	bw := (c.X1 - c.X0) / float64(histBins+1)
 	yOf := func(k int) float64 { return c.Y0 - (c.Y0-c.Y1)*float64(k)/float64(top) }
+	var dp, dm []string
 	for i := 0; i <= histBins; i++ {
 		x := c.X0 + float64(i)*bw
 		lo := float64(i) * histStep
@@ -260,11 +556,19 @@ func histogram(pages []Page) chartView {
 		if pred[i] > 0 {
 			c.Bars = append(c.Bars, barView{X: x + 1, Y: yOf(pred[i]), W: bw/2 - 1, H: c.Y0 - yOf(pred[i]), Class: "pred",
 				Tip: fmt.Sprintf("predicted CER %s: %d pages", rng, pred[i])})
+			dp = append(dp, fmt.Sprintf("%s: %d", rng, pred[i]))
 		}
 		if meas[i] > 0 {
 			c.Bars = append(c.Bars, barView{X: x + bw/2, Y: yOf(meas[i]), W: bw/2 - 1, H: c.Y0 - yOf(meas[i]), Class: "meas",
 				Tip: fmt.Sprintf("measured CER %s: %d pages", rng, meas[i])})
+			dm = append(dm, fmt.Sprintf("%s: %d", rng, meas[i]))
 		}
+	}
+	c.Desc = "Pages by predicted CER, " + strings.Join(dp, "; ") + "."
+	if len(dm) > 0 {
+		c.Desc += " Pages by measured CER before correction, " + strings.Join(dm, "; ") + "."
+	} else {
+		c.Desc += " No page has ground truth."
 	}
 	for i := 0; i <= histBins; i += 5 {
 		label := fmt.Sprintf("%.0f", 100*float64(i)*histStep)
@@ -287,8 +591,8 @@ func bin(cer float64) int {
 
 // scatter plots predicted CER (x) against measured CER before correction
 // (y) for the pages with ground truth; the diagonal is a perfect estimate.
-func scatter(pages []Page) chartView {
-	var c chartView
+func scatter(pages []Page, id string) chartView {
+	c := chartView{ID: id, Title: "Predicted against measured CER before correction, one dot per page with ground truth"}
 	plotArea(&c)
 	type xy struct {
 		x, y float64
@@ -304,13 +608,22 @@ func scatter(pages []Page) chartView {
 	}
 	if len(pts) == 0 {
 		c.Empty = "no ground truth"
+		c.Desc = "No page has ground truth."
 		return c
 	}
 	top = math.Min(math.Ceil(top*20)/20, 1) // round up to 5 %; clip at 100 %
 	sx := func(v float64) float64 { return c.X0 + (c.X1-c.X0)*math.Min(v, top)/top }
 	sy := func(v float64) float64 { return c.Y0 - (c.Y0-c.Y1)*math.Min(v, top)/top }
-	for _, p := range pts {
+	var d []string
+	for i, p := range pts {
 		c.Points = append(c.Points, pointView{X: sx(p.x), Y: sy(p.y), Tip: p.tip})
+		if i < descPoints {
+			d = append(d, p.tip)
+		}
+	}
+	c.Desc = strings.Join(d, "; ") + "."
+	if len(pts) > descPoints {
+		c.Desc += fmt.Sprintf(" And %d more pages (listed in pages.csv).", len(pts)-descPoints)
 	}
 	c.Diag = true
 	for _, f := range []float64{0, 0.5, 1} {
@@ -329,115 +642,5 @@ var pageTmpl = template.Must(template.New("report").Funcs(template.FuncMap{
 	"f1":      func(x float64) string { return fmt.Sprintf("%.1f", x) },
 	"f4":      func(x float64) string { return fmt.Sprintf("%.4f", x) },
 	"dec":     func(m map[string]int, k string) int { return m[k] },
+	"count":   count,
 }).Parse(pageHTML))
-
-const pageHTML = `<!DOCTYPE html>
-<html lang="en">
-<head>
-<meta charset="utf-8">
-<meta name="viewport" content="width=device-width, initial-scale=1">
-<title>OCR report: {{.Name}}</title>
-<style>
-body{font:14px/1.4 system-ui,sans-serif;margin:1.5em;color:#222}
-h1{font-size:1.5em}h2{font-size:1.2em;margin-top:2em}h3{font-size:1.05em}
-table{border-collapse:collapse;margin:.5em 0}
-th,td{border:1px solid #ccc;padding:.25em .5em;text-align:right;vertical-align:top}
-th{background:#eee;cursor:pointer;user-select:none}
-td.l,th.l{text-align:left}
-th[data-dir=asc]::after{content:" ▲"}th[data-dir=desc]::after{content:" ▼"}
-.charts{display:flex;flex-wrap:wrap;gap:1em}
-figure{margin:0}figcaption{font-size:.85em;color:#555}
-svg{background:#fafafa;border:1px solid #ddd}
-svg text{font:10px sans-serif;fill:#444}
-.pred{fill:#8a8fa8}.meas{fill:#d9822b}.pt{fill:#2b6cb0;fill-opacity:.7}
-.axis{stroke:#888;stroke-width:1}.diag{stroke:#bbb;stroke-dasharray:4 3}
-.snip{font-family:monospace;font-size:.85em;white-space:pre-wrap;text-align:left;max-width:40em}
-.key{display:inline-block;width:.8em;height:.8em;margin:0 .2em 0 .8em}.key.pred{background:#8a8fa8}.key.meas{background:#d9822b}
-</style>
-</head>
-<body>
-<h1>OCR report: {{.Name}}</h1>
-{{with .Partial}}<p class="partial"><strong>Partial report:</strong> {{.}}</p>
-{{end}}<p>{{.Total.Pages}} pages in {{len .Titles}} titles; {{.Total.Failed}} failed.
-{{range .Decisions}}{{.}}: {{dec $.Total.Decisions .}}. {{end}}{{with .Total.Reviewed}}{{.}} pages reviewed in recto review. {{end}}
-{{with .Total.CERBefore}}Measured CER on {{.Pages}} pages with ground truth: {{$.Total.BeforeTxt}} before correction, {{$.Total.AfterTxt}} after.{{end}}</p>
-
-<h2>Titles</h2>
-<p>Click a column heading to sort. Measured CER is pooled over the title's pages with ground truth; brackets give the interval.</p>
-<table class="sortable" id="titles">
-<thead><tr><th class="l">Title</th><th>Pages</th><th>Failed</th>{{range .Decisions}}<th>{{.}}</th>{{end}}<th>Mean predicted CER</th><th>Pages with truth</th><th>CER before</th><th>CER after</th><th>Corrections</th></tr></thead>
-<tbody>
-{{range .Titles}}<tr><td class="l" data-v="{{.Title.Title}}"><a href="#{{.Anchor}}">{{.Title.Title}}</a></td><td data-v="{{.Pages}}">{{.Pages}}</td><td data-v="{{.Failed}}">{{.Failed}}</td>{{$t := .}}{{range $.Decisions}}<td data-v="{{dec $t.Decisions .}}">{{dec $t.Decisions .}}</td>{{end}}<td data-v="{{f4 .PredSort}}">{{if .MeanPredictedCER}}{{pct .PredSort}}{{else}}–{{end}}</td><td data-v="{{.TruthPages}}">{{.TruthPages}}</td><td data-v="{{f4 .BeforeV}}">{{.BeforeTxt}}</td><td data-v="{{f4 .AfterV}}">{{.AfterTxt}}</td><td data-v="{{.Corrections}}">{{.Corrections}}</td></tr>
-{{end}}</tbody>
-</table>
-
-<h2>Worst pages</h2>
-<p>Ordered by measured CER after correction where there is ground truth, else by predicted CER.</p>
-<table id="worst">
-<thead><tr><th class="l">Page</th><th>CER</th><th class="l">Decision</th><th class="l">Why</th><th class="l">Links</th><th class="l">Start of text</th></tr></thead>
-<tbody>
-{{range .Worst}}<tr><td class="l">{{.Rel}}</td><td>{{pct .Key}} <small>{{.KeyKind}}</small></td><td class="l">{{.Decision}}{{if .Reviewed}} <small>reviewed</small>{{end}}</td><td class="l">{{reasons .Reasons}}</td><td class="l">{{if .ImageURL}}<a href="{{.ImageURL}}">image</a>{{end}}{{if .TextURL}} <a href="{{.TextURL}}">text</a>{{end}}</td><td class="snip">{{.Snippet}}</td></tr>
-{{else}}<tr><td class="l" colspan="6">No processed pages.</td></tr>
-{{end}}</tbody>
-</table>
-
-{{if .Failed}}<h2>Pages that failed</h2>
-<table id="failed">
-<thead><tr><th class="l">Page</th><th class="l">Error</th></tr></thead>
-<tbody>
-{{range .Failed}}<tr><td class="l">{{if .ImageURL}}<a href="{{.ImageURL}}">{{.Rel}}</a>{{else}}{{.Rel}}{{end}}</td><td class="l">{{.Error}}</td></tr>
-{{end}}</tbody>
-</table>{{end}}
-
-{{if .Warned}}<h2>Warnings</h2>
-<table id="warnings">
-<thead><tr><th class="l">Page</th><th class="l">Warning</th></tr></thead>
-<tbody>
-{{range .Warned}}{{$p := .}}{{range .Warnings}}<tr><td class="l">{{if $p.ImageURL}}<a href="{{$p.ImageURL}}">{{$p.Rel}}</a>{{else}}{{$p.Rel}}{{end}}</td><td class="l">{{.}}</td></tr>
-{{end}}{{end}}</tbody>
-</table>{{end}}
-
-<h2>Per title</h2>
-<p><span class="key pred"></span>predicted CER (all pages) <span class="key meas"></span>measured CER (pages with ground truth); scatter: each dot is a page with ground truth, predicted (across) against measured before correction (up), in percent; the dashed line is a perfect estimate.</p>
-{{range .Titles}}<section id="{{.Anchor}}">
-<h3>{{.Title.Title}}</h3>
-<p>{{.Pages}} pages, {{.Failed}} failed; CER before {{.BeforeTxt}}, after {{.AfterTxt}}.</p>
-<div class="charts">
-<figure>{{template "chart" .Hist}}<figcaption>CER distribution (percent)</figcaption></figure>
-<figure>{{template "chart" .Scatter}}<figcaption>Predicted against measured CER (percent)</figcaption></figure>
-</div>
-</section>
-{{end}}
-<script>
-(function(){
-document.querySelectorAll("table.sortable").forEach(function(table){
-  var heads = table.tHead.rows[0].cells;
-  Array.prototype.forEach.call(heads, function(th, col){
-    th.addEventListener("click", function(){
-      var asc = th.getAttribute("data-dir") !== "asc";
-      Array.prototype.forEach.call(heads, function(h){ h.removeAttribute("data-dir"); });
-      th.setAttribute("data-dir", asc ? "asc" : "desc");
-      var body = table.tBodies[0];
-      var rows = Array.prototype.slice.call(body.rows);
-      rows.sort(function(a, b){
-        var x = a.cells[col].getAttribute("data-v"), y = b.cells[col].getAttribute("data-v");
-        var nx = parseFloat(x), ny = parseFloat(y);
-        var c = (!isNaN(nx) && !isNaN(ny)) ? nx - ny : x.localeCompare(y);
-        return asc ? c : -c;
-      });
-      rows.forEach(function(r){ body.appendChild(r); });
-    });
-  });
-});
-})();
-</script>
-</body>
-</html>
-{{define "chart"}}<svg xmlns="http://www.w3.org/2000/svg" width="{{f1 .W}}" height="{{f1 .H}}" viewBox="0 0 {{f1 .W}} {{f1 .H}}" role="img">
-{{if .Empty}}<text x="{{f1 .X0}}" y="{{f1 .Y1}}" dy="20">{{.Empty}}</text>{{else}}<line class="axis" x1="{{f1 .X0}}" y1="{{f1 .Y0}}" x2="{{f1 .X1}}" y2="{{f1 .Y0}}"/><line class="axis" x1="{{f1 .X0}}" y1="{{f1 .Y0}}" x2="{{f1 .X0}}" y2="{{f1 .Y1}}"/>
-{{if .Diag}}<line class="diag" x1="{{f1 .X0}}" y1="{{f1 .Y0}}" x2="{{f1 .X1}}" y2="{{f1 .Y1}}"/>{{end}}
-{{range .Bars}}<rect class="{{.Class}}" x="{{f1 .X}}" y="{{f1 .Y}}" width="{{f1 .W}}" height="{{f1 .H}}"><title>{{.Tip}}</title></rect>{{end}}
-{{range .Points}}<circle class="pt" cx="{{f1 .X}}" cy="{{f1 .Y}}" r="3"><title>{{.Tip}}</title></circle>{{end}}
-{{range .XTicks}}<text x="{{f1 .X}}" y="{{f1 .Y}}" text-anchor="middle">{{.Label}}</text>{{end}}
-{{range .YTicks}}<text x="{{f1 .X}}" y="{{f1 .Y}}" text-anchor="end">{{.Label}}</text>{{end}}{{end}}
-</svg>{{end}}`

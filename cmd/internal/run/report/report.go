@@ -22,11 +22,13 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
+	"image"
 	"os"
 	"path/filepath"
 	"sort"
 	"strconv"
 	"strings"
+	"time"
 	"unicode/utf8"
 
 	"recto/internal/atomicfile"
@@ -59,11 +61,28 @@ type Page struct {
 	CharErrsAfter int  // character edits after correction
 	WordErrsAfter int  // word edits after correction
 
+	// Order-free errors (quality.Counts, see quality/flex.go and bag.go):
+	// errors of the flexible character accuracy over RefChars and
+	// bag-of-words errors over RefWords, before and after correction.
+	// OrderFree says they were measured (pages of ledgers written before
+	// they were lack them).
+	OrderFree     bool
+	FlexErrs      int
+	FlexErrsAfter int
+	BagErrs       int
+	BagErrsAfter  int
+
 	Image   string // link to the page image, relative to the report folder or absolute
 	Text    string // link to the final text, relative to the report folder; "" when none
 	Snippet string // start of the final OCR text, shown for the worst pages
 
 	Warnings []string // what a step said about the page that did not stop it
+
+	// ThumbKey names the page's thumbnail in the report folder
+	// (thumbs/<ThumbKey>.png), made once by Options.Thumb; it must change
+	// when the image does (the run uses the image's SHA-256 and page
+	// number). "" means no thumbnail.
+	ThumbKey string
 
 	// Reviewed is who confirmed or changed the decision, or judged the
 	// corrections, in recto review; "" when nobody did. Decision,
@@ -82,17 +101,58 @@ func (p Page) CER() (before, after float64, ok bool) {
 	return float64(p.CharErrs) / n, float64(p.CharErrsAfter) / n, true
 }
 
-// IntervalFunc returns a confidence interval for a pooled CER, given the
-// character edits and reference characters of each page. ok is false when
-// no interval can be given (e.g. too few pages).
+// IntervalFunc returns a confidence interval for a pooled error rate (CER,
+// WER, flex_cer, bag_wer), given the errors and reference units of each
+// page. ok is false when no interval can be given (e.g. too few pages).
 type IntervalFunc func(errs, chars []int) (lo, hi float64, ok bool)
+
+// Named is a file the run used, with its SHA-256 (hex).
+type Named struct {
+	Name   string `json:"name"`
+	SHA256 string `json:"sha256,omitempty"`
+}
+
+// About says how the run's figures were made; the HTML report opens with
+// it. Every field may be empty (a ledger written before it was recorded).
+// The run keeps it in its ledger as JSON, without the times, which come
+// from the pages.
+type About struct {
+	Collection   string    `json:"collection,omitempty"`    // the collection folder
+	First        time.Time `json:"-"`                       // first page recorded (UTC); zero when unknown
+	Last         time.Time `json:"-"`                       // last page recorded (UTC)
+	Recto        string    `json:"recto,omitempty"`         // recto version of the run
+	Engine       string    `json:"engine,omitempty"`        // recognition engine and version, "Tesseract 5.3.0"
+	Lang         string    `json:"lang,omitempty"`          // engine languages, "eng+deu"
+	Correct      float64   `json:"correct,omitempty"`       // predicted CER above which a page is corrected
+	Rescan       float64   `json:"rescan,omitempty"`        // predicted CER above which a page is rescanned
+	RescanFactor float64   `json:"rescan_factor,omitempty"` // the quality model's factor on Rescan for page records; 0 or 1 means none
+
+	QualityModel    string  `json:"quality_model,omitempty"` // file name, or "embedded (...)"
+	QualityModelSum string  `json:"quality_model_sha256,omitempty"`
+	Lexicons        []Named `json:"lexicons,omitempty"`
+
+	Normalisation string `json:"normalisation,omitempty"` // of the texts before CER and WER
+	Interval      string `json:"interval,omitempty"`      // how the 95 % intervals are made
+}
 
 // Options tune the reports. The zero value is valid.
 type Options struct {
 	Name     string       // collection name shown in the HTML heading; "" means "Collection"
-	Interval IntervalFunc // confidence intervals for measured CER; nil means none
+	Interval IntervalFunc // 95 % confidence intervals for measured rates; nil means none
 	Worst    int          // worst pages listed in the HTML; 0 means 25
 	Partial  string       // when not "", the report covers part of the run: why (shown at the top of the HTML)
+	About    About        // how the figures were made: the HTML's header
+
+	// TargetCER is the CER (after correction) the institution declared
+	// for each title, in [0, 1]; 0 means none: the HTML says per title
+	// whether its 95 % interval lies below it.
+	TargetCER float64
+
+	// Thumb returns a page's image for its thumbnail; the HTML calls it
+	// only for the pages it lists with a ThumbKey whose thumbnail is not
+	// in the report folder yet. nil means no thumbnails are made (those
+	// already made are still shown).
+	Thumb func(Page) (image.Image, error)
 
 	// Snippet returns the start of a page's final text; the HTML calls it
 	// only for the worst pages it lists whose Snippet is empty. nil means
@@ -124,6 +184,13 @@ type Title struct {
 	WERAfter         *Measured      `json:"wer_after,omitempty"`
 	Corrections      int            `json:"corrections"`
 	Reviewed         int            `json:"reviewed"` // pages reviewed in recto review
+
+	// Order-free rates, pooled like CER and WER; nil without ground truth
+	// or when a page with ground truth lacks them (older ledgers).
+	FlexBefore *Measured `json:"flex_cer_before,omitempty"`
+	FlexAfter  *Measured `json:"flex_cer_after,omitempty"`
+	BagBefore  *Measured `json:"bag_wer_before,omitempty"`
+	BagAfter   *Measured `json:"bag_wer_after,omitempty"`
 }
 
 // Summary is the whole report's data.
@@ -158,7 +225,8 @@ func sumTitle(name string, pages []Page, o Options) Title {
 	}
 	var predSum float64
 	var processed int
-	var ce, cc, ceA, we, wc, weA []int
+	var ce, cc, ceA, we, wc, weA, fe, feA, be, beA []int
+	orderFree := true
 	for _, p := range pages {
 		if p.Failed {
 			t.Failed++
@@ -175,6 +243,9 @@ func sumTitle(name string, pages []Page, o Options) Title {
 			t.TruthPages++
 			ce, cc, ceA = append(ce, p.CharErrs), append(cc, p.RefChars), append(ceA, p.CharErrsAfter)
 			we, wc, weA = append(we, p.WordErrs), append(wc, p.RefWords), append(weA, p.WordErrsAfter)
+			fe, feA = append(fe, p.FlexErrs), append(feA, p.FlexErrsAfter)
+			be, beA = append(be, p.BagErrs), append(beA, p.BagErrsAfter)
+			orderFree = orderFree && p.OrderFree
 		}
 	}
 	if processed > 0 {
@@ -183,8 +254,14 @@ func sumTitle(name string, pages []Page, o Options) Title {
 	}
 	t.CERBefore = measure(ce, cc, o.Interval)
 	t.CERAfter = measure(ceA, cc, o.Interval)
-	t.WERBefore = measure(we, wc, nil)
-	t.WERAfter = measure(weA, wc, nil)
+	t.WERBefore = measure(we, wc, o.Interval)
+	t.WERAfter = measure(weA, wc, o.Interval)
+	if orderFree {
+		t.FlexBefore = measure(fe, cc, o.Interval)
+		t.FlexAfter = measure(feA, cc, o.Interval)
+		t.BagBefore = measure(be, wc, o.Interval)
+		t.BagAfter = measure(beA, wc, o.Interval)
+	}
 	return t
 }
 
@@ -223,7 +300,7 @@ func Write(dir string, pages []Page, o Options) error {
 		{"titles.json", func() ([]byte, error) { return TitlesJSON(s) }},
 		{"pages.csv", func() ([]byte, error) { return PagesCSV(pages) }},
 		{"rescan.csv", func() ([]byte, error) { return RescanCSV(pages) }},
-		{"report.html", func() ([]byte, error) { return HTML(s, pages, o) }},
+		{"report.html", func() ([]byte, error) { return htmlIn(dir, s, pages, o) }},
 	}
 	for _, f := range files {
 		data, err := f.build()
@@ -299,7 +376,9 @@ var titleHead = append(append([]string{"title", "pages", "failed"}, Decisions...
 	"mean_predicted_cer", "truth_pages", "chars", "words",
 	"char_errors_before", "cer_before", "cer_low_before", "cer_high_before",
 	"char_errors_after", "cer_after", "cer_low_after", "cer_high_after",
-	"word_errors_before", "wer_before", "word_errors_after", "wer_after", "corrections", "reviewed")
+	"word_errors_before", "wer_before", "word_errors_after", "wer_after", "corrections", "reviewed",
+	"flex_errors_before", "flex_cer_before", "flex_errors_after", "flex_cer_after",
+	"bag_errors_before", "bag_wer_before", "bag_errors_after", "bag_wer_after")
 
 // titleJSON is a Title as titles.json has it: flat, with the column names
 // of titles.csv; a figure without ground truth is null.
@@ -326,6 +405,14 @@ type titleJSON struct {
 	WERAfter         *float64       `json:"wer_after"`
 	Corrections      int            `json:"corrections"`
 	Reviewed         int            `json:"reviewed"`
+	FlexErrorsBefore *int           `json:"flex_errors_before"`
+	FlexCERBefore    *float64       `json:"flex_cer_before"`
+	FlexErrorsAfter  *int           `json:"flex_errors_after"`
+	FlexCERAfter     *float64       `json:"flex_cer_after"`
+	BagErrorsBefore  *int           `json:"bag_errors_before"`
+	BagWERBefore     *float64       `json:"bag_wer_before"`
+	BagErrorsAfter   *int           `json:"bag_errors_after"`
+	BagWERAfter      *float64       `json:"bag_wer_after"`
 }
 
 // MarshalJSON writes t flat, as titles.json has it.
@@ -346,6 +433,10 @@ func flat(t Title) titleJSON {
 	_, j.CharErrorsAfter, j.CERAfter, j.CERLowAfter, j.CERHighAfter = parts(t.CERAfter)
 	j.Words, j.WordErrorsBefore, j.WERBefore, _, _ = parts(t.WERBefore)
 	_, j.WordErrorsAfter, j.WERAfter, _, _ = parts(t.WERAfter)
+	_, j.FlexErrorsBefore, j.FlexCERBefore, _, _ = parts(t.FlexBefore)
+	_, j.FlexErrorsAfter, j.FlexCERAfter, _, _ = parts(t.FlexAfter)
+	_, j.BagErrorsBefore, j.BagWERBefore, _, _ = parts(t.BagBefore)
+	_, j.BagErrorsAfter, j.BagWERAfter, _, _ = parts(t.BagAfter)
 	return j
 }
 
@@ -369,7 +460,9 @@ func TitlesCSV(s Summary) ([]byte, error) {
 			optInt(j.CharErrorsBefore), optF4(j.CERBefore), optF4(j.CERLowBefore), optF4(j.CERHighBefore),
 			optInt(j.CharErrorsAfter), optF4(j.CERAfter), optF4(j.CERLowAfter), optF4(j.CERHighAfter),
 			optInt(j.WordErrorsBefore), optF4(j.WERBefore), optInt(j.WordErrorsAfter), optF4(j.WERAfter),
-			strconv.Itoa(t.Corrections), strconv.Itoa(t.Reviewed))
+			strconv.Itoa(t.Corrections), strconv.Itoa(t.Reviewed),
+			optInt(j.FlexErrorsBefore), optF4(j.FlexCERBefore), optInt(j.FlexErrorsAfter), optF4(j.FlexCERAfter),
+			optInt(j.BagErrorsBefore), optF4(j.BagWERBefore), optInt(j.BagErrorsAfter), optF4(j.BagWERAfter))
 		rows = append(rows, r)
 	}
 	return writeCSV(rows)
@@ -379,31 +472,42 @@ func TitlesCSV(s Summary) ([]byte, error) {
 func PagesCSV(pages []Page) ([]byte, error) {
 	rows := [][]string{{"title", "page", "image", "status", "decision", "predicted_cer", "reasons",
 		"corrections", "chars", "char_errors_before", "char_errors_after", "cer_before", "cer_after",
-		"words", "word_errors_before", "word_errors_after", "wer_before", "wer_after", "error", "reviewed", "review_note"}}
+		"words", "word_errors_before", "word_errors_after", "wer_before", "wer_after", "error", "reviewed", "review_note",
+		"flex_errors_before", "flex_errors_after", "flex_cer_before", "flex_cer_after",
+		"bag_errors_before", "bag_errors_after", "bag_wer_before", "bag_wer_after"}}
 	for _, p := range pages {
 		status := quality.StatusOK
 		if p.Failed {
 			status = quality.StatusFailed
 		}
 		r := []string{cell(p.Title), cell(p.Page), cell(p.Rel), status, p.Decision, "", cell(strings.Join(p.Reasons, "; ")),
-			strconv.Itoa(p.Corrections), "", "", "", "", "", "", "", "", "", "", cell(p.Error), cell(p.Reviewed), cell(p.ReviewNote)}
+			strconv.Itoa(p.Corrections), "", "", "", "", "", "", "", "", "", "", cell(p.Error), cell(p.Reviewed), cell(p.ReviewNote),
+			"", "", "", "", "", "", "", ""}
 		if !p.Failed {
 			r[5] = f4(p.PredictedCER)
 		}
 		if p.HasTruth {
-			r[8], r[9], r[10] = strconv.Itoa(p.RefChars), strconv.Itoa(p.CharErrs), strconv.Itoa(p.CharErrsAfter)
-			if b, a, ok := p.CER(); ok {
-				r[11], r[12] = f4(b), f4(a)
-			}
-			r[13], r[14], r[15] = strconv.Itoa(p.RefWords), strconv.Itoa(p.WordErrs), strconv.Itoa(p.WordErrsAfter)
-			if p.RefWords > 0 {
-				n := float64(p.RefWords)
-				r[16], r[17] = f4(float64(p.WordErrs)/n), f4(float64(p.WordErrsAfter)/n)
+			r[8], r[13] = strconv.Itoa(p.RefChars), strconv.Itoa(p.RefWords)
+			errRates(r[9:], p.CharErrs, p.CharErrsAfter, p.RefChars)
+			errRates(r[14:], p.WordErrs, p.WordErrsAfter, p.RefWords)
+			if p.OrderFree {
+				errRates(r[21:], p.FlexErrs, p.FlexErrsAfter, p.RefChars)
+				errRates(r[25:], p.BagErrs, p.BagErrsAfter, p.RefWords)
 			}
 		}
 		rows = append(rows, r)
 	}
 	return writeCSV(rows)
+}
+
+// errRates fills four cells of a pages.csv row: errors before and after
+// correction, then both as rates over units (empty when units is 0).
+func errRates(r []string, before, after, units int) {
+	r[0], r[1] = strconv.Itoa(before), strconv.Itoa(after)
+	if units > 0 {
+		n := float64(units)
+		r[2], r[3] = f4(float64(before)/n), f4(float64(after)/n)
+	}
 }
 
 // RescanHead is the header of every rescan list recto writes (the run's

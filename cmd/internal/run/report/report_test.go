@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"encoding/json"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -23,9 +24,11 @@ func samplePages() []Page {
 	return []Page{
 		{Rel: "Alder Gazette/p01.png", Title: "Alder Gazette", Page: "p01.png", Decision: "accept", PredictedCER: 0.02,
 			HasTruth: true, RefChars: 1000, CharErrs: 30, CharErrsAfter: 20, RefWords: 200, WordErrs: 12, WordErrsAfter: 8,
+			OrderFree: true, FlexErrs: 25, FlexErrsAfter: 15, BagErrs: 20, BagErrsAfter: 12,
 			Image: "../../in/Alder Gazette/p01.png", Text: "../ocr/Alder Gazette/p01.txt", Snippet: "The harbour at Wrenmouth"},
 		{Rel: "Alder Gazette/p02.png", Title: "Alder Gazette", Page: "p02.png", Decision: "correct", PredictedCER: 0.09, Corrections: 5,
 			HasTruth: true, RefChars: 500, CharErrs: 50, CharErrsAfter: 40, RefWords: 100, WordErrs: 20, WordErrsAfter: 15,
+			OrderFree: true, FlexErrs: 45, FlexErrsAfter: 35, BagErrs: 30, BagErrsAfter: 24,
 			Reasons: []string{"many words not in lexicon"}, Image: "/abs/in/p 2?.png", Text: "../ocr/Alder Gazette/p02.txt", Snippet: hostile},
 		{Rel: "Alder Gazette/p03.png", Title: "Alder Gazette", Page: "p03.png", Failed: true, Error: `ocr: decode "p03.png": unexpected EOF ` + hostile,
 			Image: "../../in/Alder Gazette/p03.png"},
@@ -53,11 +56,31 @@ func TestSummarisePooled(t *testing.T) {
 	if a.MeanPredictedCER == nil || math.Abs(*a.MeanPredictedCER-0.055) > 1e-12 {
 		t.Errorf("mean predicted = %v, want 0.055 (failed page left out)", a.MeanPredictedCER)
 	}
+	// Order-free rates pooled the same way: flex over characters, bag over words.
+	if a.FlexBefore == nil || math.Abs(a.FlexBefore.Rate-70.0/1500) > 1e-12 || a.FlexAfter == nil || math.Abs(a.FlexAfter.Rate-50.0/1500) > 1e-12 {
+		t.Errorf("flex = %+v, %+v, want 70/1500 and 50/1500", a.FlexBefore, a.FlexAfter)
+	}
+	if a.BagBefore == nil || math.Abs(a.BagBefore.Rate-50.0/300) > 1e-12 || a.BagAfter == nil || math.Abs(a.BagAfter.Rate-36.0/300) > 1e-12 {
+		t.Errorf("bag = %+v, %+v, want 50/300 and 36/300", a.BagBefore, a.BagAfter)
+	}
 	if s.Titles[0].CERBefore != nil {
 		t.Errorf("title without truth has CER %+v", s.Titles[0].CERBefore)
 	}
 	if s.Total.Pages != 4 || s.Total.Failed != 1 || s.Total.TruthPages != 2 {
 		t.Errorf("total = %+v", s.Total)
+	}
+}
+
+// TestOrderFreeNeedsEveryPage: a title whose pages with ground truth do
+// not all carry the order-free counts (a ledger written before they were
+// measured) shows none, rather than a rate over a different set of pages
+// than its CER.
+func TestOrderFreeNeedsEveryPage(t *testing.T) {
+	pages := samplePages()
+	pages[1].OrderFree = false
+	a := Summarise(pages, Options{}).Titles[1]
+	if a.FlexBefore != nil || a.BagAfter != nil || a.CERBefore == nil {
+		t.Errorf("flex %+v, bag %+v, CER %+v: want no order-free rates, CER kept", a.FlexBefore, a.BagAfter, a.CERBefore)
 	}
 }
 
@@ -241,5 +264,40 @@ func TestClean(t *testing.T) {
 		if got := Clean(tt.in); got != tt.want {
 			t.Errorf("Clean(%q) = %q, want %q", tt.in, got, tt.want)
 		}
+	}
+}
+
+// TestChartColoursInGreyscale: the two bar series of the charts stay
+// apart when printed in grey. Their fills, read from the page's style
+// sheet, must differ in relative luminance by a contrast ratio of at least
+// 3:1, the figure WCAG 2.1 asks of graphical objects (W3C, Web Content
+// Accessibility Guidelines 2.1, 2018, success criterion 1.4.11, with its
+// definitions of relative luminance and contrast ratio).
+func TestChartColoursInGreyscale(t *testing.T) {
+	fill := func(class string) float64 {
+		i := strings.Index(pageHTML, "."+class+"{fill:#")
+		if i < 0 {
+			t.Fatalf("no fill for .%s in the style sheet", class)
+		}
+		hex := pageHTML[i+len(class)+8 : i+len(class)+14]
+		var rgb [3]float64
+		for k := range rgb {
+			var v int
+			if _, err := fmt.Sscanf(hex[2*k:2*k+2], "%02x", &v); err != nil {
+				t.Fatalf(".%s fill %q: %v", class, hex, err)
+			}
+			c := float64(v) / 255
+			if c <= 0.03928 {
+				rgb[k] = c / 12.92
+			} else {
+				rgb[k] = math.Pow((c+0.055)/1.055, 2.4)
+			}
+		}
+		return 0.2126*rgb[0] + 0.7152*rgb[1] + 0.0722*rgb[2]
+	}
+	a, b := fill("pred"), fill("meas")
+	ratio := (max(a, b) + 0.05) / (min(a, b) + 0.05)
+	if ratio < 3 {
+		t.Errorf("predicted and measured bars: contrast ratio %.2f in greyscale, want at least 3", ratio)
 	}
 }

@@ -501,7 +501,12 @@ type background struct {
 // cut into tiles about 1/12 of its shorter side, the paper level of a tile
 // is its 80th-percentile grey level (text covers well under 20% of a
 // tile), and the variation is the spread between the 5th and 95th
-// percentiles of the tiles' paper levels. It also counts ink: pixels at
+// percentiles of the tiles' paper levels. A tile whose paper level is below
+// Otsu's threshold of the page holds no paper (a photograph, a black
+// scanner border, a solid block of ink) and says nothing about the light:
+// it is left out of the paper level and the variation (on
+// 8087_054.3B.tif reduced to 100 dpi, 23 of 192 tiles, which made a
+// variation of 255 on a page lit evenly; 0 without them). It also counts ink: pixels at
 // least max(40, 6σ) grey levels below their tile's paper level, σ being the
 // noise of the reduced image, with a dark neighbour to the right or below,
 // outside a margin of 2% of each side.
@@ -529,7 +534,9 @@ func measureBackground(g *image.Gray) background {
 				continue // a sliver at the edge
 			}
 			level := percentile(&th, n, 0.8)
-			levels = append(levels, level)
+			if level >= res.otsu {
+				levels = append(levels, level)
+			}
 			lim := uint8(max(0, level-contrast))
 			if lim == 0 {
 				continue

@@ -177,6 +177,17 @@ func (a *Affixes) decode(b []byte) (string, error) {
 	return a.dec.String(string(b))
 }
 
+// flagField returns the field that holds the flag a directive names
+// (PSEUDOROOT is the older name of NEEDAFFIX, COMPOUNDLAST of
+// COMPOUNDEND), nil for a directive that names none.
+func (a *Affixes) flagField(directive string) *string {
+	return map[string]*string{"NEEDAFFIX": &a.needAffix, "PSEUDOROOT": &a.needAffix,
+		"FORBIDDENWORD": &a.forbidden, "ONLYINCOMPOUND": &a.onlyCompound,
+		"COMPOUNDFLAG": &a.compoundFlag, "COMPOUNDBEGIN": &a.compoundBegin,
+		"COMPOUNDMIDDLE": &a.compoundMiddle, "COMPOUNDEND": &a.compoundEnd, "COMPOUNDLAST": &a.compoundEnd,
+		"COMPOUNDPERMITFLAG": &a.compoundPermit, "COMPOUNDFORBIDFLAG": &a.compoundForbid, "CIRCUMFIX": &a.circumfix}[directive]
+}
+
 func (a *Affixes) directive(f []string, pending map[string]int) error {
 	switch f[0] {
 	case "FLAG":
@@ -208,21 +219,16 @@ func (a *Affixes) directive(f []string, pending map[string]int) error {
 			return err
 		}
 		a.aliases = append(a.aliases, fl)
-	case "NEEDAFFIX", "PSEUDOROOT", "FORBIDDENWORD", "ONLYINCOMPOUND":
+	case "NEEDAFFIX", "PSEUDOROOT", "FORBIDDENWORD", "ONLYINCOMPOUND": // without a flag: ignored
 		if len(f) >= 2 {
-			p := map[string]*string{"NEEDAFFIX": &a.needAffix, "PSEUDOROOT": &a.needAffix,
-				"FORBIDDENWORD": &a.forbidden, "ONLYINCOMPOUND": &a.onlyCompound}[f[0]]
-			*p = f[1]
+			*a.flagField(f[0]) = f[1]
 		}
 	case "COMPOUNDFLAG", "COMPOUNDBEGIN", "COMPOUNDMIDDLE", "COMPOUNDEND", "COMPOUNDLAST",
 		"COMPOUNDPERMITFLAG", "COMPOUNDFORBIDFLAG", "CIRCUMFIX":
 		if len(f) < 2 {
 			return fmt.Errorf("%w: %s without a flag", ErrHunspell, f[0])
 		}
-		p := map[string]*string{"COMPOUNDFLAG": &a.compoundFlag, "COMPOUNDBEGIN": &a.compoundBegin,
-			"COMPOUNDMIDDLE": &a.compoundMiddle, "COMPOUNDEND": &a.compoundEnd, "COMPOUNDLAST": &a.compoundEnd,
-			"COMPOUNDPERMITFLAG": &a.compoundPermit, "COMPOUNDFORBIDFLAG": &a.compoundForbid, "CIRCUMFIX": &a.circumfix}[f[0]]
-		*p = f[1]
+		*a.flagField(f[0]) = f[1]
 	case "COMPOUNDMIN", "COMPOUNDWORDMAX":
 		n, err := strconv.Atoi(nth(f, 1))
 		if err != nil || n < 1 {

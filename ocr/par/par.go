@@ -9,6 +9,7 @@ package par
 import (
 	"context"
 	"runtime"
+	"sync/atomic"
 
 	"golang.org/x/sync/errgroup"
 )
@@ -50,17 +51,30 @@ func EachErr(ctx context.Context, n, workers int, fn func(w, i int) error) error
 	}
 	g, gctx := errgroup.WithContext(ctx)
 	g.SetLimit(k)
+	// failed is set the moment a call fails, before its worker is handed
+	// back: errgroup cancels gctx only after the call's goroutine returns,
+	// and on a busy machine the other workers could start hundreds of
+	// items in between (seen under the race detector).
+	var failed atomic.Bool
+	stopped := func() bool { return failed.Load() || gctx.Err() != nil }
 	for i := range n {
-		if gctx.Err() != nil {
+		if stopped() {
 			break
 		}
 		g.Go(func() error { // blocks while k calls run
-			if gctx.Err() != nil {
+			if stopped() {
 				return nil
 			}
 			w := <-slots // one is free: at most k goroutines run
 			defer func() { slots <- w }()
-			return fn(w, i)
+			if stopped() {
+				return nil
+			}
+			err := fn(w, i)
+			if err != nil {
+				failed.Store(true)
+			}
+			return err
 		})
 	}
 	if err := g.Wait(); err != nil {

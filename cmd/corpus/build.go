@@ -18,6 +18,7 @@ import (
 	"time"
 
 	"recto/correct"
+	"recto/internal/atomicfile"
 	"recto/ocr/par"
 	"recto/ocr/synth"
 )
@@ -99,7 +100,7 @@ func runBuild(args []string) error {
 	}
 	if o.Out == "" || fs.NArg() > 0 || o.N < 1 || o.Workers < 1 || o.DPI < 50 || o.DPI > 1200 {
 		fs.Usage()
-		return errors.New("usage: go run ./tools/corpus -out DIR [-n N] [-seed S]")
+		return errors.New("usage: go run ./cmd/corpus -out DIR [-n N] [-seed S]")
 	}
 	if o.Split != "id" && o.Split != "fonttext" && o.Split != "heldout" {
 		return fmt.Errorf("-split %q: want id, fonttext or heldout", o.Split)
@@ -162,7 +163,7 @@ func runBuild(args []string) error {
 	renderTime := time.Since(start)
 	fmt.Fprintf(os.Stderr, "corpus: rendered %d pages to %s in %.1f s (%d failed)\n", len(plans)-failed, o.Out, renderTime.Seconds(), failed)
 
-	sum := summary{Command: "go run ./tools/corpus " + strings.Join(args, " "), Pages: len(plans), DPI: o.DPI, RenderFailed: failed, RenderSeconds: renderTime.Seconds()}
+	sum := summary{Command: "go run ./cmd/corpus " + strings.Join(args, " "), Pages: len(plans), DPI: o.DPI, RenderFailed: failed, RenderSeconds: renderTime.Seconds()}
 	if o.OCR != "off" {
 		if err := recogniseAll(context.Background(), o, plans, &sum); err != nil {
 			if o.OCR == "on" || !errors.Is(err, errNoEngine) {
@@ -202,7 +203,7 @@ func writeJSON(path string, v any) error {
 	if err != nil {
 		return err
 	}
-	return os.WriteFile(path, append(data, '\n'), 0o644)
+	return atomicfile.Write(path, append(data, '\n'))
 }
 
 // moduleRoot walks up from the working directory to the folder holding go.mod.
@@ -331,7 +332,7 @@ func writeManifest(path string, plans []pagePlan) error {
 		}
 		fmt.Fprintf(&b, "%s\t%s\t%s\t%s\t%d\t%s\t%.1f\t%s\t%s\t%s\t%s\n", p.ID, p.Split, p.Kind, sev, p.Seed, p.Font, p.SizePt, p.Source, p.Family, p.Text, punct)
 	}
-	return os.WriteFile(path, []byte(b.String()), 0o644)
+	return atomicfile.Write(path, []byte(b.String()))
 }
 
 func (p pagePlan) truthPath(out string) string {
@@ -380,7 +381,7 @@ func renderOne(out string, dpi int, p pagePlan, ps []passage) error {
 	if truth != "" {
 		truth += "\n"
 	}
-	if err := os.WriteFile(p.truthPath(out), []byte(truth), 0o644); err != nil {
+	if err := atomicfile.Write(p.truthPath(out), []byte(truth)); err != nil {
 		return err
 	}
 	return page.SavePNG(p.imagePath(out))

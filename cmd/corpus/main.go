@@ -3,8 +3,8 @@
 // evaluated: running text from open datasets, rendered to small pages,
 // degraded from clean to unreadable, split into "fit" and "heldout".
 //
-//	go run ./tools/corpus -out DIR [-n 300] [-seed 1]
-//	go run ./tools/corpus extract   # rebuilds testdata/synth/passages.jsonl.gz
+//	go run ./cmd/corpus -out DIR [-n 300] [-seed 1]
+//	go run ./cmd/corpus extract   # rebuilds testdata/synth/passages.jsonl.gz
 //
 // See docs/dev-synth.md.
 package main

@@ -11,6 +11,7 @@ import (
 	"strings"
 	"time"
 
+	"recto/internal/atomicfile"
 	"recto/ocr"
 	"recto/ocr/tesseract"
 	"recto/quality"
@@ -127,7 +128,7 @@ func recogniseAll(ctx context.Context, o buildOptions, plans []pagePlan, sum *su
 		}
 		fmt.Fprintf(&b, "%s\t%s\t%s\t%s\t%d\t%d\t%s\t%s\t%.0f\n", r.plan.ID, r.plan.Split, r.plan.Kind, sev, r.c.Chars, r.c.CharErrors, cs, ws, r.engineMS)
 	}
-	if err := os.WriteFile(filepath.Join(ocrDir, "CER.tsv"), []byte(b.String()), 0o644); err != nil {
+	if err := atomicfile.Write(filepath.Join(ocrDir, "CER.tsv"), []byte(b.String())); err != nil {
 		return err
 	}
 	if len(cers) > 0 {

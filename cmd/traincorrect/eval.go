@@ -6,12 +6,13 @@ import (
 	"hash/fnv"
 	"os"
 	"path/filepath"
-	"sort"
 	"strings"
 	"time"
 	"unicode"
 
 	"recto/correct"
+	"recto/internal/atomicfile"
+	"recto/internal/walk"
 	"recto/ocr"
 	"recto/quality"
 )
@@ -67,17 +68,17 @@ func evalCorpus(c *correct.Corrector, dir, split string, verbose bool) error {
 // searched recursively) whose OCR lies at the same relative path under
 // ocrDir (.json record, else .txt), and reports as evalCorpus.
 func evalDirs(c *correct.Corrector, truthDir, ocrDir string, keep func(string) bool, verbose bool) error {
-	var names []string
-	_ = filepath.WalkDir(truthDir, func(p string, d os.DirEntry, err error) error {
-		if err == nil && !d.IsDir() && strings.HasSuffix(p, ".txt") {
-			names = append(names, p)
-		}
-		return nil
-	})
-	if len(names) == 0 {
+	rels, _, err := walk.Files(truthDir, walk.Options{Match: func(name string) bool { return strings.HasSuffix(name, ".txt") }})
+	if err != nil {
+		return err
+	}
+	if len(rels) == 0 {
 		return fmt.Errorf("no ground truth in %q", truthDir)
 	}
-	sort.Strings(names)
+	names := make([]string, len(rels))
+	for i, r := range rels {
+		names[i] = filepath.Join(truthDir, filepath.FromSlash(r))
+	}
 	bands := map[string]*tally{"clean": {}, "moderate": {}, "other": {}}
 	var tokens int
 	var spent time.Duration
@@ -111,7 +112,7 @@ func evalDirs(c *correct.Corrector, truthDir, ocrDir string, keep func(string) b
 		}
 		spent += time.Since(t0)
 		if dumpDir != "" {
-			_ = os.WriteFile(filepath.Join(dumpDir, strings.ReplaceAll(id, "/", "_")+".txt"), []byte(outText), 0o644)
+			_ = atomicfile.Write(filepath.Join(dumpDir, strings.ReplaceAll(id, "/", "_")+".txt"), []byte(outText))
 		}
 		tokens += len(strings.Fields(in))
 		t := pageTally(string(truth), in, outText, changes, verbose, id)

@@ -1,5 +1,5 @@
 // Command traincorrect trains the corrector's error model and measures the
-// corrector on a corpus laid out as `go run ./tools/corpus` writes it
+// corrector on a corpus laid out as `go run ./cmd/corpus` writes it
 // (DIR/truth/{fit,heldout}/<id>.txt, DIR/ocr/{fit,heldout}/<id>.{txt,json},
 // DIR/MANIFEST).
 //

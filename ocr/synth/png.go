@@ -11,7 +11,8 @@ import (
 	"image/png"
 	"io"
 	"math"
-	"os"
+
+	"recto/internal/atomicfile"
 )
 
 // WritePNG encodes img as an 8-bit greyscale PNG and records its
@@ -60,18 +61,13 @@ func physChunk(dpi float64) []byte {
 // SavePNG writes the page image to path as a PNG with its DPI recorded.
 // It returns an error naming the file when it cannot be written.
 func (p *Page) SavePNG(path string) error {
-	f, err := os.Create(path)
-	if err != nil {
-		return fmt.Errorf("synth: %w", err)
-	}
-	bw := bufio.NewWriter(f)
-	err = WritePNG(bw, p.Image, p.DPI)
-	if err == nil {
-		err = bw.Flush()
-	}
-	if cerr := f.Close(); err == nil {
-		err = cerr
-	}
+	err := atomicfile.WriteFunc(path, func(w io.Writer) error {
+		bw := bufio.NewWriter(w)
+		if err := WritePNG(bw, p.Image, p.DPI); err != nil {
+			return err
+		}
+		return bw.Flush()
+	})
 	if err != nil {
 		return fmt.Errorf("synth: writing %q: %w", path, err)
 	}

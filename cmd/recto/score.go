@@ -372,7 +372,8 @@ func writeScoreTable(w io.Writer, rep *quality.Report) error {
 	var b strings.Builder
 	fmt.Fprintf(&b, "Normalisation: %s\n\n", rep.Norm)
 
-	// tabwriter aligns every column right; names are padded to stay left.
+	// tabwriter aligns every column right; names and states are padded to
+	// stay left, as text columns are (issue 17 part 3).
 	width := len("title")
 	for _, p := range rep.Pages {
 		width = max(width, utf8.RuneCountInString(p.Page))
@@ -381,12 +382,17 @@ func writeScoreTable(w io.Writer, rep *quality.Report) error {
 		width = max(width, utf8.RuneCountInString(t.Title))
 	}
 	name := func(s string) string { return s + strings.Repeat(" ", width-utf8.RuneCountInString(s)) }
+	sw := len("status")
+	for _, p := range rep.Pages {
+		sw = max(sw, utf8.RuneCountInString(p.Status))
+	}
+	status := func(s string) string { return s + strings.Repeat(" ", sw-utf8.RuneCountInString(s)) }
 
 	var tb strings.Builder
 	tw := tabwriter.NewWriter(&tb, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintf(tw, "%s\tstatus\tchars\tchar errors\tCER\twords\tword errors\tWER\tflex CER\tbag WER\t\n", name("page"))
+	fmt.Fprintf(tw, "%s\t%s\tchars\tchar errors\tCER\twords\tword errors\tWER\tflex CER\tbag WER\t\n", name("page"), status("status"))
 	for _, p := range rep.Pages {
-		fmt.Fprintf(tw, "%s\t%s\t%d\t%d\t%s\t%d\t%d\t%s\t%s\t%s\t\n", name(p.Page), p.Status,
+		fmt.Fprintf(tw, "%s\t%s\t%d\t%d\t%s\t%d\t%d\t%s\t%s\t%s\t\n", name(p.Page), status(p.Status),
 			p.Chars, p.CharErrors, percent(p.CER()), p.Words, p.WordErrors, percent(p.WER()),
 			percent(p.FlexCER()), percent(p.BagWER()))
 	}

@@ -175,8 +175,9 @@ var textPictureGaps = map[string]string{
 //
 //   - Pages of text (print at 75-100 dpi, noisy, faint, bilevel, a title
 //     page printed sideways) have ink that looks like text and are never
-//     decided picture or blank; one that yields few words goes to rescan
-//     saying its reading failed.
+//     decided picture or blank; one that yields few words (under 20, under
+//     3 in the lexicon: triage's limits) goes to rescan saying its reading
+//     failed.
 //   - Photographs, paintings, drawings, engravings and woodcuts (two of
 //     them the 75 dpi breviary's bookplate and woodcut, brev.06.75 and
 //     brev.36.75, once taken for dark text pages) have ink that does not
@@ -224,7 +225,7 @@ func TestTextPicturesRealEngine(t *testing.T) {
 			bad = "a page of text whose ink does not look like text"
 		case p.text && (v.Decision == quality.DecisionPicture || v.Decision == quality.DecisionBlank):
 			bad = "a page of text decided " + v.Decision
-		case p.text && f.Tokens < quality.PictureMaxTokens && !failed:
+		case p.text && f.Tokens < quality.PictureMaxTokens && math.Round(f.LexHit*float64(f.LexWords)) < quality.PictureMaxWords && !failed:
 			bad = "text-shaped ink, few words read, but not sent to rescan as a failed reading"
 		case !p.text && (textLike || failed):
 			bad = "a picture taken for text"

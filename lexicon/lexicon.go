@@ -19,8 +19,8 @@ import (
 type Lexicon struct {
 	words   store          // Key(word) -> count
 	bigrams store          // Key(w1) + pairSep + Key(w2) -> count
-	total   int64            // sum of unigram counts
-	comp    []*compounding   // compound rules and parts, one per dictionary (compound.go)
+	total   int64          // sum of unigram counts
+	comp    []*compounding // compound rules and parts, one per dictionary (compound.go)
 
 	// layers are the lexicons a Merge combined, read through without being
 	// copied: every read answers for the lexicon's own words and pairs

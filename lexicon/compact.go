@@ -39,13 +39,16 @@ import (
 // at a multiple of 8 bytes:
 //
 //	header   64 bytes: "recto-lexcompact", u32 version, u32 0, u64 payload length,
-//	         u64 size of the lexicon file, u32 its CRC-32C, 20 zero bytes
+//	         u64 size of the lexicon file, u32 its CRC-32C, u32 0,
+//	         u64 keyHash("recto-lexcompact") (the hash index is only valid
+//	         for the hash function that built it), 8 zero bytes
 //	payload  i64 total count; u64 number of compounding rule sets;
 //	         table words; table word pairs; for each rule set: u64 COMPOUNDMIN,
 //	         u64 COMPOUNDWORDMAX, u64 checks (1 dup, 2 triple, 4 simplified triple),
 //	         table parts (values: roles)
 //	table    u64 n, u64 slots, u64 key bytes; u32 offsets[n+1]; i64 values[n];
-//	         u32 hash index[slots]; the keys, sorted and concatenated
+//	         u64 hash index[slots] (0 free, else key index + 1 | high 32 bits of the key's hash << 32);
+//	         the keys, sorted and concatenated
 //	trailer  u32 CRC-32C (Castagnoli) of the payload, 4 zero bytes
 const (
 	compactMagic   = "recto-lexcompact"
@@ -151,6 +154,7 @@ func writeCompact(path string, l *Lexicon, src []byte) error {
 		binary.LittleEndian.PutUint64(h[24:], uint64(size))
 		binary.LittleEndian.PutUint64(h[32:], uint64(len(src)))
 		binary.LittleEndian.PutUint32(h[40:], crc32.Checksum(src, castagnoli))
+		binary.LittleEndian.PutUint64(h[48:], keyHash(compactMagic))
 		bw.Write(h[:])
 		cw := &crcWriter{w: bw}
 		e := &encoder{w: cw}
@@ -186,7 +190,7 @@ func writeCompact(path string, l *Lexicon, src []byte) error {
 
 // size returns the bytes the table takes in a compact file.
 func (t *table) size() int {
-	return 24 + pad8(4*len(t.offs)) + 8*len(t.vals) + pad8(4*len(t.slots)) + pad8(len(t.arena))
+	return 24 + pad8(4*len(t.offs)) + 8*len(t.vals) + 8*len(t.slots) + pad8(len(t.arena))
 }
 
 func pad8(n int) int { return (n + 7) &^ 7 }
@@ -225,8 +229,14 @@ func (e *encoder) table(t *table) {
 			b = b[:0]
 		}
 	}
+	for _, v := range t.slots {
+		b = binary.LittleEndian.AppendUint64(b, v)
+		if len(b) >= 1<<15 {
+			e.w.Write(b)
+			b = b[:0]
+		}
+	}
 	e.w.Write(b)
-	e.u32s(t.slots)
 	io.WriteString(e.w, t.arena)
 	e.w.Write(make([]byte, pad8(len(t.arena))-len(t.arena)))
 	e.buf = b
@@ -293,6 +303,9 @@ func decodeCompact(data, src []byte) (*Lexicon, error) {
 	}
 	if v := binary.LittleEndian.Uint32(data[16:]); v != compactVersion {
 		return nil, fmt.Errorf("%w (version %d; this build reads %d)", errCompactVersion, v, compactVersion)
+	}
+	if binary.LittleEndian.Uint64(data[48:]) != keyHash(compactMagic) {
+		return nil, fmt.Errorf("%w (its hash index was built with another hash function)", errCompactVersion)
 	}
 	size := binary.LittleEndian.Uint64(data[24:])
 	if have := uint64(len(data) - compactHeader - compactTrailer); len(data) < compactHeader+compactTrailer || have < size {
@@ -399,6 +412,25 @@ func (d *decoder) u32s(n uint64) []uint32 {
 	return out
 }
 
+func (d *decoder) u64s(n uint64) []uint64 {
+	if n > uint64(len(d.b))/8 {
+		d.fail("a table runs past the end")
+		return nil
+	}
+	b := d.take(8 * n)
+	if n == 0 || b == nil {
+		return []uint64{}
+	}
+	if littleEndian {
+		return unsafe.Slice((*uint64)(unsafe.Pointer(&b[0])), n)
+	}
+	out := make([]uint64, n)
+	for i := range out {
+		out[i] = binary.LittleEndian.Uint64(b[8*i:])
+	}
+	return out
+}
+
 func (d *decoder) i64s(n uint64) []int64 {
 	if n > uint64(len(d.b))/8 {
 		d.fail("a table runs past the end")
@@ -430,7 +462,7 @@ func (d *decoder) table() *table {
 		d.fail("bad table sizes")
 		return nil
 	}
-	t := &table{offs: d.u32s(n + 1), vals: d.i64s(n), slots: d.u32s(slots)}
+	t := &table{offs: d.u32s(n + 1), vals: d.i64s(n), slots: d.u64s(slots)}
 	arena := d.take(keyBytes)
 	if d.err != nil {
 		return nil
@@ -447,7 +479,7 @@ func (d *decoder) table() *table {
 	}
 	free := false
 	for _, s := range t.slots {
-		if uint64(s) > n {
+		if uint64(uint32(s)) > n || (s != 0 && uint32(s) == 0) {
 			d.fail("bad hash index")
 			return nil
 		}

@@ -129,3 +129,52 @@ func TestHelperLoadLang(t *testing.T) {
 	}
 	runtime.KeepAlive(sel)
 }
+
+// BenchmarkHasNorwegian looks words up in the --lang nor lexicon read
+// through the compact forms and read from the text files: every 97th word
+// of the lexicon and each with its last letter doubled (mostly not words,
+// so the compound search runs), 2 look-ups per word ("ns/lookup").
+func BenchmarkHasNorwegian(b *testing.B) {
+	for _, c := range LexiconCodes("nor") {
+		if !fileExists(Path(c)) {
+			b.Skipf("no %s lexicon at %s: run 'recto lexicon build --lang %s'", c, Path(c), c)
+		}
+	}
+	for _, compact := range []bool{true, false} {
+		name := map[bool]string{true: "compact", false: "text"}[compact]
+		b.Run(name, func(b *testing.B) {
+			defer func(old bool) { useCompact = old }(useCompact)
+			useCompact = compact
+			loaded.Clear()
+			merged.Clear()
+			sel, err := ForLang("nor")
+			if err != nil || !sel.Complete() {
+				b.Fatal(err, sel)
+			}
+			l := sel.Lexicon
+			var words []string
+			for i, w := range l.Words() {
+				if i%97 == 0 {
+					words = append(words, w, w+w[len(w)-1:])
+				}
+			}
+			for i := 0; i < len(words); i += 2 { // the words it lists, it must find
+				if !l.Has(words[i]) {
+					b.Fatalf("the lexicon lists %q and does not find it", words[i])
+				}
+			}
+			hits := 0
+			b.ResetTimer()
+			for b.Loop() {
+				for _, w := range words {
+					if l.Has(w) {
+						hits++
+					}
+				}
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(len(words)), "ns/lookup")
+			loaded.Clear()
+			merged.Clear()
+		})
+	}
+}

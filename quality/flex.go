@@ -131,19 +131,19 @@ func (f *flexState) errors(ref, hyp [][]rune) int {
 	// the pattern of (the shorter one; g on ties).
 	for gi := range f.gt {
 		g := f.gt[gi].r
-		f.bv.buildPeq(g, (len(g)+63)/64)
+		f.bv.buildPeq(g)
 		for hi, h := range hyp {
 			if len(g) <= len(h) {
-				b, _ := f.bv.scanBuilt(len(g), h, false)
+				b, _ := f.bv.scanBuilt(h, false)
 				f.gt[gi].d[hi] = int32(b)
 			}
 		}
 	}
 	for hi, h := range hyp {
-		f.bv.buildPeq(h, (len(h)+63)/64)
+		f.bv.buildPeq(h)
 		for gi := range f.gt {
 			if g := f.gt[gi].r; len(h) < len(g) {
-				b, _ := f.bv.scanBuilt(len(h), g, false)
+				b, _ := f.bv.scanBuilt(g, false)
 				f.gt[gi].d[hi] = int32(b)
 			}
 		}
@@ -262,10 +262,10 @@ func (f *flexState) newDist(p []rune, q *flexSeg, isRef bool, built *bool) int32
 		return -1
 	case len(p) < len(q.r) || isRef && len(p) == len(q.r):
 		if !*built {
-			f.bv.buildPeq(p, (len(p)+63)/64)
+			f.bv.buildPeq(p)
 			*built = true
 		}
-		d, _ := f.bv.scanBuilt(len(p), q.r, false)
+		d, _ := f.bv.scanBuilt(q.r, false)
 		return int32(d)
 	}
 	*built = false
@@ -273,71 +273,6 @@ func (f *flexState) newDist(p []rune, q *flexSeg, isRef bool, built *bool) int32
 		return f.distOf(p, q.r)
 	}
 	return f.distOf(q.r, p)
-}
-
-// scan runs the bit-vector method (see distance) with pat as the rows and
-// text as the columns and returns the least score in the last row over
-// every column j = 0..len(text), and the first column where it is reached.
-// With anchored false, row 0 is 0 in every column, so the score at column
-// j is the least distance between pat and a substring of text ending at j
-// (approximate string matching, Sellers 1980; Myers 1999); with anchored
-// true row 0 is j, so it is the distance between pat and text[:j].
-//
-// Complexity: O(⌈n/64⌉·m) time for n = len(pat) and m = len(text).
-func (s *bitState) scan(pat, text []rune, anchored bool) (best, at int) {
-	if len(pat) == 0 {
-		return 0, 0
-	}
-	s.buildPeq(pat, (len(pat)+63)/64)
-	return s.scanBuilt(len(pat), text, anchored)
-}
-
-// scanBuilt is scan with the match vectors of a pattern of n code points
-// already built (buildPeq), so that one pattern scans many texts.
-func (s *bitState) scanBuilt(n int, text []rune, anchored bool) (best, at int) {
-	nb := (n + 63) / 64
-	if cap(s.pv) < nb {
-		s.pv, s.mv = make([]uint64, nb), make([]uint64, nb)
-	}
-	pv, mv := s.pv[:nb], s.mv[:nb]
-	for i := range pv {
-		pv[i], mv[i] = ^uint64(0), 0
-	}
-	if cap(s.zero) < nb {
-		s.zero = make([]uint64, nb)
-	}
-	zero := s.zero[:nb]
-	top := uint64(0)
-	if anchored {
-		top = 1
-	}
-	lastBit := uint((n - 1) % 64)
-	score := n
-	best = n
-	for j, c := range text {
-		eqs := s.peqOf(c, nb)
-		if eqs == nil {
-			eqs = zero
-		}
-		eqs, pv, mv := eqs[:nb], pv[:nb], mv[:nb]
-		hpos, hneg := top, uint64(0)
-		last := nb - 1
-		for k := range last {
-			var ph, mh uint64
-			pv[k], mv[k], ph, mh = blockStep(eqs[k], pv[k], mv[k], hpos, hneg)
-			hpos, hneg = ph>>63, mh>>63
-		}
-		var ph, mh uint64
-		pv[last], mv[last], ph, mh = blockStep(eqs[last], pv[last], mv[last], hpos, hneg)
-		score += int(ph>>lastBit&1) - int(mh>>lastBit&1)
-		if score < best {
-			best, at = score, j+1
-			if best == 0 {
-				break
-			}
-		}
-	}
-	return best, at
 }
 
 // FlexCER returns the flexible character error rate FlexErrors/Chars (1 −

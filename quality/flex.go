@@ -133,7 +133,8 @@ func (f *flexState) match(pat, text []rune) (d, start, end int) {
 // Complexity: O(G·H·σ') for the bounds of G reference and H hypothesis
 // pieces (σ' distinct symbols a piece) and O(log(G·H)) a queue step,
 // plus ⌈k/64⌉·L word steps for each pair whose distance is needed; on a
-// 3,000-character page of 60 lines at 5% CER, about 230 of 6,600 pairs.
+// 3,000-character page of 60 lines at 5% CER, 193 of the 6,426 pairs
+// queued (before the queue every pair was scanned: 6,957 scans).
 // Memory: 16 bytes a pair whose bound is below its shorter length.
 func (f *flexState) errors(ref, hyp [][]rune) int {
 	f.gt, f.hy, f.q, f.built, f.stale = f.gt[:0], f.hy[:0], f.q[:0], 0, 0
@@ -180,12 +181,12 @@ func (f *flexState) errors(ref, hyp [][]rune) int {
 		f.built = 0 // match builds its own vectors
 		if len(g) <= len(h) {
 			_, s, e := f.match(g, h)
-			f.addHyp(trimSpace(h[:s]))
-			f.addHyp(trimSpace(h[e:]))
+			f.add(trimSpace(h[:s]), false)
+			f.add(trimSpace(h[e:]), false)
 		} else {
 			_, s, e := f.match(h, g)
-			f.addGT(trimSpace(g[:s]))
-			f.addGT(trimSpace(g[e:]))
+			f.add(trimSpace(g[:s]), true)
+			f.add(trimSpace(g[e:]), true)
 		}
 	}
 	for _, g := range f.gt {
@@ -290,32 +291,26 @@ func (f *flexState) dist(c flexCand) int32 {
 	return int32(d)
 }
 
-// addGT appends a reference piece (unless empty) and queues it with every
-// live hypothesis piece.
-func (f *flexState) addGT(g []rune) {
-	if len(g) == 0 {
+// add appends a piece (unless empty) of the reference (ref) or of the
+// hypothesis and queues it with every live piece of the other side.
+func (f *flexState) add(r []rune, ref bool) {
+	if len(r) == 0 {
 		return
 	}
-	gi := len(f.gt)
-	f.gt = append(f.gt, f.piece(g))
-	for hi := range f.hy {
-		if f.hy[hi].alive {
-			f.queue(gi, hi)
+	mine, other := &f.hy, f.gt
+	if ref {
+		mine, other = &f.gt, f.hy
+	}
+	i := len(*mine)
+	*mine = append(*mine, f.piece(r))
+	for j := range other {
+		if !other[j].alive {
+			continue
 		}
-	}
-}
-
-// addHyp appends a hypothesis piece (unless empty) and queues it with
-// every live reference piece.
-func (f *flexState) addHyp(h []rune) {
-	if len(h) == 0 {
-		return
-	}
-	hi := len(f.hy)
-	f.hy = append(f.hy, f.piece(h))
-	for gi := range f.gt {
-		if f.gt[gi].alive {
-			f.queue(gi, hi)
+		if ref {
+			f.queue(i, j)
+		} else {
+			f.queue(j, i)
 		}
 	}
 }

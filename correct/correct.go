@@ -516,6 +516,13 @@ func (c *Corrector) mark(s *scratch, toks []token, i int) (edit, bool) {
 		// well be printed there.
 		return edit{}, false
 	}
+	if _, learned := c.m.markOdds[t.lead]; !learned && t.conf >= sureConf {
+		// A mark the model never saw often enough to learn, read
+		// clearly: the pool's odds are an average over specks, and a
+		// mark the engine is sure of is printed more often than not
+		// ("->", "-!-", "*;" on the Debian-font pages, all in the truth).
+		return edit{}, false
+	}
 	odds, ok := c.m.markOddsOf(t.lead)
 	if !ok || odds <= c.marginFor(t.conf)+s.page {
 		return edit{}, false

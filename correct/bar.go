@@ -71,6 +71,12 @@ func (c *Corrector) barWord(s *scratch, toks []token, i int, prev string) (edit,
 	}
 	margin := c.marginFor(t.conf) + s.page
 	if gain <= margin {
+		if bar == "!" {
+			// Deleting a spaced exclamation mark loses a letter or a
+			// mark; reading it as "I" on the stray rules' word alone
+			// would make "Hark ! the" "Hark I the".
+			return edit{}, false
+		}
 		del, ok := c.mark(s, toks, i)
 		if !ok {
 			return edit{}, false

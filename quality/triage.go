@@ -120,13 +120,24 @@ func Triage(f Features, m *Model, t Thresholds) Verdict {
 	if f.FromRecord && f.Chars > 0 && f.Chars < NearBlankMaxChars && f.Noise < PictureMaxNoise {
 		return Verdict{Decision: DecisionBlank, Reasons: []string{fmt.Sprintf("page is nearly blank: %s recognised on a clean scan", plural(f.Chars, "character"))}}
 	}
-	if f.FromRecord && few && f.Noise < PictureMaxNoise {
+	if f.FromRecord && f.InkMeasured && !f.TextLikeInk && f.Noise < PictureMaxNoise {
+		// The image shows no text: whatever the engine made of the
+		// picture's texture (hatching, foliage, a signature) or of a
+		// caption, a page with fewer than PictureMaxTokens words read
+		// with confidence is a picture.
+		if sure := confidentTokens(f); sure < PictureMaxTokens {
+			r := fmt.Sprintf("ink that does not have the shape of text and almost no text read (%s, %s in the lexicon): a picture or ornament",
+				plural(f.Tokens, "word"), plural(words, "word"))
+			if !few {
+				r = fmt.Sprintf("ink that does not have the shape of text and few words read with confidence (%d of %s at confidence %d or more, %s in the lexicon): a picture or ornament, perhaps with a caption",
+					sure, plural(f.Tokens, "word"), int(LowConfidence*100), plural(words, "word"))
+			}
+			return Verdict{PredictedCER: m.PredictCER(f), Decision: DecisionPicture, Reasons: []string{r}}
+		}
+	}
+	if f.FromRecord && !f.InkMeasured && few && f.Noise < PictureMaxNoise {
 		r := fmt.Sprintf("clean scan with ink but almost no text (%s, %s in the lexicon): a picture or ornament",
 			plural(f.Tokens, "word"), plural(words, "word"))
-		if f.InkMeasured {
-			r = fmt.Sprintf("ink that does not have the shape of text and almost no text read (%s, %s in the lexicon): a picture or ornament",
-				plural(f.Tokens, "word"), plural(words, "word"))
-		}
 		return Verdict{PredictedCER: m.PredictCER(f), Decision: DecisionPicture, Reasons: []string{r}}
 	}
 	if f.Tokens == 0 {
@@ -222,6 +233,12 @@ func reasons(f Features, m *Model, worse bool) []string {
 		out = append(out, "plain text only: no word confidences")
 	}
 	return out
+}
+
+// confidentTokens is the number of tokens read with confidence
+// LowConfidence or more (from the share under it).
+func confidentTokens(f Features) int {
+	return int(math.Round(float64(f.Tokens) * (1 - f.LowConf)))
 }
 
 func pct(x float64) string { return fmt.Sprintf("%.0f%%", 100*x) }

@@ -43,6 +43,15 @@ func TestTriageDecisions(t *testing.T) {
 		{"text-shaped ink, two characters", Features{FromRecord: true, InkMeasured: true, TextLikeInk: true, InkLines: 12, Tokens: 1, Chars: 2, Noise: 3}, 0.001, Thresholds{}, DecisionRescan},
 		{"ink not shaped like text, nothing read", Features{FromRecord: true, InkMeasured: true, InkLines: 2, Noise: 3}, 0.9, Thresholds{}, DecisionPicture},
 		{"ink not shaped like text, noisy scan", Features{FromRecord: true, InkMeasured: true, InkLines: 2, Noise: 30}, 0.9, Thresholds{}, DecisionRescan},
+		// The engine's junk in an engraving (leptonlib's cavalerie.11.jpg:
+		// 29 words, 90 % under confidence 60, 37 % in the lexicon).
+		{"ink not shaped like text, junk words", Features{FromRecord: true, InkMeasured: true, InkLines: 14, Tokens: 29, Chars: 120, LexWords: 19, LexHit: 0.37, LowConf: 0.9, Noise: 3}, 0.9, Thresholds{}, DecisionPicture},
+		// A drawing's caption read well (lion-page.00010.jpg: 14 words,
+		// 14 % under confidence 60): 12 confident words, under 20.
+		{"ink not shaped like text, a caption", Features{FromRecord: true, InkMeasured: true, InkLines: 6, Tokens: 14, Chars: 60, LexWords: 13, LexHit: 0.92, LowConf: 0.14, Noise: 0.4}, 0.03, Thresholds{}, DecisionPicture},
+		// 20 words at confidence 60 or more: not a picture, whatever the ink.
+		{"ink not shaped like text, 20 confident words", Features{FromRecord: true, InkMeasured: true, InkLines: 5, Tokens: 20, Chars: 90, LexWords: 20, LexHit: 1, LowConf: 0, Noise: 0.3}, 0.01, Thresholds{}, DecisionAccept},
+		{"ink not shaped like text, many words", Features{FromRecord: true, InkMeasured: true, InkLines: 40, Tokens: 330, Chars: 1500, LexWords: 250, LexHit: 0.5, LowConf: 0.9, Noise: 0}, 0.3, Thresholds{}, DecisionRescan},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {

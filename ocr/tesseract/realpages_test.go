@@ -86,7 +86,7 @@ func writeRealTable(path string) error {
 	b.WriteString(`# Real pages: recto beside the plain engine
 
 Written by ` + "`scripts/realpages-table`" + ` (the tests TestRealPagesNotWorseThanEngine,
-TestLeptonicaPagesConfidentWords and TestRealPages100DPIUntagged in ocr/tesseract); do not edit by hand. The plain engine is the
+TestLeptonicaPagesConfidentWords, TestRealPages100DPIUntagged and TestTextPicturesRealEngine in ocr/tesseract); do not edit by hand. The plain engine is the
 ` + "`tesseract`" + ` command with its defaults (fully automatic page segmentation, no preparation,
 OMP_THREAD_LIMIT=1). Skew: recto's rotation (its estimate in brackets, and the ink it was measured on)
 beside Leptonica's pixFindSkew on the page binarised at 130 (its confidence in brackets; Leptonica's
@@ -141,6 +141,23 @@ as shipped (confident words).
 				f = "%.2f %%"
 			}
 			row(r, f)
+		}
+	}
+	if len(triageRows) > 0 {
+		b.WriteString(`
+## Text, picture or blank (TestTextPicturesRealEngine)
+
+Leptonica 1.82.0 prog/ pages labelled by eye, read by recto as they are and triaged with the embedded
+English lexicon. Ink: whether the page's ink has the shape of text (lines of letter-sized marks), as
+the page lies, turned a quarter, or light on dark. Words: words read (confident: confidence 0.8 or
+more, three letters or more), recto and the plain engine.
+
+| page | kind | text-like ink | recto words (confident) | plain engine words (confident) | triage | reasons |
+|---|---|---|---:|---:|---|---|
+`)
+		for _, r := range triageRows {
+			fmt.Fprintf(&b, "| %s | %s | %s | %d (%d) | %d (%d) | %s | %s |\n", r.page, r.kind, r.ink, r.words, r.confident,
+				r.plainWords, r.plainConfident, r.decision, strings.ReplaceAll(r.reasons, "|", "\\|"))
 		}
 	}
 	return os.WriteFile(path, []byte(b.String()), 0o644)

@@ -95,6 +95,9 @@ const (
 	// clearly is more often a rare word than an OCR error ("ling").
 	strictConf     = 0.85
 	strictStepLogP = -7.0
+	// rareConf is the confidence at or above which a lower-case word the
+	// lexicon lacks is not questioned at all.
+	rareConf = 0.96
 	// listedFloor is the least unigram count a listed word gets.
 	listedFloor = 1.0
 	// nameConf is the confidence at or above which a capitalised word the
@@ -425,11 +428,18 @@ func (c *Corrector) run(toks []token) []edit {
 	prev := "" // lower-case left context; "" at a sentence or clause break
 	for i := 0; i < len(toks); i++ {
 		t := &toks[i]
+		t.sentence = i == 0 || endsSentence(toks[i-1].trail) || toks[i-1].core == "" && endsSentence(toks[i-1].lead)
 		var nt *token
 		if i+1 < len(toks) {
 			nt = &toks[i+1]
 		}
 		if t.core == "" {
+			if e, ok := c.barWord(s, toks, i, prev); ok {
+				e.i = i
+				eds = append(eds, e)
+				prev = c.contextAfter("i", e.words[0][strings.Index(e.words[0], "I")+1:])
+				continue
+			}
 			if e, ok := c.mark(s, toks, i); ok {
 				// A stray deleted: the words on either side are
 				// neighbours again, so prev stays.
@@ -504,6 +514,13 @@ func (c *Corrector) mark(s *scratch, toks []token, i int) (edit, bool) {
 	if runningMark(t.lead) && (t.conf < 0 || t.conf >= runningConf) {
 		// A dash or an ampersand, unless the engine hardly saw it, may
 		// well be printed there.
+		return edit{}, false
+	}
+	if _, learned := c.m.markOdds[t.lead]; !learned && t.conf >= sureConf {
+		// A mark the model never saw often enough to learn, read
+		// clearly: the pool's odds are an average over specks, and a
+		// mark the engine is sure of is printed more often than not
+		// ("->", "-!-", "*;" on the Debian-font pages, all in the truth).
 		return edit{}, false
 	}
 	odds, ok := c.m.markOddsOf(t.lead)

@@ -5,6 +5,8 @@ import (
 	"math"
 	"slices"
 	"strings"
+	"unicode"
+	"unicode/utf8"
 )
 
 // word decides whether to change one token.
@@ -45,6 +47,12 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		// often than a misreading. Measured on clean German pages from
 		// bash's help texts: the two changes made without this rule were
 		// both of the translation's own spellings (Rückgebewert, Enfernt).
+		return edit{}, false
+	} else if !upper && t.conf >= rareConf {
+		// A lower-case word read this clearly that the lexicon lacks is
+		// a rare or older spelling ("shews", "corse", dialect "wat") far
+		// more often than a misreading: each was made a modern word on
+		// clean pages of the Debian-font corpus.
 		return edit{}, false
 	} else if upper {
 		if t.conf >= nameConf {
@@ -154,7 +162,35 @@ func (c *Corrector) word(s *scratch, t *token, prev, next string) (edit, bool) {
 		// the mark was one of them.
 		trail = trail[1:]
 	}
-	return edit{n: 1, words: []string{t.lead + inPageForm(t.core, applyCase(best, pattern, upper)) + trail}, score: delta}, true
+	lead := t.lead
+	if g := lastRune(lead); strings.ContainsRune(barLeads, g) && len(best) == len(q)+1 && strings.HasSuffix(best, q) && (best[0] == 'i' || best[0] == 'l') {
+		// "[nto" → "Into": a bracket or bar before a word that lacks
+		// its first letter was that letter, a tall stroke: the capital I
+		// or a lower-case l.
+		lead = strings.TrimSuffix(lead, string(g))
+		if best[0] == 'i' && pattern == caseLower {
+			pattern, upper = caseTitle, true
+		}
+	}
+	if r, _ := utf8.DecodeRuneInString(t.core); t.sentence && pattern == caseLower && !unicode.IsLetter(r) {
+		// "1t" at the start of a sentence is "It": a digit read for the
+		// first letter says nothing of its case, the sentence does.
+		pattern, upper = caseTitle, true
+	}
+	return edit{n: 1, words: []string{lead + inPageForm(t.core, applyCase(best, pattern, upper)) + trail}, score: delta}, true
+}
+
+// barLeads are the glyphs the engine reads for a first letter I or l
+// (common practice; "[nto" for "Into" on a clean held-out page).
+const barLeads = "[]|!{"
+
+// lastRune returns the last rune of s, or 0.
+func lastRune(s string) rune {
+	r, _ := utf8.DecodeLastRuneInString(s)
+	if s == "" {
+		return 0
+	}
+	return r
 }
 
 // identity is log P(s | s) with s kept as read.

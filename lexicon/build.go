@@ -244,7 +244,7 @@ func (b *Builder) Lexicon() *Lexicon {
 	l := New()
 	l.comp = b.compounds
 	for k := range b.listed {
-		l.words[k] = b.counts[k]
+		l.words.m[k] = b.counts[k]
 		l.total += b.counts[k]
 	}
 	accepted := func(k string) bool {
@@ -260,7 +260,7 @@ func (b *Builder) Lexicon() *Lexicon {
 	}
 	for k, c := range b.counts {
 		if _, ok := b.listed[k]; !ok && c >= minText && accepted(k) {
-			l.words[k] = c
+			l.words.m[k] = c
 			l.total += c
 		}
 	}
@@ -269,13 +269,13 @@ func (b *Builder) Lexicon() *Lexicon {
 			continue
 		}
 		w1, w2, _ := strings.Cut(k, pairSep)
-		if _, ok := l.words[w1]; !ok {
+		if _, ok := l.words.m[w1]; !ok {
 			continue
 		}
-		if _, ok := l.words[w2]; !ok {
+		if _, ok := l.words.m[w2]; !ok {
 			continue
 		}
-		l.bigrams[k] = c
+		l.bigrams.m[k] = c
 	}
 	return l
 }

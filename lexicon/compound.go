@@ -215,12 +215,23 @@ func (a *Affixes) Unsupported() []string { return slices.Clone(a.unsupported) }
 type compounding struct {
 	min, max                int
 	dup, triple, simplified bool
-	parts                   map[string]uint8 // Key -> roles
+	parts                   store // Key -> roles (RoleBegin|RoleMiddle|RoleEnd), OR-ed, never summed
+}
+
+// role returns the roles of a part, 0 for a key that is no part.
+func (c *compounding) role(k string) uint8 {
+	r := c.parts.m[k]
+	if t := c.parts.t; t != nil {
+		if i := t.find(k); i >= 0 {
+			r |= t.vals[i]
+		}
+	}
+	return uint8(r)
 }
 
 // accepts reports whether key (a Key) is a compound of parts.
 func (c *compounding) accepts(key string) bool {
-	if len(c.parts) == 0 || utf8.RuneCountInString(key) < 2*c.min {
+	if c.parts.len() == 0 || utf8.RuneCountInString(key) < 2*c.min {
 		return false
 	}
 	return c.rest(key, RoleBegin, 1, "")
@@ -238,7 +249,7 @@ func (c *compounding) rest(s string, need uint8, n int, prev string) bool {
 		}
 		if runes >= c.min {
 			head, tail := s[:i], s[i:]
-			if c.parts[head]&need != 0 && !(c.dup && head == prev) {
+			if c.role(head)&need != 0 && !(c.dup && head == prev) {
 				last, _ := utf8.DecodeLastRuneInString(head)
 				if !c.triple || !tripleAt(head, tail) {
 					if c.tail(tail, head, n) {
@@ -267,7 +278,7 @@ func (c *compounding) tail(s, head string, n int) bool {
 	if c.max > 0 && n+1 > c.max {
 		return false
 	}
-	if c.parts[s]&RoleEnd != 0 && !(c.dup && s == head) {
+	if c.role(s)&RoleEnd != 0 && !(c.dup && s == head) {
 		return true
 	}
 	if c.max > 0 && n+2 > c.max {
@@ -297,7 +308,7 @@ func endsDouble(s string) bool {
 func (b *Builder) addCompounding(a *Affixes) {
 	b.cur = a.compounding()
 	if b.cur != nil {
-		b.cur.parts = map[string]uint8{}
+		b.cur.parts = newStore(0)
 		b.compounds = append(b.compounds, b.cur)
 	}
 }
@@ -313,6 +324,6 @@ func (b *Builder) addForm(f Form) {
 		b.AddWord(f.Word)
 	}
 	if f.Roles != 0 && b.cur != nil {
-		b.cur.parts[Key(f.Word)] |= f.Roles
+		b.cur.parts.m[Key(f.Word)] |= int64(f.Roles)
 	}
 }

@@ -7,11 +7,8 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"maps"
 	"os"
 	"path/filepath"
-	"slices"
-	"sort"
 	"strconv"
 	"strings"
 	"unicode"
@@ -143,7 +140,7 @@ func read(r io.Reader, name string) (*Lexicon, error) {
 			// Each entry takes at least 4 bytes ("w\t0\n"): never trust a
 			// size hint beyond what the data can hold.
 			limit := len(data) / 4
-			l = &Lexicon{words: make(map[string]int64, min(h[0], limit)), bigrams: make(map[string]int64, min(h[1], limit))}
+			l = &Lexicon{words: newStore(min(h[0], limit)), bigrams: newStore(min(h[1], limit))}
 			continue
 		}
 		if len(line) == 0 || line[0] == '#' {
@@ -198,7 +195,7 @@ func (l *Lexicon) parseDirective(line string) error {
 		if err != nil || r < 1 || r > 7 || f[1] == "" {
 			return fmt.Errorf("%w: want %%p<TAB>PART<TAB>ROLES (1-7)", ErrBadLine)
 		}
-		l.comp[len(l.comp)-1].parts[keyOf(f[1])] |= uint8(r)
+		l.comp[len(l.comp)-1].parts.m[keyOf(f[1])] |= int64(r)
 	case f[0] == "%compound" && len(f) == 4:
 		mn, err1 := strconv.Atoi(f[1])
 		mx, err2 := strconv.Atoi(f[2])
@@ -206,7 +203,7 @@ func (l *Lexicon) parseDirective(line string) error {
 			return fmt.Errorf("%w: want %%compound<TAB>MIN<TAB>MAX<TAB>CHECKS", ErrBadLine)
 		}
 		l.comp = append(l.comp, &compounding{min: mn, max: mx, dup: strings.Contains(f[3], "d"),
-			triple: strings.Contains(f[3], "t"), simplified: strings.Contains(f[3], "s"), parts: map[string]uint8{}})
+			triple: strings.Contains(f[3], "t"), simplified: strings.Contains(f[3], "s"), parts: newStore(0)})
 	default:
 		return fmt.Errorf("%w: unknown directive %q", ErrBadLine, f[0])
 	}
@@ -238,7 +235,7 @@ func (l *Lexicon) parseLine(line string) error {
 			return fmt.Errorf("%w: empty word", ErrBadLine)
 		}
 		w := keyOf(words)
-		l.words[w] += c
+		l.words.m[w] += c
 		l.total += c
 		return nil
 	}
@@ -249,7 +246,7 @@ func (l *Lexicon) parseLine(line string) error {
 	if k1, k2 := keyOf(w1), keyOf(w2); k1 != w1 || k2 != w2 {
 		words = k1 + pairSep + k2
 	}
-	l.bigrams[words] += c
+	l.bigrams.m[words] += c
 	return nil
 }
 
@@ -354,7 +351,7 @@ func (l *Lexicon) write(w *bufio.Writer) error {
 	if len(l.comp) > 0 {
 		version = 2
 	}
-	fmt.Fprintf(w, "%s\t%d\t%d\t%d\n", fileMagic, version, len(l.words), len(l.bigrams))
+	fmt.Fprintf(w, "%s\t%d\t%d\t%d\n", fileMagic, version, l.words.len(), l.bigrams.len())
 	for _, c := range l.comp {
 		checks := ""
 		for _, x := range []struct {
@@ -369,8 +366,8 @@ func (l *Lexicon) write(w *bufio.Writer) error {
 			checks = "-"
 		}
 		fmt.Fprintf(w, "%%compound\t%d\t%d\t%s\n", c.min, c.max, checks)
-		for _, k := range slices.Sorted(maps.Keys(c.parts)) {
-			if _, err := fmt.Fprintf(w, "%%p\t%s\t%d\n", k, c.parts[k]); err != nil {
+		for _, k := range c.parts.sortedKeys() {
+			if _, err := fmt.Fprintf(w, "%%p\t%s\t%d\n", k, c.role(k)); err != nil {
 				return err
 			}
 		}
@@ -379,24 +376,21 @@ func (l *Lexicon) write(w *bufio.Writer) error {
 	for _, k := range l.Words() {
 		buf = append(buf[:0], k...)
 		buf = append(buf, '\t')
-		buf = strconv.AppendInt(buf, l.words[k], 10)
+		n, _ := l.words.get(k)
+		buf = strconv.AppendInt(buf, n, 10)
 		buf = append(buf, '\n')
 		if _, err := w.Write(buf); err != nil {
 			return err
 		}
 	}
-	pairs := make([]string, 0, len(l.bigrams))
-	for k := range l.bigrams {
-		pairs = append(pairs, k)
-	}
-	sort.Strings(pairs)
-	for _, k := range pairs {
+	for _, k := range l.bigrams.sortedKeys() {
 		buf = buf[:0]
 		for i := 0; i < len(k); i++ {
 			buf = append(buf, k[i])
 		}
 		buf = append(buf, '\t')
-		buf = strconv.AppendInt(buf, l.bigrams[k], 10)
+		n, _ := l.bigrams.get(k)
+		buf = strconv.AppendInt(buf, n, 10)
 		buf = append(buf, '\n')
 		if _, err := w.Write(buf); err != nil {
 			return err

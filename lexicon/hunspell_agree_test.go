@@ -55,6 +55,16 @@ func TestHunspellAgreement(t *testing.T) {
 }
 
 func checkAgreement(t *testing.T, code, dic string, minAgree float64) {
+	lex, words := agreementSample(t, code, dic)
+	rejected := hunspellRejects(t, dic, words)
+	checkVerdicts(t, code, dic, lex, words, rejected, minAgree)
+}
+
+// agreementSample builds the lexicon of a Hunspell dictionary (its forms
+// and compounding rules, as `recto lexicon build` keeps them) and draws
+// the words TestHunspellAgreement judges (see there), with a fixed seed.
+func agreementSample(t *testing.T, code, dic string) (*Lexicon, []string) {
+	t.Helper()
 	aff, err := LoadAffixes(dic + ".aff")
 	if err != nil {
 		t.Fatal(err)
@@ -143,8 +153,12 @@ func checkAgreement(t *testing.T, code, dic string, minAgree float64) {
 		}
 		addWord(string(rs))
 	}
+	return lex, words
+}
 
-	rejected := hunspellRejects(t, dic, words)
+// checkVerdicts compares Has with Hunspell's verdicts (rejected: the
+// words it rejects).
+func checkVerdicts(t *testing.T, code, dic string, lex *Lexicon, words []string, rejected map[string]bool, minAgree float64) {
 	// Case-only verdicts: another casing of the word (first letter
 	// flipped, all capitals, all lower case) gets the other verdict.
 	recase := []func(string) string{flipCase, strings.ToUpper, strings.ToLower}

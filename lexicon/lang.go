@@ -165,7 +165,7 @@ type loadEntry struct {
 func loadCached(path string) (*Lexicon, error) {
 	v, _ := loaded.LoadOrStore(path, &loadEntry{})
 	e := v.(*loadEntry)
-	e.once.Do(func() { e.lex, e.err = Load(path) })
+	e.once.Do(func() { e.lex, e.err = loadFast(path) }) // through the compact form (compact.go)
 	return e.lex, e.err
 }
 

@@ -17,10 +17,10 @@ import (
 // and looked up by Key. The zero value is not usable; call New.
 // A Lexicon is safe for concurrent reads once it is no longer modified.
 type Lexicon struct {
-	words   map[string]int64 // Key(word) -> count
-	bigrams map[string]int64 // Key(w1) + pairSep + Key(w2) -> count
-	total   int64            // sum of unigram counts
-	comp    []*compounding   // compound rules and parts, one per dictionary (compound.go)
+	words   store          // Key(word) -> count
+	bigrams store          // Key(w1) + pairSep + Key(w2) -> count
+	total   int64          // sum of unigram counts
+	comp    []*compounding // compound rules and parts, one per dictionary (compound.go)
 
 	// layers are the lexicons a Merge combined, read through without being
 	// copied: every read answers for the lexicon's own words and pairs
@@ -41,7 +41,7 @@ const pairSep = "\t"
 
 // New returns an empty lexicon.
 func New() *Lexicon {
-	return &Lexicon{words: make(map[string]int64), bigrams: make(map[string]int64)}
+	return &Lexicon{words: newStore(0), bigrams: newStore(0)}
 }
 
 // Key is the lookup form of a word: Unicode NFC, then lower case (Unicode
@@ -111,11 +111,9 @@ func (l *Lexicon) HasFold(word string) bool {
 	if idx == nil {
 		l.foldMu.Lock()
 		if idx = l.fold.Load(); idx == nil {
-			m := make(map[string]struct{}, len(l.words))
+			m := make(map[string]struct{}, l.words.len())
 			for _, x := range l.all() {
-				for w := range x.words {
-					m[Fold(w)] = struct{}{}
-				}
+				x.words.each(func(w string, _ int64) { m[Fold(w)] = struct{}{} })
 			}
 			idx = &m
 			l.fold.Store(idx)
@@ -134,7 +132,7 @@ func (l *Lexicon) Add(word string, n int64) {
 	if word == "" || strings.ContainsAny(word, "\t\n") {
 		return
 	}
-	l.words[Key(word)] += n
+	l.words.add(Key(word), n)
 	l.total += n
 	l.fold.Store(nil)
 }
@@ -145,7 +143,7 @@ func (l *Lexicon) AddBigram(w1, w2 string, n int64) {
 	if w1 == "" || w2 == "" || strings.ContainsAny(w1, "\t\n") || strings.ContainsAny(w2, "\t\n") {
 		return
 	}
-	l.bigrams[Key(w1)+pairSep+Key(w2)] += n
+	l.bigrams.add(Key(w1)+pairSep+Key(w2), n)
 }
 
 // Has reports whether the lexicon holds word (compared by Key), or, for a
@@ -162,14 +160,14 @@ func (l *Lexicon) Has(word string) bool { return l.acceptAll || l.hasKey(Key(wor
 // not be modified.
 func AcceptAll() *Lexicon { return acceptAll }
 
-var acceptAll = &Lexicon{words: map[string]int64{}, bigrams: map[string]int64{}, acceptAll: true}
+var acceptAll = &Lexicon{words: newStore(0), bigrams: newStore(0), acceptAll: true}
 
 func (l *Lexicon) hasKey(k string) bool {
-	if _, ok := l.words[k]; ok {
+	if l.words.has(k) {
 		return true
 	}
 	for _, x := range l.layers {
-		if _, ok := x.words[k]; ok {
+		if x.words.has(k) {
 			return true
 		}
 	}
@@ -191,11 +189,11 @@ func (l *Lexicon) hasKey(k string) bool {
 // Listed reports whether the lexicon holds word itself, not as a compound.
 func (l *Lexicon) Listed(word string) bool {
 	k := Key(word)
-	if _, ok := l.words[k]; ok {
+	if l.words.has(k) {
 		return true
 	}
 	for _, x := range l.layers {
-		if _, ok := x.words[k]; ok {
+		if x.words.has(k) {
 			return true
 		}
 	}
@@ -220,19 +218,19 @@ func (l *Lexicon) all() []*Lexicon { return append([]*Lexicon{l}, l.layers...) }
 func (l *Lexicon) EachBigram(fn func(k1, k2 string, n int64)) {
 	all := l.all()
 	for i, x := range all {
-	pairs:
-		for k, n := range x.bigrams {
+		x.bigrams.each(func(k string, n int64) {
 			for _, y := range all[:i] {
-				if _, ok := y.bigrams[k]; ok {
-					continue pairs // counted with the first lexicon that has it
+				if y.bigrams.has(k) {
+					return // counted with the first lexicon that has it
 				}
 			}
 			for _, y := range all[i+1:] {
-				n += y.bigrams[k]
+				m, _ := y.bigrams.get(k)
+				n += m
 			}
 			k1, k2, _ := strings.Cut(k, pairSep)
 			fn(k1, k2, n)
-		}
+		})
 	}
 }
 
@@ -252,9 +250,10 @@ func Merge(ls ...*Lexicon) *Lexicon {
 // Count returns the unigram count of word, 0 when absent.
 func (l *Lexicon) Count(word string) int64 {
 	k := Key(word)
-	n := l.words[k]
+	n, _ := l.words.get(k)
 	for _, x := range l.layers {
-		n += x.words[k]
+		m, _ := x.words.get(k)
+		n += m
 	}
 	return n
 }
@@ -262,9 +261,10 @@ func (l *Lexicon) Count(word string) int64 {
 // Bigram returns the count of the pair w1 w2, 0 when absent.
 func (l *Lexicon) Bigram(w1, w2 string) int64 {
 	k := Key(w1) + pairSep + Key(w2)
-	n := l.bigrams[k]
+	n, _ := l.bigrams.get(k)
 	for _, x := range l.layers {
-		n += x.bigrams[k]
+		m, _ := x.bigrams.get(k)
+		n += m
 	}
 	return n
 }
@@ -281,7 +281,7 @@ func (l *Lexicon) Total() int64 {
 // Bigrams returns the number of distinct word pairs.
 func (l *Lexicon) Bigrams() int {
 	if len(l.layers) == 0 {
-		return len(l.bigrams)
+		return l.bigrams.len()
 	}
 	n := 0
 	l.EachBigram(func(string, string, int64) { n++ })
@@ -291,22 +291,20 @@ func (l *Lexicon) Bigrams() int {
 // Len returns the number of distinct words.
 func (l *Lexicon) Len() int {
 	if len(l.layers) == 0 {
-		return len(l.words)
+		return l.words.len()
 	}
 	return len(l.Words())
 }
 
 // Words returns the keys of all words, sorted.
 func (l *Lexicon) Words() []string {
-	n := len(l.words)
+	n := l.words.len()
 	for _, x := range l.layers {
-		n += len(x.words)
+		n += x.words.len()
 	}
 	ws := make([]string, 0, n)
 	for _, x := range l.all() {
-		for w := range x.words {
-			ws = append(ws, w)
-		}
+		x.words.each(func(w string, _ int64) { ws = append(ws, w) })
 	}
 	sort.Strings(ws)
 	if len(l.layers) > 0 {
@@ -323,12 +321,8 @@ func (l *Lexicon) flat() *Lexicon {
 	}
 	f := New()
 	for _, x := range l.all() {
-		for k, c := range x.words {
-			f.words[k] += c
-		}
-		for k, c := range x.bigrams {
-			f.bigrams[k] += c
-		}
+		x.words.each(f.words.add)
+		x.bigrams.each(f.bigrams.add)
 		f.total += x.total
 		f.comp = append(f.comp, x.comp...)
 	}

@@ -5,13 +5,20 @@ import (
 	"slices"
 )
 
-// bitState is the working memory of the bit-vector method.
+// bitState is the working memory of the bit-vector method (Myers 1999,
+// in Hyyrö's 2003 form): the match vectors of one pattern, built once by
+// buildPeq and then run over any number of texts, and the current column.
+// One loop runs the columns for every use (bitColumns): the global
+// distance (distance, bitDistance, bitDistanceSeq, column) and the
+// approximate matching of the flexible character accuracy (scan).
 type bitState struct {
 	pv, mv []uint64       // vertical deltas +1 / -1 of the current column
-	zero   []uint64       // the match vector of a symbol a lacks
-	peq    []uint64       // match vectors, ⌈n/64⌉ words per distinct symbol
-	sym    map[rune]int32 // symbol -> index into peq, beyond ASCII
-	ascii  [128]int32     // ASCII symbol -> index into peq, or -1
+	peq    []uint64       // match vectors, nb words per symbol; symbol 0 is the all-zero vector of every symbol the pattern lacks
+	low    [256]int32     // symbol below 256 -> index into peq / nb, 0 when the pattern lacks it
+	sym    map[rune]int32 // the same for the other symbols
+	lows   []uint8        // the symbols below 256 set in low, to clear it for the next pattern
+	n, nb  int            // the pattern's length and words per symbol
+	chunk  []rune         // bitDistanceSeq's buffer
 	col    []int32        // column scores (column)
 }
 
@@ -53,14 +60,20 @@ func (s *bitState) distance(a, b []rune) int { return bitDistance(s, a, b) }
 // bitDistance is bitState.distance over any symbol type (code points, or
 // the bytes of denseCoder for long texts).
 func bitDistance[T symbol](s *bitState, a, b []T) int {
-	d, _ := bitDistanceSeq(s, a, slices.Values(b))
+	if len(a) == 0 {
+		return len(b)
+	}
+	buildPeqOf(s, a)
+	s.startColumn()
+	d, _, _ := bitColumns(s, b, 1, len(a), false)
 	return d
 }
 
 // bitDistanceSeq is bitDistance with b given as a sequence, read once, so
 // that a long text can be streamed from its string (longtext.go); it also
 // returns the length of b. Symbols of b that a lacks never match, so b may
-// yield any value for them.
+// yield any value for them. The sequence is run through the columns in
+// chunks of bitChunk symbols.
 func bitDistanceSeq[T symbol](s *bitState, a []T, b iter.Seq[T]) (dist, m int) {
 	n := len(a)
 	if n == 0 {
@@ -69,43 +82,121 @@ func bitDistanceSeq[T symbol](s *bitState, a []T, b iter.Seq[T]) (dist, m int) {
 		}
 		return m, m
 	}
-	nb := (n + 63) / 64
-	buildPeqOf(s, a, nb)
-	if cap(s.pv) < nb {
-		s.pv, s.mv = make([]uint64, nb), make([]uint64, nb)
-	}
-	pv, mv := s.pv[:nb], s.mv[:nb]
-	for i := range pv {
-		pv[i], mv[i] = ^uint64(0), 0 // column 0: D(i, 0) = i, all deltas +1
-	}
-	if cap(s.zero) < nb {
-		s.zero = make([]uint64, nb)
-	}
-	zero := s.zero[:nb]
-	lastBit := uint((n - 1) % 64)
-	score := n
+	buildPeqOf(s, a)
+	s.startColumn()
+	dist = n
+	buf := slices.Grow(s.chunk[:0], bitChunk)
 	for c := range b {
 		m++
-		eqs := s.peqOf(rune(c), nb)
-		if eqs == nil {
-			eqs = zero
+		if buf = append(buf, rune(c)); len(buf) == bitChunk {
+			dist, _, _ = bitColumns(s, buf, 1, dist, false)
+			buf = buf[:0]
 		}
-		eqs, pv, mv := eqs[:nb], pv[:nb], mv[:nb]
-		// The horizontal delta entering a block from above, as two bits:
-		// +1 on row 0 (D(0, j) = j).
-		hpos, hneg := uint64(1), uint64(0)
-		last := nb - 1
-		for k := range last {
+	}
+	dist, _, _ = bitColumns(s, buf, 1, dist, false)
+	s.chunk = buf[:0]
+	return dist, m
+}
+
+// bitChunk is the number of symbols bitDistanceSeq buffers at a time.
+const bitChunk = 1024
+
+// scan runs the bit-vector method with pat as the rows and text as the
+// columns and returns the least score in the last row over every column
+// j = 0..len(text), and the first column where it is reached. With
+// anchored false, row 0 is 0 in every column, so the score at column j is
+// the least distance between pat and a substring of text ending at j
+// (approximate string matching, Sellers 1980; Myers 1999); with anchored
+// true row 0 is j, so it is the distance between pat and text[:j].
+//
+// Complexity: O(⌈n/64⌉·m) time for n = len(pat) and m = len(text).
+func (s *bitState) scan(pat, text []rune, anchored bool) (best, at int) {
+	if len(pat) == 0 {
+		return 0, 0
+	}
+	s.buildPeq(pat)
+	return s.scanBuilt(text, anchored)
+}
+
+// scanBuilt is scan with the match vectors of a non-empty pattern already
+// built (buildPeq), so that one pattern scans many texts.
+func (s *bitState) scanBuilt(text []rune, anchored bool) (best, at int) {
+	s.startColumn()
+	top := uint64(0)
+	if anchored {
+		top = 1
+	}
+	_, best, at = bitColumns(s, text, top, s.n, true)
+	return best, at
+}
+
+// startColumn sets the column to column 0, D(i, 0) = i: every vertical
+// delta +1.
+func (s *bitState) startColumn() {
+	if cap(s.pv) < s.nb {
+		s.pv, s.mv = make([]uint64, s.nb), make([]uint64, s.nb)
+	}
+	s.pv, s.mv = s.pv[:s.nb], s.mv[:s.nb]
+	for i := range s.pv {
+		s.pv[i], s.mv[i] = ^uint64(0), 0
+	}
+}
+
+// bitColumns advances the column held in s.pv and s.mv by one column for
+// each symbol of text. score is the current column's score at the last
+// row; top is the horizontal delta entering the first row from row 0: 1
+// when row 0 counts the columns (D(0, j) = j: global distance, or a match
+// anchored at the start), 0 when it is 0 everywhere (a match may start at
+// any column). It returns the last column's score and the least score
+// over the new columns, with the first of them (counted from 1) where it
+// is reached; best is the starting score and at 0 when no column is lower.
+// With stop set it returns at the first column scoring 0.
+//
+// A pattern of at most 64 symbols, the usual line of text, runs on one
+// word held in registers.
+func bitColumns[T symbol](s *bitState, text []T, top uint64, score int, stop bool) (last, best, at int) {
+	nb, peq := s.nb, s.peq
+	lastBit := uint((s.n - 1) % 64)
+	best = score
+	if nb == 1 {
+		pv, mv := s.pv[0], s.mv[0]
+		for j, c := range text {
+			var ph, mh uint64
+			pv, mv, ph, mh = blockStep(peq[s.index(rune(c))], pv, mv, top, 0)
+			score += int(ph>>lastBit&1) - int(mh>>lastBit&1)
+			if score < best {
+				best, at = score, j+1
+				if stop && best == 0 {
+					break
+				}
+			}
+		}
+		s.pv[0], s.mv[0] = pv, mv
+		return score, best, at
+	}
+	pv, mv := s.pv[:nb], s.mv[:nb]
+	lw := nb - 1 // the last word
+	for j, c := range text {
+		i := int(s.index(rune(c))) * nb
+		eqs := peq[i : i+nb]
+		// The horizontal delta entering a block from above, as two bits.
+		hpos, hneg := top, uint64(0)
+		for k := range lw {
 			var ph, mh uint64
 			pv[k], mv[k], ph, mh = blockStep(eqs[k], pv[k], mv[k], hpos, hneg)
 			hpos, hneg = ph>>63, mh>>63
 		}
 		var ph, mh uint64
-		pv[last], mv[last], ph, mh = blockStep(eqs[last], pv[last], mv[last], hpos, hneg)
-		hpos, hneg = ph>>lastBit&1, mh>>lastBit&1
-		score += int(hpos) - int(hneg)
+		pv[lw], mv[lw], ph, mh = blockStep(eqs[lw], pv[lw], mv[lw], hpos, hneg)
+		score += int(ph>>lastBit&1) - int(mh>>lastBit&1)
+		if score < best {
+			best, at = score, j+1
+			if stop && best == 0 {
+				break
+			}
+		}
 	}
-	return score, m
+	return score, best, at
 }
 
 // blockStep advances one 64-row block by one column: eq is the block's
@@ -126,30 +217,34 @@ func blockStep(eq, p, m, hpos, hneg uint64) (np, nm, ph, mh uint64) {
 	return np, nm, ph, mh
 }
 
-// buildPeq fills the match vectors of a: for each distinct symbol, nb
+// buildPeq fills the match vectors of a: for each distinct symbol, ⌈n/64⌉
 // words with bit i%64 of word i/64 set where a[i] is that symbol.
-func (s *bitState) buildPeq(a []rune, nb int) { buildPeqOf(s, a, nb) }
+func (s *bitState) buildPeq(a []rune) { buildPeqOf(s, a) }
 
-func buildPeqOf[T symbol](s *bitState, a []T, nb int) {
-	if s.sym == nil {
-		s.sym = make(map[rune]int32)
+func buildPeqOf[T symbol](s *bitState, a []T) {
+	for _, c := range s.lows {
+		s.low[c] = 0
 	}
-	clear(s.sym)
-	for i := range s.ascii {
-		s.ascii[i] = -1
+	s.lows = s.lows[:0]
+	if len(s.sym) > 0 {
+		clear(s.sym)
 	}
-	s.peq = s.peq[:0]
+	nb := (len(a) + 63) / 64
+	s.n, s.nb = len(a), nb
+	s.peq = append(s.peq[:0], make([]uint64, nb)...) // symbol 0: no match
 	for i, c := range a {
 		r := rune(c)
-		idx := s.symIndex(r)
-		if idx < 0 {
+		idx := s.index(r)
+		if idx == 0 {
 			idx = int32(len(s.peq) / nb)
-			for range nb {
-				s.peq = append(s.peq, 0)
-			}
-			if r >= 0 && r < int32(len(s.ascii)) {
-				s.ascii[r] = idx
+			s.peq = append(s.peq, make([]uint64, nb)...)
+			if uint32(r) < uint32(len(s.low)) {
+				s.low[r] = idx
+				s.lows = append(s.lows, uint8(r))
 			} else {
+				if s.sym == nil {
+					s.sym = make(map[rune]int32)
+				}
 				s.sym[r] = idx
 			}
 		}
@@ -157,23 +252,13 @@ func buildPeqOf[T symbol](s *bitState, a []T, nb int) {
 	}
 }
 
-func (s *bitState) symIndex(r rune) int32 {
-	if r >= 0 && r < int32(len(s.ascii)) {
-		return s.ascii[r]
+// index returns the index of symbol r's match vectors, 0 (no match) when
+// the pattern lacks it.
+func (s *bitState) index(r rune) int32 {
+	if uint32(r) < uint32(len(s.low)) {
+		return s.low[r]
 	}
-	if idx, ok := s.sym[r]; ok {
-		return idx
-	}
-	return -1
-}
-
-// peqOf returns the match vector of symbol c, or nil when a lacks it.
-func (s *bitState) peqOf(c rune, nb int) []uint64 {
-	idx := s.symIndex(c)
-	if idx < 0 {
-		return nil
-	}
-	return s.peq[int(idx)*nb : int(idx+1)*nb]
+	return s.sym[r] // 0 when absent, also when the map is nil
 }
 
 // bagCounter computes the bag distance, a lower bound on the Levenshtein

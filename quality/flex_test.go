@@ -402,3 +402,132 @@ func BenchmarkFlex3000(b *testing.B) {
 		})
 	}
 }
+
+// TestFlexQueueAgainstScanAll: the queue with lower bounds (flex.go)
+// takes the pairs in the same order as the selection it replaced, which
+// ranked every live pair by its exact distance afresh each round
+// (scanAllFlex, kept here as the reference), on page-like cases: lines of
+// 20–90 characters (so patterns of one and two words of 64 bits), reading
+// order kept or shuffled, rewrapped hypotheses, 0–30 % noise, and pages
+// with more than 256 distinct symbols (no bounds).
+func TestFlexQueueAgainstScanAll(t *testing.T) {
+	rng := rand.New(rand.NewPCG(21, 22))
+	n := 300
+	if testing.Short() {
+		n = 60
+	}
+	var f, old flexState
+	for it := range n {
+		rate := []float64{0, 0.02, 0.05, 0.1, 0.3}[it%5]
+		ref, _ := benchText(uint64(500+it), 200+rng.IntN(1200), 0)
+		if it%7 == 0 { // beyond 256 distinct symbols
+			for i := range ref {
+				if rng.IntN(4) == 0 {
+					ref[i] = rune(0x4e00 + rng.IntN(400))
+				}
+			}
+		}
+		rl := wrap(string(ref), 20+rng.IntN(70))
+		var hl []string
+		for _, l := range rl {
+			hl = append(hl, string(noisy(rng, []rune(l), rate)))
+		}
+		if it%3 == 1 {
+			hl = wrap(strings.Join(hl, " "), 20+rng.IntN(70))
+		}
+		if it%2 == 0 {
+			rng.Shuffle(len(hl), func(i, j int) { hl[i], hl[j] = hl[j], hl[i] })
+		}
+		r, h := flexLines(strings.Join(rl, "\n"), NormOptions{}), flexLines(strings.Join(hl, "\n"), NormOptions{})
+		if got, want := f.errors(r, h), scanAllFlex(&old, r, h); got != want {
+			t.Fatalf("case %d (rate %.2f, %d/%d lines): queue %d errors, scanning every pair %d", it, rate, len(r), len(h), got, want)
+		}
+	}
+}
+
+// scanAllFlex is the selection flex.go used before its queue: every live
+// pair's exact distance (bit-vector scan) kept in a table, the best-ranked
+// pair searched over all of them each round.
+func scanAllFlex(f *flexState, ref, hyp [][]rune) int {
+	gt, hy := append([][]rune(nil), ref...), append([][]rune(nil), hyp...)
+	gAlive, hAlive := make([]bool, len(gt)), make([]bool, len(hy))
+	for i := range gAlive {
+		gAlive[i] = true
+	}
+	for i := range hAlive {
+		hAlive[i] = true
+	}
+	dist := func(g, h []rune) int {
+		if len(g) <= len(h) {
+			d, _ := f.bv.scan(g, h, false)
+			return d
+		}
+		d, _ := f.bv.scan(h, g, false)
+		return d
+	}
+	d := map[[2]int]int{}
+	for gi := range gt {
+		for hi := range hy {
+			d[[2]int{gi, hi}] = dist(gt[gi], hy[hi])
+		}
+	}
+	errs := 0
+	for {
+		bg, bh, bd, bk := -1, -1, 0, 0
+		for gi := range gt {
+			for hi := range hy {
+				if !gAlive[gi] || !hAlive[hi] {
+					continue
+				}
+				dd, k := d[[2]int{gi, hi}], min(len(gt[gi]), len(hy[hi]))
+				if dd >= k {
+					continue
+				}
+				if l, r := (dd+1)*(bk+1), (bd+1)*(k+1); bg < 0 || l < r || l == r && k > bk {
+					bg, bh, bd, bk = gi, hi, dd, k
+				}
+			}
+		}
+		if bg < 0 {
+			break
+		}
+		errs += bd
+		g, h := gt[bg], hy[bh]
+		gAlive[bg], hAlive[bh] = false, false
+		var parts [][]rune
+		if len(g) <= len(h) {
+			_, s, e := f.match(g, h)
+			parts = [][]rune{trimSpace(h[:s]), trimSpace(h[e:])}
+		} else {
+			_, s, e := f.match(h, g)
+			parts = [][]rune{trimSpace(g[:s]), trimSpace(g[e:])}
+		}
+		for _, p := range parts {
+			if len(p) == 0 {
+				continue
+			}
+			if len(g) <= len(h) {
+				hy, hAlive = append(hy, p), append(hAlive, true)
+				for gi := range gt {
+					d[[2]int{gi, len(hy) - 1}] = dist(gt[gi], p)
+				}
+			} else {
+				gt, gAlive = append(gt, p), append(gAlive, true)
+				for hi := range hy {
+					d[[2]int{len(gt) - 1, hi}] = dist(p, hy[hi])
+				}
+			}
+		}
+	}
+	for i, g := range gt {
+		if gAlive[i] {
+			errs += len(g)
+		}
+	}
+	for i, h := range hy {
+		if hAlive[i] {
+			errs += len(h)
+		}
+	}
+	return errs
+}

@@ -32,8 +32,9 @@ import (
 const longText = 1 << 16
 
 // flexMaxCells and flexMaxChars bound the flexible matching: at most
-// 4,194,304 line pairs (16 MB of distances) and 1,048,576 characters on
-// either side (4 MB as code points), about a 300-page volume.
+// 4,194,304 line pairs (each queued pair is a 16-byte flexCand, so the
+// queue holds up to 64 MB) and 1,048,576 characters on either side (4 MB
+// as code points), about a 300-page volume.
 var (
 	flexMaxCells = 1 << 22
 	flexMaxChars = 1 << 20

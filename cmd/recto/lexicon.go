@@ -164,6 +164,9 @@ func runLexiconBuild(ctx context.Context, o LexiconBuildOptions, g GlobalOptions
 	if err := l.Save(o.Out); err != nil {
 		return err
 	}
+	if err := writeCompactForm(o.Out, g); err != nil {
+		return err
+	}
 	fmt.Fprintf(g.stdout, "%s: %d words, %d word pairs, %d running words counted\n", o.Out, l.Len(), l.Bigrams(), l.Total())
 	return nil
 }
@@ -201,4 +204,23 @@ Without --lexicon the embedded English lexicon is used.` + exitStatusHelp,
 	}
 	cmd.Flags().StringVar(&path, "lexicon", "", "lexicon `file` (default: embedded English)")
 	return cmd
+}
+
+// writeCompactForm writes the compact form of a lexicon file built into
+// the lexicon folder (lexicon.Dir), where --lang finds it, so that the
+// first load is fast too (lexicon.WriteCompact, lexicon/compact.go). A
+// lexicon written anywhere else is read by Load, which does not use one.
+func writeCompactForm(out string, g GlobalOptions) error {
+	dir, err1 := filepath.Abs(filepath.Dir(out))
+	lexDir, err2 := filepath.Abs(lexicon.Dir())
+	if err1 != nil || err2 != nil || dir != lexDir {
+		return nil
+	}
+	if err := lexicon.WriteCompact(out); err != nil {
+		return fmt.Errorf("lexicon build: %w", err)
+	}
+	if !g.Quiet {
+		g.printf("wrote the compact form %q (what --lang loads)", lexicon.CompactPath(out))
+	}
+	return nil
 }

@@ -47,6 +47,9 @@ func runLexiconBuildLang(o LexiconBuildOptions, g GlobalOptions) error {
 	if err := l.Save(out); err != nil {
 		return err
 	}
+	if err := writeCompactForm(out, g); err != nil {
+		return err
+	}
 	src := strings.TrimSuffix(strings.TrimSuffix(out, ".gz"), ".lex") + ".sources.md"
 	if err := writeSourcesFile(src, recipeSources(r, rep, l)); err != nil {
 		return fmt.Errorf("lexicon build: %w", err)

@@ -42,6 +42,35 @@ func TestLexiconBuildCommand(t *testing.T) {
 	}
 }
 
+// TestLexiconBuildCompact: a lexicon built into the lexicon folder gets
+// its compact form beside it (what --lang loads, lexicon/compact.go); one
+// built elsewhere does not.
+func TestLexiconBuildCompact(t *testing.T) {
+	dir := t.TempDir()
+	t.Setenv(lexicon.EnvDir, dir)
+	words := filepath.Join(t.TempDir(), "words.txt")
+	os.WriteFile(words, []byte("fjord\nledger\n"), 0o644)
+	out := filepath.Join(dir, "xx.lex.gz")
+	_, stderr, err := runRecto(t, "lexicon", "build", "--words", words, "--out", out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := os.Stat(lexicon.CompactPath(out)); err != nil || !strings.Contains(stderr, lexicon.CompactPath(out)) {
+		t.Fatalf("no compact form beside %s (%v); stderr %q", out, err, stderr)
+	}
+	sel, err := lexicon.ForLang("xx")
+	if err != nil || !sel.Complete() || !sel.Lexicon.Has("fjord") {
+		t.Fatalf("ForLang(xx) = %+v, %v", sel, err)
+	}
+	elsewhere := filepath.Join(t.TempDir(), "yy.lex.gz")
+	if _, _, err := runRecto(t, "lexicon", "build", "--words", words, "--out", elsewhere); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := os.Stat(lexicon.CompactPath(elsewhere)); !os.IsNotExist(err) {
+		t.Errorf("a compact form was written beside %s, outside the lexicon folder: %v", elsewhere, err)
+	}
+}
+
 func TestLexiconBuildBadInput(t *testing.T) {
 	dir := t.TempDir()
 	latin1 := filepath.Join(dir, "latin1.txt")

@@ -6,7 +6,6 @@ import (
 	"errors"
 	"image"
 	"os"
-	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -14,34 +13,6 @@ import (
 	"recto/ocr"
 	"recto/ocr/ocrtest"
 )
-
-// tool returns the path of a command-line tool that makes or reads the
-// reference files; without it the test fails under CI and is skipped
-// elsewhere (scripts/setup installs img2pdf, imagemagick, poppler-utils).
-func tool(t *testing.T, name string) string {
-	t.Helper()
-	p, err := exec.LookPath(name)
-	if err != nil {
-		msg := name + " is not installed (Debian: img2pdf, imagemagick, poppler-utils; scripts/setup --test)"
-		if os.Getenv("CI") != "" {
-			t.Fatal(msg)
-		}
-		t.Skip(msg)
-	}
-	return p
-}
-
-func runTool(t *testing.T, name string, args ...string) []byte {
-	t.Helper()
-	var stderr bytes.Buffer
-	cmd := exec.Command(tool(t, name), args...)
-	cmd.Stderr = &stderr
-	out, err := cmd.Output()
-	if err != nil {
-		t.Fatalf("%s %q: %v: %s", name, args, err, stderr.String())
-	}
-	return out
-}
 
 // rgbSamples packs img as 8-bit RGB samples, as ImageMagick's `rgb:-`
 // writes them.
@@ -80,7 +51,7 @@ func TestPDFOfRealScans(t *testing.T) {
 	for _, s := range srcs {
 		args = append(args, filepath.Join(tess, s.file))
 	}
-	runTool(t, "img2pdf", append(args, "-o", pdf)...)
+	ocrtest.RunTool(t, "img2pdf", append(args, "-o", pdf)...)
 	before, err := os.ReadFile(pdf)
 	if err != nil {
 		t.Fatal(err)
@@ -107,7 +78,7 @@ func TestPDFOfRealScans(t *testing.T) {
 		if d.DPI != s.dpi {
 			t.Errorf("page %d (%s): %v dpi, want %v", n, s.file, d.DPI, s.dpi)
 		}
-		want := runTool(t, "convert", filepath.Join(tess, s.file), "-depth", "8", "rgb:-")
+		want := ocrtest.RunTool(t, "convert", filepath.Join(tess, s.file), "-depth", "8", "rgb:-")
 		if got := rgbSamples(d.Image); !bytes.Equal(got, want) {
 			diff := 0
 			for j := range min(len(got), len(want)) {
@@ -139,7 +110,7 @@ func TestPDFCorruptPageFailsAlone(t *testing.T) {
 	dir := t.TempDir()
 	pdf := filepath.Join(dir, "reel.pdf")
 	dev := filepath.Join(tess, "devatest.png")
-	runTool(t, "img2pdf", filepath.Join(tess, "phototest.tif"), dev, filepath.Join(tess, "eurotext.tif"), "-o", pdf)
+	ocrtest.RunTool(t, "img2pdf", filepath.Join(tess, "phototest.tif"), dev, filepath.Join(tess, "eurotext.tif"), "-o", pdf)
 	data, err := os.ReadFile(pdf)
 	if err != nil {
 		t.Fatal(err)

@@ -26,15 +26,15 @@ func BenchmarkTIFFDecode(b *testing.B) {
 	dir := b.TempDir()
 	g4 := filepath.Join(real, "tesseract", "8087_054.3B.tif")
 	lzw := filepath.Join(dir, "lzw.tif")
-	run(b, "convert", filepath.Join(real, "tesseract", "8087_054.3G.tif"), "-depth", "8", "-compress", "lzw", lzw)
+	ocrtest.RunTool(b, "convert", filepath.Join(real, "tesseract", "8087_054.3G.tif"), "-depth", "8", "-compress", "lzw", lzw)
 	raw := filepath.Join(dir, "none.tif")
-	run(b, "convert", filepath.Join(real, "tesseract", "8087_054.3G.tif"), "-depth", "8", "-compress", "none", raw)
+	ocrtest.RunTool(b, "convert", filepath.Join(real, "tesseract", "8087_054.3G.tif"), "-depth", "8", "-compress", "none", raw)
 	reel := filepath.Join(dir, "reel.tif")
 	args := make([]string, 0, 51)
 	for range 50 {
 		args = append(args, lzw)
 	}
-	run(b, "tiffcp", append(args, reel)...)
+	ocrtest.RunTool(b, "tiffcp", append(args, reel)...)
 
 	var d decoder
 	for _, f := range []struct{ name, path string }{{"G4", g4}, {"LZW", lzw}, {"none", raw}} {

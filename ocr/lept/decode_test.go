@@ -3,48 +3,17 @@
 package lept
 
 import (
-	"bytes"
 	"context"
 	"fmt"
 	"image"
 	"image/color"
 	"math"
-	"os"
-	"os/exec"
 	"path/filepath"
 	"testing"
 
 	"recto/ocr"
 	"recto/ocr/ocrtest"
 )
-
-// need returns the path of a command-line tool the test uses to make or
-// read reference files; without it the test fails under CI and is skipped
-// elsewhere (scripts/setup installs imagemagick, libtiff-tools, webp).
-func need(t testing.TB, tool string) string {
-	t.Helper()
-	p, err := exec.LookPath(tool)
-	if err != nil {
-		msg := fmt.Sprintf("%s is not installed (Debian: imagemagick, libtiff-tools, webp, poppler-utils, img2pdf)", tool)
-		if os.Getenv("CI") != "" {
-			t.Fatal(msg)
-		}
-		t.Skip(msg)
-	}
-	return p
-}
-
-func run(t testing.TB, name string, args ...string) []byte {
-	t.Helper()
-	cmd := exec.Command(need(t, name), args...)
-	var stderr bytes.Buffer
-	cmd.Stderr = &stderr
-	out, err := cmd.Output()
-	if err != nil {
-		t.Fatalf("%s %q: %v: %s", name, args, err, stderr.String())
-	}
-	return out
-}
 
 // magick returns ImageMagick 6's reading of path (page from 0) as packed
 // 8-bit grey or RGB samples: `convert path[page] -depth 8 gray:-` (or
@@ -55,7 +24,7 @@ func magick(t testing.TB, path string, page int, colour bool) []byte {
 	if colour {
 		out = "rgb:-"
 	}
-	return run(t, "convert", fmt.Sprintf("%s[%d]", path, page), "-depth", "8", out)
+	return ocrtest.RunTool(t, "convert", fmt.Sprintf("%s[%d]", path, page), "-depth", "8", out)
 }
 
 // samples packs img as 8-bit grey (the Gray value, for a grey image) or
@@ -150,7 +119,7 @@ func variants(real string) []variant {
 			geom = "600x400+20+40"
 		}
 		a := append([]string{src, "-crop", geom, "+repage"}, args[:len(args)-1]...)
-		run(t, "convert", append(a, out)...)
+		ocrtest.RunTool(t, "convert", append(a, out)...)
 		return out
 	}
 	given := func(p string) func(*testing.T, string) string {
@@ -162,7 +131,7 @@ func variants(real string) []variant {
 	tiffcp := func(opts ...string) func(*testing.T, string) string {
 		return func(t *testing.T, dir string) string {
 			out := filepath.Join(dir, "tiffcp.tif")
-			run(t, "tiffcp", append(opts, bilevel, out)...)
+			ocrtest.RunTool(t, "tiffcp", append(opts, bilevel, out)...)
 			return out
 		}
 	}
@@ -186,7 +155,7 @@ func variants(real string) []variant {
 		{name: "old-style JPEG in TIFF (OJPEG tags), YCbCr", make: given(filepath.Join(lept, "testbuffer.tif")), colour: true, dpi: 96},
 		{name: "tiled TIFF (256×256, LZW)", make: func(t *testing.T, d string) string {
 			out := filepath.Join(d, "tiled.tif")
-			run(t, "tiffcp", "-c", "lzw", "-t", "-w", "256", "-l", "256", filepath.Join(tess, "8087_054.3B.tif"), out)
+			ocrtest.RunTool(t, "tiffcp", "-c", "lzw", "-t", "-w", "256", "-l", "256", filepath.Join(tess, "8087_054.3B.tif"), out)
 			return out
 		}, goToo: true, dpi: 300, noLept: true},
 		{name: "JPEG 2000 file (.jp2)", make: func(t *testing.T, d string) string { return crop(t, d, grey, "-depth", "8", "x.jp2") }, dpi: -1},
@@ -200,7 +169,7 @@ func variants(real string) []variant {
 		{name: "WebP lossless", make: func(t *testing.T, d string) string {
 			png := crop(t, d, filepath.Join(tess, "phototest.tif"), "-type", "TrueColor", "x.png")
 			out := filepath.Join(d, "x.webp")
-			run(t, "cwebp", "-quiet", "-lossless", png, "-o", out)
+			ocrtest.RunTool(t, "cwebp", "-quiet", "-lossless", png, "-o", out)
 			return out
 		}, colour: true, goToo: true, dpi: -1},
 		{name: "BMP with resolution", make: func(t *testing.T, d string) string {
@@ -266,13 +235,13 @@ func TestMultiPageTIFFThroughLeptonica(t *testing.T) {
 	dir := t.TempDir()
 	scan4 := filepath.Join(real, "tesseract", "8087_054.3G.tif")
 	p4 := filepath.Join(dir, "p4.tif")
-	run(t, "convert", scan4, "-crop", "600x400+700+900", "+repage", "-depth", "4", p4)
+	ocrtest.RunTool(t, "convert", scan4, "-crop", "600x400+700+900", "+repage", "-depth", "4", p4)
 	g3 := filepath.Join(dir, "g3.tif")
-	run(t, "tiffcp", "-c", "g3", filepath.Join(real, "leptonica", "feyn.tif"), g3)
+	ocrtest.RunTool(t, "tiffcp", "-c", "g3", filepath.Join(real, "leptonica", "feyn.tif"), g3)
 	p8 := filepath.Join(dir, "p8.tif")
-	run(t, "convert", scan4, "-crop", "500x300+100+100", "+repage", "-depth", "8", p8)
+	ocrtest.RunTool(t, "convert", scan4, "-crop", "500x300+100+100", "+repage", "-depth", "8", p8)
 	reel := filepath.Join(dir, "reel.tif")
-	run(t, "tiffcp", p4, g3, p8, reel)
+	ocrtest.RunTool(t, "tiffcp", p4, g3, p8, reel)
 
 	ctx := context.Background()
 	pf, err := ocr.OpenPages(ctx, reel, ocr.DecodeOptions{})

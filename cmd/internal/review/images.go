@@ -13,8 +13,7 @@ import (
 	"path/filepath"
 	"sync"
 
-	"github.com/disintegration/imaging"
-
+	"recto/cmd/internal/run/report"
 	"recto/internal/atomicfile"
 	"recto/ocr"
 )
@@ -195,55 +194,12 @@ func encodeJPEG(img image.Image) ([]byte, error) {
 	return buf.Bytes(), nil
 }
 
-// shrink scales img to width w (height in proportion). A greyscale page,
-// nearly every scan, is averaged over whole source pixels in one pass
-// (box filter: each target pixel is the mean of the source pixels it
-// covers); any other image goes through imaging's box filter.
+// shrink scales img to width w (height in proportion) with the report's
+// area average (report.Shrink); an image no wider than w keeps its size.
 func shrink(img image.Image, w int) image.Image {
 	b := img.Bounds()
 	if b.Dx() <= w {
 		return img
 	}
-	h := max(1, (b.Dy()*w+b.Dx()/2)/b.Dx())
-	g, ok := img.(*image.Gray)
-	if !ok || g.Rect.Min != (image.Point{}) {
-		return imaging.Resize(img, w, h, imaging.Box)
-	}
-	return shrinkGray(g, w, h)
-}
-
-// shrinkGray is the area average of g at w×h: target column x covers
-// source columns [x·W/w, (x+1)·W/w), likewise for rows. Each source row
-// is added into per-column sums in one pass (col maps a source column to
-// its target column), so the work is one addition per source pixel.
-func shrinkGray(g *image.Gray, w, h int) *image.Gray {
-	sw, sh := g.Rect.Dx(), g.Rect.Dy()
-	out := image.NewGray(image.Rect(0, 0, w, h))
-	col := make([]int32, sw)
-	span := make([]uint32, w) // source columns per target column
-	for x := 0; x < w; x++ {
-		x0, x1 := x*sw/w, (x+1)*sw/w
-		for sx := x0; sx < x1; sx++ {
-			col[sx] = int32(x)
-		}
-		span[x] = uint32(x1 - x0)
-	}
-	sums := make([]uint32, w)
-	for y := 0; y < h; y++ {
-		y0, y1 := y*sh/h, (y+1)*sh/h
-		clear(sums)
-		for sy := y0; sy < y1; sy++ {
-			row := g.Pix[sy*g.Stride : sy*g.Stride+sw]
-			for sx, v := range row {
-				sums[col[sx]] += uint32(v)
-			}
-		}
-		dst := out.Pix[y*out.Stride : y*out.Stride+w]
-		rows := uint32(y1 - y0)
-		for x := range dst {
-			n := span[x] * rows
-			dst[x] = uint8((sums[x] + n/2) / n)
-		}
-	}
-	return out
+	return report.Shrink(img, w, max(1, (b.Dy()*w+b.Dx()/2)/b.Dx()))
 }

@@ -482,18 +482,6 @@ func TestThumbnailsCached(t *testing.T) {
 	}
 }
 
-// TestShrinkGrayAverages checks the box filter against the definition
-// (each target pixel the rounded mean of the source pixels it covers),
-// worked by hand on a 4×2 image halved.
-func TestShrinkGrayAverages(t *testing.T) {
-	g := image.NewGray(image.Rect(0, 0, 4, 2))
-	copy(g.Pix, []uint8{0, 10, 200, 255, 20, 30, 100, 0})
-	got := shrinkGray(g, 2, 1)
-	if want := []uint8{15, 139}; !bytes.Equal(got.Pix, want) { // (0+10+20+30)/4, (200+255+100+0)/4 = 138.75
-		t.Errorf("halved: %v, want %v", got.Pix, want)
-	}
-}
-
 // TestMissingOutputsShown: a page whose record was deleted from the run
 // folder is still shown, saying what is missing, and can be decided.
 func TestMissingOutputsShown(t *testing.T) {

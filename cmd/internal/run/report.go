@@ -90,6 +90,7 @@ func ReportWith(ctx context.Context, dir string, o ReportOptions) (string, error
 type reportMeta struct {
 	About  report.About
 	Target float64
+	jobs   int // not from the ledger: thumbnails made at once (the run's --jobs); 0 means one per core
 }
 
 // readReportMeta reads the reports' meta; a ledger written before they
@@ -181,6 +182,7 @@ func buildPartialReports(repDir, outDir, root string, rows []ledger.Page, review
 		Partial:   partial,
 		About:     about,
 		TargetCER: m.Target,
+		Jobs:      m.jobs,
 		Thumb: func(p report.Page) (image.Image, error) {
 			return pageImage(byRel[p.Rel])
 		},

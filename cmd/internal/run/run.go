@@ -388,6 +388,7 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 	if err != nil {
 		return sum, fmt.Errorf("run: %w", err)
 	}
+	m.jobs = o.Jobs
 	if err := buildReports(repDir, st.outDir, root, rows, reviews, st.tk.interval, m); err != nil {
 		return sum, err
 	}

@@ -2,6 +2,7 @@ package report
 
 import (
 	"bytes"
+	"context"
 	"fmt"
 	"html/template"
 	"math"
@@ -12,6 +13,7 @@ import (
 	"strings"
 	"unicode/utf8"
 
+	"recto/ocr/par"
 	"recto/quality"
 )
 
@@ -199,11 +201,17 @@ func htmlIn(dir string, s Summary, pages []Page, o Options) ([]byte, error) {
 	}
 	d.Worst = ok
 	if dir != "" {
+		var listed []*pageView
 		for _, list := range [][]pageView{d.Worst, d.NoText} {
 			for i := range list {
-				list[i].Thumb = thumbnail(dir, list[i].Page, o.Thumb)
+				listed = append(listed, &list[i])
 			}
 		}
+		// Each thumbnail decodes its page again: made on the one pool,
+		// o.Jobs at once.
+		par.Each(context.Background(), len(listed), o.Jobs, func(_, i int) {
+			listed[i].Thumb = thumbnail(dir, listed[i].Page, o.Thumb)
+		})
 	}
 	var buf bytes.Buffer
 	if err := pageTmpl.Execute(&buf, d); err != nil {

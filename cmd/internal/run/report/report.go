@@ -150,9 +150,12 @@ type Options struct {
 
 	// Thumb returns a page's image for its thumbnail; the HTML calls it
 	// only for the pages it lists with a ThumbKey whose thumbnail is not
-	// in the report folder yet. nil means no thumbnails are made (those
-	// already made are still shown).
+	// in the report folder yet, from Jobs goroutines at once. nil means no
+	// thumbnails are made (those already made are still shown).
 	Thumb func(Page) (image.Image, error)
+	// Jobs is how many thumbnails are made at once (Thumb is called from
+	// that many goroutines); 0 means one per core.
+	Jobs int
 
 	// Snippet returns the start of a page's final text; the HTML calls it
 	// only for the worst pages it lists whose Snippet is empty. nil means

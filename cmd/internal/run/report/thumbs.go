@@ -4,13 +4,15 @@ import (
 	"bytes"
 	"html/template"
 	"image"
+	"image/draw"
 	"image/png"
 	"os"
 	"path"
 	"path/filepath"
 	"strings"
+	"sync"
 
-	"golang.org/x/image/draw"
+	"github.com/disintegration/imaging"
 
 	"recto/internal/atomicfile"
 )
@@ -58,17 +60,91 @@ func thumbnail(dir string, p Page, get func(Page) (image.Image, error)) template
 }
 
 // thumbPNG scales img to fit thumbW × thumbH, keeping its proportions, in
-// grey (Catmull-Rom, golang.org/x/image/draw), and encodes it as PNG.
+// grey (Shrink's area average), and encodes it as PNG.
 func thumbPNG(img image.Image) ([]byte, error) {
 	b := img.Bounds()
 	scale := min(float64(thumbW)/float64(b.Dx()), float64(thumbH)/float64(b.Dy()), 1)
 	w, h := max(1, int(float64(b.Dx())*scale+0.5)), max(1, int(float64(b.Dy())*scale+0.5))
-	dst := image.NewGray(image.Rect(0, 0, w, h))
-	draw.CatmullRom.Scale(dst, dst.Bounds(), img, b, draw.Src, nil)
+	small := Shrink(img, w, h)
+	g, ok := small.(*image.Gray)
+	if !ok || g.Rect.Min != (image.Point{}) {
+		g = image.NewGray(image.Rect(0, 0, w, h))
+		draw.Draw(g, g.Rect, small, small.Bounds().Min, draw.Src)
+	}
 	var buf bytes.Buffer
-	enc := png.Encoder{CompressionLevel: png.BestCompression}
-	if err := enc.Encode(&buf, dst); err != nil {
+	enc := png.Encoder{CompressionLevel: png.BestCompression, BufferPool: thumbBuffers}
+	if err := enc.Encode(&buf, g); err != nil {
 		return nil, err
 	}
 	return buf.Bytes(), nil
+}
+
+// thumbBuffers lets the PNG encoder of one thumbnail reuse the compressor
+// of an earlier one (about 1 MB each at BestCompression).
+var thumbBuffers = &pngBuffers{}
+
+type pngBuffers struct{ pool sync.Pool }
+
+func (p *pngBuffers) Get() *png.EncoderBuffer {
+	b, _ := p.pool.Get().(*png.EncoderBuffer)
+	return b
+}
+
+func (p *pngBuffers) Put(b *png.EncoderBuffer) { p.pool.Put(b) }
+
+// Shrink scales img down to w×h, each target pixel the mean of the source
+// pixels it covers (a box filter, the area average). A greyscale image,
+// nearly every scan, is averaged in one pass (shrinkGray) and stays
+// greyscale; any other image goes through imaging's box filter
+// (github.com/disintegration/imaging) and comes back as NRGBA. An image
+// already no larger than w×h in both directions is returned as it is.
+// The report's thumbnails and recto review's thumbnails and page images
+// are made with it.
+func Shrink(img image.Image, w, h int) image.Image {
+	b := img.Bounds()
+	if b.Dx() <= w && b.Dy() <= h {
+		return img
+	}
+	g, ok := img.(*image.Gray)
+	if !ok || g.Rect.Min != (image.Point{}) || b.Dx() < w || b.Dy() < h {
+		return imaging.Resize(img, w, h, imaging.Box)
+	}
+	return shrinkGray(g, w, h)
+}
+
+// shrinkGray is the area average of g at w×h (no larger than g): target
+// column x covers source columns [x·W/w, (x+1)·W/w), likewise for rows.
+// Each source row is added into per-column sums in one pass (col maps a
+// source column to its target column), so the work is one addition per
+// source pixel.
+func shrinkGray(g *image.Gray, w, h int) *image.Gray {
+	sw, sh := g.Rect.Dx(), g.Rect.Dy()
+	out := image.NewGray(image.Rect(0, 0, w, h))
+	col := make([]int32, sw)
+	span := make([]uint32, w) // source columns per target column
+	for x := 0; x < w; x++ {
+		x0, x1 := x*sw/w, (x+1)*sw/w
+		for sx := x0; sx < x1; sx++ {
+			col[sx] = int32(x)
+		}
+		span[x] = uint32(x1 - x0)
+	}
+	sums := make([]uint32, w)
+	for y := 0; y < h; y++ {
+		y0, y1 := y*sh/h, (y+1)*sh/h
+		clear(sums)
+		for sy := y0; sy < y1; sy++ {
+			row := g.Pix[sy*g.Stride : sy*g.Stride+sw]
+			for sx, v := range row {
+				sums[col[sx]] += uint32(v)
+			}
+		}
+		dst := out.Pix[y*out.Stride : y*out.Stride+w]
+		rows := uint32(y1 - y0)
+		for x := range dst {
+			n := span[x] * rows
+			dst[x] = uint8((sums[x] + n/2) / n)
+		}
+	}
+	return out
 }

@@ -249,6 +249,9 @@ func decodeBytes(data []byte, maxPixels int) (*Decoded, error) {
 			err = tiff.UnsupportedError(fmt.Sprintf("compression value %d", c))
 		} else {
 			img, err = tiff.Decode(bytes.NewReader(data))
+			if err == nil {
+				img = ccittPolarity(img, &ifds[0])
+			}
 		}
 	case "png":
 		img, err = png.Decode(bytes.NewReader(data))

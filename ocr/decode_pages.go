@@ -137,6 +137,9 @@ func (p *PageFile) tiffPage(n int) (*Decoded, error) {
 		err = tiff.UnsupportedError(fmt.Sprintf("compression value %d", ifd.compression))
 	} else {
 		img, err = decodeTIFFSafe(r)
+		if err == nil {
+			img = ccittPolarity(img, &ifd)
+		}
 	}
 	if err != nil {
 		derr := goError("tiff", &ifd, err)

@@ -4,6 +4,7 @@ import (
 	"encoding/binary"
 	"errors"
 	"fmt"
+	"image"
 	"io"
 )
 
@@ -180,3 +181,29 @@ func (a *ifdAt) ReadAt(p []byte, off int64) (int, error) {
 // Read makes ifdAt an io.Reader too (tiff.Decode takes one and then uses
 // ReadAt); sequential reads are never made.
 func (a *ifdAt) Read(p []byte) (int, error) { return 0, errors.New("ifdAt: sequential read") }
+
+// ccittPolarity makes a bilevel CCITT Group 3 or 4 page that
+// golang.org/x/image/tiff decoded show as TIFF 6.0 (Adobe 1992) says it
+// must: the CCITT codes are white and black runs, and "if the
+// PhotometricInterpretation is BlackIsZero, the TIFF reader must reverse
+// the meaning of white and black when displaying and printing the image"
+// (section 11, CCITT Bilevel Encodings; the same in section 10 for
+// Modified Huffman). x/image/tiff v0.48 shows the runs as they are
+// whatever the tag says, so a BlackIsZero page (witten.tif, minisblack.tif
+// of leptonlib's prog/) came out light on dark; libtiff and Leptonica
+// reverse it. img is reversed in place and returned. Compression 2 is not
+// read by x/image/tiff (Leptonica reads it, following the tag) and is left
+// alone, as are all other pages.
+func ccittPolarity(img image.Image, ifd *tiffIFD) image.Image {
+	if ifd == nil || ifd.photometric != 1 || (ifd.compression != 3 && ifd.compression != 4) {
+		return img
+	}
+	g, ok := img.(*image.Gray)
+	if !ok {
+		return img
+	}
+	for i, v := range g.Pix {
+		g.Pix[i] = 255 - v
+	}
+	return g
+}

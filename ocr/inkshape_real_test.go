@@ -46,7 +46,7 @@ var inkPages = []inkPage{
 	{"brev.53.75.jpg", "breviary", "breviary, 75 dpi", true, false},
 	{"pancrazi.15.jpg", "pancrazi", "title page printed sideways, about 100 dpi", true, false},
 	{"lyra.005.jpg", "lyra", "title page printed sideways, with a vignette", true, false},
-	{"witten.tif", "witten", "article, bilevel, decoded light on dark", true, false},
+	{"witten.tif", "witten", "article, bilevel, BlackIsZero", true, false},
 	{"candelabrum.011.jpg", "candelabrum", "dedication page, 75 dpi", true, false},
 	{"colorpage.030.jpg", "colorpage", "book page with two bar charts, 75 dpi", true, false},
 	{"stampede2.jpg", "stampede", "newspaper column", true, false},

@@ -114,7 +114,7 @@ var textPicturePages = []textPicturePage{
 	{"brev.20.75.jpg", "breviary, 75 dpi, untagged", true, false},
 	{"brev.53.75.jpg", "breviary, 75 dpi, untagged", true, false},
 	{"lyra.005.jpg", "title page printed sideways, with a vignette", true, false},
-	{"witten.tif", "article, bilevel, decoded light on dark", true, false},
+	{"witten.tif", "article, bilevel, BlackIsZero", true, false},
 	{"candelabrum.011.jpg", "dedication page, 75 dpi", true, false},
 	{"colorpage.030.jpg", "book page with two bar charts, 75 dpi", true, false},
 	{"stampede2.jpg", "newspaper column", true, false},

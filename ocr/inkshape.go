@@ -4,6 +4,7 @@ import (
 	"image"
 	"math"
 	"sort"
+	"sync"
 )
 
 // InkShape describes the ink of a page as connected components: how much
@@ -97,12 +98,18 @@ func measureInk(g *image.Gray, t int) InkShape {
 	w, h := g.Rect.Dx(), g.Rect.Dy()
 	b := image.NewGray(image.Rect(0, 0, w, h))
 	threshold(b, g, t)
-	s := measureBinary(b)
+	// The runs of up to four measures share one buffer, kept between pages:
+	// a page whose ink does not look like text is measured four times, and
+	// growing a new run list each time cost more than the labelling itself
+	// (BenchmarkRunOverhead's noise pages, cmd/internal/run).
+	sp := runPool.Get().(*[]run)
+	defer runPool.Put(sp)
+	s := measureBinary(b, sp)
 	if s.LooksLikeText() {
 		return s
 	}
 	bt := transposed(b)
-	if st := measureBinary(bt); st.LooksLikeText() {
+	if st := measureBinary(bt, sp); st.LooksLikeText() {
 		st.Turned = true
 		return st
 	}
@@ -116,18 +123,21 @@ func measureInk(g *image.Gray, t int) InkShape {
 	}
 	if 2*dark > w*h {
 		invert(b)
-		if si := measureBinary(b); si.LooksLikeText() {
+		if si := measureBinary(b, sp); si.LooksLikeText() {
 			si.Inverted = true
 			return si
 		}
 		invert(bt)
-		if si := measureBinary(bt); si.LooksLikeText() {
+		if si := measureBinary(bt, sp); si.LooksLikeText() {
 			si.Inverted, si.Turned = true, true
 			return si
 		}
 	}
 	return s
 }
+
+// runPool holds run buffers for measureInk, one per page measured at once.
+var runPool = sync.Pool{New: func() any { return new([]run) }}
 
 // transposed returns b mirrored about its diagonal: rows become columns,
 // so that lines running up or down the page run across it (the order of
@@ -155,11 +165,11 @@ func invert(b *image.Gray) {
 }
 
 // measureBinary measures the shape of the ink (0) of the binary image b
-// (see measureInk).
-func measureBinary(b *image.Gray) InkShape {
+// (see measureInk). *runs is scratch space, grown as needed.
+func measureBinary(b *image.Gray, runs *[]run) InkShape {
 	w, h := b.Rect.Dx(), b.Rect.Dy()
-	runs := components(b, nil)
-	stats, roots := componentStats(runs)
+	*runs = components(b, *runs)
+	stats, roots := componentStats(*runs)
 	var res InkShape
 	ink := 0
 	var letters []mark

@@ -393,59 +393,28 @@ func (d *decoder) u64() uint64 {
 	return binary.LittleEndian.Uint64(b)
 }
 
-func (d *decoder) u32s(n uint64) []uint32 {
-	if n > uint64(len(d.b))/4 {
+// readTable reads n little-endian values of T (4 or 8 bytes each), in
+// place where the machine is little-endian.
+func readTable[T uint32 | uint64 | int64](d *decoder, n uint64) []T {
+	size := uint64(unsafe.Sizeof(T(0)))
+	if n > uint64(len(d.b))/size {
 		d.fail("a table runs past the end")
 		return nil
 	}
-	b := d.take(4 * n)
+	b := d.take(size * n)
 	if n == 0 || b == nil {
-		return []uint32{}
+		return []T{}
 	}
 	if littleEndian {
-		return unsafe.Slice((*uint32)(unsafe.Pointer(&b[0])), n)
+		return unsafe.Slice((*T)(unsafe.Pointer(&b[0])), n)
 	}
-	out := make([]uint32, n)
+	out := make([]T, n)
 	for i := range out {
-		out[i] = binary.LittleEndian.Uint32(b[4*i:])
-	}
-	return out
-}
-
-func (d *decoder) u64s(n uint64) []uint64 {
-	if n > uint64(len(d.b))/8 {
-		d.fail("a table runs past the end")
-		return nil
-	}
-	b := d.take(8 * n)
-	if n == 0 || b == nil {
-		return []uint64{}
-	}
-	if littleEndian {
-		return unsafe.Slice((*uint64)(unsafe.Pointer(&b[0])), n)
-	}
-	out := make([]uint64, n)
-	for i := range out {
-		out[i] = binary.LittleEndian.Uint64(b[8*i:])
-	}
-	return out
-}
-
-func (d *decoder) i64s(n uint64) []int64 {
-	if n > uint64(len(d.b))/8 {
-		d.fail("a table runs past the end")
-		return nil
-	}
-	b := d.take(8 * n)
-	if n == 0 || b == nil {
-		return []int64{}
-	}
-	if littleEndian {
-		return unsafe.Slice((*int64)(unsafe.Pointer(&b[0])), n)
-	}
-	out := make([]int64, n)
-	for i := range out {
-		out[i] = int64(binary.LittleEndian.Uint64(b[8*i:]))
+		if size == 4 {
+			out[i] = T(binary.LittleEndian.Uint32(b[4*i:]))
+		} else {
+			out[i] = T(binary.LittleEndian.Uint64(b[8*i:]))
+		}
 	}
 	return out
 }
@@ -462,7 +431,7 @@ func (d *decoder) table() *table {
 		d.fail("bad table sizes")
 		return nil
 	}
-	t := &table{offs: d.u32s(n + 1), vals: d.i64s(n), slots: d.u64s(slots)}
+	t := &table{offs: readTable[uint32](d, n+1), vals: readTable[int64](d, n), slots: readTable[uint64](d, slots)}
 	arena := d.take(keyBytes)
 	if d.err != nil {
 		return nil

@@ -30,6 +30,14 @@ func compactPair(t *testing.T, text string) (string, *Lexicon, *Lexicon) {
 		t.Fatal(err)
 	}
 	path := filepath.Join(dir, "xx.lex.gz")
+	direct, c := saveBoth(t, l, path)
+	return path, direct, c
+}
+
+// saveBoth saves l to path with its compact form beside it and reads it
+// back both ways: the direct load and the compact form.
+func saveBoth(t *testing.T, l *Lexicon, path string) (direct, c *Lexicon) {
+	t.Helper()
 	if err := l.Save(path); err != nil {
 		t.Fatal(err)
 	}
@@ -40,11 +48,11 @@ func compactPair(t *testing.T, text string) (string, *Lexicon, *Lexicon) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	c, err := readCompact(CompactPath(path), mustReadFile(t, path))
+	c, err = readCompact(CompactPath(path), mustReadFile(t, path))
 	if err != nil {
 		t.Fatal(err)
 	}
-	return path, direct, c
+	return direct, c
 }
 
 func mustReadFile(t *testing.T, path string) []byte {
@@ -267,21 +275,7 @@ func TestCompactAgreement(t *testing.T) {
 				t.Fatalf("%s.dic is missing: install the Debian package %s (scripts/setup does)", lg.dic, Recipes[lg.code].Hunspell[0].Package)
 			}
 			built, words := agreementSample(t, lg.code, lg.dic)
-			path := filepath.Join(t.TempDir(), lg.code+".lex.gz")
-			if err := built.Save(path); err != nil {
-				t.Fatal(err)
-			}
-			if err := WriteCompact(path); err != nil {
-				t.Fatal(err)
-			}
-			direct, err := Load(path)
-			if err != nil {
-				t.Fatal(err)
-			}
-			c, err := readCompact(CompactPath(path), mustReadFile(t, path))
-			if err != nil {
-				t.Fatal(err)
-			}
+			direct, c := saveBoth(t, built, filepath.Join(t.TempDir(), lg.code+".lex.gz"))
 			var all []string
 			for _, w := range words {
 				all = append(all, w, flipCase(w), strings.ToUpper(w))

@@ -170,24 +170,8 @@ func TestLangRenderedPages(t *testing.T) {
 	testLexicons(t)
 	for _, c := range []struct{ code, lang string }{{"nob", "nor"}, {"nno", "nor"}, {"deu", "deu"}} {
 		t.Run(c.code, func(t *testing.T) {
-			text := heldOutText(t, c.code)
 			in, ocrDir := t.TempDir(), t.TempDir()
-			truth := map[string]string{}
-			for i := 0; i < 2 && strings.TrimSpace(text) != ""; i++ {
-				p, rest, err := synth.Render(text, synth.Layout{})
-				if err != nil {
-					t.Fatal(err)
-				}
-				text = rest
-				name := fmt.Sprintf("p%d", i+1)
-				if err := p.SavePNG(filepath.Join(in, name+".png")); err != nil {
-					t.Fatal(err)
-				}
-				truth[name] = p.Truth
-			}
-			if len(truth) == 0 {
-				t.Fatalf("%s: no held-out text", c.code)
-			}
+			truth := renderHeldOut(t, c.code, in, "p", 0)
 			if _, stderr, err := runRecto(t, "-q", "ocr", in, "--out", ocrDir, "--lang", c.lang, "--jobs", "1"); err != nil {
 				t.Fatalf("ocr: %v\n%s", err, stderr)
 			}
@@ -232,13 +216,7 @@ func TestLangRenderedPages(t *testing.T) {
 					}
 					t.Logf("changes:\n%s\nunknown: %q", cj, unknown)
 				}
-				var before, after quality.Counts
-				for name, tr := range truth {
-					o, _ := os.ReadFile(filepath.Join(ocrDir, name+".txt"))
-					a, _ := os.ReadFile(filepath.Join(cor, name+".txt"))
-					before = before.Add(quality.Compare(tr, string(o), quality.NormOptions{}))
-					after = after.Add(quality.Compare(tr, string(a), quality.NormOptions{}))
-				}
+				before, after := beforeAfter(truth, ocrDir, cor)
 				var decisions []string
 				for _, p := range rep.Pages {
 					decisions = append(decisions, fmt.Sprintf("%s %s %.1f%% (%s)", p.Page, p.Decision, 100*p.PredictedCER, strings.Join(p.Reasons, "; ")))
@@ -265,6 +243,46 @@ func TestLangRenderedPages(t *testing.T) {
 	}
 }
 
+// renderHeldOut renders two pages of the held-out running text of a
+// lexicon code into dir as PREFIX1.png and PREFIX2.png, degraded by
+// synth.Level(level) when level > 0, and returns their truths by name.
+func renderHeldOut(t *testing.T, code, dir, prefix string, level float64) map[string]string {
+	t.Helper()
+	text := heldOutText(t, code)
+	truth := map[string]string{}
+	for i := 0; i < 2 && strings.TrimSpace(text) != ""; i++ {
+		p, rest, err := synth.Render(text, synth.Layout{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		text = rest
+		if level > 0 {
+			p = synth.Degrade(p, synth.Level(level, uint64(101+i)))
+		}
+		name := fmt.Sprintf("%s%d", prefix, i+1)
+		if err := p.SavePNG(filepath.Join(dir, name+".png")); err != nil {
+			t.Fatal(err)
+		}
+		truth[name] = p.Truth
+	}
+	if len(truth) == 0 {
+		t.Fatalf("%s: no held-out text", code)
+	}
+	return truth
+}
+
+// beforeAfter scores the pages of truth as read (ocrDir) and as corrected
+// (cor).
+func beforeAfter(truth map[string]string, ocrDir, cor string) (before, after quality.Counts) {
+	for name, tr := range truth {
+		o, _ := os.ReadFile(filepath.Join(ocrDir, name+".txt"))
+		a, _ := os.ReadFile(filepath.Join(cor, name+".txt"))
+		before = before.Add(quality.Compare(tr, string(o), quality.NormOptions{}))
+		after = after.Add(quality.Compare(tr, string(a), quality.NormOptions{}))
+	}
+	return before, after
+}
+
 // TestLangDegradedPages: moderately degraded pages (ocr/synth.Level 0.5:
 // blur, noise, wear, fading and the like, calibrated in docs/dev-synth.md)
 // rendered from the same held-out Bokmål, Nynorsk and German catalog text
@@ -284,25 +302,8 @@ func TestLangDegradedPages(t *testing.T) {
 	testLexicons(t)
 	for _, c := range []struct{ code, lang string }{{"nob", "nor"}, {"nno", "nor"}, {"deu", "deu"}} {
 		t.Run(c.code, func(t *testing.T) {
-			text := heldOutText(t, c.code)
 			in, ocrDir := t.TempDir(), t.TempDir()
-			truth := map[string]string{}
-			for i := 0; i < 2 && strings.TrimSpace(text) != ""; i++ {
-				p, rest, err := synth.Render(text, synth.Layout{})
-				if err != nil {
-					t.Fatal(err)
-				}
-				text = rest
-				p = synth.Degrade(p, synth.Level(0.5, uint64(101+i)))
-				name := fmt.Sprintf("d%d", i+1)
-				if err := p.SavePNG(filepath.Join(in, name+".png")); err != nil {
-					t.Fatal(err)
-				}
-				truth[name] = p.Truth
-			}
-			if len(truth) == 0 {
-				t.Fatalf("%s: no held-out text", c.code)
-			}
+			truth := renderHeldOut(t, c.code, in, "d", 0.5)
 			if _, stderr, err := runRecto(t, "-q", "ocr", in, "--out", ocrDir, "--lang", c.lang, "--jobs", "1"); err != nil {
 				t.Fatalf("ocr: %v\n%s", err, stderr)
 			}
@@ -321,13 +322,7 @@ func TestLangDegradedPages(t *testing.T) {
 					t.Fatalf("correct: %v\n%s", err, stderr)
 				}
 				wrong, right, wrongs := judge(t, cor, tw, rawTokens(all))
-				var before, after quality.Counts
-				for name, tr := range truth {
-					o, _ := os.ReadFile(filepath.Join(ocrDir, name+".txt"))
-					a, _ := os.ReadFile(filepath.Join(cor, name+".txt"))
-					before = before.Add(quality.Compare(tr, string(o), quality.NormOptions{}))
-					after = after.Add(quality.Compare(tr, string(a), quality.NormOptions{}))
-				}
+				before, after := beforeAfter(truth, ocrDir, cor)
 				cb := float64(before.CharErrors) / float64(before.Chars)
 				ca := float64(after.CharErrors) / float64(after.Chars)
 				t.Logf("%s --lang %q: CER %.2f%% -> %.2f%% (%.3fx); %d right, %d wrong changes %v",

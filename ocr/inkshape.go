@@ -98,18 +98,19 @@ func measureInk(g *image.Gray, t int) InkShape {
 	w, h := g.Rect.Dx(), g.Rect.Dy()
 	b := image.NewGray(image.Rect(0, 0, w, h))
 	threshold(b, g, t)
-	// The runs of up to four measures share one buffer, kept between pages:
-	// a page whose ink does not look like text is measured four times, and
-	// growing a new run list each time cost more than the labelling itself
-	// (BenchmarkRunOverhead's noise pages, cmd/internal/run).
+	// The labellings share one run buffer, kept between pages: growing a
+	// new run list for each page cost more than the labelling itself
+	// (BenchmarkRunOverhead's noise pages, cmd/internal/run). The page
+	// turned a quarter is not labelled again: turning keeps every
+	// component, with its box turned (see turnMarks).
 	sp := runPool.Get().(*[]run)
 	defer runPool.Put(sp)
-	s := measureBinary(b, sp)
+	marks := inkMarks(b, sp)
+	s := measureMarks(marks, h)
 	if s.LooksLikeText() {
 		return s
 	}
-	bt := transposed(b)
-	if st := measureBinary(bt, sp); st.LooksLikeText() {
+	if st := measureMarks(turnMarks(marks), w); st.LooksLikeText() {
 		st.Turned = true
 		return st
 	}
@@ -123,12 +124,12 @@ func measureInk(g *image.Gray, t int) InkShape {
 	}
 	if 2*dark > w*h {
 		invert(b)
-		if si := measureBinary(b, sp); si.LooksLikeText() {
+		marks = inkMarks(b, sp)
+		if si := measureMarks(marks, h); si.LooksLikeText() {
 			si.Inverted = true
 			return si
 		}
-		invert(bt)
-		if si := measureBinary(bt, sp); si.LooksLikeText() {
+		if si := measureMarks(turnMarks(marks), w); si.LooksLikeText() {
 			si.Inverted, si.Turned = true, true
 			return si
 		}
@@ -138,20 +139,6 @@ func measureInk(g *image.Gray, t int) InkShape {
 
 // runPool holds run buffers for measureInk, one per page measured at once.
 var runPool = sync.Pool{New: func() any { return new([]run) }}
-
-// transposed returns b mirrored about its diagonal: rows become columns,
-// so that lines running up or down the page run across it (the order of
-// the letters along a line does not matter to the measure).
-func transposed(b *image.Gray) *image.Gray {
-	w, h := b.Rect.Dx(), b.Rect.Dy()
-	o := image.NewGray(image.Rect(0, 0, h, w))
-	for y := 0; y < h; y++ {
-		for x, v := range b.Pix[y*b.Stride : y*b.Stride+w] {
-			o.Pix[x*o.Stride+y] = v
-		}
-	}
-	return o
-}
 
 // invert swaps the two levels of the binary image b in place.
 func invert(b *image.Gray) {
@@ -164,23 +151,48 @@ func invert(b *image.Gray) {
 	}
 }
 
-// measureBinary measures the shape of the ink (0) of the binary image b
-// (see measureInk). *runs is scratch space, grown as needed.
-func measureBinary(b *image.Gray, runs *[]run) InkShape {
+// inkMarks returns the boxes and areas of the 8-connected components of
+// the ink (0) of the binary image b that measureMarks considers: at least
+// 2 pixels, not touching the image's edge. *runs is scratch space.
+func inkMarks(b *image.Gray, runs *[]run) []mark {
 	w, h := b.Rect.Dx(), b.Rect.Dy()
 	*runs = components(b, *runs)
 	stats, roots := componentStats(*runs)
-	var res InkShape
-	ink := 0
-	var letters []mark
+	var ms []mark
 	for _, root := range roots {
 		s := stats[root]
 		if s.area < 2 || s.x0 == 0 || s.y0 == 0 || int(s.x1) == w || int(s.y1) == h {
 			continue
 		}
+		ms = append(ms, mark{s.x0, s.y0, s.x1, s.y1, s.area})
+	}
+	return ms
+}
+
+// turnMarks returns the marks of the image mirrored about its diagonal
+// (rows become columns, so that lines running up or down the page run
+// across it; the order of the letters along a line does not matter to the
+// measure): the same components with x and y swapped. Mirroring keeps
+// 8-connectivity, areas and the edge test, and measureMarks does not
+// depend on the order of the marks, so the marks need not be labelled
+// again on a mirrored image (TestTurnMarksAgreesWithMirroredPage).
+func turnMarks(ms []mark) []mark {
+	out := make([]mark, len(ms))
+	for i, m := range ms {
+		out[i] = mark{m.y0, m.x0, m.y1, m.x1, m.area}
+	}
+	return out
+}
+
+// measureMarks measures the shape of the ink whose components are ms (see
+// inkMarks), on an image h pixels tall (see measureInk).
+func measureMarks(ms []mark, h int) InkShape {
+	var res InkShape
+	ink := 0
+	var letters []mark
+	for _, m := range ms {
 		res.Components++
-		ink += s.area
-		m := mark{s.x0, s.y0, s.x1, s.y1, s.area}
+		ink += m.area
 		if m.h() >= minXHeight && int(m.h())*10 < h && m.w() <= 8*m.h() && m.area*10 >= int(m.w())*int(m.h()) {
 			letters = append(letters, m)
 		}

@@ -327,3 +327,36 @@ func negative(g *image.Gray) *image.Gray {
 	}
 	return o
 }
+
+// TestTurnMarksAgreesWithMirroredPage: measureInk measures a page turned a
+// quarter from the marks it found on the page as it lies, with x and y
+// swapped, instead of labelling the mirrored page again. On every labelled
+// real scan, both ways, the two measures must be equal in every figure.
+// (Mirroring keeps 8-connected components: common practice, e.g. Gonzalez
+// and Woods, Digital Image Processing, on connectivity.)
+func TestTurnMarksAgreesWithMirroredPage(t *testing.T) {
+	if testing.Short() {
+		t.Skip(longSequential)
+	}
+	dir := filepath.Join(ocrtest.RealPages(t), "leptonica")
+	withLines := 0
+	for _, p := range inkPages {
+		d, err := ocr.DecodeFile(filepath.Join(dir, p.file), ocr.DecodeOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		fromMarks, relabelled := ocr.TurnedTwoWays(d.Image)
+		for i, way := range []string{"turned", "turned back"} {
+			if fromMarks[i] != relabelled[i] {
+				t.Errorf("%s, %s: from the marks %+v, labelled anew %+v", p.file, way, fromMarks[i], relabelled[i])
+			}
+			if relabelled[i].Lines > 0 {
+				withLines++
+			}
+		}
+	}
+	// The comparison means little if no measure found lines.
+	if withLines < len(inkPages)/2 {
+		t.Errorf("only %d of %d measures found lines", withLines, 2*len(inkPages))
+	}
+}

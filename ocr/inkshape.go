@@ -24,6 +24,14 @@ type InkShape struct {
 	Denoised   bool    `json:"denoised,omitempty"` // measured on the denoised page (the noisy page's ink did not look like text): the x-height is not trusted for the resolution
 	Turned     bool    `json:"turned,omitempty"`   // measured on the page turned a quarter: its lines run up or down the page (a title page printed sideways)
 	Inverted   bool    `json:"inverted,omitempty"` // measured as light marks on dark: the pixels above the threshold, the majority of the page, taken for ink
+
+	// SmallText is set when the ink does not look like text at letter
+	// size but does when marks from minSmallHeight pixels tall are taken
+	// for letters (as the page lies or turned a quarter): print too small
+	// for the scan's resolution, such as a book photographed at 45 dpi.
+	// It is not used for the resolution (paper grain takes that size too,
+	// and the denoised measure of a noisy page replaces this one).
+	SmallText bool `json:"small_text,omitempty"`
 }
 
 // Text-shape limits (our own, checked on the real scans of
@@ -51,6 +59,10 @@ const (
 	// Tesseract documentation, "Improving the quality of the output",
 	// from memory), and halftone dots and paper grain take that size.
 	minXHeight = 4
+
+	// minSmallHeight is the smallest height of a mark taken for a letter
+	// by the small-print measure (InkShape.SmallText).
+	minSmallHeight = 2
 )
 
 // LooksLikeText reports whether the ink has the shape of text (see
@@ -106,11 +118,12 @@ func measureInk(g *image.Gray, t int) InkShape {
 	sp := runPool.Get().(*[]run)
 	defer runPool.Put(sp)
 	marks := inkMarks(b, sp)
-	s := measureMarks(marks, h)
+	s := measureMarks(marks, h, minXHeight)
 	if s.LooksLikeText() {
 		return s
 	}
-	if st := measureMarks(turnMarks(marks), w); st.LooksLikeText() {
+	turned := turnMarks(marks)
+	if st := measureMarks(turned, w, minXHeight); st.LooksLikeText() {
 		st.Turned = true
 		return st
 	}
@@ -124,16 +137,18 @@ func measureInk(g *image.Gray, t int) InkShape {
 	}
 	if 2*dark > w*h {
 		invert(b)
-		marks = inkMarks(b, sp)
-		if si := measureMarks(marks, h); si.LooksLikeText() {
+		inv := inkMarks(b, sp)
+		if si := measureMarks(inv, h, minXHeight); si.LooksLikeText() {
 			si.Inverted = true
 			return si
 		}
-		if si := measureMarks(turnMarks(marks), w); si.LooksLikeText() {
+		if si := measureMarks(turnMarks(inv), w, minXHeight); si.LooksLikeText() {
 			si.Inverted, si.Turned = true, true
 			return si
 		}
 	}
+	s.SmallText = measureMarks(marks, h, minSmallHeight).LooksLikeText() ||
+		measureMarks(turned, w, minSmallHeight).LooksLikeText()
 	return s
 }
 
@@ -185,15 +200,16 @@ func turnMarks(ms []mark) []mark {
 }
 
 // measureMarks measures the shape of the ink whose components are ms (see
-// inkMarks), on an image h pixels tall (see measureInk).
-func measureMarks(ms []mark, h int) InkShape {
+// inkMarks), on an image h pixels tall (see measureInk), taking marks from
+// minH pixels tall for letters.
+func measureMarks(ms []mark, h int, minH int32) InkShape {
 	var res InkShape
 	ink := 0
 	var letters []mark
 	for _, m := range ms {
 		res.Components++
 		ink += m.area
-		if m.h() >= minXHeight && int(m.h())*10 < h && m.w() <= 8*m.h() && m.area*10 >= int(m.w())*int(m.h()) {
+		if m.h() >= minH && int(m.h())*10 < h && m.w() <= 8*m.h() && m.area*10 >= int(m.w())*int(m.h()) {
 			letters = append(letters, m)
 		}
 	}
@@ -211,14 +227,14 @@ func measureMarks(ms []mark, h int) InkShape {
 	sort.Ints(hs)
 	xh := float64(hs[len(hs)/2])
 	for pass := 0; pass < 2; pass++ {
-		lines := chainLines(letters, xh)
+		lines := chainLines(letters, xh, minH)
 		mode := lineHeightMode(letters, lines)
 		if mode == 0 {
 			return res
 		}
 		xh = mode
 	}
-	lines := chainLines(letters, xh)
+	lines := chainLines(letters, xh, minH)
 	res.XHeight = xh
 	inLines, marksOn := 0, 0
 	type line struct{ x0, x1, bottom int32 }
@@ -270,10 +286,10 @@ func measureMarks(ms []mark, h int) InkShape {
 
 // chainLines joins marks that sit side by side (vertical overlap of at
 // least half the shorter one, horizontal gap under lineGap·xh, heights
-// within a factor of 2.5 of xh) and returns the groups of at least
+// within a factor of 2.5 of xh and at least minH) and returns the groups of at least
 // minLineMarks marks, each as indices into marks.
-func chainLines(marks []mark, xh float64) [][]int {
-	lo, hi := int32(math.Max(minXHeight, math.Floor(0.5*xh))), int32(math.Ceil(2.5*xh))
+func chainLines(marks []mark, xh float64, minH int32) [][]int {
+	lo, hi := max(minH, int32(math.Floor(0.5*xh))), int32(math.Ceil(2.5*xh))
 	idx := make([]int, 0, len(marks))
 	for i, m := range marks {
 		if m.h() >= lo && m.h() <= hi {

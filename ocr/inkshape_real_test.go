@@ -108,6 +108,11 @@ var inkGaps = map[string]string{
 	"binding-example.45.jpg": "book page photographed at 45 dpi",
 }
 
+// smallPrint: the known gaps whose ink does look like text when marks of
+// 2-3 pixels are taken for letters (InkShape.SmallText), so that triage
+// sends them for rescanning, not to picture.
+var smallPrint = map[string]bool{"binding-example.45.jpg": true}
+
 // TestInkShapeRealPagesLabelled (the real-scans issue, part 5): on the
 // labelled real scans of inkPages, the ink of every page of text looks
 // like text (as it lies, turned a quarter or light on dark) and the ink of
@@ -152,10 +157,13 @@ func TestInkShapeRealPagesLabelled(t *testing.T) {
 		}
 		kind := map[bool]string{true: "text", false: "pictures"}[p.text]
 		count[kind+", "+set]++
-		t.Logf("%-22s %-8s %-34s text-like %-5v turned %-5v inverted %-5v  %3d lines, %.2f of %4d marks on lines, text ink %.2f, x-height %.1f",
-			p.file, kind, set, s.LooksLikeText(), s.Turned, s.Inverted, s.Lines, share(s), s.Letters, s.TextInk, s.XHeight)
+		t.Logf("%-22s %-8s %-34s text-like %-5v turned %-5v inverted %-5v small %-5v %3d lines, %.2f of %4d marks on lines, text ink %.2f, x-height %.1f",
+			p.file, kind, set, s.LooksLikeText(), s.Turned, s.Inverted, s.SmallText, s.Lines, share(s), s.Letters, s.TextInk, s.XHeight)
 		if s.LooksLikeText() != p.text {
 			t.Errorf("%s (%s): looks like text %v, want %v (%+v)", p.file, p.kind, s.LooksLikeText(), p.text, s)
+		}
+		if !p.text && s.SmallText {
+			t.Errorf("%s (%s): a picture measured as small print", p.file, p.kind)
 		}
 	}
 	keys := make([]string, 0, len(count))
@@ -215,7 +223,10 @@ func TestInkShapeRealPagesLabelled(t *testing.T) {
 			t.Errorf("%s (%s) is listed as a known gap but its ink looks like text now: take it off the list", f, why)
 			continue
 		}
-		t.Logf("KNOWN GAP %s (%s): text whose ink does not look like text: %d lines, %.2f of %d marks on lines", f, why, pr.Ink.Lines, share(pr.Ink), pr.Ink.Letters)
+		t.Logf("KNOWN GAP %s (%s): text whose ink does not look like text: %d lines, %.2f of %d marks on lines; small print %v", f, why, pr.Ink.Lines, share(pr.Ink), pr.Ink.Letters, pr.Ink.SmallText)
+		if want := smallPrint[f]; pr.Ink.SmallText != want {
+			t.Errorf("%s (%s): measured as small print %v, want %v", f, why, pr.Ink.SmallText, want)
+		}
 	}
 }
 

@@ -20,10 +20,10 @@ func TurnedTwoWays(img image.Image) (fromMarks, relabelled [2]InkShape) {
 	threshold(b, g, otsu(histogram(g)))
 	bt := transposed(b)
 	var runs []run
-	fromMarks[0] = measureMarks(turnMarks(inkMarks(b, &runs)), w)
-	relabelled[0] = measureMarks(inkMarks(bt, &runs), w)
-	fromMarks[1] = measureMarks(turnMarks(inkMarks(bt, &runs)), h)
-	relabelled[1] = measureMarks(inkMarks(b, &runs), h)
+	fromMarks[0] = measureMarks(turnMarks(inkMarks(b, &runs)), w, minXHeight)
+	relabelled[0] = measureMarks(inkMarks(bt, &runs), w, minXHeight)
+	fromMarks[1] = measureMarks(turnMarks(inkMarks(bt, &runs)), h, minXHeight)
+	relabelled[1] = measureMarks(inkMarks(b, &runs), h, minXHeight)
 	return fromMarks, relabelled
 }
 

@@ -62,10 +62,14 @@ type Features struct {
 	// ink (ocr.Record.Ink; records from before it was measured do not);
 	// TextLikeInk says whether that ink has the shape of text (lines of
 	// letter-sized marks, ocr.InkShape.LooksLikeText) and InkLines counts
-	// those lines.
-	InkMeasured bool `json:"ink_measured"`
-	TextLikeInk bool `json:"text_like_ink"`
-	InkLines    int  `json:"ink_lines"`
+	// those lines. SmallTextInk says that ink that does not look like
+	// text at letter size does when marks of 2-3 pixels are taken for
+	// letters (ocr.InkShape.SmallText: print too small for the scan's
+	// resolution).
+	InkMeasured  bool `json:"ink_measured"`
+	TextLikeInk  bool `json:"text_like_ink"`
+	InkLines     int  `json:"ink_lines"`
+	SmallTextInk bool `json:"small_text_ink,omitempty"`
 
 	// NoLexicon is true when the page's language had no lexicon and the
 	// features were computed with lexicon.AcceptAll: LexHit, LexHitChars
@@ -136,6 +140,7 @@ func PageFeatures(rec *ocr.Record, lex *lexicon.Lexicon) Features {
 	f.Blank = rec.Blank
 	if rec.Ink != nil {
 		f.InkMeasured, f.TextLikeInk, f.InkLines = true, rec.Ink.LooksLikeText(), rec.Ink.Lines
+		f.SmallTextInk = !f.TextLikeInk && rec.Ink.SmallText
 	}
 	return f
 }

@@ -3,6 +3,9 @@ package quality
 import (
 	"fmt"
 	"math"
+
+	"recto/lexicon"
+	"recto/ocr"
 )
 
 // Decisions made by Triage.
@@ -78,6 +81,22 @@ type Verdict struct {
 	Reasons      []string `json:"reasons"`       // plain-language evidence that explains the decision, in a fixed order (see reasons)
 }
 
+// TriageRecord triages a page record as a run does: Triage on the
+// record's features (PageFeatures) with lexicon lex. Unlike PageFeatures,
+// lex nil here means the page's language has no lexicon: the features are
+// computed with lexicon.AcceptAll and marked NoLexicon, so the lexicon
+// features carry no evidence.
+func TriageRecord(rec *ocr.Record, lex *lexicon.Lexicon, m *Model, t Thresholds) Verdict {
+	var f Features
+	if lex == nil {
+		f = PageFeatures(rec, lexicon.AcceptAll())
+		f.NoLexicon = true
+	} else {
+		f = PageFeatures(rec, lex)
+	}
+	return Triage(f, m, t)
+}
+
 // Triage predicts a page's CER with m (nil means DefaultModel) and decides
 // what to do with the page. Blank pages and pictures get their own
 // decisions and are never sent for rescanning; a page record marked blank
@@ -85,7 +104,9 @@ type Verdict struct {
 // blank but sent for rescanning, as its text may have been lost. When the
 // record carries the shape of the page's ink (Features.InkMeasured), a page
 // whose ink looks like text but yields almost no words is a failed reading
-// and is sent for rescanning, never decided picture or nearly blank.
+// and is sent for rescanning, never decided picture or nearly blank; so is
+// a page whose ink looks like text too small for the resolution
+// (Features.SmallTextInk) and on which few words are read with confidence.
 func Triage(f Features, m *Model, t Thresholds) Verdict {
 	if m == nil {
 		m = DefaultModel()
@@ -116,6 +137,14 @@ func Triage(f Features, m *Model, t Thresholds) Verdict {
 		return Verdict{PredictedCER: 1, Decision: DecisionRescan,
 			Reasons: []string{fmt.Sprintf("ink has the shape of text (%s of letter-sized marks) but %s read, %s in the lexicon: the reading failed",
 				plural(f.InkLines, "line"), plural(f.Tokens, "word"), plural(words, "word"))}}
+	}
+	if f.FromRecord && f.InkMeasured && f.SmallTextInk && confidentTokens(f) < PictureMaxTokens {
+		// Lines of marks too small for letters at this resolution, and
+		// almost nothing read: print scanned at too low a resolution for
+		// the engine, not a picture.
+		return Verdict{PredictedCER: 1, Decision: DecisionRescan,
+			Reasons: []string{fmt.Sprintf("ink has the shape of text too small to read (lines of marks 2-3 pixels tall) but %s read, %s in the lexicon: rescan at a higher resolution",
+				plural(f.Tokens, "word"), plural(words, "word"))}}
 	}
 	if f.FromRecord && f.Chars > 0 && f.Chars < NearBlankMaxChars && f.Noise < PictureMaxNoise {
 		return Verdict{Decision: DecisionBlank, Reasons: []string{fmt.Sprintf("page is nearly blank: %s recognised on a clean scan", plural(f.Chars, "character"))}}

@@ -51,6 +51,14 @@ func TestTriageDecisions(t *testing.T) {
 		{"ink not shaped like text, a caption", Features{FromRecord: true, InkMeasured: true, InkLines: 6, Tokens: 14, Chars: 60, LexWords: 13, LexHit: 0.92, LowConf: 0.14, Noise: 0.4}, 0.03, Thresholds{}, DecisionPicture},
 		// 20 words at confidence 60 or more: not a picture, whatever the ink.
 		{"ink not shaped like text, 20 confident words", Features{FromRecord: true, InkMeasured: true, InkLines: 5, Tokens: 20, Chars: 90, LexWords: 20, LexHit: 1, LowConf: 0, Noise: 0.3}, 0.01, Thresholds{}, DecisionAccept},
+		// Print too small for the resolution (leptonlib's
+		// binding-example.45.jpg, an open book photographed at 45 dpi:
+		// nothing read), also with two characters read (not nearly blank),
+		// and with junk words; read well, the page is judged as any other.
+		{"small text-shaped ink, nothing read", Features{FromRecord: true, InkMeasured: true, SmallTextInk: true, InkLines: 5, Noise: 2}, 0.9, Thresholds{}, DecisionRescan},
+		{"small text-shaped ink, two characters", Features{FromRecord: true, InkMeasured: true, SmallTextInk: true, InkLines: 5, Tokens: 1, Chars: 2, Noise: 2}, 0.9, Thresholds{}, DecisionRescan},
+		{"small text-shaped ink, junk words", Features{FromRecord: true, InkMeasured: true, SmallTextInk: true, InkLines: 5, Tokens: 29, Chars: 120, LexWords: 19, LexHit: 0.37, LowConf: 0.9, Noise: 2}, 0.9, Thresholds{}, DecisionRescan},
+		{"small text-shaped ink, read well", Features{FromRecord: true, InkMeasured: true, SmallTextInk: true, InkLines: 5, Tokens: 300, Chars: 1500, LexWords: 250, LexHit: 0.9, LowConf: 0.05, Noise: 2}, 0.005, Thresholds{}, DecisionAccept},
 		{"ink not shaped like text, many words", Features{FromRecord: true, InkMeasured: true, InkLines: 40, Tokens: 330, Chars: 1500, LexWords: 250, LexHit: 0.5, LowConf: 0.9, Noise: 0}, 0.3, Thresholds{}, DecisionRescan},
 	}
 	for _, tt := range tests {

@@ -123,14 +123,7 @@ func newToolkit(o Options) (*toolkit, error) {
 				FlexErrors: c.FlexErrors, BagErrors: c.BagErrors, FlexSkipped: c.FlexSkipped > 0}
 		},
 		triage: func(r *ocr.Record) verdict {
-			var f quality.Features
-			if lex == nil {
-				f = quality.PageFeatures(r, lexicon.AcceptAll())
-				f.NoLexicon = true
-			} else {
-				f = quality.PageFeatures(r, lex)
-			}
-			v := quality.Triage(f, model, th)
+			v := quality.TriageRecord(r, lex, model, th)
 			return verdict{PredictedCER: v.PredictedCER, Decision: v.Decision, Reasons: v.Reasons}
 		},
 	}

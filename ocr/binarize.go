@@ -4,16 +4,31 @@ import (
 	"image"
 )
 
-// histogram counts the grey levels of g.
+// histogram counts the grey levels of g. Four tables count alternate
+// pixels and are summed at the end: with one table, a page that is mostly
+// paper increments the same counter pixel after pixel, each increment
+// waiting on the one before (about four times slower on a clean A4 page:
+// BenchmarkHistogram).
 func histogram(g *image.Gray) *[256]int {
-	var h [256]int
+	var h [4][256]int
 	w := g.Rect.Dx()
 	for y := 0; y < g.Rect.Dy(); y++ {
-		for _, v := range g.Pix[y*g.Stride : y*g.Stride+w] {
-			h[v]++
+		row := g.Pix[y*g.Stride : y*g.Stride+w]
+		i := 0
+		for ; i+4 <= len(row); i += 4 {
+			h[0][row[i]]++
+			h[1][row[i+1]]++
+			h[2][row[i+2]]++
+			h[3][row[i+3]]++
+		}
+		for ; i < len(row); i++ {
+			h[0][row[i]]++
 		}
 	}
-	return &h
+	for v := range h[0] {
+		h[0][v] += h[1][v] + h[2][v] + h[3][v]
+	}
+	return &h[0]
 }
 
 // otsu returns Otsu's threshold for a grey-level histogram (N. Otsu, "A

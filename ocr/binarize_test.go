@@ -202,3 +202,27 @@ func loadGray(tb testing.TB, path string) *image.Gray {
 	}
 	return toGray(img)
 }
+
+// TestHistogramCounts: the four-table histogram counts every pixel once,
+// as a plain count does (common practice), on rows whose width is not a
+// multiple of four and on a sub-image whose stride is wider than its rows.
+func TestHistogramCounts(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	for _, w := range []int{1, 3, 4, 7, 250} {
+		g := image.NewGray(image.Rect(0, 0, w, 9))
+		for i := range g.Pix {
+			g.Pix[i] = uint8(rng.IntN(256))
+		}
+		for _, img := range []*image.Gray{g, g.SubImage(image.Rect(w/3, 2, w, 7)).(*image.Gray)} {
+			var want [256]int
+			for y := img.Rect.Min.Y; y < img.Rect.Max.Y; y++ {
+				for x := img.Rect.Min.X; x < img.Rect.Max.X; x++ {
+					want[img.GrayAt(x, y).Y]++
+				}
+			}
+			if got := histogram(img); *got != want {
+				t.Errorf("%v: histogram differs from a plain count", img.Rect)
+			}
+		}
+	}
+}

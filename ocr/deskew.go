@@ -407,6 +407,41 @@ func (r rotation) toSrc(x, y float64) (float64, float64) {
 	return r.srcCX + dx*r.cos - dy*r.sin, r.srcCY + dx*r.sin + dy*r.cos
 }
 
+// inside returns the run [xa, xb) of x in [0, n) for which a + x·u lies in
+// [0, hi): a line crosses a band in one run.
+func inside(a, u, hi int64, n int) (xa, xb int) {
+	switch {
+	case u == 0:
+		if a >= 0 && a < hi {
+			return 0, n
+		}
+		return 0, 0
+	case u > 0: // x ≥ ⌈−a/u⌉ and x < ⌈(hi−a)/u⌉
+		return clampRun(ceilDiv(-a, u), ceilDiv(hi-a, u), n)
+	default: // x ≤ ⌊a/−u⌋ and x > ⌊(a−hi)/−u⌋
+		return clampRun(floorDiv(a-hi, -u)+1, floorDiv(a, -u)+1, n)
+	}
+}
+
+func clampRun(lo, hi int64, n int) (int, int) {
+	lo, hi = max(lo, 0), min(hi, int64(n))
+	if hi < lo {
+		return 0, 0
+	}
+	return int(lo), int(hi)
+}
+
+// floorDiv and ceilDiv divide by b > 0, rounding down and up.
+func floorDiv(a, b int64) int64 {
+	q := a / b
+	if a%b != 0 && a < 0 {
+		q--
+	}
+	return q
+}
+
+func ceilDiv(a, b int64) int64 { return -floorDiv(-a, b) }
+
 // rotate returns src rotated by deg degrees counter-clockwise (as seen) with
 // bilinear interpolation and white (255) where no source pixel falls.
 func rotate(src *image.Gray, deg float64) *image.Gray {
@@ -438,25 +473,36 @@ func rotate(src *image.Gray, deg float64) *image.Gray {
 		fx := int64(math.Round((sx0 + 0.5) * one))
 		fy := int64(math.Round((sy0 + 0.5) * one))
 		row := dst.Pix[y*dst.Stride : y*dst.Stride+r.dstW]
-		for x := range row {
-			ix, iy := fx>>fb, fy>>fb
-			if ix >= 0 && iy >= 0 && ix < maxX && iy < maxY {
-				o := int(iy)*pw + int(ix)
-				p := pad[o : o+pw+2 : o+pw+2]
-				if p[0] == p[1] && p[0] == p[pw] && p[0] == p[pw+1] {
-					row[x] = p[0] // flat paper: nothing to interpolate
-					fx += ux
-					fy += uy
-					continue
-				}
-				p00, p10, p01, p11 := int64(p[0]), int64(p[1]), int64(p[pw]), int64(p[pw+1])
-				ax, ay := fx&(one-1), fy&(one-1)
-				top := p00<<fb + (p10-p00)*ax
-				bot := p01<<fb + (p11-p01)*ax
-				row[x] = uint8((top<<fb + (bot-top)*ay + 1<<(2*fb-1)) >> (2 * fb))
-			} else {
-				row[x] = 255
+		// The pixels of the row whose four source pixels lie inside the
+		// padded copy form one run [xa, xb); white outside it.
+		xa, xb := inside(fx, ux, maxX<<fb, len(row))
+		ya, yb := inside(fy, uy, maxY<<fb, len(row))
+		xa, xb = max(xa, ya), min(xb, yb)
+		if xb <= xa {
+			xa, xb = 0, 0
+		}
+		for x := range row[:xa] {
+			row[x] = 255
+		}
+		for x := range row[xb:] {
+			row[xb+x] = 255
+		}
+		fx += int64(xa) * ux
+		fy += int64(xa) * uy
+		for x := xa; x < xb; x++ {
+			o := int(fy>>fb)*pw + int(fx>>fb)
+			p := pad[o : o+pw+2 : o+pw+2]
+			if p[0] == p[1] && p[0] == p[pw] && p[0] == p[pw+1] {
+				row[x] = p[0] // flat paper: nothing to interpolate
+				fx += ux
+				fy += uy
+				continue
 			}
+			p00, p10, p01, p11 := int64(p[0]), int64(p[1]), int64(p[pw]), int64(p[pw+1])
+			ax, ay := fx&(one-1), fy&(one-1)
+			top := p00<<fb + (p10-p00)*ax
+			bot := p01<<fb + (p11-p01)*ax
+			row[x] = uint8((top<<fb + (bot-top)*ay + 1<<(2*fb-1)) >> (2 * fb))
 			fx += ux
 			fy += uy
 		}

@@ -116,7 +116,7 @@ func TestBilevelNotRebinarised(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if !isBilevel(toGray(d.Image)) {
+		if !isBilevel(histogram(toGray(d.Image))) {
 			t.Fatalf("%s: not taken for bilevel", name)
 		}
 		p, err := Prepare(d.Image, PrepOptions{DPI: d.DPI})

@@ -1,6 +1,7 @@
 package ocr
 
 import (
+	"bytes"
 	"image"
 	"math"
 	"sort"
@@ -129,11 +130,7 @@ func measureInk(g *image.Gray, t int) InkShape {
 	}
 	dark := 0
 	for y := 0; y < h; y++ {
-		for _, v := range b.Pix[y*b.Stride : y*b.Stride+w] {
-			if v == 0 {
-				dark++
-			}
-		}
+		dark += bytes.Count(b.Pix[y*b.Stride:y*b.Stride+w], ink)
 	}
 	if 2*dark > w*h {
 		invert(b)
@@ -151,6 +148,9 @@ func measureInk(g *image.Gray, t int) InkShape {
 		measureMarks(turned, w, minSmallHeight).LooksLikeText()
 	return s
 }
+
+// ink is the level of ink in a binary image, for bytes.Count.
+var ink = []byte{0}
 
 // runPool holds run buffers for measureInk, one per page measured at once.
 var runPool = sync.Pool{New: func() any { return new([]run) }}

@@ -183,7 +183,8 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 	}
 
 	g := toGray(src)
-	bilevel := isBilevel(g)
+	hist := histogram(g)
+	bilevel := isBilevel(hist)
 	if bilevel {
 		step("gray", true, "%d×%d greyscale, bilevel (two grey levels): not denoised, not binarised again", W, H)
 	} else {
@@ -202,7 +203,7 @@ func Prepare(src image.Image, o PrepOptions) (*Prepared, error) {
 	// the ink into grains until blurred). Its x-height is not trusted for
 	// the resolution: at 100 dpi the blur joins letters into words (13.8
 	// pixels measured on type of 8).
-	ink := measureInk(g, otsu(histogram(g)))
+	ink := measureInk(g, otsu(hist))
 	denoise := o.Denoise == On || (o.Denoise == Auto && p.Noise >= DenoiseThreshold && !bilevel)
 	if denoise {
 		passes := denoisePasses(p.Noise)
@@ -459,12 +460,11 @@ var greyWhenClean = true
 // characters; dust of 0.5 % of the pixels makes several percent of the ink.
 const dustFraction = 0.01
 
-// isBilevel reports whether g holds (almost) only two grey levels, as a
-// scanner's bilevel output does (1-bit TIFF, or grey written with two
-// levels): at least 99.9 % of the pixels in the two commonest levels, at
-// least 64 levels apart.
-func isBilevel(g *image.Gray) bool {
-	h := histogram(g)
+// isBilevel reports whether the page of grey-level histogram h holds
+// (almost) only two grey levels, as a scanner's bilevel output does (1-bit
+// TIFF, or grey written with two levels): at least 99.9 % of the pixels in
+// the two commonest levels, at least 64 levels apart.
+func isBilevel(h *[256]int) bool {
 	a, b := 0, -1
 	for v := range h {
 		if h[v] > h[a] {
@@ -476,7 +476,10 @@ func isBilevel(g *image.Gray) bool {
 			b = v
 		}
 	}
-	n := g.Rect.Dx() * g.Rect.Dy()
+	n := 0
+	for _, c := range h {
+		n += c
+	}
 	if b < 0 || h[b] == 0 || n == 0 {
 		return false // one level: nothing to threshold either way
 	}

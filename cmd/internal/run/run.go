@@ -355,10 +355,14 @@ func Run(ctx context.Context, o Options) (Summary, error) {
 
 	prog := progress.New(stderr, o.Command, o.Quiet, len(pages))
 	w := l.NewWriter(func(p ledger.Page) { prog.Add(p.State == ledger.StateFailed) })
-	finished := make(chan struct{})
-	go st.sayStopping(ctx, prog, o.Command, len(pages), finished) // stopping.go
+	finished, said := make(chan struct{}), make(chan struct{})
+	go func() {
+		defer close(said)
+		st.sayStopping(ctx, prog, o.Command, len(pages), finished) // stopping.go
+	}()
 	runErr := st.process(ctx, pages, w, prog)
 	close(finished)
+	<-said
 	werr := w.Close()
 	prog.Finish()
 	sum.Skipped = prog.Skipped()
